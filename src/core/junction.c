@@ -1,0 +1,104 @@
+/*
+ * junction.c - safeguarded Newton-Raphson for vj + r * Ij(vj) = voc.
+ *
+ * F(vj) = vj + r Ij(vj) - voc is increasing, so a kept bracket [lo, hi]
+ * (F(lo) <= 0 <= F(hi)) is updated from the sign of F at every iterate; a
+ * Newton step that would leave the bracket, or a non-finite value, falls
+ * back to bisection, so the iteration can neither leave the bracket nor
+ * stall.  Starting at the upper end of the bracket on a convex F (a forward
+ * biased junction) the Newton iterates decrease monotonically onto the root.
+ */
+#include "junction.h"
+
+#include <math.h>
+
+/* Intrinsic current of TYPE (the whole current when it has no split). */
+static double junction_current(const struct model_type *t, const double *p,
+                               double v)
+{
+	return t->intrinsic_current ? t->intrinsic_current(p, v) : t->current(p, v);
+}
+
+/* Intrinsic conductance of TYPE. */
+static double junction_conductance(const struct model_type *t, const double *p,
+                                   double v)
+{
+	return t->intrinsic_conductance ? t->intrinsic_conductance(p, v)
+	                                : t->conductance(p, v);
+}
+
+/* A finite estimate of the intrinsic voltage at current I > 0, or NaN. */
+static double junction_estimate(const struct model_type *t, const double *p,
+                                double i)
+{
+	double v = NAN;
+	if (t->intrinsic_voltage)
+		v = t->intrinsic_voltage(p, i);
+	else if (t->voltage && t->voltage(p, i, &v) != 0)
+		v = NAN;
+	return v;
+}
+
+/* Solve vj + r Ij(vj) = voc (see junction.h). */
+struct junction_result junction_solve(const struct model_type *t,
+                                      const double *p, double voc, double r,
+                                      double tol)
+{
+	struct junction_result res = { .vj = voc, .ij = NAN, .iters = 0, .ok = 0 };
+	if (r == 0.0 || voc == 0.0) {
+		res.ij = junction_current(t, p, voc);
+		res.ok = isfinite(res.ij);
+		return res;
+	}
+	double lo = fmin(0.0, voc), hi = fmax(0.0, voc);
+	/* The current cannot exceed |voc|/r: bound the junction voltage. */
+	double est = junction_estimate(t, p, fabs(voc) / r);
+	if (isfinite(est)) {
+		if (voc > 0.0 && est < hi && est > lo)
+			hi = est;
+		else if (voc < 0.0 && -est > lo && -est < hi)
+			lo = -est;
+	}
+	double v = voc > 0.0 ? hi : lo;
+	for (unsigned it = 1; it <= 400; it++) {
+		double ij = junction_current(t, p, v);
+		double f = v + r * ij - voc;
+		res.iters = it;
+		if (f == 0.0) {
+			res.ok = 1;
+			break;
+		}
+		if (f < 0.0)
+			lo = v;
+		else
+			hi = v; /* F > 0, or overflow: v is above the root */
+		double vn;
+		double d = 1.0 + r * junction_conductance(t, p, v);
+		if (isfinite(f) && isfinite(d) && d > 0.0) {
+			vn = v - f / d;
+			if (t->limit)
+				vn = t->limit(p, vn, v);
+		} else {
+			vn = NAN;
+		}
+		if (!(vn > lo && vn < hi))
+			vn = 0.5 * (lo + hi);
+		double dv = vn - v;
+		v = vn;
+		if (fabs(dv) <= tol * fabs(v) || hi - lo <= tol * fabs(v) ||
+		    fabs(dv) < 1e-300) {
+			res.ok = 1;
+			break;
+		}
+	}
+	res.vj = v;
+	double g = junction_conductance(t, p, v);
+	/* Take the current from the better-conditioned side (see solve.c). */
+	if (r * g > 1.0)
+		res.ij = (voc - v) / r;
+	else
+		res.ij = junction_current(t, p, v);
+	if (!isfinite(res.ij))
+		res.ok = 0;
+	return res;
+}

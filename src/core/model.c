@@ -1,0 +1,130 @@
+/*
+ * model.c - the model registry and the generic device functions.
+ */
+#include "model.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "models/models.h"
+
+/* Every model, in the order help screens list them. */
+const struct model_type *const model_registry[] = {
+	&model_diode,
+	&model_power_law,
+	NULL,
+};
+
+/* Look a model up by name. */
+const struct model_type *model_find(const char *name)
+{
+	for (size_t k = 0; model_registry[k] != NULL; k++)
+		if (strcmp(model_registry[k]->name, name) == 0)
+			return model_registry[k];
+	return NULL;
+}
+
+/* Index of KEY in TYPE's table. */
+int model_param_index(const struct model_type *type, const char *key)
+{
+	for (size_t k = 0; k < type->nparams; k++)
+		if (strcmp(type->params[k].key, key) == 0)
+			return (int)k;
+	return -1;
+}
+
+/* Fill DEV with TYPE and its defaults. */
+void device_init(struct device *dev, const struct model_type *type)
+{
+	dev->type = type;
+	for (size_t k = 0; k < MODEL_MAX_PARAMS; k++)
+		dev->p[k] = k < type->nparams ? type->params[k].def : 0.0;
+}
+
+/* Describe the valid range of MP into BUF. */
+static void model_param_describe_range(const struct model_param *mp, char *buf,
+                                       size_t n)
+{
+	char lo[48], hi[48];
+	qty_format(lo, sizeof lo, mp->min, mp->kind, 6, 1);
+	qty_format(hi, sizeof hi, mp->max, mp->kind, 6, 1);
+	if (isinf(mp->max))
+		snprintf(buf, n, "a value %s %s", mp->min_open ? ">" : ">=", lo);
+	else if (isinf(mp->min))
+		snprintf(buf, n, "a value %s %s", mp->max_open ? "<" : "<=", hi);
+	else
+		snprintf(buf, n, "a value in %s%s, %s%s", mp->min_open ? "(" : "[",
+		         lo, hi, mp->max_open ? ")" : "]");
+}
+
+/* Check one value against its table entry. */
+int model_param_check(const struct model_param *mp, double value, char *err,
+                      size_t errlen)
+{
+	char range[128];
+	model_param_describe_range(mp, range, sizeof range);
+	if (isnan(value)) {
+		snprintf(err, errlen, "%s: a value is required (%s)", mp->key, range);
+		return -1;
+	}
+	if (!isfinite(value)) {
+		snprintf(err, errlen, "%s: must be finite (%s)", mp->key, range);
+		return -1;
+	}
+	bool below = mp->min_open ? !(value > mp->min) : !(value >= mp->min);
+	bool above = mp->max_open ? !(value < mp->max) : !(value <= mp->max);
+	if (below || above) {
+		char got[48];
+		qty_format(got, sizeof got, value, mp->kind, 6, 1);
+		snprintf(err, errlen, "%s: %s is out of range: expected %s", mp->key,
+		         got, range);
+		return -1;
+	}
+	return 0;
+}
+
+/* Check every parameter of DEV. */
+int device_validate(const struct device *dev, char *err, size_t errlen)
+{
+	if (dev->type == NULL) {
+		snprintf(err, errlen, "model: no device model given");
+		return -1;
+	}
+	for (size_t k = 0; k < dev->type->nparams; k++)
+		if (model_param_check(&dev->type->params[k], dev->p[k], err, errlen) != 0)
+			return -1;
+	if (dev->type->validate != NULL)
+		return dev->type->validate(dev->p, err, errlen);
+	return 0;
+}
+
+/* Device current at V. */
+double device_current(const struct device *dev, double v)
+{
+	if (dev->type->current == NULL)
+		return NAN;
+	return dev->type->current(dev->p, v);
+}
+
+/* dI/dV at V. */
+double device_conductance(const struct device *dev, double v)
+{
+	if (dev->type->conductance == NULL)
+		return NAN;
+	return dev->type->conductance(dev->p, v);
+}
+
+/* Device voltage at I. */
+int device_voltage(const struct device *dev, double i, double *v)
+{
+	if (dev->type->voltage == NULL)
+		return -1;
+	return dev->type->voltage(dev->p, i, v);
+}
+
+/* Natural plotting and scanning range. */
+void device_range(const struct device *dev, double *vmin, double *vmax)
+{
+	dev->type->range(dev->p, vmin, vmax);
+}

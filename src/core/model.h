@@ -1,0 +1,139 @@
+/*
+ * model.h - the device interface: one const model_type per device model,
+ * collected in a registry.  A device is a type plus its parameter values.
+ *
+ * Conventions.  V is the voltage across the device and I the current into
+ * it, in the passive sign convention.  Every model gives current(V) when its
+ * curve is single-valued in V, and voltage(I) when it is single-valued in I;
+ * at least one of the two exists.  conductance(V) is dI/dV.
+ *
+ * A model with a series resistance (say a diode's bulk resistance) may
+ * split itself into an intrinsic part and that resistance: solvers then
+ * fold the resistance into the source and work on the intrinsic junction,
+ * which is better conditioned.  current() always includes it.
+ */
+#ifndef BIASLINE_MODEL_H
+#define BIASLINE_MODEL_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "quantity.h"
+
+#define MODEL_MAX_PARAMS 16
+
+/* One parameter of a model: key, unit, default, valid range and help. */
+struct model_param {
+	const char *key;      /* session-file key, snake_case full words */
+	const char *label;    /* short label for the side pane */
+	enum qty_kind kind;   /* unit of the value */
+	double def;           /* default value; NAN when the key is required */
+	double min, max;      /* valid range */
+	bool min_open;        /* true: value must be > min, else >= min */
+	bool max_open;        /* true: value must be < max, else <= max */
+	bool log_step;        /* nudge multiplicatively (Is, resistances) */
+	const char *help;     /* one line of help text */
+};
+
+/* Parameter values of a device, indexed like the type's table. */
+typedef double model_values[MODEL_MAX_PARAMS];
+
+/* One device model. */
+struct model_type {
+	const char *name;                  /* session-file name, "diode" */
+	const char *summary;               /* one line for help screens */
+	const struct model_param *params;
+	size_t nparams;
+	/* true when I(V) is strictly increasing everywhere (unique point) */
+	bool monotone;
+
+	/* I at V; NULL when the curve is not single-valued in V. */
+	double (*current)(const double *p, double v);
+	/* dI/dV at V; NULL only when current is NULL. */
+	double (*conductance)(const double *p, double v);
+	/*
+	 * V at I into *V; returns 0, or -1 when I is outside the curve's range.
+	 * NULL when the curve is not single-valued in I.
+	 */
+	int (*voltage)(const double *p, double i, double *v);
+	/* dV/dI at I (the differential resistance); NULL when voltage is. */
+	double (*resistance)(const double *p, double i);
+
+	/* Natural voltage range for plots and the every-root scan. */
+	void (*range)(const double *p, double *vmin, double *vmax);
+
+	/*
+	 * Extra validation beyond the table's ranges (cross-parameter rules).
+	 * Returns 0, or -1 with a message naming the key in ERR.  May be NULL.
+	 */
+	int (*validate)(const double *p, char *err, size_t errlen);
+
+	/*
+	 * Optional series split: the series resistance in ohm, and the
+	 * intrinsic current/conductance of the junction behind it.  NULL when
+	 * the model has none.
+	 */
+	double (*series_resistance)(const double *p);
+	double (*intrinsic_current)(const double *p, double vj);
+	double (*intrinsic_conductance)(const double *p, double vj);
+
+	/*
+	 * Optional Newton step limiting for exponential junctions: given the
+	 * previous and the proposed intrinsic voltage, return the limited one.
+	 */
+	double (*limit)(const double *p, double vnew, double vold);
+
+	/*
+	 * Optional starting estimate of the intrinsic voltage at which the
+	 * intrinsic current equals I (I > 0), used to seed Newton.
+	 */
+	double (*intrinsic_voltage)(const double *p, double i);
+};
+
+/* A device: its model and parameter values. */
+struct device {
+	const struct model_type *type;
+	model_values p;
+};
+
+/* The registry: all models, NULL-terminated. */
+extern const struct model_type *const model_registry[];
+
+/* Look a model up by its session-file name; NULL when unknown. */
+const struct model_type *model_find(const char *name);
+
+/* Index of KEY in TYPE's parameter table, or -1. */
+int model_param_index(const struct model_type *type, const char *key);
+
+/* Fill DEV with TYPE and its default parameter values. */
+void device_init(struct device *dev, const struct model_type *type);
+
+/*
+ * Check one value against its table entry.  Returns 0, or -1 with a message
+ * naming the key and the valid range in ERR.
+ */
+int model_param_check(const struct model_param *mp, double value,
+                      char *err, size_t errlen);
+
+/*
+ * Check every parameter of DEV (ranges, required keys, then the model's own
+ * validator).  Returns 0, or -1 with a message naming the key in ERR.
+ */
+int device_validate(const struct device *dev, char *err, size_t errlen);
+
+/* Device current at V (NaN when the model has no current(V)). */
+double device_current(const struct device *dev, double v);
+
+/* dI/dV at V (NaN when the model has no current(V)). */
+double device_conductance(const struct device *dev, double v);
+
+/* Device voltage at I into *V; returns 0 or -1 (undefined there). */
+int device_voltage(const struct device *dev, double i, double *v);
+
+/* Natural plotting and scanning range. */
+void device_range(const struct device *dev, double *vmin, double *vmax);
+
+/* Device power V*I at (V, I). */
+static inline double device_power(double v, double i) { return v * i; }
+
+#endif

@@ -1,0 +1,162 @@
+/*
+ * diode.c - the Shockley junction diode with ideality factor, saturation
+ * current, optional series (bulk) resistance and junction temperature:
+ *
+ *     I = Is * (exp(Vj / (n Vt)) - 1),   V = Vj + I * Rs,   Vt = k T / q
+ *
+ * (Shockley, Bell Syst. Tech. J. 28, 1949).  k and q are the exact values
+ * of the 2019 SI redefinition (BIPM, The International System of Units,
+ * 9th edition, 2019).  Is is the value at the stated temperature.
+ */
+#include <math.h>
+#include <stdio.h>
+
+#include "../junction.h"
+#include "models.h"
+
+#define BOLTZMANN 1.380649e-23          /* J/K, exact (SI 2019) */
+#define ELEMENTARY_CHARGE 1.602176634e-19 /* C, exact (SI 2019) */
+#define ZERO_CELSIUS 273.15             /* K */
+
+/* Thermal voltage kT/q at TEMP_C. */
+double diode_thermal_voltage(double temp_c)
+{
+	return BOLTZMANN * (temp_c + ZERO_CELSIUS) / ELEMENTARY_CHARGE;
+}
+
+/* n * Vt for the parameters P. */
+static double diode_nvt(const double *p)
+{
+	return p[DIODE_N] * diode_thermal_voltage(p[DIODE_TEMP]);
+}
+
+/* Junction current at junction voltage VJ. */
+static double diode_intrinsic_current(const double *p, double vj)
+{
+	return p[DIODE_IS] * expm1(vj / diode_nvt(p));
+}
+
+/* Junction conductance at VJ. */
+static double diode_intrinsic_conductance(const double *p, double vj)
+{
+	double nvt = diode_nvt(p);
+	return p[DIODE_IS] / nvt * exp(vj / nvt);
+}
+
+/* Junction voltage at current I (I > -Is), NaN outside. */
+static double diode_intrinsic_voltage(const double *p, double i)
+{
+	double x = i / p[DIODE_IS];
+	if (!(x > -1.0))
+		return NAN;
+	return diode_nvt(p) * log1p(x);
+}
+
+/* Series resistance. */
+static double diode_series_resistance(const double *p)
+{
+	return p[DIODE_RS];
+}
+
+/* Terminal current at terminal voltage V (inner solve when Rs > 0). */
+static double diode_current(const double *p, double v)
+{
+	if (p[DIODE_RS] == 0.0)
+		return diode_intrinsic_current(p, v);
+	struct junction_result jr =
+		junction_solve(&model_diode, p, v, p[DIODE_RS], 1e-15);
+	return jr.ij;
+}
+
+/* dI/dV at terminal voltage V: 1 / (r_j + Rs). */
+static double diode_conductance(const double *p, double v)
+{
+	if (p[DIODE_RS] == 0.0)
+		return diode_intrinsic_conductance(p, v);
+	struct junction_result jr =
+		junction_solve(&model_diode, p, v, p[DIODE_RS], 1e-15);
+	double gj = diode_intrinsic_conductance(p, jr.vj);
+	return gj / (1.0 + gj * p[DIODE_RS]);
+}
+
+/* Terminal voltage at current I. */
+static int diode_voltage(const double *p, double i, double *v)
+{
+	double vj = diode_intrinsic_voltage(p, i);
+	if (!isfinite(vj))
+		return -1;
+	*v = vj + i * p[DIODE_RS];
+	return 0;
+}
+
+/* dV/dI at current I. */
+static double diode_resistance(const double *p, double i)
+{
+	double d = p[DIODE_IS] + i;
+	if (!(d > 0.0))
+		return NAN;
+	return diode_nvt(p) / d + p[DIODE_RS];
+}
+
+/*
+ * Junction-voltage limiting (Nagel, SPICE2, UC Berkeley ERL Memo M520,
+ * 1975): above the critical voltage a large forward step is replaced by
+ * the step that changes the current by the same amount on a logarithmic
+ * scale, so exp() cannot overflow and Newton cannot overshoot wildly.
+ */
+static double diode_limit(const double *p, double vnew, double vold)
+{
+	double nvt = diode_nvt(p);
+	double vcrit = nvt * log(nvt / (sqrt(2.0) * p[DIODE_IS]));
+	if (vnew > vcrit && fabs(vnew - vold) > 2.0 * nvt) {
+		if (vold > 0.0) {
+			double arg = 1.0 + (vnew - vold) / nvt;
+			vnew = arg > 0.0 ? vold + nvt * log(arg) : vcrit;
+		} else {
+			vnew = nvt * log(vnew / nvt);
+		}
+	}
+	return vnew;
+}
+
+/* From a reverse voltage to the forward voltage at 1 A (and 10 nVt). */
+static void diode_range(const double *p, double *vmin, double *vmax)
+{
+	double v1;
+	if (diode_voltage(p, 1.0, &v1) != 0 || !isfinite(v1))
+		v1 = 1.0;
+	*vmax = v1;
+	*vmin = -0.25 * v1;
+}
+
+static const struct model_param diode_params[DIODE_NPARAMS] = {
+	[DIODE_IS] = { "saturation_current", "Is", QTY_CURRENT, NAN, 0.0, 1.0,
+	               true, false, true,
+	               "saturation current at the junction temperature" },
+	[DIODE_N] = { "ideality", "n", QTY_NUMBER, NAN, 0.0, 100.0, true, false,
+	              false, "ideality (emission) factor, about 1 to 2 for silicon" },
+	[DIODE_RS] = { "series_resistance", "Rs", QTY_RESISTANCE, 0.0, 0.0, 1e9,
+	               false, false, true, "bulk/series resistance, 0 for none" },
+	[DIODE_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15,
+	                 1000.0, true, false, false,
+	                 "junction temperature in degrees Celsius" },
+};
+
+const struct model_type model_diode = {
+	.name = "diode",
+	.summary = "Shockley junction diode with ideality and series resistance",
+	.params = diode_params,
+	.nparams = DIODE_NPARAMS,
+	.monotone = true,
+	.current = diode_current,
+	.conductance = diode_conductance,
+	.voltage = diode_voltage,
+	.resistance = diode_resistance,
+	.range = diode_range,
+	.validate = NULL,
+	.series_resistance = diode_series_resistance,
+	.intrinsic_current = diode_intrinsic_current,
+	.intrinsic_conductance = diode_intrinsic_conductance,
+	.limit = diode_limit,
+	.intrinsic_voltage = diode_intrinsic_voltage,
+};

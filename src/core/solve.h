@@ -1,0 +1,70 @@
+/*
+ * solve.h - finding operating points: the every-root scan, a fast single
+ * solve for monotone devices, and verification.
+ */
+#ifndef BIASLINE_SOLVE_H
+#define BIASLINE_SOLVE_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "problem.h"
+#include "stepper.h"
+
+#define SOLVE_MAX_POINTS 16
+
+/* One operating point. */
+struct op_point {
+	double v, i;       /* device voltage and current */
+	double power;      /* V * I, W */
+	double rd;         /* differential resistance dV/dI, ohm (may be < 0) */
+	double residual;   /* |F| at the point, in the residual's unit */
+	unsigned steps;    /* iterations the refining method took */
+	enum solve_method method;
+	bool tangent;      /* a touching point (double root), not a crossing */
+};
+
+/* Why a solve ended. */
+enum solve_status {
+	SOLVE_OK,          /* at least one verified point */
+	SOLVE_NONE,        /* no crossing in the device's range */
+	SOLVE_FAILED,      /* the method stopped without a verified point */
+	SOLVE_BAD_INPUT,   /* the problem cannot be solved as stated */
+};
+
+/* All operating points found. */
+struct solve_result {
+	enum solve_status status;
+	size_t n;
+	struct op_point pts[SOLVE_MAX_POINTS];
+	enum step_status stop;   /* for a single-method solve: why it stopped */
+	char message[256];       /* plain-language reason when not SOLVE_OK */
+};
+
+/*
+ * Solve PB with O.  METHOD_AUTO scans the device's range for every crossing
+ * (or takes the unique bracket of a monotone device) and refines each with
+ * safeguarded Newton; any other method runs that stepper from O's start
+ * point and reports the one point it reaches.  Points are sorted by voltage.
+ */
+enum solve_status solve_problem(const struct problem *pb,
+                                const struct solve_options *o,
+                                struct solve_result *out);
+
+/*
+ * The fast path for one operating point of a monotone device with a finite
+ * source resistance (or any source): safeguarded Newton in the bracket.
+ * Returns 0 and fills *PT, or -1.
+ */
+int solve_fast(const struct problem *pb, double tol, struct op_point *pt);
+
+/* Fill PT's derived fields (power, rd, residual) from V and I. */
+void solve_finish_point(const struct problem *pb, struct op_point *pt);
+
+/*
+ * Check that (V, I) is an operating point of PB to relative tolerance TOL:
+ * finite, on the device curve and on the load line.
+ */
+bool solve_verify(const struct problem *pb, double v, double i, double tol);
+
+#endif

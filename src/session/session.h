@@ -1,0 +1,83 @@
+/*
+ * session.h - the session: everything one case holds, the single source of
+ * truth for the CLI and the TUI, and its YAML form (load/save via libyaml).
+ *
+ * Ownership: a session is embedded (session_init / session_fini); strings
+ * inside it are owned by it and freed by session_fini.
+ */
+#ifndef BIASLINE_SESSION_H
+#define BIASLINE_SESSION_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "core/model.h"
+#include "core/problem.h"
+#include "core/source.h"
+#include "core/stepper.h"
+
+#define SESSION_FORMAT_VERSION 1
+
+/* The plot view: automatic or fixed axis ranges, and a zoom factor. */
+struct session_view {
+	bool autoscale;            /* true: ranges follow the problem */
+	double v_min, v_max;       /* fixed ranges when !autoscale */
+	double i_min, i_max;
+	double zoom;               /* 1 = the automatic frame */
+};
+
+/* One case. */
+struct session {
+	struct source_spec source;
+	struct device device;
+	struct solve_options solver;
+	struct session_view view;
+	char *notes;               /* free text, may be NULL */
+};
+
+/* Exit-code style status of loading and saving (sysexits.h values). */
+enum session_status {
+	SESSION_OK = 0,
+	SESSION_BAD_DATA = 65,     /* EX_DATAERR: the file is not a valid session */
+	SESSION_NO_INPUT = 66,     /* EX_NOINPUT: cannot open or read the file */
+	SESSION_CANT_WRITE = 73,   /* EX_CANTCREAT: cannot write the file */
+	SESSION_IO_ERROR = 74,     /* EX_IOERR */
+};
+
+/* An error with its place: "FILE:LINE:COL: key: message". */
+struct session_error {
+	char file[256];
+	unsigned line, col;        /* 1-based; 0 = no position */
+	char key[64];              /* dotted key path, "" when none */
+	char message[512];
+};
+
+/* Fill S with the built-in defaults (a valid session). */
+void session_init(struct session *s);
+
+/* Free what S owns; S may be re-initialised afterwards. */
+void session_fini(struct session *s);
+
+/* Deep-copy SRC into DST (DST must be initialised or finied). */
+int session_copy(struct session *dst, const struct session *src);
+
+/* Format ERR as one line "FILE:LINE:COL: KEY: MESSAGE" into BUF. */
+void session_error_format(const struct session_error *err, char *buf, size_t n);
+
+/* Load PATH into S (initialised by the call).  On error S is finied. */
+enum session_status session_load_file(struct session *s, const char *path,
+                                      struct session_error *err);
+
+/* Load from a memory buffer; NAME is used in messages. */
+enum session_status session_load_buffer(struct session *s, const char *name,
+                                        const char *buf, size_t len,
+                                        struct session_error *err);
+
+/* The built-in demo session. */
+void session_demo(struct session *s);
+
+/* Build the core problem from S; returns 0 or -1 with a message. */
+int session_problem(const struct session *s, struct problem *pb,
+                    char *err, size_t errlen);
+
+#endif
