@@ -1,0 +1,2 @@
+/* diagnose.c - being written. */
+#include "diagnose.h"

@@ -1,0 +1,2 @@
+/* solve.c - being written. */
+#include "solve.h"

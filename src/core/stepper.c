@@ -1,0 +1,2 @@
+/* stepper.c - being written. */
+#include "stepper.h"

@@ -1,0 +1,2 @@
+/* render.c - placeholder until the renderer lands. */
+#include "core/model.h"

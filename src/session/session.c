@@ -1,0 +1,2 @@
+/* session.c - placeholder until the session module lands. */
+#include "session/session.h"

@@ -1,0 +1,2 @@
+/* tui.c - placeholder until the front end lands. */
+#include "core/model.h"
