@@ -1,2 +1,205 @@
-/* diagnose.c - being written. */
+/*
+ * diagnose.c - the local rate of the projection map, the shape of the
+ * path, and the plain-language messages and remedies.  Every message about
+ * convergence that biasline prints is written here.
+ *
+ * Theory: for a fixed-point map g with g(x*) = x*, |g'(x*)| < 1 makes x*
+ * attracting and the error shrinks by about g'(x*) per step; |g'(x*)| > 1
+ * repels (Burden & Faires, Numerical Analysis, 9th ed., 2010, thm 2.4 and
+ * sec. 2.4).  The relaxed map x + w (g(x) - x) has rate 1 - w + w g',
+ * zero at w* = 1 / (1 - g').
+ */
 #include "diagnose.h"
+
+#include <math.h>
+#include <stdio.h>
+
+/* Within this distance of 1, |g'| is treated as "no contraction". */
+#define NEUTRAL_BAND 1e-6
+
+static const char *const shape_names[] = {
+	[SHAPE_SPIRAL_IN] = "spirals in",
+	[SHAPE_STAIRCASE_IN] = "staircases in",
+	[SHAPE_SPIRAL_OUT] = "spirals out",
+	[SHAPE_STAIRCASE_OUT] = "staircases out",
+	[SHAPE_NEUTRAL] = "neither converges nor diverges",
+	[SHAPE_UNDEFINED] = "cannot be used here",
+};
+
+/* Name of a shape. */
+const char *path_shape_name(enum path_shape s)
+{
+	return (unsigned)s <= SHAPE_UNDEFINED ? shape_names[s] : "?";
+}
+
+/* The device's differential resistance at V (NaN when unknown). */
+static double diagnose_rd(const struct problem *pb, double v)
+{
+	const struct model_type *t = pb->dev.type;
+	if (t->current != NULL) {
+		double i = device_current(&pb->dev, v);
+		if (t->resistance != NULL) {
+			double rd = t->resistance(pb->dev.p, i);
+			if (isfinite(rd) || isinf(rd))
+				return rd;
+		}
+		return 1.0 / device_conductance(&pb->dev, v);
+	}
+	return NAN;
+}
+
+/* g' of ORDER for source resistance R and device resistance RD. */
+static double diagnose_gprime(enum projection_order order, double r, double rd)
+{
+	if (order == ORDER_VOLTAGE_FROM_LINE) {
+		if (isinf(r))
+			return NAN; /* horizontal line: no horizontal move reaches it */
+		if (r == 0.0)
+			return 0.0;
+		return -r / rd;
+	}
+	if (r == 0.0)
+		return NAN;     /* vertical line: no vertical move reaches it */
+	if (isinf(r))
+		return 0.0;
+	return -rd / r;
+}
+
+/* The shape a path takes for map derivative G. */
+static enum path_shape diagnose_shape(double g)
+{
+	if (isnan(g))
+		return SHAPE_UNDEFINED;
+	if (fabs(fabs(g) - 1.0) <= NEUTRAL_BAND)
+		return SHAPE_NEUTRAL;
+	if (fabs(g) < 1.0)
+		return g < 0.0 ? SHAPE_SPIRAL_IN : SHAPE_STAIRCASE_IN;
+	return g < 0.0 ? SHAPE_SPIRAL_OUT : SHAPE_STAIRCASE_OUT;
+}
+
+/* The name users see for the other order. */
+static const char *diagnose_other_name(enum projection_order order)
+{
+	return projection_order_name(order == ORDER_VOLTAGE_FROM_LINE
+	                                 ? ORDER_VOLTAGE_FROM_DEVICE
+	                                 : ORDER_VOLTAGE_FROM_LINE);
+}
+
+/* Diagnose ORDER of PB at V. */
+void diagnose_at(const struct problem *pb, enum projection_order order,
+                 double v, double tol, double start_err, struct diagnosis *d)
+{
+	enum projection_order other = order == ORDER_VOLTAGE_FROM_LINE
+	                                  ? ORDER_VOLTAGE_FROM_DEVICE
+	                                  : ORDER_VOLTAGE_FROM_LINE;
+	d->r_d = diagnose_rd(pb, v);
+	d->gprime = diagnose_gprime(order, pb->src.r, d->r_d);
+	d->gprime_other = diagnose_gprime(other, pb->src.r, d->r_d);
+	d->shape = diagnose_shape(d->gprime);
+	d->omega_opt = isfinite(d->gprime) ? 1.0 / (1.0 - d->gprime) : NAN;
+	double a = fabs(d->gprime);
+	if (!(tol > 0.0))
+		tol = 1e-12;
+	if (!(start_err > tol))
+		start_err = 1.0;
+	if (a == 0.0)
+		d->steps_to_tol = 1.0;
+	else if (a < 1.0)
+		d->steps_to_tol = ceil(log(tol / start_err) / log(a));
+	else
+		d->steps_to_tol = INFINITY;
+
+	double ao = fabs(d->gprime_other);
+	d->advice[0] = '\0';
+	switch (d->shape) {
+	case SHAPE_UNDEFINED:
+		snprintf(d->verdict, sizeof d->verdict, "this order cannot be used here");
+		snprintf(d->advice, sizeof d->advice,
+		         "%s: use %s or newton",
+		         isinf(pb->src.r) ? "an ideal current source gives a horizontal load line"
+		                          : "an ideal voltage source gives a vertical load line",
+		         diagnose_other_name(order));
+		return;
+	case SHAPE_NEUTRAL:
+		snprintf(d->verdict, sizeof d->verdict,
+		         "|g'| = 1: the path circles without closing in");
+		snprintf(d->advice, sizeof d->advice,
+		         "relax with w = %.3g (optimal here) or use newton", d->omega_opt);
+		return;
+	default:
+		break;
+	}
+	if (a < 1.0)
+		snprintf(d->verdict, sizeof d->verdict,
+		         "%s, |g'| = %.3g (about %.0f steps to tolerance)",
+		         path_shape_name(d->shape), a, d->steps_to_tol);
+	else
+		snprintf(d->verdict, sizeof d->verdict, "%s, |g'| = %.3g",
+		         path_shape_name(d->shape), a);
+	if (a >= 1.0 && isfinite(ao) && ao < 1.0)
+		snprintf(d->advice, sizeof d->advice,
+		         "this order diverges here (|g'| = %.3g); the other order "
+		         "contracts with |g'| = %.3g: switch to %s",
+		         a, ao, diagnose_other_name(order));
+	else if (a >= 1.0)
+		snprintf(d->advice, sizeof d->advice,
+		         "this order diverges here (|g'| = %.3g): relax with w = %.3g "
+		         "or use newton", a, d->omega_opt);
+	else if (a > 0.5 && isfinite(ao) && ao < a)
+		snprintf(d->advice, sizeof d->advice,
+		         "slow (|g'| = %.3g); %s contracts faster with |g'| = %.3g",
+		         a, diagnose_other_name(order), ao);
+	else if (a > 0.5)
+		snprintf(d->advice, sizeof d->advice,
+		         "slow (|g'| = %.3g): relaxing with w = %.3g makes it converge "
+		         "in a few steps", a, d->omega_opt);
+}
+
+/* A plain-language message for status ST (see diagnose.h). */
+void diagnose_status_message(enum step_status st, enum projection_order order,
+                             const struct diagnosis *d, char *buf, size_t n)
+{
+	const char *advice = d != NULL && d->advice[0] != '\0' ? d->advice : "";
+	const char *sep = advice[0] != '\0' ? "; " : "";
+	switch (st) {
+	case STEP_CONTINUE:
+		snprintf(buf, n, "still iterating%s%s", sep, advice);
+		break;
+	case STEP_CONVERGED:
+		snprintf(buf, n, "converged");
+		break;
+	case STEP_DIVERGING:
+		snprintf(buf, n, "the path is diverging: every step is larger than "
+		         "the one before%s%s", sep,
+		         advice[0] ? advice : "reverse the order or use newton");
+		break;
+	case STEP_CYCLING:
+		snprintf(buf, n, "the path jumps between two points and never "
+		         "settles%s%s", sep,
+		         advice[0] ? advice : "reverse the order or use newton");
+		break;
+	case STEP_STALLED:
+		snprintf(buf, n, "the path is not closing in on the point%s%s", sep,
+		         advice[0] ? advice : "relax with the optimal w or use newton");
+		break;
+	case STEP_OUT_OF_DOMAIN:
+		snprintf(buf, n, "a projection asked the device for a point its curve "
+		         "does not have (in %s order); start nearer the point, "
+		         "reverse the order or use newton",
+		         projection_order_name(order));
+		break;
+	case STEP_NON_FINITE:
+		snprintf(buf, n, "a value overflowed: the device was driven far past "
+		         "its knee%s%s", sep,
+		         advice[0] ? advice : "reverse the order or use newton");
+		break;
+	case STEP_CAP:
+		snprintf(buf, n, "the step limit was reached before the tolerance%s%s",
+		         sep, advice[0] ? advice : "raise the step limit or use newton");
+		break;
+	case STEP_UNDEFINED:
+		snprintf(buf, n, "this method cannot run on this problem%s%s", sep,
+		         advice);
+		break;
+	}
+}

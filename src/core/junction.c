@@ -53,12 +53,8 @@ struct junction_result junction_solve(const struct model_type *t,
 	double lo = fmin(0.0, voc), hi = fmax(0.0, voc);
 	/* The current cannot exceed |voc|/r: bound the junction voltage. */
 	double est = junction_estimate(t, p, fabs(voc) / r);
-	if (isfinite(est)) {
-		if (voc > 0.0 && est < hi && est > lo)
-			hi = est;
-		else if (voc < 0.0 && -est > lo && -est < hi)
-			lo = -est;
-	}
+	if (voc > 0.0 && isfinite(est) && est < hi && est > lo)
+		hi = est;
 	double v = voc > 0.0 ? hi : lo;
 	for (unsigned it = 1; it <= 400; it++) {
 		double ij = junction_current(t, p, v);
@@ -72,14 +68,19 @@ struct junction_result junction_solve(const struct model_type *t,
 			lo = v;
 		else
 			hi = v; /* F > 0, or overflow: v is above the root */
-		double vn;
+		double vn = NAN;
 		double d = 1.0 + r * junction_conductance(t, p, v);
 		if (isfinite(f) && isfinite(d) && d > 0.0) {
-			vn = v - f / d;
+			double dv = f / d;
+			if (fabs(dv) <= tol * fabs(v)) {
+				/* Quadratic convergence: this last step is below TOL. */
+				v -= dv;
+				res.ok = 1;
+				break;
+			}
+			vn = v - dv;
 			if (t->limit)
 				vn = t->limit(p, vn, v);
-		} else {
-			vn = NAN;
 		}
 		if (!(vn > lo && vn < hi))
 			vn = 0.5 * (lo + hi);

@@ -1,2 +1,225 @@
-/* solve.c - being written. */
+/*
+ * solve.c - operating points: the fast unique solve, the every-root scan
+ * with Newton refinement, single-method solves, and verification.
+ */
 #include "solve.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "diagnose.h"
+#include "junction.h"
+
+/* Relative tolerance of the independent check of a reported point. */
+#define VERIFY_TOL 1e-8
+
+/* Fill PT's derived fields from V and I. */
+void solve_finish_point(const struct problem *pb, struct op_point *pt)
+{
+	const struct model_type *t = pb->dev.type;
+	pt->power = pt->v * pt->i;
+	if (t->resistance != NULL)
+		pt->rd = t->resistance(pb->dev.p, pt->i);
+	else
+		pt->rd = 1.0 / device_conductance(&pb->dev, pt->v);
+	if (!isfinite(pt->rd) && t->conductance != NULL)
+		pt->rd = 1.0 / device_conductance(&pb->dev, pt->v);
+	pt->residual = fabs(source_line_residual(&pb->src, pt->v, pt->i));
+}
+
+/* Check (V, I) against both curves (see solve.h). */
+bool solve_verify(const struct problem *pb, double v, double i, double tol)
+{
+	if (!isfinite(v) || !isfinite(i))
+		return false;
+	double rtol = fmax(tol, VERIFY_TOL);
+	const struct source *s = &pb->src;
+	/* On the load line, relative to the terms of its equation. */
+	if (isinf(s->r)) {
+		if (fabs(i - s->isc) > rtol * fabs(s->isc) + 1e-300)
+			return false;
+	} else {
+		double scale = fabs(v) + fabs(s->r * i) + fabs(s->voc);
+		if (fabs(v + s->r * i - s->voc) > rtol * scale + 1e-300)
+			return false;
+	}
+	/* On the device curve, allowing for the curve's slope at V. */
+	if (pb->dev.type->current != NULL) {
+		double id = device_current(&pb->dev, v);
+		double g = fabs(device_conductance(&pb->dev, v));
+		double allow = rtol * (fabs(i) + (isfinite(g) ? g * fabs(v) : 0.0)) +
+		               1e-300;
+		if (!(fabs(id - i) <= allow))
+			return false;
+	} else {
+		double vd;
+		if (device_voltage(&pb->dev, i, &vd) != 0)
+			return false;
+		if (!(fabs(vd - v) <= rtol * fabs(v) + 1e-300))
+			return false;
+	}
+	return true;
+}
+
+/* The fast path: safeguarded Newton on the junction in the bracket. */
+int solve_fast(const struct problem *pb, double tol, struct op_point *pt)
+{
+	const struct model_type *t = pb->dev.type;
+	const struct source *s = &pb->src;
+	memset(pt, 0, sizeof *pt);
+	pt->method = METHOD_NEWTON;
+	if (isinf(s->r)) {
+		/* Ideal current source: the device voltage at that current. */
+		if (t->voltage == NULL || t->voltage(pb->dev.p, s->isc, &pt->v) != 0)
+			return -1;
+		pt->i = s->isc;
+	} else if (t->current == NULL || !t->monotone) {
+		return -1;
+	} else {
+		double rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
+		struct junction_result jr = junction_solve(t, pb->dev.p, s->voc,
+		                                           s->r + rser, tol);
+		if (!jr.ok)
+			return -1;
+		pt->i = jr.ij;
+		pt->v = jr.vj + rser * jr.ij;
+		pt->steps = jr.iters;
+	}
+	solve_finish_point(pb, pt);
+	return solve_verify(pb, pt->v, pt->i, tol) ? 0 : -1;
+}
+
+/* Order points by voltage. */
+static int solve_cmp(const void *a, const void *b)
+{
+	const struct op_point *p = a, *q = b;
+	return (p->v > q->v) - (p->v < q->v);
+}
+
+/* Scan for every crossing and refine each one with safeguarded Newton. */
+static enum solve_status solve_scan(const struct problem *pb,
+                                    const struct solve_options *o,
+                                    struct solve_result *out)
+{
+	struct bracket br[SOLVE_MAX_POINTS];
+	size_t nb = stepper_scan(pb, br, SOLVE_MAX_POINTS);
+	struct stepper *st = stepper_create();
+	if (st == NULL) {
+		snprintf(out->message, sizeof out->message, "out of memory");
+		return out->status = SOLVE_FAILED;
+	}
+	struct solve_options no = *o;
+	no.method = METHOD_NEWTON;
+	no.start_v = NAN;
+	if (no.max_steps < 200)
+		no.max_steps = 200;
+	const struct model_type *t = pb->dev.type;
+	double rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
+	for (size_t k = 0; k < nb; k++) {
+		struct op_point pt = { .method = METHOD_NEWTON, .tangent = br[k].tangent };
+		if (br[k].tangent || br[k].lo == br[k].hi) {
+			double x = br[k].lo;
+			double ij = t->intrinsic_current ? t->intrinsic_current(pb->dev.p, x)
+			                                 : device_current(&pb->dev, x);
+			pt.i = ij;
+			pt.v = x + rser * ij;
+		} else {
+			if (stepper_init_bracket(st, pb, &no, &br[k]) != 0)
+				continue;
+			enum step_status ss = stepper_run(st);
+			if (ss != STEP_CONVERGED)
+				continue;
+			const struct trace_row *last = stepper_last(st);
+			pt.v = last->v;
+			pt.i = last->i;
+			pt.steps = (unsigned)last->k;
+		}
+		solve_finish_point(pb, &pt);
+		if (!pt.tangent && !solve_verify(pb, pt.v, pt.i, o->tol))
+			continue;
+		out->pts[out->n++] = pt;
+	}
+	stepper_destroy(st);
+	qsort(out->pts, out->n, sizeof out->pts[0], solve_cmp);
+	if (out->n == 0) {
+		double lo, hi;
+		device_range(&pb->dev, &lo, &hi);
+		snprintf(out->message, sizeof out->message,
+		         "the load line does not cross the device curve between "
+		         "%.6g V and %.6g V",
+		         fmin(lo, fmin(0.0, pb->src.voc)), fmax(hi, fmax(0.0, pb->src.voc)));
+		return out->status = SOLVE_NONE;
+	}
+	return out->status = SOLVE_OK;
+}
+
+/* Run one stepper method from the start point. */
+static enum solve_status solve_method(const struct problem *pb,
+                                      const struct solve_options *o,
+                                      struct solve_result *out)
+{
+	struct stepper *st = stepper_create();
+	if (st == NULL) {
+		snprintf(out->message, sizeof out->message, "out of memory");
+		return out->status = SOLVE_FAILED;
+	}
+	enum step_status ss = STEP_UNDEFINED;
+	if (stepper_init(st, pb, o) == 0)
+		ss = stepper_run(st);
+	else
+		ss = stepper_status(st);
+	out->stop = ss;
+	const struct trace_row *last = stepper_last(st);
+	if (ss == STEP_CONVERGED && last != NULL &&
+	    solve_verify(pb, last->v, last->i, o->tol)) {
+		struct op_point pt = { .v = last->v, .i = last->i,
+		                       .steps = (unsigned)last->k, .method = o->method };
+		solve_finish_point(pb, &pt);
+		out->pts[out->n++] = pt;
+		out->status = SOLVE_OK;
+	} else {
+		struct diagnosis d;
+		double v = last != NULL ? last->v : 0.0;
+		diagnose_at(pb, o->order, v, o->tol, 1.0, &d);
+		diagnose_status_message(ss == STEP_CONVERGED ? STEP_STALLED : ss,
+		                        o->order, &d, out->message, sizeof out->message);
+		out->status = SOLVE_FAILED;
+	}
+	stepper_destroy(st);
+	return out->status;
+}
+
+/* Solve PB with O (see solve.h). */
+enum solve_status solve_problem(const struct problem *pb,
+                                const struct solve_options *o,
+                                struct solve_result *out)
+{
+	memset(out, 0, sizeof *out);
+	out->stop = STEP_CONTINUE;
+	char err[200];
+	if (device_validate(&pb->dev, err, sizeof err) != 0) {
+		snprintf(out->message, sizeof out->message, "%s", err);
+		return out->status = SOLVE_BAD_INPUT;
+	}
+	if (o->method != METHOD_AUTO)
+		return solve_method(pb, o, out);
+	struct op_point pt;
+	if (pb->dev.type->monotone && solve_fast(pb, o->tol, &pt) == 0) {
+		out->pts[out->n++] = pt;
+		out->stop = STEP_CONVERGED;
+		return out->status = SOLVE_OK;
+	}
+	if (pb->src.r == 0.0 && pb->dev.type->current != NULL) {
+		/* Ideal voltage source: the point is on the curve at voc. */
+		pt = (struct op_point){ .v = pb->src.voc, .method = METHOD_AUTO };
+		pt.i = device_current(&pb->dev, pt.v);
+		solve_finish_point(pb, &pt);
+		if (isfinite(pt.i)) {
+			out->pts[out->n++] = pt;
+			return out->status = SOLVE_OK;
+		}
+	}
+	return solve_scan(pb, o, out);
+}

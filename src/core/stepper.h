@@ -126,6 +126,33 @@ enum step_status stepper_status(const struct stepper *s);
 /* Step until not STEP_CONTINUE; returns the final status. */
 enum step_status stepper_run(struct stepper *s);
 
+/*
+ * A bracket of one operating point in the variable the bracketed methods
+ * iterate on: the device voltage, or the junction voltage behind the
+ * series resistance when the model has a series split.  A tangent point
+ * (a double root, no sign change) has lo == hi and TANGENT set.
+ */
+struct bracket {
+	double lo, hi;
+	bool tangent;
+};
+
+/*
+ * Scan the device's natural range (widened to include 0 V and the source's
+ * open-circuit voltage) for every crossing of the load line: sign changes
+ * of the residual on a fine grid, plus local minima of |residual| refined
+ * by golden-section search that touch zero (tangent points).  Writes at
+ * most MAX brackets in increasing voltage and returns how many it found.
+ */
+size_t stepper_scan(const struct problem *pb, struct bracket *out, size_t max);
+
+/*
+ * Start a bracketed method (newton or brent in O) on the bracket B instead
+ * of searching for one.  Returns 0 or -1 as stepper_init.
+ */
+int stepper_init_bracket(struct stepper *s, const struct problem *pb,
+                         const struct solve_options *o, const struct bracket *b);
+
 /* Re-run the path from its start up to N steps (steps back when N < now). */
 enum step_status stepper_rewind(struct stepper *s, size_t n);
 

@@ -103,12 +103,14 @@ static double diode_resistance(const double *p, double i)
  * 1975): above the critical voltage a large forward step is replaced by
  * the step that changes the current by the same amount on a logarithmic
  * scale, so exp() cannot overflow and Newton cannot overshoot wildly.
+ * Only upward steps are limited: the solvers keep a sign-change bracket,
+ * which already bounds a downward step.
  */
 static double diode_limit(const double *p, double vnew, double vold)
 {
 	double nvt = diode_nvt(p);
 	double vcrit = nvt * log(nvt / (sqrt(2.0) * p[DIODE_IS]));
-	if (vnew > vcrit && fabs(vnew - vold) > 2.0 * nvt) {
+	if (vnew > vold && vnew > vcrit && vnew - vold > 2.0 * nvt) {
 		if (vold > 0.0) {
 			double arg = 1.0 + (vnew - vold) / nvt;
 			vnew = arg > 0.0 ? vold + nvt * log(arg) : vcrit;
