@@ -15,10 +15,10 @@ enum qty_kind {
 	QTY_NUMBER,       /* dimensionless: no unit symbol allowed */
 	QTY_VOLTAGE,      /* V */
 	QTY_CURRENT,      /* A */
-	QTY_RESISTANCE,   /* Ω, ohm, R (optional) */
+	QTY_RESISTANCE,   /* Ω, ohm, ohms, R */
 	QTY_CONDUCTANCE,  /* S */
 	QTY_POWER,        /* W */
-	QTY_TEMPERATURE,  /* °C, degC, C; K is accepted and converted to °C */
+	QTY_TEMPERATURE,  /* °C, ℃, degC, C; K is accepted and converted to °C */
 	QTY_ENERGY_EV,    /* eV (band-gap energies) */
 	QTY_THERMAL_COND, /* W/K (dissipation constant) */
 	QTY_PERCENT,      /* % (value stored as a fraction: "5%" -> 0.05) */
@@ -43,6 +43,22 @@ enum qty_status {
  * "2.5p", "1e-14", "4k7" (prefix as decimal point).  On failure *OUT is left
  * untouched and, when ERR is not NULL, a one-line message saying what was
  * found and what was expected is written to ERR (at most ERRLEN bytes).
+ *
+ * Details (all symbols case-sensitive):
+ * - number: [+-] digits [. digits] [e|E [+-] digits]; ".5" and "5." are
+ *   fine; hex, "inf", "nan", ".inf" are refused.  White space around the
+ *   whole text is ignored.  Between number and prefix/unit: space, tab,
+ *   U+00A0, U+2009 or U+202F; none between prefix and unit.
+ * - prefixes: f p n u µ (U+00B5 or U+03BC) m k M G T.  Not allowed for
+ *   QTY_NUMBER, QTY_TEMPERATURE or QTY_PERCENT.
+ * - units: V; A; Ω (U+03A9 or U+2126), ohm, ohms, R; S; W; °C, ℃ (U+2103),
+ *   degC, C, K (kelvin, converted: 300 K -> 26.85); eV; W/K; %.
+ * - "4k7" = 4.7k, "4R7" = 4.7 Ω: a prefix or R between integer digits
+ *   stands for the decimal point.
+ * - QTY_PERCENT reads the number as percent with or without the "%" sign:
+ *   "5" and "5 %" both give 0.05.
+ * - the result is the double nearest the decimal value (prefix included:
+ *   "4.7k" is exactly 4700.0); an underflow gives 0 or a subnormal.
  */
 enum qty_status qty_parse(const char *text, enum qty_kind kind, double *out,
                           char *err, size_t errlen);
@@ -62,6 +78,13 @@ const char *qty_noun(enum qty_kind kind);
  * "ohm"/"u"/"degC" instead of "Ω"/"µ"/"°C".  Writes at most N bytes to BUF
  * (always terminated) and returns BUF.  Non-finite values print as "inf",
  * "-inf" or "nan".
+ *
+ * Details: SIG digits are always shown (no trimming: "1.000 V"); zero
+ * prints as "0 V".  Prefixes f..T; beyond them the mantissa keeps an
+ * exponent that is a multiple of 3 ("22e-18 A").  Temperatures and percents
+ * take no prefix ("25.0 °C", "5.00 %"; percent shows VALUE * 100).
+ * QTY_NUMBER prints like "%.*g".  A truncated result is cut between UTF-8
+ * sequences.
  */
 char *qty_format(char *buf, size_t n, double value, enum qty_kind kind,
                  int sig, int ascii);
