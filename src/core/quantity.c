@@ -46,7 +46,7 @@ static const struct qty_symbol qty_symbols[] = {
 	{ "R", QTY_RESISTANCE, 0 },
 	{ "S", QTY_CONDUCTANCE, 0 },
 	{ "W", QTY_POWER, 0 },
-	{ "\xc2\xb0" "C", QTY_TEMPERATURE, 0 }, /* U+00B0 DEGREE SIGN, C */
+	{ "\xc2\xb0\x43", QTY_TEMPERATURE, 0 }, /* U+00B0 DEGREE SIGN, C */
 	{ "\xe2\x84\x83", QTY_TEMPERATURE, 0 }, /* U+2103 DEGREE CELSIUS */
 	{ "degC", QTY_TEMPERATURE, 0 },
 	{ "C", QTY_TEMPERATURE, 0 },
@@ -71,7 +71,7 @@ static const struct qty_prefix qty_prefixes[] = {
 };
 
 static const char *const qty_units[QTY_KIND_COUNT] = {
-	"", "V", "A", "\xce\xa9", "S", "W", "\xc2\xb0" "C", "eV", "W/K", "%",
+	"", "V", "A", "\xce\xa9", "S", "W", "\xc2\xb0\x43", "eV", "W/K", "%",
 };
 
 static const char *const qty_units_ascii[QTY_KIND_COUNT] = {

@@ -72,13 +72,13 @@ static const struct parse_ok_case parse_ok_cases[] = {
 	{ "3.917E-15 A", QTY_CURRENT, 3.917e-15 },
 	{ "39 fA", QTY_CURRENT, 39e-15 },
 	{ "7.31 nA", QTY_CURRENT, 7.31e-9 },
-	{ "3.3\xc2\xb5" "A", QTY_CURRENT, 3.3e-6 },   /* U+00B5 */
-	{ "3.3\xce\xbc" "A", QTY_CURRENT, 3.3e-6 },   /* U+03BC */
+	{ "3.3\xc2\xb5\x41", QTY_CURRENT, 3.3e-6 },   /* U+00B5 */
+	{ "3.3\xce\xbc\x41", QTY_CURRENT, 3.3e-6 },   /* U+03BC */
 	{ "33 uA", QTY_CURRENT, 33e-6 },
 	{ "2u2", QTY_CURRENT, 2.2e-6 },
 	{ "6.02e2 mA", QTY_CURRENT, 0.602 },
 	{ "4.31\xc2\xa0mA", QTY_CURRENT, 4.31e-3 },        /* U+00A0 */
-	{ "4.31\xe2\x80\xaf" "mA", QTY_CURRENT, 4.31e-3 }, /* U+202F */
+	{ "4.31\xe2\x80\xafmA", QTY_CURRENT, 4.31e-3 }, /* U+202F */
 	{ "68 nS", QTY_CONDUCTANCE, 68e-9 },
 	{ "1.875 W", QTY_POWER, 1.875 },
 	{ "275mW", QTY_POWER, 0.275 },
@@ -361,7 +361,7 @@ static void test_names(void **state)
 		{ QTY_RESISTANCE, "\xce\xa9", "ohm", "a resistance" },
 		{ QTY_CONDUCTANCE, "S", "S", "a conductance" },
 		{ QTY_POWER, "W", "W", "a power" },
-		{ QTY_TEMPERATURE, "\xc2\xb0" "C", "degC", "a temperature" },
+		{ QTY_TEMPERATURE, "\xc2\xb0\x43", "degC", "a temperature" },
 		{ QTY_ENERGY_EV, "eV", "eV", "an energy" },
 		{ QTY_THERMAL_COND, "W/K", "W/K", "a thermal conductance" },
 		{ QTY_PERCENT, "%", "%", "a percentage" },
