@@ -455,6 +455,37 @@ static void br_row(const struct stepper *s, double x, struct trace_row *row)
 }
 
 /*
+ * Lower the upper end of a bracket [0, voc] of a monotone device to the
+ * intrinsic voltage at which the device alone carries voc / (r + Rs): the
+ * current on the load line cannot be larger, so the residual there is
+ * >= 0 and finite even where the residual at voc overflows exp().  Without
+ * it Newton falls back to bisection from an overflowing end and then
+ * descends on the exponential by about nVt per step, and Brent starts
+ * from a non-finite value.
+ */
+static void br_tighten(struct stepper *s)
+{
+	const struct model_type *t = s->pb.dev.type;
+	double rt = s->pb.src.r + s->rser;
+	double voc = s->pb.src.voc;
+	if (!(voc > 0.0) || !(rt > 0.0) || !isfinite(rt))
+		return;
+	double est = NAN;
+	if (t->intrinsic_voltage != NULL)
+		est = t->intrinsic_voltage(s->pb.dev.p, voc / rt);
+	else if (t->series_resistance == NULL && t->voltage != NULL &&
+	         t->voltage(s->pb.dev.p, voc / rt, &est) != 0)
+		est = NAN;
+	if (!(est > s->lo && est < s->hi))
+		return;
+	double f = br_residual(s, est);
+	if (f >= 0.0 && isfinite(f)) {
+		s->hi = est;
+		s->fhi = f;
+	}
+}
+
+/*
  * Find a sign-change bracket of the residual containing the root nearest
  * the start voltage: scan outwards from the device's natural range.
  */
@@ -478,6 +509,7 @@ static int br_bracket(struct stepper *s)
 		double fa = br_residual(s, a), fb = br_residual(s, b);
 		if (fa <= 0.0 && fb >= 0.0) {
 			s->lo = a, s->hi = b, s->flo = fa, s->fhi = fb;
+			br_tighten(s);
 			return 0;
 		}
 	}
