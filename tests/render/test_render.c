@@ -1,0 +1,623 @@
+/*
+ * test_render.c - raster tests of the load-line plot: the grid is checked
+ * cell by cell against operating points computed independently of the
+ * renderer (Ohm's law for a linear device; the Lambert W closed form for
+ * a diode, evaluated with GSL), at several grid sizes.
+ */
+#include <math.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include <cmocka.h>
+#include <gsl/gsl_sf_lambert.h>
+
+#include "core/models/models.h"
+#include "render/render.h"
+
+/* Grid sizes every case runs at (rows, cols). */
+static const int sizes[][2] = { { 20, 60 }, { 30, 100 }, { 60, 200 }, { 24, 47 } };
+#define NSIZES (sizeof sizes / sizeof sizes[0])
+
+/* Print G to stderr when RENDER_TEST_SHOW is set (for eyeballing). */
+static void show(const struct grid *g)
+{
+	if (getenv("RENDER_TEST_SHOW") == NULL)
+		return;
+	char buf[2048];
+	for (int r = 0; r < g->rows; r++) {
+		grid_row_text(g, r, buf, sizeof buf);
+		fprintf(stderr, "%s\n", buf);
+	}
+}
+
+/* A linear device of resistance RD as a power law with exponent 1. */
+static void make_resistor(struct problem *pb, double vs, double rs, double rd)
+{
+	struct source_spec sp;
+	source_spec_thevenin(&sp, vs, rs);
+	char err[128];
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	device_init(&pb->dev, &model_power_law);
+	pb->dev.p[POWER_LAW_VREF] = 1.0;
+	pb->dev.p[POWER_LAW_IREF] = 1.0 / rd;
+	pb->dev.p[POWER_LAW_ALPHA] = 1.0;
+}
+
+/*
+ * The operating point of a resistor RD behind VS, RS: the voltage divider
+ * V = VS RD / (RS + RD), I = VS / (RS + RD) (Ohm's law, common practice).
+ */
+static struct op_point resistor_point(double vs, double rs, double rd)
+{
+	struct op_point p = { 0 };
+	p.v = vs * rd / (rs + rd);
+	p.i = vs / (rs + rd);
+	return p;
+}
+
+/* A diode (no series resistance) behind VS, RS. */
+static void make_diode(struct problem *pb, double vs, double rs, double is,
+                       double n, double temp)
+{
+	struct source_spec sp;
+	source_spec_thevenin(&sp, vs, rs);
+	char err[128];
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	device_init(&pb->dev, &model_diode);
+	pb->dev.p[DIODE_IS] = is;
+	pb->dev.p[DIODE_N] = n;
+	pb->dev.p[DIODE_RS] = 0.0;
+	pb->dev.p[DIODE_TEMP] = temp;
+}
+
+/*
+ * The diode's operating point in closed form: I = (nVt/R) W0(Is R/(nVt)
+ * exp((VS + Is R)/(nVt))) - Is (Banwell & Jayakumar, Electronics Letters
+ * 36(4), 2000), W0 from GSL.
+ */
+static struct op_point diode_point(const struct problem *pb)
+{
+	double nvt = pb->dev.p[DIODE_N] * diode_thermal_voltage(pb->dev.p[DIODE_TEMP]);
+	double is = pb->dev.p[DIODE_IS], r = pb->src.r, vs = pb->src.voc;
+	/* ln of the argument; the argument itself may overflow. */
+	double lx = log(is * r / nvt) + (vs + is * r) / nvt;
+	double w;
+	if (lx < 700.0) {
+		w = gsl_sf_lambert_W0(exp(lx));
+	} else {
+		/* W solves w + ln w = ln x (Corless et al., Adv. Comput. Math.
+		 * 5, 1996): Newton from w = ln x. */
+		w = lx;
+		for (int k = 0; k < 60; k++)
+			w -= (w + log(w) - lx) / (1.0 + 1.0 / w);
+	}
+	struct op_point p = { 0 };
+	p.i = nvt / r * w - is;
+	p.v = vs - r * p.i;
+	return p;
+}
+
+/* Render IN with VIEW into a fresh ROWS x COLS grid G; checks success. */
+static void draw(struct grid *g, int rows, int cols,
+                 const struct render_input *in, const struct render_view *view,
+                 struct render_layout *lay)
+{
+	assert_int_equal(grid_init(g, rows, cols), 0);
+	assert_int_equal(render_plot(in, view, g, lay), RENDER_OK);
+	show(g);
+}
+
+/* The character at ROW, COL. */
+static uint32_t ch_at(const struct grid *g, int row, int col)
+{
+	const struct cell *c = grid_at(g, row, col);
+	assert_non_null(c);
+	return c->ch;
+}
+
+/* Count cells with ROLE. */
+static int count_role(const struct grid *g, enum cell_role role)
+{
+	int n = 0;
+	for (int r = 0; r < g->rows; r++)
+		for (int c = 0; c < g->cols; c++)
+			if (grid_at(g, r, c)->role == role)
+				n++;
+	return n;
+}
+
+/* The load line's intercepts fall on the axes' end cells at every size. */
+static void test_load_line_ends(void **state)
+{
+	(void)state;
+	static const double cases[][3] = {
+		{ 7.385, 1237.0, 3317.0 }, { 23.61, 48.7, 91.3 }, { 0.4381, 2.713e5, 9.12e4 },
+	};
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		for (size_t s = 0; s < NSIZES; s++) {
+			struct problem pb;
+			make_resistor(&pb, cases[k][0], cases[k][1], cases[k][2]);
+			struct op_point pt = resistor_point(cases[k][0], cases[k][1], cases[k][2]);
+			struct render_input in = { &pb, &pt, 1, NULL, 0 };
+			struct render_view view;
+			render_view_init(&view);
+			struct grid g;
+			struct render_layout lay;
+			draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+			int r, c;
+			/* (VS, 0): on the bottom data row. */
+			assert_true(render_cell_of(&lay, cases[k][0], 0.0, &r, &c));
+			assert_int_equal(r, lay.bottom);
+			assert_int_equal(ch_at(&g, r, c), '#');
+			/* (0, VS/RS): in the first data column. */
+			assert_true(render_cell_of(&lay, 0.0, cases[k][0] / cases[k][1], &r, &c));
+			assert_int_equal(c, lay.left);
+			assert_int_equal(ch_at(&g, r, c), '#');
+			/* Nothing of the line beyond VS on the bottom row. */
+			assert_true(render_cell_of(&lay, cases[k][0], 0.0, &r, &c));
+			for (int cc = c + 2; cc <= lay.right; cc++)
+				assert_int_not_equal(ch_at(&g, lay.bottom, cc), '#');
+			grid_fini(&g);
+		}
+	}
+}
+
+/* Exactly one operating-point mark, at the independently solved point. */
+static void test_point_marker(void **state)
+{
+	(void)state;
+	for (size_t s = 0; s < NSIZES; s++) {
+		struct problem pb;
+		make_resistor(&pb, 9.173, 2.207e3, 1.459e3);
+		struct op_point pt = resistor_point(9.173, 2.207e3, 1.459e3);
+		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_view view;
+		render_view_init(&view);
+		struct grid g;
+		struct render_layout lay;
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		int r, c;
+		assert_true(render_cell_of(&lay, pt.v, pt.i, &r, &c));
+		assert_int_equal(ch_at(&g, r, c), '@');
+		assert_int_equal(count_role(&g, ROLE_POINT), 1);
+		grid_fini(&g);
+
+		/* The diode, solved by Lambert W, framed on the point. */
+		make_diode(&pb, 4.837, 1.183e3, 3.91e-14, 1.37, 31.6);
+		pt = diode_point(&pb);
+		view.frame = FRAME_POINT;
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		assert_true(render_cell_of(&lay, pt.v, pt.i, &r, &c));
+		assert_int_equal(ch_at(&g, r, c), '@');
+		assert_int_equal(count_role(&g, ROLE_POINT), 1);
+		/* The point frame centres the point. */
+		assert_true(abs(2 * c - (lay.left + lay.right)) <= 2);
+		assert_true(abs(2 * r - (lay.top + lay.bottom)) <= 2);
+		grid_fini(&g);
+	}
+}
+
+/* Parse "NUMBER [PREFIX]UNIT" at *S (ASCII labels); returns 0 or -1. */
+static int parse_label(const char **s, char unit, double *out)
+{
+	char *end;
+	double x = strtod(*s, &end);
+	if (end == *s)
+		return -1;
+	while (*end == ' ')
+		end++;
+	static const char prefixes[] = "fpnumkMGT";
+	static const double scale[] = { 1e-15, 1e-12, 1e-9, 1e-6, 1e-3,
+	                                1e3, 1e6, 1e9, 1e12 };
+	const char *p = strchr(prefixes, *end);
+	if (*end != '\0' && p != NULL && end[1] == unit) {
+		x *= scale[p - prefixes];
+		end++;
+	}
+	if (*end != unit)
+		return -1;
+	*s = end + 1;
+	*out = x;
+	return 0;
+}
+
+/* Every tick label reads back as the value at its tick's cell. */
+static void test_axis_labels(void **state)
+{
+	(void)state;
+	for (size_t s = 0; s < NSIZES; s++) {
+		struct problem pb;
+		make_resistor(&pb, 14.93, 6.81e2, 2.279e3);
+		struct op_point pt = resistor_point(14.93, 6.81e2, 2.279e3);
+		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_view view;
+		render_view_init(&view);
+		struct grid g;
+		struct render_layout lay;
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		char buf[2048];
+		/* Current labels, left of the I axis at '+' ticks. */
+		int ny = 0;
+		double prev = INFINITY;
+		for (int r = lay.top; r <= lay.bottom; r++) {
+			if (ch_at(&g, r, lay.axis_col) != '+')
+				continue;
+			grid_row_text(&g, r, buf, sizeof buf);
+			buf[lay.axis_col] = '\0';
+			const char *p = buf;
+			while (*p == ' ')
+				p++;
+			double val;
+			assert_int_equal(parse_label(&p, 'A', &val), 0);
+			assert_true(*p == '\0');
+			int rr, cc;
+			assert_true(render_cell_of(&lay, 0.5 * (lay.win.v_lo + lay.win.v_hi),
+			                           val, &rr, &cc));
+			assert_int_equal(rr, r);
+			assert_true(val < prev);
+			prev = val;
+			ny++;
+		}
+		assert_true(ny >= 2);
+		/* Voltage labels on the bottom row, over '+' ticks. */
+		int row = lay.axis_row + 1, nx = 0;
+		grid_row_text(&g, row, buf, sizeof buf);
+		prev = -INFINITY;
+		for (const char *p = buf; *p != '\0';) {
+			if (*p == ' ' || p - buf < lay.axis_col) {
+				p++;
+				continue;
+			}
+			int c0 = (int)(p - buf);
+			double val;
+			assert_int_equal(parse_label(&p, 'V', &val), 0);
+			int c1 = (int)(p - buf) - 1;
+			int rr, cc;
+			assert_true(render_cell_of(&lay, val, 0.5 * (lay.win.i_lo + lay.win.i_hi),
+			                           &rr, &cc));
+			assert_true(cc >= c0 && cc <= c1);
+			assert_int_equal(ch_at(&g, lay.axis_row, cc), '+');
+			assert_true(val > prev);
+			prev = val;
+			nx++;
+		}
+		assert_true(nx >= 2);
+		grid_fini(&g);
+	}
+}
+
+/*
+ * A projection path in the "voltage from the line" order, built from the
+ * curves directly: start on the device, then alternately horizontal to the
+ * line and vertical to the device.  Fills N rows.
+ */
+static void make_path(const struct problem *pb, double v0, struct trace_row *rows,
+                      size_t n)
+{
+	rows[0] = (struct trace_row){ .k = 0, .v = v0,
+	                              .i = device_current(&pb->dev, v0), .on = ON_START };
+	for (size_t k = 1; k < n; k++) {
+		rows[k] = rows[k - 1];
+		rows[k].k = (unsigned)k;
+		if (k % 2 == 1) {
+			rows[k].v = source_line_voltage(&pb->src, rows[k - 1].i);
+			rows[k].on = ON_LINE;
+		} else {
+			rows[k].i = device_current(&pb->dev, rows[k - 1].v);
+			rows[k].on = ON_DEVICE;
+		}
+	}
+}
+
+/* True when cell ROW, COL lies on one of the first NSEG segments of ROWS. */
+static bool on_path(const struct render_layout *lay, const struct trace_row *rows,
+                    size_t nseg, int row, int col)
+{
+	for (size_t k = 1; k <= nseg; k++) {
+		int r0, c0, r1, c1;
+		if (!render_cell_of(lay, rows[k - 1].v, rows[k - 1].i, &r0, &c0) ||
+		    !render_cell_of(lay, rows[k].v, rows[k].i, &r1, &c1))
+			continue;
+		int rlo = r0 < r1 ? r0 : r1, rhi = r0 < r1 ? r1 : r0;
+		int clo = c0 < c1 ? c0 : c1, chi = c0 < c1 ? c1 : c0;
+		if (row >= rlo && row <= rhi && col >= clo && col <= chi)
+			return true;
+	}
+	return false;
+}
+
+/* After N projections: the start mark, the path, and the newest segment. */
+static void test_path_after_steps(void **state)
+{
+	(void)state;
+	static const size_t steps[] = { 1, 2, 5, 8 };
+	for (size_t s = 0; s < NSIZES; s++) {
+		for (size_t q = 0; q < sizeof steps / sizeof steps[0]; q++) {
+			size_t n = steps[q] + 1;
+			struct problem pb;
+			make_resistor(&pb, 8.411, 1.629e3, 2.351e3);
+			struct op_point pt = resistor_point(8.411, 1.629e3, 2.351e3);
+			struct trace_row rows[16];
+			make_path(&pb, 1.217, rows, n);
+			struct render_input in = { &pb, &pt, 1, rows, n };
+			struct render_view view;
+			render_view_init(&view);
+			struct grid g;
+			struct render_layout lay;
+			draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+			int r, c;
+			assert_true(render_cell_of(&lay, rows[0].v, rows[0].i, &r, &c));
+			assert_int_equal(ch_at(&g, r, c), 'o');
+			/* The newest segment's far end carries the newest mark. */
+			assert_true(render_cell_of(&lay, rows[n - 1].v, rows[n - 1].i, &r, &c));
+			uint32_t head = ch_at(&g, r, c);
+			assert_true(head == '=' || head == '@');
+			assert_true(count_role(&g, ROLE_NEWEST) >= 1);
+			/* Every path cell lies on a segment; newest ones on the last. */
+			for (int rr = 0; rr < g.rows; rr++) {
+				for (int cc = 0; cc < g.cols; cc++) {
+					int role = grid_at(&g, rr, cc)->role;
+					if (role == ROLE_PATH)
+						assert_true(on_path(&lay, rows, n - 1, rr, cc));
+					if (role == ROLE_NEWEST) {
+						assert_true(on_path(&lay, rows + n - 2, 1, rr, cc));
+					}
+				}
+			}
+			/* Every earlier iterate is marked by the path. */
+			for (size_t k = 1; k + 1 < n; k++) {
+				assert_true(render_cell_of(&lay, rows[k].v, rows[k].i, &r, &c));
+				int role = grid_at(&g, r, c)->role;
+				assert_true(role == ROLE_PATH || role == ROLE_NEWEST ||
+				            role == ROLE_POINT || role == ROLE_START);
+			}
+			if (n > 2)
+				assert_true(count_role(&g, ROLE_PATH) >= 1);
+			else
+				assert_int_equal(count_role(&g, ROLE_PATH), 0);
+			grid_fini(&g);
+		}
+	}
+}
+
+/* Flood from ROW, COL over cells whose role is in MASK; returns cells seen. */
+static int flood(const struct grid *g, unsigned mask, int row, int col, char *seen)
+{
+	int n = 0;
+	int *stack = malloc(sizeof(int) * 2 * (size_t)(g->rows * g->cols + 1));
+	assert_non_null(stack);
+	int top = 0;
+	stack[top++] = row;
+	stack[top++] = col;
+	seen[row * g->cols + col] = 1;
+	while (top > 0) {
+		int c = stack[--top], r = stack[--top];
+		n++;
+		for (int dr = -1; dr <= 1; dr++) {
+			for (int dc = -1; dc <= 1; dc++) {
+				const struct cell *x = grid_at(g, r + dr, c + dc);
+				if (x == NULL || !(mask & (1u << x->role)) ||
+				    seen[(r + dr) * g->cols + c + dc])
+					continue;
+				seen[(r + dr) * g->cols + c + dc] = 1;
+				stack[top++] = r + dr;
+				stack[top++] = c + dc;
+			}
+		}
+	}
+	free(stack);
+	return n;
+}
+
+/* Cells with a role in MASK form one 8-connected stroke. */
+static void assert_one_stroke(const struct grid *g, unsigned mask)
+{
+	char *seen = calloc((size_t)(g->rows * g->cols), 1);
+	assert_non_null(seen);
+	int total = 0, first_r = -1, first_c = -1;
+	for (int r = 0; r < g->rows; r++)
+		for (int c = 0; c < g->cols; c++)
+			if (mask & (1u << grid_at(g, r, c)->role)) {
+				total++;
+				if (first_r < 0) {
+					first_r = r;
+					first_c = c;
+				}
+			}
+	assert_true(total > 0);
+	assert_int_equal(flood(g, mask, first_r, first_c, seen), total);
+	free(seen);
+}
+
+/*
+ * A diode whose short-circuit current lies far above its knee: the whole
+ * frame still shows the device as one stroke reaching the top, and the
+ * point frame shows the knee spread over many columns.
+ */
+static void test_diode_far_intercept(void **state)
+{
+	(void)state;
+	for (size_t s = 0; s < NSIZES; s++) {
+		struct problem pb;
+		make_diode(&pb, 47.3, 2.61e3, 2.17e-15, 1.08, 22.7);
+		struct op_point pt = diode_point(&pb);
+		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_view view;
+		render_view_init(&view);
+		struct grid g;
+		struct render_layout lay;
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		unsigned mask = 1u << ROLE_DEVICE | 1u << ROLE_POINT;
+		assert_one_stroke(&g, mask);
+		bool top = false;
+		for (int c = lay.left; c <= lay.right; c++)
+			if (grid_at(&g, lay.top, c)->role == ROLE_DEVICE)
+				top = true;
+		assert_true(top);
+		grid_fini(&g);
+
+		view.frame = FRAME_POINT;
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		assert_one_stroke(&g, mask);
+		int cmin = g.cols, cmax = -1;
+		for (int r = lay.top; r <= lay.bottom; r++)
+			for (int c = lay.left; c <= lay.right; c++)
+				if (grid_at(&g, r, c)->role == ROLE_DEVICE) {
+					cmin = c < cmin ? c : cmin;
+					cmax = c > cmax ? c : cmax;
+				}
+		/* The knee bends over at least a quarter of the width. */
+		assert_true(cmax - cmin >= (lay.right - lay.left) / 4);
+		grid_fini(&g);
+	}
+}
+
+/* Ideal sources: a vertical load line at VS, a horizontal one at IS. */
+static void test_ideal_sources(void **state)
+{
+	(void)state;
+	for (size_t s = 0; s < NSIZES; s++) {
+		struct problem pb;
+		make_resistor(&pb, 3.847, 0.0, 1.733e3);
+		struct op_point pt = { .v = 3.847, .i = 3.847 / 1.733e3 };
+		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_view view;
+		render_view_init(&view);
+		struct grid g;
+		struct render_layout lay;
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		int r, c, n = 0;
+		assert_true(render_cell_of(&lay, 3.847, 0.0, &r, &c));
+		for (int rr = 0; rr < g.rows; rr++)
+			for (int cc = 0; cc < g.cols; cc++)
+				if (grid_at(&g, rr, cc)->role == ROLE_LINE) {
+					assert_int_equal(cc, c);
+					n++;
+				}
+		assert_true(n >= (lay.bottom - lay.top) / 2);
+		grid_fini(&g);
+
+		struct source_spec sp;
+		char err[128];
+		source_spec_norton(&sp, 2.913e-3, INFINITY);
+		assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+		pt = (struct op_point){ .v = 2.913e-3 * 1.733e3, .i = 2.913e-3 };
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		assert_true(render_cell_of(&lay, 0.0, 2.913e-3, &r, &c));
+		n = 0;
+		for (int rr = 0; rr < g.rows; rr++)
+			for (int cc = 0; cc < g.cols; cc++)
+				if (grid_at(&g, rr, cc)->role == ROLE_LINE) {
+					assert_int_equal(rr, r);
+					n++;
+				}
+		assert_true(n >= (lay.right - lay.left) / 2);
+		assert_true(render_cell_of(&lay, pt.v, pt.i, &r, &c));
+		assert_int_equal(ch_at(&g, r, c), '@');
+		grid_fini(&g);
+	}
+}
+
+/* Zoom narrows the window about its centre; pan moves the centre. */
+static void test_zoom_pan(void **state)
+{
+	(void)state;
+	struct problem pb;
+	make_resistor(&pb, 6.271, 8.21e2, 1.907e3);
+	struct op_point pt = resistor_point(6.271, 8.21e2, 1.907e3);
+	struct render_input in = { &pb, &pt, 1, NULL, 0 };
+	struct render_view view;
+	render_view_init(&view);
+	struct render_window w1, w2;
+	assert_int_equal(render_window_compute(&in, &view, &w1), RENDER_OK);
+	view.zoom = 2.5;
+	view.pan_v = 0.125;
+	view.pan_i = -0.375;
+	assert_int_equal(render_window_compute(&in, &view, &w2), RENDER_OK);
+	double sv = w1.v_hi - w1.v_lo, si = w1.i_hi - w1.i_lo;
+	assert_float_equal(w2.v_hi - w2.v_lo, sv / 2.5, 1e-12 * sv);
+	assert_float_equal(w2.i_hi - w2.i_lo, si / 2.5, 1e-12 * si);
+	assert_float_equal(0.5 * (w2.v_lo + w2.v_hi),
+	                    0.5 * (w1.v_lo + w1.v_hi) + 0.125 * sv, 1e-12 * sv);
+	assert_float_equal(0.5 * (w2.i_lo + w2.i_hi),
+	                    0.5 * (w1.i_lo + w1.i_hi) - 0.375 * si, 1e-12 * si);
+	/* The line frame holds both intercepts and the point. */
+	assert_true(w1.v_lo <= 0.0 && w1.v_hi >= 6.271);
+	assert_true(w1.i_lo <= 0.0 && w1.i_hi >= 6.271 / 8.21e2);
+	/* A point zoomed out of view leaves no point mark. */
+	view.zoom = 40.0;
+	view.pan_v = -0.4;
+	view.pan_i = 0.4;
+	struct grid g;
+	struct render_layout lay;
+	draw(&g, 30, 100, &in, &view, &lay);
+	assert_int_equal(count_role(&g, ROLE_POINT), 0);
+	grid_fini(&g);
+}
+
+/* Too small grids get a message, not a crash; Unicode mode is valid UTF-8. */
+static void test_small_and_unicode(void **state)
+{
+	(void)state;
+	struct problem pb;
+	make_resistor(&pb, 5.113, 1.07e3, 2.2e3);
+	struct op_point pt = resistor_point(5.113, 1.07e3, 2.2e3);
+	struct render_input in = { &pb, &pt, 1, NULL, 0 };
+	struct render_view view;
+	render_view_init(&view);
+	static const int small[][2] = { { 0, 0 }, { 1, 1 }, { 7, 80 }, { 24, 29 } };
+	for (size_t k = 0; k < sizeof small / sizeof small[0]; k++) {
+		struct grid g;
+		assert_int_equal(grid_init(&g, small[k][0], small[k][1]), 0);
+		assert_int_equal(render_plot(&in, &view, &g, NULL), RENDER_TOO_SMALL);
+		grid_fini(&g);
+	}
+	view.unicode = true;
+	struct trace_row rows[6];
+	make_path(&pb, 0.731, rows, 6);
+	in.rows = rows;
+	in.nrows = 6;
+	struct grid g;
+	struct render_layout lay;
+	draw(&g, 30, 100, &in, &view, &lay);
+	char buf[4096];
+	grid_row_text(&g, lay.axis_row, buf, sizeof buf);
+	assert_non_null(strstr(buf, "\xE2\x94\x94"));        /* └ */
+	assert_non_null(strstr(buf, "\xE2\x94\x80"));        /* ─ */
+	int r, c;
+	assert_true(render_cell_of(&lay, pt.v, pt.i, &r, &c));
+	assert_int_equal(ch_at(&g, r, c), 0x25C9);
+	/* No ASCII curve marks are left in Unicode mode. */
+	for (int rr = lay.top; rr <= lay.bottom; rr++)
+		for (int cc = lay.left; cc <= lay.right; cc++) {
+			uint32_t ch = ch_at(&g, rr, cc);
+			assert_true(ch == ' ' || ch >= 0x80);
+		}
+	grid_fini(&g);
+	/* A bad source gives a status, not a crash. */
+	pb.src.r = NAN;
+	assert_int_equal(grid_init(&g, 30, 100), 0);
+	assert_int_equal(render_plot(&in, &view, &g, NULL), RENDER_BAD_INPUT);
+	grid_fini(&g);
+}
+
+/* Run every render test. */
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_load_line_ends),
+		cmocka_unit_test(test_point_marker),
+		cmocka_unit_test(test_axis_labels),
+		cmocka_unit_test(test_path_after_steps),
+		cmocka_unit_test(test_diode_far_intercept),
+		cmocka_unit_test(test_ideal_sources),
+		cmocka_unit_test(test_zoom_pan),
+		cmocka_unit_test(test_small_and_unicode),
+	};
+	return cmocka_run_group_tests_name("render", tests, NULL, NULL);
+}
