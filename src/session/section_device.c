@@ -1,0 +1,203 @@
+/*
+ * section_device.c - the device section: model: names a model in the
+ * registry, and the other keys are that model's own parameter table
+ * (key, unit, range, default, help), so a new model needs no loader code.
+ */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "session/section.h"
+
+/* Report an unknown model name in V with a suggestion and the choices. */
+static void device_unknown_model(struct load_ctx *c, const struct ynode *v,
+                                 const char *path)
+{
+	const char *names[32];
+	size_t n = 0;
+	char list[256] = "";
+	size_t o = 0;
+	for (size_t k = 0; model_registry[k] != NULL && n < 32; k++) {
+		names[n++] = model_registry[k]->name;
+		if (o < sizeof list)
+			o += (size_t)snprintf(list + o, sizeof list - o, "%s%s",
+			                      k ? ", " : "", model_registry[k]->name);
+	}
+	char found[96];
+	ytree_describe(v, found, sizeof found);
+	const char *near = v->type == YNODE_SCALAR ? section_suggest(v->text, names, n)
+	                                           : NULL;
+	if (near != NULL)
+		ytree_error(c->err, c->name, v, path,
+		            "found %s, expected a model name (%s); did you mean '%s'?",
+		            found, list, near);
+	else
+		ytree_error(c->err, c->name, v, path,
+		            "found %s, expected a model name (%s)", found, list);
+}
+
+/* Report an unknown key K for model TYPE, suggesting a near key. */
+static void device_unknown_key(struct load_ctx *c, const struct model_type *type,
+                               const struct ynode *k, const char *path)
+{
+	const char *cands[MODEL_MAX_PARAMS + 1];
+	size_t n = 0;
+	cands[n++] = "model";
+	for (size_t j = 0; j < type->nparams; j++)
+		cands[n++] = type->params[j].key;
+	char found[96];
+	ytree_describe(k, found, sizeof found);
+	const char *near = section_suggest(k->text, cands, n);
+	if (near != NULL) {
+		ytree_error(c->err, c->name, k, path,
+		            "unknown key %s for the %s model; did you mean '%s'?",
+		            found, type->name, near);
+		return;
+	}
+	for (size_t m = 0; model_registry[m] != NULL; m++)
+		if (model_registry[m] != type &&
+		    model_param_index(model_registry[m], k->text) >= 0) {
+			ytree_error(c->err, c->name, k, path,
+			            "found %s, a parameter of the %s model, expected a "
+			            "parameter of the %s model", found,
+			            model_registry[m]->name, type->name);
+			return;
+		}
+	char keys[512] = "";
+	size_t o = 0;
+	for (size_t j = 0; j < n && o < sizeof keys; j++)
+		o += (size_t)snprintf(keys + o, sizeof keys - o, "%s%s", j ? ", " : "",
+		                      cands[j]);
+	ytree_error(c->err, c->name, k, path,
+	            "unknown key %s for the %s model, expected one of: %s", found,
+	            type->name, keys);
+}
+
+/* Load the device: the model first, then its parameters in file order. */
+static int device_load(struct load_ctx *c, const struct session_section *sec,
+                       const struct ynode *key, const struct ynode *map,
+                       const char *path)
+{
+	(void)sec;
+	char sub[SECTION_PATH_MAX];
+	const struct ynode *model = NULL, *modelkey = NULL;
+	for (size_t k = 0; k + 1 < map->nkids; k += 2) {
+		const struct ynode *kn = map->kids[k];
+		if (kn->type != YNODE_SCALAR) {
+			char found[96];
+			ytree_describe(kn, found, sizeof found);
+			ytree_error(c->err, c->name, kn, path,
+			            "found %s as a key, expected a key name", found);
+			return -1;
+		}
+		if (strcmp(kn->text, "model") != 0)
+			continue;
+		section_path(sub, sizeof sub, path, "model");
+		if (modelkey != NULL) {
+			ytree_error(c->err, c->name, kn, sub,
+			            "duplicate key (first given on line %u), expected "
+			            "each key once", modelkey->line);
+			return -1;
+		}
+		modelkey = kn;
+		model = map->kids[k + 1];
+	}
+	section_path(sub, sizeof sub, path, "model");
+	if (model == NULL) {
+		ytree_error(c->err, c->name, key != NULL ? key : map, sub,
+		            "missing required key 'model' in device (which device "
+		            "model: diode or power-law)");
+		return -1;
+	}
+	if (section_need_scalar(c, model, sub, "a model name") != 0)
+		return -1;
+	const struct model_type *type = model_find(model->text);
+	if (type == NULL) {
+		device_unknown_model(c, model, sub);
+		return -1;
+	}
+	device_init(&c->s->device, type);
+
+	const struct ynode *seen[MODEL_MAX_PARAMS] = { NULL };
+	for (size_t k = 0; k + 1 < map->nkids; k += 2) {
+		const struct ynode *kn = map->kids[k];
+		const struct ynode *v = map->kids[k + 1];
+		if (kn == modelkey)
+			continue;
+		section_path(sub, sizeof sub, path, kn->text);
+		int j = model_param_index(type, kn->text);
+		if (j < 0) {
+			device_unknown_key(c, type, kn, sub);
+			return -1;
+		}
+		if (seen[j] != NULL) {
+			ytree_error(c->err, c->name, kn, sub,
+			            "duplicate key (first given on line %u), expected "
+			            "each key once", seen[j]->line);
+			return -1;
+		}
+		seen[j] = kn;
+		const struct model_param *mp = &type->params[j];
+		double x;
+		if (section_parse_qty(c, v, sub, mp->kind, -INFINITY, INFINITY, false,
+		                      false, &x) != 0)
+			return -1;
+		char why[256];
+		if (model_param_check(mp, x, why, sizeof why) != 0) {
+			/* model_param_check names the key first; keep the rest */
+			const char *msg = why;
+			size_t kl = strlen(mp->key);
+			if (strncmp(msg, mp->key, kl) == 0 && msg[kl] == ':')
+				msg += kl + 1;
+			while (*msg == ' ')
+				msg++;
+			char found[96];
+			ytree_describe(v, found, sizeof found);
+			ytree_error(c->err, c->name, v, sub, "found %s: %s", found, msg);
+			return -1;
+		}
+		c->s->device.p[j] = x;
+	}
+	for (size_t j = 0; j < type->nparams; j++)
+		if (seen[j] == NULL && isnan(type->params[j].def)) {
+			section_path(sub, sizeof sub, path, type->params[j].key);
+			ytree_error(c->err, c->name, key != NULL ? key : map, sub,
+			            "missing required key '%s' for the %s model (%s)",
+			            type->params[j].key, type->name, type->params[j].help);
+			return -1;
+		}
+	char why[256];
+	if (device_validate(&c->s->device, why, sizeof why) != 0) {
+		ytree_error(c->err, c->name, key != NULL ? key : map, path, "%s", why);
+		return -1;
+	}
+	return 0;
+}
+
+/* Write the device: the model, then every parameter in table order. */
+static int device_save(struct emit_ctx *e, const struct session_section *sec,
+                       const struct session *s)
+{
+	(void)sec;
+	const struct model_type *type = s->device.type;
+	if (type == NULL) {
+		e->failed = true;
+		ytree_error_at(e->err, "", 0, 0, "device.model",
+		               "the session has no device model");
+		return -1;
+	}
+	if (emit_mapping_start(e, false) != 0 || emit_scalar(e, "model", true) != 0 ||
+	    emit_scalar(e, type->name, true) != 0)
+		return -1;
+	for (size_t j = 0; j < type->nparams; j++)
+		if (emit_scalar(e, type->params[j].key, true) != 0 ||
+		    emit_number(e, s->device.p[j]) != 0)
+			return -1;
+	return emit_mapping_end(e);
+}
+
+const struct session_section section_device = {
+	.key = "device",
+	.load = device_load,
+	.save = device_save,
+};
