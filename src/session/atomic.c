@@ -1,0 +1,194 @@
+/*
+ * atomic.c - atomic file replacement (temporary file + fsync + rename +
+ * folder fsync), so a crash or a full disk never leaves a half-written
+ * session where the old one was.
+ */
+/* realpath() is an X/Open extension of POSIX */
+#define _XOPEN_SOURCE 700
+
+#include "session/atomic.h"
+
+#include <errno.h>
+#include <fcntl.h>
+#include <limits.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <sys/types.h>
+#include <unistd.h>
+
+#ifndef PATH_MAX
+#define PATH_MAX 4096
+#endif
+
+/* Split PATH into its folder (".", when none) and base name. */
+static int atomic_split(const char *path, char *dir, size_t dn, char *base,
+                        size_t bn)
+{
+	const char *slash = strrchr(path, '/');
+	int r;
+	if (slash == NULL) {
+		r = snprintf(dir, dn, ".");
+		if (r < 0 || (size_t)r >= dn)
+			return -1;
+		r = snprintf(base, bn, "%s", path);
+	} else {
+		size_t len = (size_t)(slash - path);
+		if (len == 0)
+			len = 1; /* the root folder */
+		if (len >= dn)
+			return -1;
+		memcpy(dir, path, len);
+		dir[len] = '\0';
+		r = snprintf(base, bn, "%s", slash + 1);
+	}
+	return (r < 0 || (size_t)r >= bn) ? -1 : 0;
+}
+
+/* Write all LEN bytes of DATA to FD; returns 0 or -1 with errno set. */
+static int atomic_write_all(int fd, const char *data, size_t len)
+{
+	while (len > 0) {
+		ssize_t w = write(fd, data, len);
+		if (w < 0) {
+			if (errno == EINTR)
+				continue;
+			return -1;
+		}
+		data += w;
+		len -= (size_t)w;
+	}
+	return 0;
+}
+
+/* The permission bits a new file gets: 0666 less the umask. */
+static mode_t atomic_new_file_mode(void)
+{
+	mode_t mask = umask(022);
+	umask(mask);
+	return 0666 & ~mask;
+}
+
+/* Write DATA to PATH atomically, with optional test hooks. */
+int atomic_write_file_hooked(const char *path, const void *data, size_t len,
+                             const struct atomic_hooks *hooks, char *err,
+                             size_t errlen)
+{
+	char target[PATH_MAX];
+	struct stat st;
+	int exists = lstat(path, &st) == 0;
+	if (exists && S_ISLNK(st.st_mode)) {
+		if (realpath(path, target) == NULL) {
+			snprintf(err, errlen, "%s: cannot follow the link: %s", path,
+			         strerror(errno));
+			return -1;
+		}
+		exists = stat(target, &st) == 0;
+	} else if (snprintf(target, sizeof target, "%s", path) >= (int)sizeof target) {
+		snprintf(err, errlen, "%s: the path is too long", path);
+		return -1;
+	}
+	if (exists && !S_ISREG(st.st_mode)) {
+		snprintf(err, errlen, "%s: not a regular file; not replacing it", path);
+		return -1;
+	}
+
+	char dir[PATH_MAX], base[NAME_MAX + 1], tmp[PATH_MAX];
+	if (atomic_split(target, dir, sizeof dir, base, sizeof base) != 0 ||
+	    base[0] == '\0') {
+		snprintf(err, errlen, "%s: not a file name", path);
+		return -1;
+	}
+	int r = snprintf(tmp, sizeof tmp, "%s/.%.200s.XXXXXX", dir, base);
+	if (r < 0 || (size_t)r >= sizeof tmp) {
+		snprintf(err, errlen, "%s: the path is too long", path);
+		return -1;
+	}
+	int fd = mkstemp(tmp);
+	if (fd < 0) {
+		snprintf(err, errlen, "%s: cannot create a file in %s: %s", path, dir,
+		         strerror(errno));
+		return -1;
+	}
+	const char *step = "cannot write";
+	int e = 0;
+	mode_t mode = exists ? (st.st_mode & 07777) : atomic_new_file_mode();
+	if (fchmod(fd, mode) != 0) {
+		step = "cannot set the permissions of";
+		e = errno;
+	} else if (atomic_write_all(fd, data, len) != 0) {
+		e = errno;
+	} else if (fsync(fd) != 0) {
+		step = "cannot sync";
+		e = errno;
+	}
+	if (close(fd) != 0 && e == 0) {
+		step = "cannot close";
+		e = errno;
+	}
+	if (e == 0 && hooks != NULL && hooks->before_rename != NULL) {
+		e = hooks->before_rename(hooks->ctx, tmp);
+		step = "cannot write";
+	}
+	if (e == 0 && rename(tmp, target) != 0) {
+		step = "cannot replace";
+		e = errno;
+	}
+	if (e != 0) {
+		unlink(tmp);
+		snprintf(err, errlen, "%s: %s the file (%s); the old file is unchanged",
+		         path, step, strerror(e));
+		return -1;
+	}
+	/* make the rename itself durable */
+	int dfd = open(dir, O_RDONLY | O_DIRECTORY);
+	if (dfd >= 0) {
+		if (fsync(dfd) != 0 && errno != EINVAL && errno != EROFS) {
+			e = errno;
+			close(dfd);
+			snprintf(err, errlen, "%s: written, but syncing the folder %s "
+			         "failed (%s)", path, dir, strerror(e));
+			return -1;
+		}
+		close(dfd);
+	}
+	return 0;
+}
+
+/* Write DATA to PATH atomically. */
+int atomic_write_file(const char *path, const void *data, size_t len,
+                      char *err, size_t errlen)
+{
+	return atomic_write_file_hooked(path, data, len, NULL, err, errlen);
+}
+
+/* Create folder PATH and its parents. */
+int atomic_make_dirs(const char *path, unsigned mode, char *err, size_t errlen)
+{
+	char buf[PATH_MAX];
+	if (snprintf(buf, sizeof buf, "%s", path) >= (int)sizeof buf) {
+		snprintf(err, errlen, "%s: the path is too long", path);
+		return -1;
+	}
+	for (char *p = buf + 1; ; p++) {
+		if (*p != '/' && *p != '\0')
+			continue;
+		char saved = *p;
+		*p = '\0';
+		if (mkdir(buf, (mode_t)mode) != 0 && errno != EEXIST) {
+			snprintf(err, errlen, "%s: cannot create the folder: %s", buf,
+			         strerror(errno));
+			return -1;
+		}
+		struct stat st;
+		if (stat(buf, &st) != 0 || !S_ISDIR(st.st_mode)) {
+			snprintf(err, errlen, "%s: not a folder", buf);
+			return -1;
+		}
+		*p = saved;
+		if (saved == '\0')
+			break;
+	}
+	return 0;
+}

@@ -1,0 +1,42 @@
+/*
+ * atomic.h - replace a file atomically: write a temporary file in the same
+ * folder, flush and fsync it, rename it over the target, fsync the folder.
+ * On any failure the temporary file is removed and the old file is left as
+ * it was.
+ */
+#ifndef BIASLINE_ATOMIC_H
+#define BIASLINE_ATOMIC_H
+
+#include <stddef.h>
+
+/*
+ * Test hooks: called at fixed points of a write; a non-zero return makes
+ * the write fail there as if the system call had failed with that errno
+ * value.  Only tests set them; atomic_write_file passes none.
+ */
+struct atomic_hooks {
+	/* after the data is written and synced, before the rename */
+	int (*before_rename)(void *ctx, const char *tmp_path);
+	void *ctx;
+};
+
+/*
+ * Write LEN bytes of DATA to PATH atomically.  A symbolic link at PATH is
+ * followed (the file it names is replaced).  Returns 0, or -1 with a
+ * message naming the path and the system's reason in ERR.
+ */
+int atomic_write_file(const char *path, const void *data, size_t len,
+                      char *err, size_t errlen);
+
+/* atomic_write_file with test hooks (HOOKS may be NULL). */
+int atomic_write_file_hooked(const char *path, const void *data, size_t len,
+                             const struct atomic_hooks *hooks, char *err,
+                             size_t errlen);
+
+/*
+ * Create folder PATH and its missing parents with MODE (existing folders
+ * are left as they are).  Returns 0, or -1 with a message in ERR.
+ */
+int atomic_make_dirs(const char *path, unsigned mode, char *err, size_t errlen);
+
+#endif
