@@ -1,2 +1,414 @@
-/* session.c - placeholder until the session module lands. */
+/*
+ * session.c - the session: defaults, copy and comparison, loading a file
+ * (size-checked, read into memory, parsed by the strict tree builder and
+ * the section tables), saving (libyaml's emitter behind a comment header,
+ * written atomically), the built-in demo and the core problem.
+ */
 #include "session/session.h"
+
+#include <errno.h>
+#include <fcntl.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <yaml.h>
+
+#include "biasline_version.h"
+#include "session/atomic.h"
+#include "session/section.h"
+#include "session/ytree.h"
+
+/* Largest session file read: far above any real one, small enough to hold. */
+#define SESSION_MAX_BYTES (4u * 1024u * 1024u)
+
+/*
+ * Fill S with the defaults: the demo's circuit (see session_demo) with the
+ * default solver settings, so a fresh session is valid and can be saved.
+ */
+void session_init(struct session *s)
+{
+	memset(s, 0, sizeof *s);
+	source_spec_thevenin(&s->source, 24.0, 2200.0);
+	const struct model_type *diode = model_find("diode");
+	device_init(&s->device, diode != NULL ? diode : model_registry[0]);
+	if (diode != NULL) {
+		/* invented demo values: a green indicator LED, about 2.1 V at 10 mA */
+		s->device.p[model_param_index(diode, "saturation_current")] = 6.3e-21;
+		s->device.p[model_param_index(diode, "ideality")] = 1.93;
+		s->device.p[model_param_index(diode, "series_resistance")] = 6.8;
+	}
+	s->conditions.temperature = NAN;
+	solve_options_init(&s->solver);
+	s->view.autoscale = true;
+	s->view.v_min = 0.0;
+	s->view.v_max = 1.0;
+	s->view.i_min = 0.0;
+	s->view.i_max = 1.0;
+	s->view.zoom = 1.0;
+	s->notes = NULL;
+}
+
+/* Free what S owns. */
+void session_fini(struct session *s)
+{
+	free(s->notes);
+	s->notes = NULL;
+}
+
+/* Deep-copy SRC into DST. */
+int session_copy(struct session *dst, const struct session *src)
+{
+	char *notes = NULL;
+	if (src->notes != NULL) {
+		size_t n = strlen(src->notes) + 1;
+		notes = malloc(n);
+		if (notes == NULL)
+			return -1;
+		memcpy(notes, src->notes, n);
+	}
+	if (dst != src) {
+		free(dst->notes);
+		*dst = *src;
+	}
+	dst->notes = notes;
+	return 0;
+}
+
+/* True when doubles A and B have the same bits. */
+static bool session_same(double a, double b)
+{
+	return memcmp(&a, &b, sizeof a) == 0;
+}
+
+/* True when A and B hold the same session. */
+bool session_equal(const struct session *a, const struct session *b)
+{
+	const struct source_spec *x = &a->source, *y = &b->source;
+	if (x->form != y->form || !session_same(x->vs, y->vs) ||
+	    !session_same(x->rs, y->rs) || !session_same(x->is, y->is) ||
+	    !session_same(x->rp, y->rp))
+		return false;
+	if (a->device.type != b->device.type)
+		return false;
+	for (size_t k = 0; k < MODEL_MAX_PARAMS; k++)
+		if (!session_same(a->device.p[k], b->device.p[k]))
+			return false;
+	if (!session_same(a->conditions.temperature, b->conditions.temperature))
+		return false;
+	const struct solve_options *p = &a->solver, *q = &b->solver;
+	if (p->method != q->method || p->order != q->order ||
+	    !session_same(p->start_v, q->start_v) ||
+	    !session_same(p->omega, q->omega) || !session_same(p->tol, q->tol) ||
+	    p->max_steps != q->max_steps)
+		return false;
+	const struct session_view *v = &a->view, *w = &b->view;
+	if (v->autoscale != w->autoscale || !session_same(v->v_min, w->v_min) ||
+	    !session_same(v->v_max, w->v_max) || !session_same(v->i_min, w->i_min) ||
+	    !session_same(v->i_max, w->i_max) || !session_same(v->zoom, w->zoom))
+		return false;
+	if ((a->notes == NULL) != (b->notes == NULL))
+		return false;
+	return a->notes == NULL || strcmp(a->notes, b->notes) == 0;
+}
+
+/* Format ERR as "FILE:LINE:COL: KEY: MESSAGE". */
+void session_error_format(const struct session_error *err, char *buf, size_t n)
+{
+	char pos[32] = "";
+	if (err->line > 0)
+		snprintf(pos, sizeof pos, ":%u:%u", err->line, err->col);
+	snprintf(buf, n, "%s%s: %s%s%s", err->file[0] ? err->file : "(session)",
+	         pos, err->key, err->key[0] ? ": " : "", err->message);
+}
+
+/* Load from a memory buffer. */
+enum session_status session_load_buffer(struct session *s, const char *name,
+                                        const char *buf, size_t len,
+                                        struct session_error *err)
+{
+	struct session_error scratch;
+	if (err == NULL)
+		err = &scratch;
+	memset(err, 0, sizeof *err);
+	session_init(s);
+	if (len > SESSION_MAX_BYTES) {
+		ytree_error_at(err, name, 0, 0, "",
+		               "the file is %zu bytes, expected at most %u: a session "
+		               "file is far smaller", len, SESSION_MAX_BYTES);
+		return SESSION_BAD_DATA;
+	}
+	struct ytree *t = NULL;
+	enum session_status st = ytree_parse(name, buf, len, &t, err);
+	if (st != SESSION_OK) {
+		session_fini(s);
+		return st;
+	}
+	struct load_ctx c = { .name = name, .err = err, .s = s };
+	int rc = section_load(&c, &section_root, NULL, t->root, "");
+	ytree_destroy(t);
+	if (rc != 0) {
+		session_fini(s);
+		return SESSION_BAD_DATA;
+	}
+	return SESSION_OK;
+}
+
+/* Load PATH. */
+enum session_status session_load_file(struct session *s, const char *path,
+                                      struct session_error *err)
+{
+	struct session_error scratch;
+	if (err == NULL)
+		err = &scratch;
+	memset(err, 0, sizeof *err);
+	session_init(s);
+	/* non-blocking open: a FIFO without a writer must not hang us */
+	int fd = open(path, O_RDONLY | O_NOCTTY | O_NONBLOCK);
+	if (fd < 0) {
+		ytree_error_at(err, path, 0, 0, "", "cannot open the file: %s",
+		               strerror(errno));
+		return SESSION_NO_INPUT;
+	}
+	struct stat st;
+	if (fstat(fd, &st) != 0) {
+		int e = errno;
+		close(fd);
+		ytree_error_at(err, path, 0, 0, "", "cannot read the file: %s",
+		               strerror(e));
+		return SESSION_NO_INPUT;
+	}
+	if (!S_ISREG(st.st_mode)) {
+		close(fd);
+		ytree_error_at(err, path, 0, 0, "", "cannot read the file: %s",
+		               S_ISDIR(st.st_mode) ? "it is a folder"
+		                                   : "not a regular file");
+		return SESSION_NO_INPUT;
+	}
+	if ((unsigned long long)st.st_size > SESSION_MAX_BYTES) {
+		close(fd);
+		ytree_error_at(err, path, 0, 0, "",
+		               "the file is %lld bytes, expected at most %u: a session "
+		               "file is far smaller", (long long)st.st_size,
+		               SESSION_MAX_BYTES);
+		return SESSION_BAD_DATA;
+	}
+	FILE *f = fdopen(fd, "rb");
+	if (f == NULL) {
+		int e = errno;
+		close(fd);
+		ytree_error_at(err, path, 0, 0, "", "cannot read the file: %s",
+		               strerror(e));
+		return SESSION_NO_INPUT;
+	}
+	/* read one byte more than allowed, in case the file grew meanwhile */
+	size_t cap = (size_t)st.st_size + 1;
+	char *buf = malloc(cap);
+	if (buf == NULL) {
+		fclose(f);
+		ytree_error_at(err, path, 0, 0, "", "out of memory");
+		return SESSION_IO_ERROR;
+	}
+	size_t len = fread(buf, 1, cap, f);
+	int bad = ferror(f);
+	int e = errno;
+	fclose(f);
+	if (bad) {
+		free(buf);
+		ytree_error_at(err, path, 0, 0, "", "cannot read the file: %s",
+		               strerror(e));
+		return SESSION_NO_INPUT;
+	}
+	if (len == cap) {
+		free(buf);
+		ytree_error_at(err, path, 0, 0, "",
+		               "the file changed size while being read");
+		return SESSION_NO_INPUT;
+	}
+	enum session_status r = session_load_buffer(s, path, buf, len, err);
+	free(buf);
+	return r;
+}
+
+/* A growing output buffer for the emitter. */
+struct session_out {
+	char *buf;
+	size_t len, cap;
+};
+
+/* Append N bytes of DATA to OUT; returns 0 or -1 on no memory. */
+static int session_out_put(struct session_out *out, const void *data, size_t n)
+{
+	if (out->len + n + 1 > out->cap) {
+		size_t cap = out->cap ? out->cap : 1024;
+		while (out->len + n + 1 > cap)
+			cap *= 2;
+		char *b = realloc(out->buf, cap);
+		if (b == NULL)
+			return -1;
+		out->buf = b;
+		out->cap = cap;
+	}
+	memcpy(out->buf + out->len, data, n);
+	out->len += n;
+	out->buf[out->len] = '\0';
+	return 0;
+}
+
+/* libyaml write handler: append to a session_out (1 = success). */
+static int session_out_write(void *data, unsigned char *buffer, size_t size)
+{
+	return session_out_put(data, buffer, size) == 0;
+}
+
+/* Emit S as one YAML document with EM. */
+static int session_emit(yaml_emitter_t *em, const struct session *s,
+                        struct session_error *err)
+{
+	struct emit_ctx e = { .em = em, .err = err };
+	yaml_event_t ev;
+	if (!yaml_stream_start_event_initialize(&ev, YAML_UTF8_ENCODING) ||
+	    !yaml_emitter_emit(em, &ev) ||
+	    !yaml_document_start_event_initialize(&ev, NULL, NULL, NULL, 1) ||
+	    !yaml_emitter_emit(em, &ev)) {
+		ytree_error_at(err, "", 0, 0, "", "cannot start the YAML output: %s",
+		               em->problem != NULL ? em->problem : "out of memory");
+		return -1;
+	}
+	if (section_save(&e, &section_root, s) != 0)
+		return -1;
+	if (!yaml_document_end_event_initialize(&ev, 1) ||
+	    !yaml_emitter_emit(em, &ev) ||
+	    !yaml_stream_end_event_initialize(&ev) || !yaml_emitter_emit(em, &ev) ||
+	    !yaml_emitter_flush(em)) {
+		ytree_error_at(err, "", 0, 0, "", "cannot finish the YAML output: %s",
+		               em->problem != NULL ? em->problem : "out of memory");
+		return -1;
+	}
+	return 0;
+}
+
+/* Write S with an optional extra comment line. */
+enum session_status session_save_buffer_with(const struct session *s,
+                                             const char *extra, char **out,
+                                             size_t *len,
+                                             struct session_error *err)
+{
+	struct session_error scratch;
+	if (err == NULL)
+		err = &scratch;
+	memset(err, 0, sizeof *err);
+	*out = NULL;
+	*len = 0;
+	struct session_out o = { 0 };
+	char head[128];
+	snprintf(head, sizeof head, "# biasline session, written by biasline %s\n",
+	         BIASLINE_VERSION);
+	if (session_out_put(&o, head, strlen(head)) != 0 ||
+	    (extra != NULL &&
+	     (strchr(extra, '\n') != NULL || session_out_put(&o, "# ", 2) != 0 ||
+	      session_out_put(&o, extra, strlen(extra)) != 0 ||
+	      session_out_put(&o, "\n", 1) != 0))) {
+		free(o.buf);
+		ytree_error_at(err, "", 0, 0, "",
+		               extra != NULL && strchr(extra, '\n') != NULL
+		                       ? "a comment line must not hold a line break"
+		                       : "out of memory while writing");
+		return SESSION_IO_ERROR;
+	}
+	yaml_emitter_t em;
+	if (!yaml_emitter_initialize(&em)) {
+		free(o.buf);
+		ytree_error_at(err, "", 0, 0, "", "out of memory while writing");
+		return SESSION_IO_ERROR;
+	}
+	yaml_emitter_set_output(&em, session_out_write, &o);
+	yaml_emitter_set_unicode(&em, 1);
+	yaml_emitter_set_width(&em, 78);
+	yaml_emitter_set_indent(&em, 2);
+	int rc = session_emit(&em, s, err);
+	yaml_emitter_delete(&em);
+	if (rc != 0) {
+		free(o.buf);
+		return SESSION_IO_ERROR;
+	}
+	*out = o.buf;
+	*len = o.len;
+	return SESSION_OK;
+}
+
+/* Write S as YAML into a new buffer. */
+enum session_status session_save_buffer(const struct session *s, char **out,
+                                        size_t *len, struct session_error *err)
+{
+	return session_save_buffer_with(s, NULL, out, len, err);
+}
+
+/* Save S to PATH atomically. */
+enum session_status session_save_file(const struct session *s, const char *path,
+                                      struct session_error *err)
+{
+	struct session_error scratch;
+	if (err == NULL)
+		err = &scratch;
+	char *buf;
+	size_t len;
+	enum session_status st = session_save_buffer(s, &buf, &len, err);
+	if (st != SESSION_OK) {
+		snprintf(err->file, sizeof err->file, "%s", path);
+		return st;
+	}
+	char why[sizeof err->message];
+	int rc = atomic_write_file(path, buf, len, why, sizeof why);
+	free(buf);
+	if (rc != 0) {
+		memset(err, 0, sizeof *err);
+		snprintf(err->file, sizeof err->file, "%s", path);
+		/* the message starts with the path already; keep the reason only */
+		size_t pl = strlen(path);
+		const char *msg = why;
+		if (strncmp(msg, path, pl) == 0 && msg[pl] == ':')
+			msg += pl + 2;
+		snprintf(err->message, sizeof err->message, "%s", msg);
+		return SESSION_CANT_WRITE;
+	}
+	return SESSION_OK;
+}
+
+/*
+ * The demo: a green indicator LED on an industrial 24 V rail behind a
+ * 2.2 kOhm resistor.  The LED values are invented for the demo (chosen to
+ * give about 2.1 V at 10 mA, typical of the kind).  At that point the LED's
+ * differential resistance (about 12 Ohm) is far below the 2.2 kOhm line, so
+ * the voltage-from-line projections diverge (|g'| = RS/r_d >> 1) while the
+ * voltage-from-device order converges; the demo starts on the diverging
+ * order so the user sees why the order matters.
+ */
+void session_demo(struct session *s)
+{
+	session_init(s);
+	s->solver.method = METHOD_PROJECTION;
+	s->solver.order = ORDER_VOLTAGE_FROM_LINE;
+	s->solver.start_v = 0.0;
+	s->solver.max_steps = 40;
+}
+
+/* Build the core problem from S. */
+int session_problem(const struct session *s, struct problem *pb, char *err,
+                    size_t errlen)
+{
+	char why[256];
+	if (source_from_spec(&s->source, &pb->src, why, sizeof why) != 0) {
+		snprintf(err, errlen, "source.%s", why);
+		return -1;
+	}
+	if (device_validate(&s->device, why, sizeof why) != 0) {
+		snprintf(err, errlen, "device.%s", why);
+		return -1;
+	}
+	pb->dev = s->device;
+	return 0;
+}

@@ -26,10 +26,20 @@ struct session_view {
 	double zoom;               /* 1 = the automatic frame */
 };
 
+/*
+ * Operating conditions.  A condition the device model has as a parameter
+ * (temperature) is folded into the device on load and is NaN here; one the
+ * model lacks is kept here and written back.
+ */
+struct session_conditions {
+	double temperature;        /* ambient temperature, degrees C; NaN = none */
+};
+
 /* One case. */
 struct session {
 	struct source_spec source;
 	struct device device;
+	struct session_conditions conditions;
 	struct solve_options solver;
 	struct session_view view;
 	char *notes;               /* free text, may be NULL */
@@ -72,6 +82,36 @@ enum session_status session_load_file(struct session *s, const char *path,
 enum session_status session_load_buffer(struct session *s, const char *name,
                                         const char *buf, size_t len,
                                         struct session_error *err);
+
+/*
+ * Write S as YAML (canonical key order, a one-line comment header, every
+ * number exact) into a new buffer *OUT of *LEN bytes (NUL-terminated; the
+ * caller frees it).  Returns SESSION_OK or an error status with ERR.
+ */
+enum session_status session_save_buffer(const struct session *s, char **out,
+                                        size_t *len, struct session_error *err);
+
+/*
+ * Like session_save_buffer with EXTRA (may be NULL) written as a second
+ * comment line after the header; EXTRA must be one line.
+ */
+enum session_status session_save_buffer_with(const struct session *s,
+                                             const char *extra, char **out,
+                                             size_t *len,
+                                             struct session_error *err);
+
+/*
+ * Save S to PATH atomically (temporary file, fsync, rename): on any failure
+ * the old file is untouched.  Returns SESSION_OK or an error status.
+ */
+enum session_status session_save_file(const struct session *s, const char *path,
+                                      struct session_error *err);
+
+/*
+ * True when A and B hold the same session: every number bit for bit, the
+ * same model and the same notes.
+ */
+bool session_equal(const struct session *a, const struct session *b);
 
 /* The built-in demo session. */
 void session_demo(struct session *s);
