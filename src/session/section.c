@@ -422,6 +422,19 @@ int emit_number(struct emit_ctx *e, double v)
 	}
 	char buf[40];
 	qty_format_exact(buf, sizeof buf, v);
+	/* "1500" reads better than "1.5e+03": use fixed notation when exact */
+	if (strstr(buf, "e+") != NULL && fabs(v) < 1e15) {
+		for (int d = 0; d <= 17; d++) {
+			char fixed[40];
+			double back;
+			snprintf(fixed, sizeof fixed, "%.*f", d, v);
+			if (qty_parse(fixed, QTY_NUMBER, &back, NULL, 0) == QTY_OK &&
+			    memcmp(&back, &v, sizeof v) == 0) {
+				memcpy(buf, fixed, sizeof fixed);
+				break;
+			}
+		}
+	}
 	return emit_scalar(e, buf, true);
 }
 

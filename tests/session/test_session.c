@@ -456,7 +456,7 @@ static void test_random_round_trip(void **state)
 static void test_edge_round_trip(void **state)
 {
 	(void)state;
-	static const double vs[] = { -0.0, 0.0, 2.2250738585072014e-308, 1e9, -1e9, 0.1, 1.0 / 3.0,
+	static const double vs[] = { -0.0, 0.0, 5e-324, 2.2250738585072014e-308, 1e9, -1e9, 0.1, 1.0 / 3.0,
 	                             12.345678901234567, 9.999999999999999e8 };
 	for (size_t k = 0; k < sizeof vs / sizeof vs[0]; k++) {
 		struct session s;
