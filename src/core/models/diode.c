@@ -6,7 +6,22 @@
  *
  * (Shockley, Bell Syst. Tech. J. 28, 1949).  k and q are the exact values
  * of the 2019 SI redefinition (BIPM, The International System of Units,
- * 9th edition, 2019).  Is is the value at the stated temperature.
+ * 9th edition, 2019).
+ *
+ * Temperature.  Without a reference temperature, Is is the value at the
+ * junction temperature as given.  With one, Is is taken at the reference
+ * temperature T0 and carried to the junction temperature T (kelvin) by
+ *
+ *     Is(T) = Is(T0) (T/T0)^m exp(q Eg / (n k) (1/T0 - 1/T))
+ *
+ * The law comes from the ideal-diode saturation current, proportional to
+ * ni^2 = Nc Nv exp(-Eg / kT) with Nc, Nv ~ T^(3/2), so Is ~ T^3
+ * exp(-Eg/kT) for a diffusion-limited junction (n = 1, m = 3), and to
+ * ni ~ T^(3/2) exp(-Eg/2kT) for recombination in the depletion region
+ * (n = 2) (Sze & Ng, Physics of Semiconductor Devices, 3rd ed., 2007,
+ * ch. 1 (intrinsic density) and ch. 2 (p-n junction current)).  Eg is
+ * taken as constant over the range; 1.12 eV is silicon at room
+ * temperature (Sze & Ng 2007, ch. 1).
  */
 #include <math.h>
 #include <stdio.h>
@@ -24,6 +39,25 @@ double diode_thermal_voltage(double temp_c)
 	return BOLTZMANN * (temp_c + ZERO_CELSIUS) / ELEMENTARY_CHARGE;
 }
 
+/* Saturation current at T_C from IS_REF at TREF_C (see models.h). */
+double diode_scaled_saturation(double is_ref, double t_c, double tref_c,
+                               double eg_ev, double m, double n)
+{
+	if (!(tref_c > -ZERO_CELSIUS))
+		return is_ref;
+	double t = t_c + ZERO_CELSIUS, t0 = tref_c + ZERO_CELSIUS;
+	/* q Eg / k in kelvin: Eg in eV times e / k. */
+	double eg_k = eg_ev * ELEMENTARY_CHARGE / BOLTZMANN;
+	return is_ref * pow(t / t0, m) * exp(eg_k / n * (1.0 / t0 - 1.0 / t));
+}
+
+/* Saturation current at the junction temperature. */
+static double diode_is(const double *p)
+{
+	return diode_scaled_saturation(p[DIODE_IS], p[DIODE_TEMP], p[DIODE_TREF],
+	                               p[DIODE_EG], p[DIODE_XTI], p[DIODE_N]);
+}
+
 /* n * Vt for the parameters P. */
 static double diode_nvt(const double *p)
 {
@@ -33,20 +67,20 @@ static double diode_nvt(const double *p)
 /* Junction current at junction voltage VJ. */
 static double diode_intrinsic_current(const double *p, double vj)
 {
-	return p[DIODE_IS] * expm1(vj / diode_nvt(p));
+	return diode_is(p) * expm1(vj / diode_nvt(p));
 }
 
 /* Junction conductance at VJ. */
 static double diode_intrinsic_conductance(const double *p, double vj)
 {
 	double nvt = diode_nvt(p);
-	return p[DIODE_IS] / nvt * exp(vj / nvt);
+	return diode_is(p) / nvt * exp(vj / nvt);
 }
 
 /* Junction voltage at current I (I > -Is), NaN outside. */
 static double diode_intrinsic_voltage(const double *p, double i)
 {
-	double x = i / p[DIODE_IS];
+	double x = i / diode_is(p);
 	if (!(x > -1.0))
 		return NAN;
 	return diode_nvt(p) * log1p(x);
@@ -92,7 +126,7 @@ static int diode_voltage(const double *p, double i, double *v)
 /* dV/dI at current I. */
 static double diode_resistance(const double *p, double i)
 {
-	double d = p[DIODE_IS] + i;
+	double d = diode_is(p) + i;
 	if (!(d > 0.0))
 		return NAN;
 	return diode_nvt(p) / d + p[DIODE_RS];
@@ -109,7 +143,7 @@ static double diode_resistance(const double *p, double i)
 static double diode_limit(const double *p, double vnew, double vold)
 {
 	double nvt = diode_nvt(p);
-	double vcrit = nvt * log(nvt / (sqrt(2.0) * p[DIODE_IS]));
+	double vcrit = nvt * log(nvt / (sqrt(2.0) * diode_is(p)));
 	if (vnew > vold && vnew > vcrit && vnew - vold > 2.0 * nvt) {
 		if (vold > 0.0) {
 			double arg = 1.0 + (vnew - vold) / nvt;
@@ -134,7 +168,7 @@ static void diode_range(const double *p, double *vmin, double *vmax)
 static const struct model_param diode_params[DIODE_NPARAMS] = {
 	[DIODE_IS] = { "saturation_current", "Is", QTY_CURRENT, NAN, 0.0, 1.0,
 	               true, false, true,
-	               "saturation current at the junction temperature" },
+	               "saturation current (at reference_temperature if given)" },
 	[DIODE_N] = { "ideality", "n", QTY_NUMBER, NAN, 0.0, 100.0, true, false,
 	              false, "ideality (emission) factor, about 1 to 2 for silicon" },
 	[DIODE_RS] = { "series_resistance", "Rs", QTY_RESISTANCE, 0.0, 0.0, 1e9,
@@ -142,6 +176,14 @@ static const struct model_param diode_params[DIODE_NPARAMS] = {
 	[DIODE_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15,
 	                 1000.0, true, false, false,
 	                 "junction temperature in degrees Celsius" },
+	[DIODE_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE,
+	                 -ZERO_CELSIUS, -ZERO_CELSIUS, 1000.0, false, false, false,
+	                 "temperature Is was measured at; 0 K (default): no scaling" },
+	[DIODE_EG] = { "bandgap", "Eg", QTY_ENERGY_EV, 1.12, 0.0, 10.0, false,
+	               false, false, "band gap for Is scaling, 1.12 eV for silicon" },
+	[DIODE_XTI] = { "saturation_exponent", "m", QTY_NUMBER, 3.0, 0.0, 10.0,
+	                false, false, false,
+	                "temperature exponent of Is, 3 for an ideal junction" },
 };
 
 const struct model_type model_diode = {

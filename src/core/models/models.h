@@ -15,6 +15,9 @@ enum diode_param {
 	DIODE_N,        /* ideality */
 	DIODE_RS,       /* series_resistance, ohm */
 	DIODE_TEMP,     /* temperature, degC */
+	DIODE_TREF,     /* reference_temperature, degC; 0 K = no scaling */
+	DIODE_EG,       /* bandgap, eV */
+	DIODE_XTI,      /* saturation_exponent */
 	DIODE_NPARAMS
 };
 
@@ -28,5 +31,25 @@ enum power_law_param {
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */
 double diode_thermal_voltage(double temp_c);
+
+/*
+ * Saturation current at junction temperature T_C of a junction whose
+ * saturation current is IS_REF at TREF_C (degrees Celsius), with band gap
+ * EG_EV (eV), exponent M and ideality N (see diode.c for the law and its
+ * source).  TREF_C at or below absolute zero means "IS_REF is already at
+ * T_C": IS_REF is returned unchanged.
+ */
+double diode_scaled_saturation(double is_ref, double t_c, double tref_c,
+                               double eg_ev, double m, double n);
+
+/*
+ * Solve F(X) = TARGET for X in [LO, HI] where F is increasing with
+ * derivative DF (both called with P): safeguarded Newton-Raphson in a kept
+ * bracket, bisection when a step leaves it.  Returns 0 with *X, or -1 when
+ * [LO, HI] does not bracket TARGET.
+ */
+int model_invert(double (*f)(const double *p, double x),
+                 double (*df)(const double *p, double x), const double *p,
+                 double target, double lo, double hi, double *x);
 
 #endif
