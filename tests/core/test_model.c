@@ -1,0 +1,286 @@
+/*
+ * test_model.c - the device models: the thermal voltage against the SI
+ * constants, every registered model's derivatives against central finite
+ * differences, and parameter validation.
+ */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <string.h>
+
+#include <cmocka.h>
+
+#include "core_check.h"
+
+#include "core/model.h"
+#include "core/models/models.h"
+
+/*
+ * Test 2: kT/q at 25 degC (298.15 K) from the exact constants of the 2019
+ * SI (BIPM, The International System of Units, 9th ed., 2019:
+ * k = 1.380649e-23 J/K, e = 1.602176634e-19 C) is 25.6926 mV to the six
+ * digits commonly tabulated; and Vt is proportional to the absolute
+ * temperature (the definition kT/q).
+ */
+static void test_thermal_voltage(void **state)
+{
+	(void)state;
+	double vt = diode_thermal_voltage(25.0);
+	assert_true(fabs(vt - 25.6926e-3) <= 0.5e-7);
+	static const double temps[] = { -40.0, -3.71, 0.0, 37.2, 85.0, 124.6 };
+	for (size_t k = 0; k < sizeof temps / sizeof temps[0]; k++) {
+		double r = diode_thermal_voltage(temps[k]) / vt;
+		double want = (temps[k] + 273.15) / 298.15;
+		if (!(fabs(r - want) <= 4e-16))
+			fail_msg("Vt(%g)/Vt(25) = %.17g, want %.17g", temps[k], r, want);
+	}
+}
+
+/* Parameter sets of one registered model for the derivative checks. */
+struct model_cases {
+	const char *name;
+	size_t nsets;
+	double sets[6][MODEL_MAX_PARAMS];
+};
+
+/* One table line per registered model; a new model needs a line here. */
+static const struct model_cases derivative_cases[] = {
+	{ "diode", 5, {
+		/* Is, n, series_resistance, temperature */
+		{ 2.385e-14, 1.037, 0.0, 25.0 },
+		{ 7.91e-9, 1.93, 0.417, 81.3 },
+		{ 3.3e-12, 2.41, 2.73, -37.6 },
+		{ 1.17e-15, 1.003, 0.0513, 119.2 },
+		{ 4.6e-10, 1.52, 13.7, 3.9 },
+	} },
+	{ "power-law", 5, {
+		/* reference_voltage, reference_current, exponent */
+		{ 12.7, 3.81e-3, 23.6 },
+		{ 0.273, 0.91, 0.4137 },
+		{ 230.0, 0.127, 0.871 },
+		{ 1.93, 2.2e-5, 1.0 },
+		{ 47.3, 1.6e-2, 6.28 },
+	} },
+};
+
+/* Find the derivative cases for model NAME, or NULL. */
+static const struct model_cases *model_cases_find(const char *name)
+{
+	for (size_t k = 0; k < sizeof derivative_cases / sizeof derivative_cases[0];
+	     k++)
+		if (strcmp(derivative_cases[k].name, name) == 0)
+			return &derivative_cases[k];
+	return NULL;
+}
+
+/*
+ * Compare derivative D at X with the central difference of F over the
+ * points XM < X < XP as actually rounded (common practice: truncation
+ * error O(h^2); rounding error about eps |F| / h from the values, and
+ * eps |X| |F'| / h from the arguments, which dominates where F is
+ * ill-conditioned, as V(I) of a diode as I nears -Is).
+ */
+static void check_central(const char *what, const char *model, double x,
+                          double xp, double xm, double fp, double fm, double d)
+{
+	double h = xp - xm;
+	double fd = (fp - fm) / h;
+	double allow = 1e-6 * fabs(d) +
+	               8.0 * 2.2e-16 * (fabs(fp) + fabs(fm) + 2.0 * fabs(x * d)) / h;
+	if (!isfinite(d) || !(h > 0.0) || !(fabs(fd - d) <= allow))
+		fail_msg("%s of %s at %.17g: analytic %.17g, central difference "
+		         "%.17g (allowed %.3g)", what, model, x, d, fd, allow);
+}
+
+/*
+ * Test 7: for every model in the registry, at many points of its natural
+ * range: conductance against the difference of current, resistance against
+ * the difference of voltage, intrinsic_conductance against the difference
+ * of intrinsic_current.  Points closer to 0 than 1e-3 of the range are
+ * skipped (a power law with exponent < 1 has an infinite slope there).
+ */
+static void test_derivatives(void **state)
+{
+	(void)state;
+	struct check_rng rng = { 0x7d3e11u };
+	unsigned checked = 0;
+	for (size_t m = 0; model_registry[m] != NULL; m++) {
+		const struct model_type *t = model_registry[m];
+		const struct model_cases *mc = model_cases_find(t->name);
+		if (mc == NULL)
+			fail_msg("model %s has no derivative cases: add a table line",
+			         t->name);
+		for (size_t s = 0; s < mc->nsets; s++) {
+			struct device dev;
+			char err[256];
+			device_init(&dev, t);
+			for (size_t k = 0; k < t->nparams; k++)
+				dev.p[k] = mc->sets[s][k];
+			if (device_validate(&dev, err, sizeof err) != 0)
+				fail_msg("case %s/%zu is invalid: %s", t->name, s, err);
+			double lo, hi;
+			device_range(&dev, &lo, &hi);
+			assert_true(isfinite(lo) && isfinite(hi) && lo < hi);
+			for (int k = 0; k < 120; k++) {
+				double v = check_rng_uniform(&rng, lo, hi);
+				if (fabs(v) < 1e-3 * (hi - lo))
+					continue;
+				/* A step that changes V by 1e-5 relative, and I (to
+				 * first order) by at most 1e-5 relative. */
+				double h = 1e-5 * fabs(v);
+				if (t->current != NULL) {
+					double hc = fmin(h, 1e-5 * fabs(t->current(dev.p, v) /
+					                                t->conductance(dev.p, v)));
+					check_central("conductance", t->name, v, v + hc, v - hc,
+					              t->current(dev.p, v + hc),
+					              t->current(dev.p, v - hc),
+					              t->conductance(dev.p, v));
+					checked++;
+				}
+				if (t->intrinsic_current != NULL) {
+					double hj = fmin(h, 1e-5 * fabs(
+						t->intrinsic_current(dev.p, v) /
+						t->intrinsic_conductance(dev.p, v)));
+					check_central("intrinsic conductance", t->name, v, v + hj,
+					              v - hj,
+					              t->intrinsic_current(dev.p, v + hj),
+					              t->intrinsic_current(dev.p, v - hj),
+					              t->intrinsic_conductance(dev.p, v));
+					checked++;
+				}
+				if (t->voltage != NULL && t->resistance != NULL &&
+				    t->current != NULL) {
+					/*
+					 * Resistance at the current this voltage carries,
+					 * over the current step that the voltage step H makes.
+					 */
+					double i = t->current(dev.p, v);
+					double hi_ = fabs(t->conductance(dev.p, v)) * h;
+					double ip = i + hi_, im = i - hi_;
+					double vp, vm;
+					if (!(ip > im) || t->voltage(dev.p, ip, &vp) != 0 ||
+					    t->voltage(dev.p, im, &vm) != 0)
+						continue;
+					check_central("resistance", t->name, i, ip, im, vp, vm,
+					              t->resistance(dev.p, i));
+					checked++;
+				}
+			}
+		}
+	}
+	print_message("# %u derivative checks\n", checked);
+	assert_true(checked > 1000);
+}
+
+/* A parameter value that must be rejected. */
+struct bad_param {
+	const char *model;
+	const char *key;
+	double value;
+};
+
+static const struct bad_param bad_params[] = {
+	{ "diode", "saturation_current", 0.0 },
+	{ "diode", "saturation_current", -2.385e-14 },
+	{ "diode", "saturation_current", NAN },
+	{ "diode", "saturation_current", INFINITY },
+	{ "diode", "ideality", 0.0 },
+	{ "diode", "ideality", -1.37 },
+	{ "diode", "ideality", NAN },
+	{ "diode", "ideality", -INFINITY },
+	{ "diode", "series_resistance", -0.271 },
+	{ "diode", "series_resistance", INFINITY },
+	{ "diode", "series_resistance", NAN },
+	{ "diode", "temperature", -273.15 },     /* absolute zero itself */
+	{ "diode", "temperature", -291.7 },      /* below absolute zero */
+	{ "diode", "temperature", NAN },
+	{ "diode", "temperature", INFINITY },
+	{ "power-law", "reference_voltage", 0.0 },
+	{ "power-law", "reference_voltage", -3.3 },
+	{ "power-law", "reference_voltage", NAN },
+	{ "power-law", "reference_current", 0.0 },
+	{ "power-law", "reference_current", -4.7e-3 },
+	{ "power-law", "reference_current", INFINITY },
+	{ "power-law", "exponent", 0.0 },
+	{ "power-law", "exponent", -0.83 },
+	{ "power-law", "exponent", INFINITY },
+	{ "power-law", "exponent", NAN },
+};
+
+/* A valid device of model NAME (the first derivative case). */
+static void valid_device(struct device *dev, const char *name)
+{
+	const struct model_type *t = model_find(name);
+	assert_non_null(t);
+	const struct model_cases *mc = model_cases_find(name);
+	assert_non_null(mc);
+	device_init(dev, t);
+	for (size_t k = 0; k < t->nparams; k++)
+		dev->p[k] = mc->sets[1][k];
+}
+
+/*
+ * Test 10 (models): each bad value makes device_validate fail with a
+ * message naming the key; the untouched device validates.
+ */
+static void test_validate(void **state)
+{
+	(void)state;
+	for (size_t k = 0; k < sizeof bad_params / sizeof bad_params[0]; k++) {
+		const struct bad_param *b = &bad_params[k];
+		struct device dev;
+		char err[256] = "";
+		valid_device(&dev, b->model);
+		assert_int_equal(device_validate(&dev, err, sizeof err), 0);
+		int idx = model_param_index(dev.type, b->key);
+		assert_true(idx >= 0);
+		dev.p[idx] = b->value;
+		if (device_validate(&dev, err, sizeof err) == 0)
+			fail_msg("%s %s = %g was accepted", b->model, b->key, b->value);
+		if (strstr(err, b->key) == NULL)
+			fail_msg("%s %s = %g: message does not name the key: %s",
+			         b->model, b->key, b->value, err);
+	}
+}
+
+/* Required keys (default NaN) are reported by name when left out. */
+static void test_required_keys(void **state)
+{
+	(void)state;
+	for (size_t m = 0; model_registry[m] != NULL; m++) {
+		const struct model_type *t = model_registry[m];
+		struct device dev;
+		char err[256] = "";
+		device_init(&dev, t);
+		for (size_t k = 0; k < t->nparams; k++) {
+			if (!isnan(t->params[k].def))
+				continue;
+			if (device_validate(&dev, err, sizeof err) == 0)
+				fail_msg("%s validates without %s", t->name, t->params[k].key);
+			if (strstr(err, t->params[k].key) == NULL)
+				fail_msg("%s: message does not name %s: %s", t->name,
+				         t->params[k].key, err);
+			dev.p[k] = 0.5 * (fmax(t->params[k].min, 1e-12) +
+			                  fmin(t->params[k].max, 3.0)); /* now given */
+		}
+		if (device_validate(&dev, err, sizeof err) != 0)
+			fail_msg("%s with every key given: %s", t->name, err);
+	}
+	struct device none = { .type = NULL };
+	char err[64];
+	assert_int_equal(device_validate(&none, err, sizeof err), -1);
+	assert_null(model_find("no-such-model"));
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_thermal_voltage),
+		cmocka_unit_test(test_derivatives),
+		cmocka_unit_test(test_validate),
+		cmocka_unit_test(test_required_keys),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
