@@ -1,0 +1,317 @@
+/*
+ * test_stepper.c - the stepped methods: Newton's order of convergence, a
+ * 2-cycle and an overflow that stop without hanging, relaxation with the
+ * optimal factor on a diverging order, the step cap, and rewinding.
+ */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <string.h>
+
+#include <cmocka.h>
+
+#define CORE_CHECK_GSL
+#include "core_check.h"
+
+#include "core/diagnose.h"
+#include "core/models/models.h"
+#include "core/solve.h"
+
+/* A diode behind a Thevenin source. */
+struct diode_case {
+	double is, n, temp, vs, rs;
+};
+
+/* Build the problem of case C (diode without series resistance). */
+static void diode_problem(struct problem *pb, const struct diode_case *c)
+{
+	struct source_spec sp;
+	char err[200];
+	source_spec_thevenin(&sp, c->vs, c->rs);
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	device_init(&pb->dev, &model_diode);
+	pb->dev.p[DIODE_IS] = c->is;
+	pb->dev.p[DIODE_N] = c->n;
+	pb->dev.p[DIODE_RS] = 0.0;
+	pb->dev.p[DIODE_TEMP] = c->temp;
+}
+
+static const struct diode_case newton_cases[] = {
+	{ 2.385e-14, 1.071, 27.3, 4.913, 1370.0 },
+	{ 7.7e-9, 1.83, 61.9, 11.37, 213.0 },
+	{ 1.3e-15, 1.002, -17.4, 0.9137, 47.3 },
+	{ 3.19e-11, 2.47, 104.6, 37.1, 8270.0 },
+	{ 5.6e-13, 1.39, 3.3, 2.219, 91.7 },
+};
+
+/*
+ * Test 5: near the root Newton's error obeys e_{k+1} ~ C e_k^2, so the
+ * estimate p = ln(e_{k+1}/e_k) / ln(e_k/e_{k-1}) is about 2 (Burden &
+ * Faires, Numerical Analysis, 9th ed., 2010, sec. 2.4, def. 2.7 and
+ * thm 2.9).  Errors are against the exact Lambert W root (Banwell &
+ * Jayakumar 2000); the triple used is the last one whose newest error is
+ * still 1000 ulp above the root's rounding, asked to start 3.7 nVt above
+ * the root (the convex side, where no limiting applies; the stepper may
+ * start lower, at the top of its bracket).  Accept 1.8 to 2.2.
+ */
+static void test_newton_order(void **state)
+{
+	(void)state;
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	for (size_t k = 0; k < sizeof newton_cases / sizeof newton_cases[0]; k++) {
+		const struct diode_case *c = &newton_cases[k];
+		struct problem pb;
+		diode_problem(&pb, c);
+		double nvt = check_nvt(c->n, c->temp);
+		long double iref = check_diode_exact_current(c->is, nvt, c->rs, c->vs);
+		long double vref = c->vs - c->rs * iref;
+		struct solve_options o;
+		solve_options_init(&o);
+		o.method = METHOD_NEWTON;
+		o.start_v = (double)vref + 3.7 * nvt;
+		assert_int_equal(stepper_init(st, &pb, &o), 0);
+		assert_int_equal(stepper_run(st), STEP_CONVERGED);
+		size_t n;
+		const struct trace_row *tr = stepper_trace(st, &n);
+		assert_true(tr[0].v > vref && tr[0].v <= o.start_v);
+		double floor_ = 1000.0 * 2.2e-16 * fabsl(vref);
+		double p = NAN;
+		for (size_t j = 2; j < n; j++) {
+			double e0 = (double)fabsl(tr[j - 2].v - vref);
+			double e1 = (double)fabsl(tr[j - 1].v - vref);
+			double e2 = (double)fabsl(tr[j].v - vref);
+			if (e2 > floor_ && e1 < e0 && e2 < e1)
+				p = log(e2 / e1) / log(e1 / e0);
+		}
+		if (!(p >= 1.8 && p <= 2.2))
+			fail_msg("case %zu: order estimate %g over %zu steps", k, p, n - 1);
+		print_message("# newton case %zu: order %.4f, %zu steps\n", k, p, n - 1);
+	}
+	stepper_destroy(st);
+}
+
+/*
+ * Test 6a: a load line of resistance Vref/Iref through the origin and a
+ * linear power-law device (exponent 1) give g' = -1 exactly in the line
+ * order: the path returns to its start every full step (a 2-cycle).  The
+ * stepper must stop on its own with a non-converged status, here cycling.
+ */
+static void test_two_cycle(void **state)
+{
+	(void)state;
+	struct problem pb;
+	struct source_spec sp;
+	char err[200];
+	const double vref = 3.17, iref = 2.2e-3;
+	source_spec_thevenin(&sp, 0.0, vref / iref);
+	assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+	device_init(&pb.dev, &model_power_law);
+	pb.dev.p[POWER_LAW_VREF] = vref;
+	pb.dev.p[POWER_LAW_IREF] = iref;
+	pb.dev.p[POWER_LAW_ALPHA] = 1.0;
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	struct solve_options o;
+	solve_options_init(&o);
+	o.method = METHOD_PROJECTION;
+	o.order = ORDER_VOLTAGE_FROM_LINE;
+	o.start_v = 0.713;
+	o.max_steps = 100000;
+	assert_int_equal(stepper_init(st, &pb, &o), 0);
+	enum step_status s = stepper_run(st);
+	size_t n;
+	stepper_trace(st, &n);
+	if (s != STEP_CYCLING)
+		fail_msg("2-cycle ended %s after %zu rows", step_status_name(s), n);
+	assert_true(n <= 20);
+	/* solve_problem reports it as a failure with a message. */
+	struct solve_result res;
+	assert_int_equal(solve_problem(&pb, &o, &res), SOLVE_FAILED);
+	assert_int_equal(res.stop, STEP_CYCLING);
+	assert_int_equal(res.n, 0);
+	assert_true(res.message[0] != '\0');
+	stepper_destroy(st);
+}
+
+/*
+ * Test 6b: the line order from 0 V with a large source resistance and
+ * voltage drives the diode to exp overflow in one projection; it stops
+ * with a non-converged status after a bounded number of rows.
+ */
+static void test_overflow_stops(void **state)
+{
+	(void)state;
+	const struct diode_case c = { 2.385e-14, 1.071, 27.3, 47.3, 91200.0 };
+	struct problem pb;
+	diode_problem(&pb, &c);
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	struct solve_options o;
+	solve_options_init(&o);
+	o.method = METHOD_PROJECTION;
+	o.order = ORDER_VOLTAGE_FROM_LINE;
+	o.max_steps = 100000;
+	assert_int_equal(stepper_init(st, &pb, &o), 0);
+	enum step_status s = stepper_run(st);
+	size_t n;
+	const struct trace_row *tr = stepper_trace(st, &n);
+	if (s == STEP_CONVERGED || s == STEP_CONTINUE)
+		fail_msg("overflow case ended %s", step_status_name(s));
+	assert_true(n <= 20);
+	for (size_t k = 0; k < n; k++)
+		assert_true(isfinite(tr[k].v) && isfinite(tr[k].i));
+	stepper_destroy(st);
+}
+
+/* Cases whose device order diverges with g' about -2 to -5 at the point. */
+struct diverge_case {
+	struct diode_case d;
+	double gprime;     /* wanted g' of the device order at the point */
+	double i_point;    /* wanted current at the point */
+};
+
+static const struct diverge_case diverge_cases[] = {
+	{ { 2.385e-14, 1.071, 27.3, 0, 0 }, -2.37, 1.37e-3 },
+	{ { 7.7e-9, 1.83, 61.9, 0, 0 }, -3.11, 4.13e-2 },
+	{ { 1.3e-15, 1.002, -17.4, 0, 0 }, -4.71, 2.9e-5 },
+};
+
+/*
+ * Fill PB for case DC: a diode whose device order has slope DC->gprime at
+ * the point of current DC->i_point (r = -r_d / g' with r_d = nVt/(I+Is),
+ * the load line through the point).  Returns the point's voltage.
+ */
+static double diverge_problem(struct problem *pb, const struct diverge_case *dc)
+{
+	struct diode_case c = dc->d;
+	double nvt = check_nvt(c.n, c.temp);
+	double v = nvt * log1p(dc->i_point / c.is);
+	double rd = nvt / (dc->i_point + c.is);
+	c.rs = -rd / dc->gprime;
+	c.vs = v + c.rs * dc->i_point;
+	diode_problem(pb, &c);
+	return v;
+}
+
+/*
+ * Test 6c: relaxation with the optimal factor w* = 1 / (1 - g'(x*)) (from
+ * diagnose_at at the solved point) makes the diverging device order
+ * converge, as does the per-step optimal factor (w = 0), to the Newton
+ * point within the tolerance (relaxed rate 1 - w + w g' = 0 at w*;
+ * Burden & Faires 2010, sec. 2.4).
+ */
+static void test_relaxed_converges(void **state)
+{
+	(void)state;
+	for (size_t k = 0; k < sizeof diverge_cases / sizeof diverge_cases[0]; k++) {
+		struct problem pb;
+		double v = diverge_problem(&pb, &diverge_cases[k]);
+		struct solve_options o;
+		struct solve_result ref, res;
+		solve_options_init(&o);
+		assert_int_equal(solve_problem(&pb, &o, &ref), SOLVE_OK);
+		struct diagnosis d;
+		diagnose_at(&pb, ORDER_VOLTAGE_FROM_DEVICE, ref.pts[0].v, 1e-12, 1.0, &d);
+		assert_true(fabs(d.gprime - diverge_cases[k].gprime) <=
+		            1e-6 * fabs(diverge_cases[k].gprime));
+		for (int w = 0; w < 2; w++) {
+			solve_options_init(&o);
+			o.method = METHOD_RELAXED;
+			o.order = ORDER_VOLTAGE_FROM_DEVICE;
+			/* Below the point: the first device step stays on the curve. */
+			o.start_v = v - 0.37 * check_nvt(diverge_cases[k].d.n,
+			                                 diverge_cases[k].d.temp);
+			o.omega = w == 0 ? d.omega_opt : 0.0;
+			if (solve_problem(&pb, &o, &res) != SOLVE_OK)
+				fail_msg("case %zu, omega %g: %s", k, o.omega, res.message);
+			if (!(check_rel(res.pts[0].i, ref.pts[0].i, 1e-300) <= 1e-11))
+				fail_msg("case %zu, omega %g: I %.17g vs %.17g", k, o.omega,
+				         res.pts[0].i, ref.pts[0].i);
+			assert_true(res.pts[0].steps <= 40);
+		}
+	}
+}
+
+/*
+ * Test 6d: a slow contraction (g' = -0.9953 in the line order) stops at
+ * the step cap with STEP_CAP and at most max_steps + 1 trace rows.
+ */
+static void test_step_cap(void **state)
+{
+	(void)state;
+	struct diverge_case dc = diverge_cases[1];
+	dc.gprime = -1.0 / 0.9953; /* device order -1.0047: line order -0.9953 */
+	struct problem pb;
+	double v = diverge_problem(&pb, &dc);
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	static const unsigned caps[] = { 37, 61, 150 };
+	for (size_t k = 0; k < 3; k++) {
+		struct solve_options o;
+		solve_options_init(&o);
+		o.method = METHOD_PROJECTION;
+		o.order = ORDER_VOLTAGE_FROM_LINE;
+		o.start_v = v * 0.981;
+		o.max_steps = caps[k];
+		assert_int_equal(stepper_init(st, &pb, &o), 0);
+		enum step_status s = stepper_run(st);
+		size_t n;
+		stepper_trace(st, &n);
+		if (s != STEP_CAP)
+			fail_msg("cap %u: ended %s after %zu rows", caps[k],
+			         step_status_name(s), n);
+		assert_true(n <= caps[k] + 1);
+		/* A stopped stepper does not move again. */
+		assert_int_equal(stepper_step(st), STEP_CAP);
+		size_t n2;
+		stepper_trace(st, &n2);
+		assert_int_equal(n2, n);
+	}
+	stepper_destroy(st);
+}
+
+/* Rewinding re-runs the same path: the rows match the first run exactly. */
+static void test_rewind(void **state)
+{
+	(void)state;
+	struct problem pb;
+	double v = diverge_problem(&pb, &diverge_cases[0]);
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	struct solve_options o;
+	solve_options_init(&o);
+	o.method = METHOD_PROJECTION;
+	o.order = ORDER_VOLTAGE_FROM_LINE;
+	o.start_v = v * 1.023;
+	assert_int_equal(stepper_init(st, &pb, &o), 0);
+	for (int k = 0; k < 9; k++)
+		assert_int_equal(stepper_step(st), STEP_CONTINUE);
+	size_t n;
+	const struct trace_row *tr = stepper_trace(st, &n);
+	assert_int_equal(n, 10);
+	struct trace_row saved[10];
+	memcpy(saved, tr, sizeof saved);
+	stepper_rewind(st, 4);
+	tr = stepper_trace(st, &n);
+	assert_int_equal(n, 5);
+	for (size_t k = 0; k < n; k++)
+		assert_true(tr[k].v == saved[k].v && tr[k].i == saved[k].i &&
+		            tr[k].on == saved[k].on);
+	stepper_destroy(st);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_newton_order),
+		cmocka_unit_test(test_two_cycle),
+		cmocka_unit_test(test_overflow_stops),
+		cmocka_unit_test(test_relaxed_converges),
+		cmocka_unit_test(test_step_cap),
+		cmocka_unit_test(test_rewind),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
