@@ -47,8 +47,11 @@ struct model_cases {
 
 /* One table line per registered model; a new model needs a line here. */
 static const struct model_cases derivative_cases[] = {
-	{ "diode", 5, {
-		/* Is, n, series_resistance, temperature */
+	{ "diode", 6, {
+		/* Is, n, series_resistance, temperature, and for the scaled
+		 * set reference_temperature, bandgap, saturation_exponent
+		 * (a 0 degC reference with zero gap and exponent: no change) */
+		{ 3.1e-14, 1.27, 0.33, 71.3, 25.0, 1.12, 3.0 },
 		{ 2.385e-14, 1.037, 0.0, 25.0 },
 		{ 7.91e-9, 1.93, 0.417, 81.3 },
 		{ 3.3e-12, 2.41, 2.73, -37.6 },
