@@ -165,8 +165,12 @@ int section_parse_qty(struct load_ctx *c, const struct ynode *v,
 	char why[160] = "";
 	enum qty_status st = qty_parse(v->text, kind, &x, why, sizeof why);
 	if (st != QTY_OK) {
-		ytree_error(c->err, c->name, v, path, "found %s, expected %s (%s)",
-		            found, expected, why[0] ? why : "not a number");
+		/* qty_parse's message already says what was found and expected */
+		if (why[0] != '\0')
+			ytree_error(c->err, c->name, v, path, "%s", why);
+		else
+			ytree_error(c->err, c->name, v, path,
+			            "found %s, expected %s", found, expected);
 		return -1;
 	}
 	if (!isfinite(x)) {

@@ -19,6 +19,7 @@
 #include <yaml.h>
 
 /* Fill ERR with NAME, LINE:COL, KEY and a formatted message (va_list form). */
+__attribute__((format(printf, 6, 0)))
 static void ytree_verror(struct session_error *err, const char *name,
                          unsigned line, unsigned col, const char *key,
                          const char *fmt, va_list ap)
