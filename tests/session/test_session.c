@@ -21,6 +21,7 @@
 #include <cmocka.h>
 
 #include "session/atomic.h"
+#include "session/recovery.h"
 #include "session/session.h"
 
 /* One file the loader must reject. */
@@ -663,6 +664,88 @@ static void test_header(void **state)
 	session_fini(&s);
 }
 
+/* Recovery files: save, find, list, load back, remove; folder mode 0700. */
+static void test_recovery(void **state)
+{
+	(void)state;
+	char *d = make_temp_dir();
+	char state_dir[1100];
+	snprintf(state_dir, sizeof state_dir, "%s/state", d);
+	assert_int_equal(setenv("XDG_STATE_HOME", state_dir, 1), 0);
+
+	char found[RECOVERY_PATH_MAX], err[512];
+	assert_int_equal(recovery_find("/srv/cases/led.yaml", found, sizeof found), 0);
+	struct recovery_entry *list;
+	size_t n;
+	assert_int_equal(recovery_list(&list, &n, err, sizeof err), 0);
+	assert_int_equal(n, 0);
+	recovery_list_free(list);
+
+	uint64_t st = 31337;
+	struct session a, demo, back;
+	struct session_error serr;
+	rng_session(&st, &a);
+	session_demo(&demo);
+	assert_int_equal(recovery_save(&a, "/srv/cases/led.yaml", &serr), SESSION_OK);
+	assert_int_equal(recovery_save(&demo, NULL, &serr), SESSION_OK);
+
+	/* the folder is private */
+	char dir[1200];
+	snprintf(dir, sizeof dir, "%s/biasline", state_dir);
+	struct stat sb;
+	assert_int_equal(stat(dir, &sb), 0);
+	assert_int_equal(sb.st_mode & 0777, 0700);
+
+	assert_int_equal(recovery_find("/srv/cases/led.yaml", found, sizeof found), 1);
+	assert_non_null(strstr(found, "/biasline/led.yaml-"));
+	assert_int_equal(session_load_file(&back, found, &serr), SESSION_OK);
+	assert_true(session_equal(&a, &back));
+	session_fini(&back);
+	/* another file of the same name elsewhere gets its own recovery file */
+	char other[RECOVERY_PATH_MAX];
+	assert_int_equal(recovery_path("/srv/other/led.yaml", other, sizeof other,
+	                               err, sizeof err), 0);
+	assert_string_not_equal(found, other);
+
+	assert_int_equal(recovery_find(NULL, found, sizeof found), 1);
+	assert_non_null(strstr(found, "/biasline/demo.yaml"));
+
+	assert_int_equal(recovery_list(&list, &n, err, sizeof err), 0);
+	assert_int_equal(n, 2);
+	int saw_demo = 0, saw_led = 0;
+	for (size_t k = 0; k < n; k++) {
+		if (list[k].origin[0] == '\0')
+			saw_demo++;
+		else if (strcmp(list[k].origin, "/srv/cases/led.yaml") == 0)
+			saw_led++;
+	}
+	assert_int_equal(saw_demo, 1);
+	assert_int_equal(saw_led, 1);
+	recovery_list_free(list);
+
+	assert_int_equal(recovery_remove("/srv/cases/led.yaml", err, sizeof err), 0);
+	assert_int_equal(recovery_find("/srv/cases/led.yaml", found, sizeof found), 0);
+	assert_int_equal(recovery_remove("/srv/cases/led.yaml", err, sizeof err), 0);
+	assert_int_equal(recovery_remove(NULL, err, sizeof err), 0);
+	assert_int_equal(recovery_list(&list, &n, err, sizeof err), 0);
+	assert_int_equal(n, 0);
+	recovery_list_free(list);
+
+	/* a relative XDG_STATE_HOME is ignored in favour of HOME */
+	assert_int_equal(setenv("XDG_STATE_HOME", "relative/state", 1), 0);
+	assert_int_equal(setenv("HOME", d, 1), 0);
+	assert_int_equal(recovery_dir(found, sizeof found, err, sizeof err), 0);
+	char expect[1200];
+	snprintf(expect, sizeof expect, "%s/.local/state/biasline", d);
+	assert_string_equal(found, expect);
+	unsetenv("XDG_STATE_HOME");
+
+	session_fini(&a);
+	session_fini(&demo);
+	remove_dir(d);
+	free(d);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -683,6 +766,7 @@ int main(void)
 		cmocka_unit_test(test_atomic_read_only),
 		cmocka_unit_test(test_save_file),
 		cmocka_unit_test(test_header),
+		cmocka_unit_test(test_recovery),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
