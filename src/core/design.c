@@ -1,0 +1,302 @@
+/*
+ * design.c - series resistance or source voltage for a target operating
+ * point (see design.h).
+ */
+#include "design.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+/* Row kind name. */
+const char *design_row_name(enum design_row_kind k)
+{
+	switch (k) {
+	case DESIGN_ROW_EXACT:
+		return "exact";
+	case DESIGN_ROW_LOWER:
+		return "lower";
+	case DESIGN_ROW_HIGHER:
+		return "higher";
+	}
+	return "?";
+}
+
+/* Target name. */
+const char *design_target_name(enum design_target t)
+{
+	switch (t) {
+	case DESIGN_CURRENT:
+		return "current";
+	case DESIGN_VOLTAGE:
+		return "voltage";
+	case DESIGN_POWER:
+		return "power";
+	}
+	return "?";
+}
+
+/* P - I V(I) on the device, in I; NaN where V(I) is undefined. */
+static double design_power_gap_i(const struct device *d, double i, double p)
+{
+	double v;
+	if (device_voltage(d, i, &v) != 0)
+		return NAN;
+	return i * v - p;
+}
+
+/* V I(V) - P on the device, in V. */
+static double design_power_gap_v(const struct device *d, double v, double p)
+{
+	return v * device_current(d, v) - p;
+}
+
+/*
+ * Solve gap(x) = 0 for x > 0 where gap increases from -P at 0: double an
+ * upper end until gap > 0, then bisect to the last bit.  Returns 0 or -1.
+ */
+static int design_power_root(const struct device *d, double p, int in_current,
+                             double *x)
+{
+	double (*gap)(const struct device *, double, double) =
+		in_current ? design_power_gap_i : design_power_gap_v;
+	double hi = in_current ? 1e-12 : 1e-3;
+	double lo = 0.0;
+	int k = 0;
+	for (;; k++) {
+		double g = gap(d, hi, p);
+		if (g > 0.0)
+			break;
+		if (!(g <= 0.0) || k > 200)
+			return -1; /* undefined, or never reaches P */
+		lo = hi;
+		hi *= 2.0;
+	}
+	for (int it = 0; it < 200; it++) {
+		double mid = 0.5 * (lo + hi);
+		if (!(mid > lo && mid < hi))
+			break;
+		double g = gap(d, mid, p);
+		if (!isfinite(g))
+			return -1;
+		if (g > 0.0)
+			hi = mid;
+		else
+			lo = mid;
+	}
+	/* The end whose gap is smaller in size. */
+	*x = fabs(gap(d, lo, p)) < fabs(gap(d, hi, p)) ? lo : hi;
+	return lo > 0.0 || hi > 0.0 ? 0 : -1;
+}
+
+/* The device point meeting the target. */
+int design_device_point(const struct problem *pb,
+                        const struct design_request *rq, double *v, double *i,
+                        char *err, size_t errlen)
+{
+	const struct device *d = &pb->dev;
+	const struct model_type *t = d->type;
+	if (!isfinite(rq->value)) {
+		snprintf(err, errlen, "the target %s is not a finite number",
+		         design_target_name(rq->target));
+		return -1;
+	}
+	switch (rq->target) {
+	case DESIGN_CURRENT:
+		if (t->voltage == NULL) {
+			snprintf(err, errlen,
+			         "the %s curve is not single-valued in current: give a "
+			         "voltage target instead", t->name);
+			return -1;
+		}
+		if (device_voltage(d, rq->value, v) != 0 || !isfinite(*v)) {
+			snprintf(err, errlen,
+			         "the device cannot carry %.6g A (outside its curve)",
+			         rq->value);
+			return -1;
+		}
+		*i = rq->value;
+		return 0;
+	case DESIGN_VOLTAGE:
+		if (t->current == NULL) {
+			snprintf(err, errlen,
+			         "the %s curve is not single-valued in voltage: give a "
+			         "current target instead", t->name);
+			return -1;
+		}
+		*v = rq->value;
+		*i = device_current(d, *v);
+		if (!isfinite(*i)) {
+			snprintf(err, errlen, "the device current at %.6g V is not finite",
+			         *v);
+			return -1;
+		}
+		return 0;
+	case DESIGN_POWER:
+		if (!(rq->value > 0.0)) {
+			snprintf(err, errlen,
+			         "a power target must be above 0 W (the device absorbs "
+			         "power in its forward region)");
+			return -1;
+		}
+		if (t->voltage != NULL) {
+			if (design_power_root(d, rq->value, 1, i) != 0 ||
+			    device_voltage(d, *i, v) != 0)
+				goto no_power;
+		} else if (t->current != NULL) {
+			if (design_power_root(d, rq->value, 0, v) != 0)
+				goto no_power;
+			*i = device_current(d, *v);
+		} else {
+			goto no_power;
+		}
+		return 0;
+	}
+	snprintf(err, errlen, "unknown target");
+	return -1;
+no_power:
+	snprintf(err, errlen,
+	         "no forward point of the device dissipates %.6g W", rq->value);
+	return -1;
+}
+
+/* Copy PB with RS or VS replaced. */
+int design_apply(const struct problem *pb, enum design_unknown u, double value,
+                 struct problem *out)
+{
+	*out = *pb;
+	if (isinf(pb->src.r) || !isfinite(pb->src.voc))
+		return -1;
+	if (u == DESIGN_FOR_RS) {
+		if (!(value >= 0.0) || !isfinite(value))
+			return -1;
+		out->src.r = value;
+	} else {
+		if (!isfinite(value))
+			return -1;
+		out->src.voc = value;
+	}
+	out->src.isc = out->src.r > 0.0 ? out->src.voc / out->src.r : INFINITY;
+	return 0;
+}
+
+/* Solve the problem with one candidate value and fill ROW. */
+static void design_row_solve(const struct problem *pb,
+                             const struct solve_options *o,
+                             const struct design_request *rq,
+                             const struct ratings *r, double v_t,
+                             struct design_row *row)
+{
+	struct problem q;
+	struct solve_result sr;
+	row->solved = false;
+	row->npoints = 0;
+	row->achieved = NAN;
+	row->error_percent = NAN;
+	memset(&row->pt, 0, sizeof row->pt);
+	row->pt.v = row->pt.i = NAN;
+	memset(&row->power, 0, sizeof row->power);
+	if (design_apply(pb, rq->unknown, row->value, &q) != 0)
+		return;
+	if (solve_problem(&q, o, &sr) != SOLVE_OK || sr.n == 0)
+		return;
+	/* With several points (a non-monotone device) take the nearest. */
+	size_t best = 0;
+	for (size_t k = 1; k < sr.n; k++)
+		if (fabs(sr.pts[k].v - v_t) < fabs(sr.pts[best].v - v_t))
+			best = k;
+	row->solved = true;
+	row->npoints = sr.n;
+	row->pt = sr.pts[best];
+	switch (rq->target) {
+	case DESIGN_CURRENT:
+		row->achieved = row->pt.i;
+		break;
+	case DESIGN_VOLTAGE:
+		row->achieved = row->pt.v;
+		break;
+	case DESIGN_POWER:
+		row->achieved = row->pt.power;
+		break;
+	}
+	row->error_percent = 100.0 * (row->achieved - rq->value) / rq->value;
+	ratings_check(&q, SOURCE_THEVENIN, row->pt.v, row->pt.i, r, &row->power);
+}
+
+/* Design for RQ on PB. */
+int design_solve(const struct problem *pb, const struct solve_options *o,
+                 const struct design_request *rq, const struct ratings *r,
+                 struct design_result *out)
+{
+	memset(out, 0, sizeof *out);
+	out->v_target = out->i_target = NAN;
+	const struct source *s = &pb->src;
+	if (isinf(s->r) || !isfinite(s->voc)) {
+		snprintf(out->message, sizeof out->message,
+		         "an ideal current source fixes the current by itself: give "
+		         "a source with a finite resistance (vs and rs)");
+		return -1;
+	}
+	if (rq->unknown == DESIGN_FOR_RS && rq->target == DESIGN_CURRENT &&
+	    rq->value * s->voc < 0.0) {
+		/* A passive device takes current in the direction of the source. */
+		snprintf(out->message, sizeof out->message,
+		         "the target current %.6g A has the wrong sign for a %.6g V "
+		         "source: it would need a negative series resistance",
+		         rq->value, s->voc);
+		return -1;
+	}
+	double v, i;
+	if (design_device_point(pb, rq, &v, &i, out->message,
+	                        sizeof out->message) != 0)
+		return -1;
+	out->v_target = v;
+	out->i_target = i;
+	double exact;
+	if (rq->unknown == DESIGN_FOR_VS) {
+		exact = v + s->r * i;
+	} else {
+		if (i == 0.0) {
+			snprintf(out->message, sizeof out->message,
+			         "the device carries no current at the target, so no "
+			         "finite series resistance puts it there");
+			return -1;
+		}
+		exact = (s->voc - v) / i;
+		if (!(exact >= 0.0)) {
+			if (i > 0.0)
+				snprintf(out->message, sizeof out->message,
+				         "the source voltage %.6g V is not above the device "
+				         "voltage %.6g V at the target: no series resistance "
+				         "reaches %.6g A; raise VS above %.6g V",
+				         s->voc, v, i, v);
+			else
+				snprintf(out->message, sizeof out->message,
+				         "the target current %.6g A has the wrong sign for "
+				         "a %.6g V source: it would need a negative series "
+				         "resistance", i, s->voc);
+			return -1;
+		}
+	}
+	if (!isfinite(exact)) {
+		snprintf(out->message, sizeof out->message,
+		         "the exact value is not finite");
+		return -1;
+	}
+	out->rows[out->nrows].kind = DESIGN_ROW_EXACT;
+	out->rows[out->nrows++].value = exact;
+	if (rq->unknown == DESIGN_FOR_RS) {
+		double lo, hi;
+		if (eseries_lower(rq->series, exact, &lo) == 0) {
+			out->rows[out->nrows].kind = DESIGN_ROW_LOWER;
+			out->rows[out->nrows++].value = lo;
+		}
+		if (eseries_higher(rq->series, exact, &hi) == 0) {
+			out->rows[out->nrows].kind = DESIGN_ROW_HIGHER;
+			out->rows[out->nrows++].value = hi;
+		}
+	}
+	for (size_t k = 0; k < out->nrows; k++)
+		design_row_solve(pb, o, rq, r, v, &out->rows[k]);
+	return 0;
+}

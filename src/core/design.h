@@ -1,0 +1,111 @@
+/*
+ * design.h - design for a target: the series resistance RS (or the source
+ * voltage VS) of a Thevenin source that puts the device's operating point
+ * at a target current, voltage or power, and the standard resistors
+ * either side of the exact value.
+ *
+ * The target fixes the device's point (V_t, I_t) on its own curve:
+ *   current I_t:  V_t = V_dev(I_t)         (the model's voltage(I))
+ *   voltage V_t:  I_t = I_dev(V_t)         (the model's current(V))
+ *   power P:      V I(V) = P on the curve (monotone in the forward region;
+ *                 solved by bisection in I, or in V when the model has no
+ *                 voltage(I)), then as for a current target.
+ * The load line through that point then gives, exactly,
+ *   RS = (VS - V_t) / I_t        or        VS = V_t + RS I_t.
+ * Each reported value is checked by a full solve (solve_problem) of the
+ * problem with that value, and its error from the target is reported.
+ */
+#ifndef BIASLINE_DESIGN_H
+#define BIASLINE_DESIGN_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "eseries.h"
+#include "problem.h"
+#include "ratings.h"
+#include "solve.h"
+
+/* What the target fixes. */
+enum design_target {
+	DESIGN_CURRENT,   /* device current, A */
+	DESIGN_VOLTAGE,   /* device voltage, V */
+	DESIGN_POWER,     /* device power, W */
+};
+
+/* What the design changes. */
+enum design_unknown {
+	DESIGN_FOR_RS,    /* the series resistance; VS stays */
+	DESIGN_FOR_VS,    /* the source voltage; RS stays */
+};
+
+/* Which value a result row holds. */
+enum design_row_kind {
+	DESIGN_ROW_EXACT,   /* the exact value */
+	DESIGN_ROW_LOWER,   /* the next standard value below it */
+	DESIGN_ROW_HIGHER,  /* the next standard value above it */
+};
+
+/* A design request. */
+struct design_request {
+	enum design_target target;
+	double value;              /* the target: A, V or W */
+	enum design_unknown unknown;
+	enum eseries series;       /* for the lower/higher rows (RS only) */
+};
+
+/* One candidate value and what it gives. */
+struct design_row {
+	enum design_row_kind kind;
+	double value;              /* RS in ohm or VS in V */
+	bool solved;               /* a verified operating point was found */
+	size_t npoints;            /* operating points with this value */
+	struct op_point pt;        /* the one nearest the target's point */
+	double achieved;           /* the targeted quantity at PT */
+	double error_percent;      /* 100 (achieved - target) / target */
+	struct ratings_report power; /* power and ratings at PT */
+};
+
+#define DESIGN_MAX_ROWS 3
+
+/* The result of a design. */
+struct design_result {
+	double v_target, i_target; /* the device point that meets the target */
+	size_t nrows;
+	struct design_row rows[DESIGN_MAX_ROWS];
+	char message[256];         /* why the design failed, or "" */
+};
+
+/* Row kind name: "exact", "lower", "higher". */
+const char *design_row_name(enum design_row_kind k);
+
+/* Target name: "current", "voltage", "power". */
+const char *design_target_name(enum design_target t);
+
+/*
+ * The device point (V, I) at which the target RQ is met on PB's device.
+ * Returns 0, or -1 with a message in ERR.
+ */
+int design_device_point(const struct problem *pb,
+                        const struct design_request *rq, double *v, double *i,
+                        char *err, size_t errlen);
+
+/*
+ * Copy PB into OUT with RS (DESIGN_FOR_RS) or VS (DESIGN_FOR_VS) set to
+ * VALUE, the other source quantity kept.  Returns 0, or -1 when PB's
+ * source has no finite series resistance (an ideal current source).
+ */
+int design_apply(const struct problem *pb, enum design_unknown u, double value,
+                 struct problem *out);
+
+/*
+ * Design for RQ on PB (its source in Thevenin form: VS = voc, RS = r),
+ * solving each row with O; R (may be NULL) gives the ratings checked at
+ * each row's point.  Returns 0 with the rows (exact, then lower and higher
+ * for RS), or -1 with a plain-language reason in OUT->message.
+ */
+int design_solve(const struct problem *pb, const struct solve_options *o,
+                 const struct design_request *rq, const struct ratings *r,
+                 struct design_result *out);
+
+#endif

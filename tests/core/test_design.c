@@ -1,0 +1,313 @@
+/*
+ * test_design.c - design for a target current, voltage or power.
+ *
+ * The exact series resistance is checked against the load line through the
+ * device's point written out from each model's explicit V(I):
+ *   diode (Shockley, Bell Syst. Tech. J. 28, 1949, with a series
+ *   resistance): V = n Vt ln(1 + I/Is) + I Rs, Vt = k T / q with the exact
+ *   k and q of the 2019 SI (BIPM, SI Brochure, 9th edition, 2019);
+ *   power law: V = Vref (I / Iref)^(1/alpha);
+ * so RS = (VS - V(I_t)) / I_t and VS = V(I_t) + RS I_t, to 1e-12.
+ * Every reported row is also solved independently, and impossible targets
+ * must fail with a reason.
+ */
+#include <math.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <string.h>
+
+#include <cmocka.h>
+
+#include "core/design.h"
+#include "core/models/models.h"
+
+#define K_BOLTZMANN 1.380649e-23      /* J/K, exact (SI 2019) */
+#define Q_ELECTRON 1.602176634e-19    /* C, exact (SI 2019) */
+
+/* One design case. */
+struct design_case {
+	const char *model;          /* "diode" or "power-law" */
+	double p[4];                /* parameters in table order */
+	double vs, rs;              /* the source (rs kept when solving VS) */
+	enum design_target target;
+	double value;
+	enum design_unknown unknown;
+	enum eseries series;
+};
+
+static const struct design_case cases[] = {
+	/* A red-ish LED-like junction from 23.7 V, 9.83 mA, E24. */
+	{ "diode", { 3.17e-18, 1.93, 1.37, 27.3 }, 23.7, 1000.0, DESIGN_CURRENT,
+	  9.83e-3, DESIGN_FOR_RS, ESERIES_E24 },
+	/* A small-signal junction, 1.385 mA from 5.13 V, E96. */
+	{ "diode", { 2.385e-9, 1.87, 0.0, 41.7 }, 5.13, 1000.0, DESIGN_CURRENT,
+	  1.385e-3, DESIGN_FOR_RS, ESERIES_E96 },
+	/* Source voltage for 27.4 mA through 221 ohm. */
+	{ "diode", { 7.31e-14, 1.21, 0.73, -12.6 }, 0.0, 221.0, DESIGN_CURRENT,
+	  27.4e-3, DESIGN_FOR_VS, ESERIES_E24 },
+	/* A soft power-law load, 0.173 A from 12.35 V, E12. */
+	{ "power-law", { 3.71, 0.213, 0.617 }, 12.35, 10.0, DESIGN_CURRENT,
+	  0.173, DESIGN_FOR_RS, ESERIES_E12 },
+	/* A stiff clamp, 4.17 mA from 47.3 V, E192. */
+	{ "power-law", { 18.2, 1.03e-3, 13.7 }, 47.3, 10.0, DESIGN_CURRENT,
+	  4.17e-3, DESIGN_FOR_RS, ESERIES_E192 },
+	/* Voltage targets: device at 0.6713 V and at 3.215 V. */
+	{ "diode", { 4.19e-15, 1.07, 0.0, 25.0 }, 9.41, 1000.0, DESIGN_VOLTAGE,
+	  0.6713, DESIGN_FOR_RS, ESERIES_E48 },
+	{ "power-law", { 2.83, 0.0417, 2.37 }, 14.3, 10.0, DESIGN_VOLTAGE,
+	  3.215, DESIGN_FOR_VS, ESERIES_E24 },
+	/* Power targets: 57.3 mW in a junction with Rs, 0.913 W in a lamp. */
+	{ "diode", { 1.13e-12, 1.61, 2.19, 33.3 }, 11.9, 1000.0, DESIGN_POWER,
+	  57.3e-3, DESIGN_FOR_RS, ESERIES_E24 },
+	{ "power-law", { 6.13, 0.271, 0.583 }, 26.1, 10.0, DESIGN_POWER,
+	  0.913, DESIGN_FOR_RS, ESERIES_E6 },
+};
+
+/* Build the problem of case C. */
+static void case_problem(const struct design_case *c, struct problem *pb)
+{
+	struct source_spec sp;
+	char err[200];
+	source_spec_thevenin(&sp, c->vs, c->rs);
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	const struct model_type *t = model_find(c->model);
+	assert_non_null(t);
+	device_init(&pb->dev, t);
+	/* The first parameters as given; the rest (the diode's temperature
+	 * scaling: off by default) keep their defaults. */
+	for (size_t k = 0; k < t->nparams && k < 4; k++)
+		pb->dev.p[k] = c->p[k];
+	assert_int_equal(device_validate(&pb->dev, err, sizeof err), 0);
+}
+
+/* The model's V(I), written out independently of the library. */
+static double explicit_voltage(const struct design_case *c, double i)
+{
+	if (strcmp(c->model, "diode") == 0) {
+		double vt = K_BOLTZMANN * (c->p[3] + 273.15) / Q_ELECTRON;
+		return c->p[1] * vt * log1p(i / c->p[0]) + i * c->p[2];
+	}
+	return c->p[0] * pow(i / c->p[1], 1.0 / c->p[2]);
+}
+
+/* The model's I(V), written out (diode without Rs, power law). */
+static double explicit_current(const struct design_case *c, double v)
+{
+	if (strcmp(c->model, "diode") == 0) {
+		assert_true(c->p[2] == 0.0);
+		double vt = K_BOLTZMANN * (c->p[3] + 273.15) / Q_ELECTRON;
+		return c->p[0] * expm1(v / (c->p[1] * vt));
+	}
+	return c->p[1] * pow(v / c->p[0], c->p[2]);
+}
+
+/* Relative difference. */
+static double rel(double a, double b)
+{
+	return fabs(a - b) / fmax(fabs(b), 1e-300);
+}
+
+/* The exact value against the explicit load line; each row solved. */
+static void test_design_cases(void **state)
+{
+	(void)state;
+	struct solve_options o;
+	solve_options_init(&o);
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		const struct design_case *c = &cases[k];
+		struct problem pb;
+		case_problem(c, &pb);
+		struct design_request rq = { c->target, c->value, c->unknown,
+		                             c->series };
+		struct design_result res;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("case %zu: %s", k, res.message);
+		/* The device point meeting the target, independently. */
+		double it, vt;
+		if (c->target == DESIGN_VOLTAGE) {
+			vt = c->value;
+			it = explicit_current(c, vt);
+		} else if (c->target == DESIGN_CURRENT) {
+			it = c->value;
+			vt = explicit_voltage(c, it);
+		} else {
+			/* The power point: it * V(it) = P on the explicit curve. */
+			it = res.i_target;
+			vt = explicit_voltage(c, it);
+			if (rel(it * vt, c->value) > 1e-12)
+				fail_msg("case %zu: power %.17g, target %.17g", k, it * vt,
+				         c->value);
+		}
+		if (rel(res.i_target, it) > 1e-12 || rel(res.v_target, vt) > 1e-12)
+			fail_msg("case %zu: device point (%.17g V, %.17g A), explicit "
+			         "(%.17g V, %.17g A)", k, res.v_target, res.i_target, vt,
+			         it);
+		double exact = c->unknown == DESIGN_FOR_RS ? (c->vs - vt) / it
+		                                           : vt + c->rs * it;
+		assert_int_equal(res.rows[0].kind, DESIGN_ROW_EXACT);
+		if (rel(res.rows[0].value, exact) > 1e-12)
+			fail_msg("case %zu: exact %.17g, explicit %.17g (rel %.3g)", k,
+			         res.rows[0].value, exact, rel(res.rows[0].value, exact));
+		/* The exact value, solved, meets the target. */
+		assert_true(res.rows[0].solved);
+		if (fabs(res.rows[0].error_percent) > 1e-7)
+			fail_msg("case %zu: exact row misses by %.3g %%", k,
+			         res.rows[0].error_percent);
+		if (c->unknown == DESIGN_FOR_VS) {
+			assert_int_equal(res.nrows, 1);
+			continue;
+		}
+		/* Lower and higher standard values either side. */
+		assert_int_equal(res.nrows, 3);
+		const struct design_row *lo = &res.rows[1], *hi = &res.rows[2];
+		assert_int_equal(lo->kind, DESIGN_ROW_LOWER);
+		assert_int_equal(hi->kind, DESIGN_ROW_HIGHER);
+		double elo, ehi;
+		assert_int_equal(eseries_lower(c->series, exact, &elo), 0);
+		assert_int_equal(eseries_higher(c->series, exact, &ehi), 0);
+		assert_true(lo->value == elo && hi->value == ehi);
+		assert_true(lo->value <= exact && exact <= hi->value);
+		assert_true(lo->solved && hi->solved);
+		/* Less resistance, more current, voltage and power (monotone
+		 * devices): the lower row overshoots and the higher undershoots. */
+		assert_true(lo->error_percent >= 0.0);
+		assert_true(hi->error_percent <= 0.0);
+		/* Each row's point is on its own load line. */
+		for (size_t r = 0; r < res.nrows; r++) {
+			const struct design_row *row = &res.rows[r];
+			double line = row->pt.v + row->value * row->pt.i;
+			if (rel(line, c->vs) > 1e-9)
+				fail_msg("case %zu row %zu: V + RS I = %.17g, VS %.17g", k, r,
+				         line, c->vs);
+			/* Energy balance: source = device + resistor. */
+			const struct ratings_report *pw = &row->power;
+			if (rel(pw->p_source, pw->p_device + pw->p_resistor) > 1e-12)
+				fail_msg("case %zu row %zu: %.17g W != %.17g + %.17g W", k, r,
+				         pw->p_source, pw->p_device, pw->p_resistor);
+			assert_true(rel(pw->p_resistor,
+			                row->pt.i * row->pt.i * row->value) < 1e-12);
+		}
+	}
+}
+
+/* One impossible request and a word its message must contain. */
+struct bad_case {
+	const char *model;
+	double p[4];
+	double vs, rs;
+	enum design_target target;
+	double value;
+	enum design_unknown unknown;
+	const char *says;
+};
+
+static const struct bad_case bad[] = {
+	/* Current of the wrong sign for a positive source. */
+	{ "diode", { 3.17e-18, 1.93, 1.37, 27.3 }, 23.7, 1e3, DESIGN_CURRENT,
+	  -9.83e-3, DESIGN_FOR_RS, "wrong sign" },
+	{ "power-law", { 3.71, 0.213, 0.617 }, 12.35, 10.0, DESIGN_CURRENT,
+	  -0.173, DESIGN_FOR_RS, "wrong sign" },
+	/* A source below the device's voltage at the target. */
+	{ "diode", { 3.17e-18, 1.93, 1.37, 27.3 }, 1.67, 1e3, DESIGN_CURRENT,
+	  9.83e-3, DESIGN_FOR_RS, "not above the device voltage" },
+	/* No current at all. */
+	{ "power-law", { 3.71, 0.213, 0.617 }, 12.35, 10.0, DESIGN_CURRENT,
+	  0.0, DESIGN_FOR_RS, "no current" },
+	/* Below the diode's reverse saturation: off its curve. */
+	{ "diode", { 2.385e-9, 1.87, 0.0, 41.7 }, -5.13, 1e3, DESIGN_CURRENT,
+	  -7.7e-9, DESIGN_FOR_RS, "cannot carry" },
+	/* Power must be positive. */
+	{ "diode", { 2.385e-9, 1.87, 0.0, 41.7 }, 5.13, 1e3, DESIGN_POWER,
+	  -0.25, DESIGN_FOR_RS, "above 0 W" },
+	/* Not a number. */
+	{ "diode", { 2.385e-9, 1.87, 0.0, 41.7 }, 5.13, 1e3, DESIGN_VOLTAGE,
+	  NAN, DESIGN_FOR_RS, "not a finite" },
+	/* The voltage target above the source. */
+	{ "power-law", { 2.83, 0.0417, 2.37 }, 2.5, 10.0, DESIGN_VOLTAGE,
+	  3.215, DESIGN_FOR_RS, "not above the device voltage" },
+};
+
+/* Impossible targets fail with a clear reason. */
+static void test_design_impossible(void **state)
+{
+	(void)state;
+	struct solve_options o;
+	solve_options_init(&o);
+	for (size_t k = 0; k < sizeof bad / sizeof bad[0]; k++) {
+		const struct bad_case *b = &bad[k];
+		struct design_case c = { b->model, { b->p[0], b->p[1], b->p[2],
+		                                     b->p[3] }, b->vs, b->rs,
+		                         b->target, b->value, b->unknown,
+		                         ESERIES_E24 };
+		struct problem pb;
+		case_problem(&c, &pb);
+		struct design_request rq = { b->target, b->value, b->unknown,
+		                             ESERIES_E24 };
+		struct design_result res;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != -1)
+			fail_msg("bad case %zu was designed: %.17g", k, res.rows[0].value);
+		if (strstr(res.message, b->says) == NULL)
+			fail_msg("bad case %zu: message \"%s\" lacks \"%s\"", k,
+			         res.message, b->says);
+	}
+	/* An ideal current source leaves nothing to design. */
+	struct problem pb;
+	struct source_spec sp;
+	char err[200];
+	source_spec_norton(&sp, 0.0173, INFINITY);
+	assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+	device_init(&pb.dev, &model_power_law);
+	pb.dev.p[POWER_LAW_VREF] = 3.71;
+	pb.dev.p[POWER_LAW_IREF] = 0.213;
+	pb.dev.p[POWER_LAW_ALPHA] = 0.617;
+	struct design_request rq = { DESIGN_CURRENT, 0.0137, DESIGN_FOR_RS,
+	                             ESERIES_E24 };
+	struct design_result res;
+	assert_int_equal(design_solve(&pb, &o, &rq, NULL, &res), -1);
+	assert_non_null(strstr(res.message, "current source"));
+}
+
+/* With ratings, each row's report flags what it exceeds. */
+static void test_design_ratings(void **state)
+{
+	(void)state;
+	struct solve_options o;
+	solve_options_init(&o);
+	/* 9.83 mA from 23.7 V: about 0.21 W in RS. */
+	struct problem pb;
+	case_problem(&cases[0], &pb);
+	struct ratings r;
+	ratings_init(&r);
+	r.resistor_power = 0.25;
+	r.device_max_power = 0.0157;
+	struct design_request rq = { DESIGN_CURRENT, 9.83e-3, DESIGN_FOR_RS,
+	                             ESERIES_E24 };
+	struct design_result res;
+	assert_int_equal(design_solve(&pb, &o, &rq, &r, &res), 0);
+	const struct design_row *ex = &res.rows[0];
+	double pr = ex->pt.i * ex->pt.i * ex->value;
+	assert_true(pr > 0.125 && pr < 0.25);
+	/* Above half of 1/4 W, inside the rating: the common-practice flag. */
+	assert_true(ex->power.flags & RATINGS_RESISTOR_USE);
+	assert_false(ex->power.flags & RATINGS_RESISTOR_POWER);
+	assert_true(ex->power.suggested_resistor_power == 0.5);
+	/* The junction takes more than 15.7 mW at about 2.1 V. */
+	assert_true(ex->pt.power > r.device_max_power);
+	assert_true(ex->power.flags & RATINGS_DEVICE_POWER);
+	char buf[512];
+	assert_int_equal(ratings_describe(&ex->power, &r, buf, sizeof buf), 2);
+	assert_non_null(strstr(buf, "common practice"));
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_design_cases),
+		cmocka_unit_test(test_design_impossible),
+		cmocka_unit_test(test_design_ratings),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
