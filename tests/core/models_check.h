@@ -28,6 +28,20 @@ static inline bool models_check_central(double (*f)(const double *p, double x),
 	return isfinite(d) && fabs(fd - d) <= allow;
 }
 
+/*
+ * True when D matches the central difference (FP - FM) / 2H taken at X
+ * (same allowance as models_check_central).
+ */
+static inline bool models_check_difference(double fp, double fm, double x,
+                                           double h, double d)
+{
+	double fd = (fp - fm) / (2.0 * h);
+	double allow = 2e-6 * fabs(d) +
+	               16.0 * 2.2e-16 * (fabs(fp) + fabs(fm) + 2.0 * fabs(x * d)) /
+	                   (2.0 * h);
+	return isfinite(d) && fabs(fd - d) <= allow;
+}
+
 /* V(I) of TYPE as a plain function (NaN where undefined). */
 static inline double models_check_voltage(const struct model_type *t,
                                           const double *p, double i)

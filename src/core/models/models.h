@@ -8,6 +8,7 @@
 
 extern const struct model_type model_diode;
 extern const struct model_type model_power_law;
+extern const struct model_type model_zener;
 
 /* Parameter indices of the diode model. */
 enum diode_param {
@@ -27,6 +28,18 @@ enum power_law_param {
 	POWER_LAW_IREF,  /* reference_current, A */
 	POWER_LAW_ALPHA, /* exponent */
 	POWER_LAW_NPARAMS
+};
+
+/* Parameter indices of the zener model. */
+enum zener_param {
+	ZENER_VZ,       /* breakdown_voltage, V (positive) */
+	ZENER_IZT,      /* test_current, A (positive) */
+	ZENER_RZ,       /* dynamic_resistance, ohm */
+	ZENER_IS,       /* saturation_current, A */
+	ZENER_N,        /* ideality */
+	ZENER_NB,       /* breakdown_ideality */
+	ZENER_TEMP,     /* temperature, degC */
+	ZENER_NPARAMS
 };
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */

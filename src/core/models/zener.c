@@ -1,0 +1,303 @@
+/*
+ * zener.c - a zener (breakdown) diode: a forward Shockley junction in
+ * parallel with a reverse breakdown junction, behind one series resistance:
+ *
+ *     Ij(vj) = Is (exp(vj / n Vt) - 1)
+ *              - Ir (exp(-(vj + Vj0) / (nb Vt)) - exp(-Vj0 / (nb Vt)))
+ *     V = vj + I * Rs
+ *
+ * The breakdown term is a second exponential junction turned round
+ * (reverse breakdown current rising exponentially with reverse voltage is
+ * common practice for avalanche and tunnelling breakdown as seen at the
+ * terminals), shifted so that Ij(0) = 0.  The curve is smooth, strictly
+ * increasing and has a continuous derivative everywhere.
+ *
+ * The user states the datasheet numbers: the breakdown voltage Vz at the
+ * test current Iz and the dynamic resistance rz there.  Ir, Vj0 and Rs are
+ * derived so that exactly V(-Iz) = -Vz and dV/dI(-Iz) = rz:
+ *
+ *     Vj0 = Vz - Iz Rs                      (the junction voltage there)
+ *     Ir  = (Iz + Is (exp(-Vj0/(n Vt)) - 1)) / (1 - exp(-Vj0/(nb Vt)))
+ *     Rs  = rz - 1 / gj(-Vj0)               (gj = dIj/dvj)
+ *
+ * Rs depends on Vj0 only through terms of order exp(-Vz/Vt), so a few
+ * substitutions settle it to rounding.  rz must exceed the junction's own
+ * nb Vt / Iz; the breakdown ideality nb sets how sharp the knee is.
+ */
+#include <math.h>
+#include <stdio.h>
+
+#include "../junction.h"
+#include "models.h"
+
+/* The derived constants of one parameter set. */
+struct zener_k {
+	double is, nvt;    /* forward junction */
+	double a;          /* nb Vt */
+	double ir, vj0;    /* breakdown amplitude and shift */
+	double e0;         /* exp(-Vj0 / a) */
+	double rs;         /* series resistance */
+};
+
+/* Derive the constants of P (see the top of the file). */
+static void zener_derive(const double *p, struct zener_k *k)
+{
+	double vt = diode_thermal_voltage(p[ZENER_TEMP]);
+	double iz = p[ZENER_IZT];
+	k->is = p[ZENER_IS];
+	k->nvt = p[ZENER_N] * vt;
+	k->a = p[ZENER_NB] * vt;
+	k->rs = p[ZENER_RZ] - k->a / iz;
+	for (int it = 0; it < 6; it++) {
+		k->vj0 = p[ZENER_VZ] - iz * k->rs;
+		k->e0 = exp(-k->vj0 / k->a);
+		k->ir = (iz + k->is * expm1(-k->vj0 / k->nvt)) / -expm1(-k->vj0 / k->a);
+		double gj = k->is / k->nvt * exp(-k->vj0 / k->nvt) + k->ir / k->a;
+		double rs = p[ZENER_RZ] - 1.0 / gj;
+		if (rs == k->rs)
+			break;
+		k->rs = rs;
+	}
+	/* Keep Vj0 and Ir consistent with the final Rs: V(-Iz) = -Vz exactly. */
+	k->vj0 = p[ZENER_VZ] - iz * k->rs;
+	k->e0 = exp(-k->vj0 / k->a);
+	k->ir = (iz + k->is * expm1(-k->vj0 / k->nvt)) / -expm1(-k->vj0 / k->a);
+}
+
+/* Junction current of the constants K at VJ. */
+static double zener_kcurrent(const struct zener_k *k, double vj)
+{
+	return k->is * expm1(vj / k->nvt) -
+	       k->ir * (exp(-(vj + k->vj0) / k->a) - k->e0);
+}
+
+/* Junction conductance of the constants K at VJ. */
+static double zener_kconductance(const struct zener_k *k, double vj)
+{
+	return k->is / k->nvt * exp(vj / k->nvt) +
+	       k->ir / k->a * exp(-(vj + k->vj0) / k->a);
+}
+
+/* Junction current at VJ. */
+static double zener_intrinsic_current(const double *p, double vj)
+{
+	struct zener_k k;
+	zener_derive(p, &k);
+	return zener_kcurrent(&k, vj);
+}
+
+/* Junction conductance at VJ. */
+static double zener_intrinsic_conductance(const double *p, double vj)
+{
+	struct zener_k k;
+	zener_derive(p, &k);
+	return zener_kconductance(&k, vj);
+}
+
+/* Series resistance. */
+static double zener_series_resistance(const double *p)
+{
+	struct zener_k k;
+	zener_derive(p, &k);
+	return k.rs;
+}
+
+/*
+ * An upper bound of the junction voltage at forward current I > 0: the
+ * forward junction alone (the breakdown term only adds current there).
+ */
+static double zener_intrinsic_voltage(const double *p, double i)
+{
+	double x = i / p[ZENER_IS];
+	if (!(x > -1.0))
+		return NAN;
+	return p[ZENER_N] * diode_thermal_voltage(p[ZENER_TEMP]) * log1p(x);
+}
+
+/* The junction voltage at current I; 0 or -1. */
+static int zener_junction_voltage(const double *p, const struct zener_k *k,
+                                  double i, double *vj)
+{
+	double lo, hi;
+	if (i == 0.0) {
+		*vj = 0.0;
+		return 0;
+	}
+	if (i > 0.0) {
+		/* The breakdown term is positive there: the forward branch
+		 * alone needs a higher voltage. */
+		lo = 0.0;
+		hi = k->nvt * log1p(i / k->is) + 1e-9 * k->nvt; /* + rounding */
+	} else {
+		/* The forward term is negative there: the breakdown branch
+		 * alone needs a less negative voltage. */
+		hi = 0.0;
+		lo = -k->vj0 - k->a * log(k->e0 - i / k->ir) - 1e-9 * k->a;
+	}
+	if (!isfinite(lo) || !isfinite(hi))
+		return -1;
+	return model_invert(zener_intrinsic_current, zener_intrinsic_conductance,
+	                    p, i, lo, hi, vj);
+}
+
+/* Terminal current at V. */
+static double zener_current(const double *p, double v)
+{
+	struct zener_k k;
+	zener_derive(p, &k);
+	if (k.rs == 0.0)
+		return zener_kcurrent(&k, v);
+	return junction_solve(&model_zener, p, v, k.rs, 1e-15).ij;
+}
+
+/* dI/dV at V: 1 / (r_j + Rs). */
+static double zener_conductance(const double *p, double v)
+{
+	struct zener_k k;
+	zener_derive(p, &k);
+	if (k.rs == 0.0)
+		return zener_kconductance(&k, v);
+	struct junction_result jr = junction_solve(&model_zener, p, v, k.rs, 1e-15);
+	double gj = zener_kconductance(&k, jr.vj);
+	return gj / (1.0 + gj * k.rs);
+}
+
+/* Terminal voltage at I. */
+static int zener_voltage(const double *p, double i, double *v)
+{
+	struct zener_k k;
+	double vj;
+	zener_derive(p, &k);
+	if (zener_junction_voltage(p, &k, i, &vj) != 0)
+		return -1;
+	*v = vj + i * k.rs;
+	return isfinite(*v) ? 0 : -1;
+}
+
+/* dV/dI at I. */
+static double zener_resistance(const double *p, double i)
+{
+	struct zener_k k;
+	double vj;
+	zener_derive(p, &k);
+	if (zener_junction_voltage(p, &k, i, &vj) != 0)
+		return NAN;
+	return 1.0 / zener_kconductance(&k, vj) + k.rs;
+}
+
+/*
+ * Junction-voltage limiting (Nagel, SPICE2, UC Berkeley ERL Memo M520,
+ * 1975) on both exponentials: a large step up the forward branch, or down
+ * into breakdown, is shortened to the step that changes the current by the
+ * same amount on a logarithmic scale.
+ */
+static double zener_limit(const double *p, double vnew, double vold)
+{
+	struct zener_k k;
+	zener_derive(p, &k);
+	double vcrit = k.nvt * log(k.nvt / (sqrt(2.0) * k.is));
+	if (vnew > vold && vnew > vcrit && vnew - vold > 2.0 * k.nvt) {
+		if (vold > 0.0) {
+			double arg = 1.0 + (vnew - vold) / k.nvt;
+			vnew = arg > 0.0 ? vold + k.nvt * log(arg) : vcrit;
+		} else {
+			vnew = k.nvt * log(vnew / k.nvt);
+		}
+		return vnew;
+	}
+	/* The same in u = -(vj + Vj0), the depth into breakdown. */
+	double unew = -(vnew + k.vj0), uold = -(vold + k.vj0);
+	double ucrit = k.a * log(k.a / (sqrt(2.0) * k.ir));
+	if (unew > uold && unew > ucrit && unew - uold > 2.0 * k.a) {
+		if (uold > 0.0) {
+			double arg = 1.0 + (unew - uold) / k.a;
+			unew = arg > 0.0 ? uold + k.a * log(arg) : ucrit;
+		} else {
+			unew = k.a * log(unew / k.a);
+		}
+		vnew = -unew - k.vj0;
+	}
+	return vnew;
+}
+
+/* From ten times the test current in breakdown to ten times it forward. */
+static void zener_range(const double *p, double *vmin, double *vmax)
+{
+	double iz = p[ZENER_IZT];
+	if (zener_voltage(p, -10.0 * iz, vmin) != 0 || !isfinite(*vmin))
+		*vmin = -1.5 * p[ZENER_VZ];
+	if (zener_voltage(p, 10.0 * iz, vmax) != 0 || !isfinite(*vmax))
+		*vmax = 1.0;
+}
+
+/* The stated dynamic resistance must leave room for the junction's own. */
+static int zener_validate(const double *p, char *err, size_t errlen)
+{
+	struct zener_k k;
+	double vt = diode_thermal_voltage(p[ZENER_TEMP]);
+	double a = p[ZENER_NB] * vt, iz = p[ZENER_IZT];
+	if (!(iz > p[ZENER_IS])) {
+		snprintf(err, errlen, "test_current: must exceed saturation_current");
+		return -1;
+	}
+	if (!(p[ZENER_VZ] - iz * (p[ZENER_RZ] - a / iz) > 20.0 * a)) {
+		snprintf(err, errlen,
+		         "breakdown_voltage: %.4g V is too low for a test current of "
+		         "%.4g A and a dynamic resistance of %.4g ohm",
+		         p[ZENER_VZ], iz, p[ZENER_RZ]);
+		return -1;
+	}
+	zener_derive(p, &k);
+	if (!(k.rs >= 0.0)) {
+		snprintf(err, errlen,
+		         "dynamic_resistance: %.4g ohm is below the breakdown junction's "
+		         "own %.4g ohm (breakdown_ideality x kT/q / test_current); raise "
+		         "it or lower breakdown_ideality",
+		         p[ZENER_RZ], k.a / p[ZENER_IZT]);
+		return -1;
+	}
+	if (!(k.vj0 > 20.0 * k.a) || !isfinite(k.ir) || !(k.ir > 0.0)) {
+		snprintf(err, errlen,
+		         "breakdown_voltage: %.4g V is too low for a test current of "
+		         "%.4g A through %.4g ohm", p[ZENER_VZ], p[ZENER_IZT], k.rs);
+		return -1;
+	}
+	return 0;
+}
+
+static const struct model_param zener_params[ZENER_NPARAMS] = {
+	[ZENER_VZ] = { "breakdown_voltage", "Vz", QTY_VOLTAGE, NAN, 0.0, 1e4, true,
+	               false, false, "reverse voltage at the test current, positive" },
+	[ZENER_IZT] = { "test_current", "Izt", QTY_CURRENT, NAN, 0.0, 100.0, true,
+	                false, true, "reverse current at which Vz and rz are stated" },
+	[ZENER_RZ] = { "dynamic_resistance", "rz", QTY_RESISTANCE, NAN, 0.0, 1e7,
+	               true, false, true, "dV/dI in breakdown at the test current" },
+	[ZENER_IS] = { "saturation_current", "Is", QTY_CURRENT, 1e-14, 0.0, 1.0,
+	               true, false, true, "forward saturation current" },
+	[ZENER_N] = { "ideality", "n", QTY_NUMBER, 1.0, 0.0, 100.0, true, false,
+	              false, "forward ideality factor" },
+	[ZENER_NB] = { "breakdown_ideality", "nb", QTY_NUMBER, 1.0, 0.0, 100.0,
+	               true, false, false,
+	               "knee sharpness: breakdown current e-folds every nb kT/q" },
+	[ZENER_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15, 1000.0,
+	                 true, false, false, "junction temperature in degrees Celsius" },
+};
+
+const struct model_type model_zener = {
+	.name = "zener",
+	.summary = "zener diode: forward junction, breakdown at Vz and Izt with rz",
+	.params = zener_params,
+	.nparams = ZENER_NPARAMS,
+	.monotone = true,
+	.current = zener_current,
+	.conductance = zener_conductance,
+	.voltage = zener_voltage,
+	.resistance = zener_resistance,
+	.range = zener_range,
+	.validate = zener_validate,
+	.series_resistance = zener_series_resistance,
+	.intrinsic_current = zener_intrinsic_current,
+	.intrinsic_conductance = zener_intrinsic_conductance,
+	.limit = zener_limit,
+	.intrinsic_voltage = zener_intrinsic_voltage,
+};
