@@ -268,9 +268,11 @@ static int zener_validate(const double *p, char *err, size_t errlen)
 static const struct model_param zener_params[ZENER_NPARAMS] = {
 	[ZENER_VZ] = { "breakdown_voltage", "Vz", QTY_VOLTAGE, NAN, 0.0, 1e4, true,
 	               false, false, "reverse voltage at the test current, positive" },
-	[ZENER_IZT] = { "test_current", "Izt", QTY_CURRENT, NAN, 0.0, 100.0, true,
+	/* Defaults: 5 mA and 10 ohm, typical of small glass zeners (from
+	 * memory); a datasheet's own numbers should replace them. */
+	[ZENER_IZT] = { "test_current", "Izt", QTY_CURRENT, 5e-3, 0.0, 100.0, true,
 	                false, true, "reverse current at which Vz and rz are stated" },
-	[ZENER_RZ] = { "dynamic_resistance", "rz", QTY_RESISTANCE, NAN, 0.0, 1e7,
+	[ZENER_RZ] = { "dynamic_resistance", "rz", QTY_RESISTANCE, 10.0, 0.0, 1e7,
 	               true, false, true, "dV/dI in breakdown at the test current" },
 	[ZENER_IS] = { "saturation_current", "Is", QTY_CURRENT, 1e-14, 0.0, 1.0,
 	               true, false, true, "forward saturation current" },
