@@ -370,8 +370,17 @@ static void rng_session(uint64_t *st, struct session *s)
 		nmodels++;
 	const struct model_type *type = model_registry[rng_next(st) % nmodels];
 	device_init(&s->device, type);
-	for (size_t k = 0; k < type->nparams; k++)
-		s->device.p[k] = rng_param(st, &type->params[k]);
+	/* Redraw until the model's own cross-parameter rules hold too (a
+	 * zener's stated point, a tunnel diode's peak below its valley). */
+	char why[256];
+	unsigned tries = 0;
+	do {
+		for (size_t k = 0; k < type->nparams; k++)
+			s->device.p[k] = rng_param(st, &type->params[k]);
+	} while (device_validate(&s->device, why, sizeof why) != 0 &&
+	         ++tries < 100000);
+	if (tries >= 100000)
+		fail_msg("no valid random %s: %s", type->name, why);
 	if (rng_next(st) % 2)
 		source_spec_thevenin(&s->source, rng_range(st, -1e3, 1e3, false),
 		                     rng_next(st) % 8 ? rng_range(st, 1e-3, 1e9, true) : 0.0);
