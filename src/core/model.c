@@ -14,6 +14,7 @@ const struct model_type *const model_registry[] = {
 	&model_diode,
 	&model_power_law,
 	&model_zener,
+	&model_led,
 	NULL,
 };
 

@@ -88,6 +88,15 @@ struct model_type {
 	 * intrinsic current equals I (I > 0), used to seed Newton.
 	 */
 	double (*intrinsic_voltage)(const double *p, double i);
+
+	/*
+	 * Optional named presets: a NULL-terminated list of names, and the
+	 * function that writes a preset's values into P (every parameter the
+	 * preset defines; others untouched).  Returns 0, or -1 for an unknown
+	 * name.  Both NULL when the model has none.
+	 */
+	const char *const *presets;
+	int (*apply_preset)(const char *name, double *p);
 };
 
 /* A device: its model and parameter values. */

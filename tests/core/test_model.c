@@ -75,6 +75,15 @@ static const struct model_cases derivative_cases[] = {
 		{ 47.0, 2.7e-3, 93.0, 3.3e-12, 1.9, 1.0, 25.0 },
 		{ 1.87, 7.3e-2, 0.41, 1e-14, 1.0, 0.93, 81.2 },
 	} },
+	{ "led", 5, {
+		/* forward_voltage, test_current, ideality, series_resistance,
+		 * temperature */
+		{ 2.0, 20e-3, 2.0, 6.0, 25.0 },
+		{ 3.217, 3.5e-1, 3.41, 1.37, 61.8 },
+		{ 1.283, 1.03e-1, 1.47, 0.93, -17.2 },
+		{ 2.71, 2.2e-3, 2.63, 41.0, 25.0 },
+		{ 5.93, 7.1e-2, 6.2, 3.3, 38.4 },
+	} },
 };
 
 /* Find the derivative cases for model NAME, or NULL. */

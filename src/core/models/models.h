@@ -9,6 +9,7 @@
 extern const struct model_type model_diode;
 extern const struct model_type model_power_law;
 extern const struct model_type model_zener;
+extern const struct model_type model_led;
 
 /* Parameter indices of the diode model. */
 enum diode_param {
@@ -41,6 +42,22 @@ enum zener_param {
 	ZENER_TEMP,     /* temperature, degC */
 	ZENER_NPARAMS
 };
+
+/* Parameter indices of the LED model. */
+enum led_param {
+	LED_VF,         /* forward_voltage, V */
+	LED_IF,         /* test_current, A */
+	LED_N,          /* ideality */
+	LED_RS,         /* series_resistance, ohm */
+	LED_TEMP,       /* temperature, degC */
+	LED_NPARAMS
+};
+
+/* The saturation current an LED's stated point implies. */
+double led_saturation_current(const double *p);
+
+/* Nominal peak wavelength in nm of LED preset NAME (from memory), or NaN. */
+double led_preset_wavelength(const char *name);
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */
 double diode_thermal_voltage(double temp_c);
