@@ -562,10 +562,23 @@ static enum step_status newton_step(struct stepper *s, struct trace_row *row)
 	const struct trace_row *p = &s->rows[s->n - 1];
 	double x = s->x;
 	double f = br_residual(s, x);
-	if (f < 0.0)
-		s->lo = x;
-	else if (f > 0.0 || !isfinite(f))
-		s->hi = x;
+	/*
+	 * Keep the end whose residual has the other sign.  The residual may
+	 * fall through the root (a negative-resistance branch crossed by a
+	 * flat load line), so the side comes from the signs at the ends, not
+	 * from assuming F increases.  An overflow (+-inf) still has a sign;
+	 * NaN says nothing and leaves the bracket as it is.
+	 */
+	if (!isnan(f) && f != 0.0) {
+		bool lo_negative = s->flo < 0.0 || (s->flo == 0.0 && s->fhi > 0.0);
+		if ((f < 0.0) == lo_negative) {
+			s->lo = x;
+			s->flo = f;
+		} else {
+			s->hi = x;
+			s->fhi = f;
+		}
+	}
 	double d = br_slope(s, x);
 	double step = f / d;
 	double xn = x - step;
