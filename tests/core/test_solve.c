@@ -13,6 +13,7 @@
 
 #include <cmocka.h>
 #include <gsl/gsl_errno.h>
+#include <gsl/gsl_poly.h>
 #include <gsl/gsl_roots.h>
 
 #define CORE_CHECK_GSL
@@ -282,12 +283,323 @@ static void test_power_law_gsl(void **state)
 	gsl_root_fsolver_free(fs);
 }
 
+/*
+ * An N-shaped test device: I = k (V^3 - 3 p V^2 + 3 q V), with
+ * 0.75 p^2 < q < p^2 so the current is positive for V > 0 and the slope
+ * 3k (V^2 - 2 p V + q) is negative between p -+ sqrt(p^2 - q) (a
+ * negative-resistance region, as in a tunnel diode's curve).
+ */
+enum { NSHAPE_K, NSHAPE_P, NSHAPE_Q, NSHAPE_NPARAMS };
+
+/* Current of the N-shaped device. */
+static double nshape_current(const double *p, double v)
+{
+	return p[NSHAPE_K] * (v * v * v - 3.0 * p[NSHAPE_P] * v * v +
+	                      3.0 * p[NSHAPE_Q] * v);
+}
+
+/* Its slope. */
+static double nshape_conductance(const double *p, double v)
+{
+	return 3.0 * p[NSHAPE_K] * (v * v - 2.0 * p[NSHAPE_P] * v + p[NSHAPE_Q]);
+}
+
+/* Its plotting and scanning range. */
+static void nshape_range(const double *p, double *vmin, double *vmax)
+{
+	*vmin = -0.5 * p[NSHAPE_P];
+	*vmax = 3.0 * p[NSHAPE_P];
+}
+
+static const struct model_param nshape_params[NSHAPE_NPARAMS] = {
+	[NSHAPE_K] = { "cubic_gain", "k", QTY_NUMBER, 0.0123, 0.0, 1e3, true,
+	               false, true, "A/V^3" },
+	[NSHAPE_P] = { "inflection", "p", QTY_VOLTAGE, 0.3821, 0.0, 1e3, true,
+	               false, false, "voltage of the inflection" },
+	[NSHAPE_Q] = { "valley_shape", "q", QTY_NUMBER, 0.1287, 0.0, 1e6, true,
+	               false, false, "V^2" },
+};
+
+static const struct model_type nshape_model = {
+	.name = "test-n-shape",
+	.summary = "cubic with a negative-resistance region (test only)",
+	.params = nshape_params,
+	.nparams = NSHAPE_NPARAMS,
+	.monotone = false,
+	.current = nshape_current,
+	.conductance = nshape_conductance,
+	.range = nshape_range,
+};
+
+/* The N-shaped device behind a Thevenin source VS, RS. */
+static void nshape_problem(struct problem *pb, double vs, double rs)
+{
+	struct source_spec sp;
+	char err[200];
+	source_spec_thevenin(&sp, vs, rs);
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	device_init(&pb->dev, &nshape_model);
+}
+
+/*
+ * The real roots of V + RS I(V) - VS for the N-shaped device from GSL's
+ * cubic solver (gsl_poly_solve_cubic), in increasing order.
+ */
+static int nshape_roots(double vs, double rs, double *x)
+{
+	const double k = 0.0123, p = 0.3821, q = 0.1287;
+	double a = rs * k;
+	return gsl_poly_solve_cubic(-3.0 * p, (1.0 + 3.0 * rs * k * q) / a,
+	                            -vs / a, &x[0], &x[1], &x[2]);
+}
+
+/*
+ * Test 9: a load line through the negative-resistance region (r larger
+ * than the steepest negative resistance) crosses three times; a steep one
+ * (r = 470 ohm, F' > 0 everywhere) once; a line tangent to the curve in
+ * the negative-resistance region gives a tangent point there and one
+ * crossing.  Crossings agree with GSL's cubic roots to 1e-9; the tangent
+ * (a double root, fixed only to about sqrt(eps)) to 1e-6.
+ */
+static void test_every_root_scan(void **state)
+{
+	(void)state;
+	const double k = 0.0123, p = 0.3821, q = 0.1287;
+	const double par[3] = { k, p, q };
+	struct problem pb;
+	struct solve_options o;
+	struct solve_result res;
+	struct bracket br[SOLVE_MAX_POINTS];
+	double x[3];
+	solve_options_init(&o);
+
+	/* Through the inflection, r = 4700 ohm: three crossings. */
+	double vs3 = p + 4700.0 * nshape_current(par, p);
+	nshape_problem(&pb, vs3, 4700.0);
+	assert_int_equal(stepper_scan(&pb, br, SOLVE_MAX_POINTS), 3);
+	assert_int_equal(solve_problem(&pb, &o, &res), SOLVE_OK);
+	assert_int_equal(res.n, 3);
+	check_points_verified(&pb, &res, o.tol);
+	assert_int_equal(nshape_roots(vs3, 4700.0, x), 3);
+	for (int j = 0; j < 3; j++) {
+		assert_false(res.pts[j].tangent);
+		if (!(check_rel(res.pts[j].v, x[j], 1e-300) <= 1e-9))
+			fail_msg("three crossings: point %d at %.17g V, cubic root %.17g",
+			         j, res.pts[j].v, x[j]);
+	}
+	/* The middle one sits on the negative-resistance branch. */
+	assert_true(res.pts[1].rd < 0.0);
+
+	/* Steep, r = 470 ohm: one crossing. */
+	nshape_problem(&pb, 1.913, 470.0);
+	assert_int_equal(solve_problem(&pb, &o, &res), SOLVE_OK);
+	assert_int_equal(res.n, 1);
+	check_points_verified(&pb, &res, o.tol);
+	assert_int_equal(nshape_roots(1.913, 470.0, x), 1);
+	assert_true(check_rel(res.pts[0].v, x[0], 1e-300) <= 1e-9);
+
+	/* Tangent at vt in the negative-resistance region, r = -1/I'(vt). */
+	const double vt = 0.2911;
+	double rt = -1.0 / nshape_conductance(par, vt);
+	double vst = vt + rt * nshape_current(par, vt);
+	nshape_problem(&pb, vst, rt);
+	size_t nb = stepper_scan(&pb, br, SOLVE_MAX_POINTS);
+	assert_int_equal(nb, 2);
+	assert_true(br[0].tangent && br[0].lo == br[0].hi);
+	assert_true(fabs(br[0].lo - vt) <= 1e-6);
+	assert_false(br[1].tangent);
+	assert_int_equal(solve_problem(&pb, &o, &res), SOLVE_OK);
+	assert_int_equal(res.n, 2);
+	assert_true(res.pts[0].tangent && !res.pts[1].tangent);
+	assert_true(fabs(res.pts[0].v - vt) <= 1e-6);
+	check_points_verified(&pb, &res, o.tol);
+	/* The crossing is the cubic's simple root above the double root. */
+	int nr = nshape_roots(vst, rt, x);
+	assert_true(check_rel(res.pts[1].v, x[nr - 1], 1e-300) <= 1e-9);
+}
+
+/* A device parameter that solve_problem must refuse. */
+struct bad_solve {
+	const struct model_type *type;
+	int index;
+	double value;
+	const char *key;
+};
+
+/*
+ * Test 10 (solve): bad parameters give SOLVE_BAD_INPUT, no points, and a
+ * message naming the key, for every method.
+ */
+static void test_bad_input(void **state)
+{
+	(void)state;
+	const struct bad_solve cases[] = {
+		{ &model_diode, DIODE_IS, NAN, "saturation_current" },
+		{ &model_diode, DIODE_IS, -INFINITY, "saturation_current" },
+		{ &model_diode, DIODE_IS, 0.0, "saturation_current" },
+		{ &model_diode, DIODE_IS, -1.3e-14, "saturation_current" },
+		{ &model_diode, DIODE_N, 0.0, "ideality" },
+		{ &model_diode, DIODE_N, -1.71, "ideality" },
+		{ &model_diode, DIODE_N, INFINITY, "ideality" },
+		{ &model_diode, DIODE_TEMP, -300.2, "temperature" },
+		{ &model_diode, DIODE_TEMP, NAN, "temperature" },
+		{ &model_diode, DIODE_RS, NAN, "series_resistance" },
+		{ &model_power_law, POWER_LAW_VREF, 0.0, "reference_voltage" },
+		{ &model_power_law, POWER_LAW_VREF, -2.7, "reference_voltage" },
+		{ &model_power_law, POWER_LAW_ALPHA, 0.0, "exponent" },
+		{ &model_power_law, POWER_LAW_ALPHA, -1.3, "exponent" },
+		{ &model_power_law, POWER_LAW_IREF, NAN, "reference_current" },
+	};
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		struct problem pb;
+		struct source_spec sp;
+		char err[200];
+		source_spec_thevenin(&sp, 5.3, 1270.0);
+		assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+		device_init(&pb.dev, cases[k].type);
+		if (cases[k].type == &model_diode) {
+			pb.dev.p[DIODE_IS] = 3.7e-14;
+			pb.dev.p[DIODE_N] = 1.31;
+		} else {
+			pb.dev.p[POWER_LAW_VREF] = 2.1;
+			pb.dev.p[POWER_LAW_IREF] = 1.7e-3;
+			pb.dev.p[POWER_LAW_ALPHA] = 3.9;
+		}
+		pb.dev.p[cases[k].index] = cases[k].value;
+		for (int m = 0; m < METHOD_COUNT; m++) {
+			struct solve_options o;
+			struct solve_result res;
+			solve_options_init(&o);
+			o.method = (enum solve_method)m;
+			if (solve_problem(&pb, &o, &res) != SOLVE_BAD_INPUT)
+				fail_msg("case %zu (%s = %g), %s: status %d", k, cases[k].key,
+				         cases[k].value, solve_method_name(o.method),
+				         res.status);
+			assert_int_equal(res.n, 0);
+			if (strstr(res.message, cases[k].key) == NULL)
+				fail_msg("case %zu: message does not name %s: %s", k,
+				         cases[k].key, res.message);
+		}
+	}
+}
+
+/* A random valid problem of any model and source form. */
+static void random_problem(struct check_rng *r, struct problem *pb)
+{
+	struct source_spec sp;
+	char err[200];
+	switch (check_rng_next(r) % 4) {
+	case 0:
+		source_spec_thevenin(&sp, check_rng_uniform(r, -400.0, 400.0),
+		                     check_rng_log_uniform(r, 1e-3, 1e8));
+		break;
+	case 1:
+		source_spec_thevenin(&sp, check_rng_uniform(r, -3.0, 3.0), 0.0);
+		break;
+	case 2:
+		source_spec_norton(&sp, check_rng_uniform(r, -1.0, 1.0) *
+		                        check_rng_log_uniform(r, 1e-15, 10.0),
+		                   INFINITY);
+		break;
+	default:
+		source_spec_norton(&sp, check_rng_uniform(r, -1.0, 1.0) *
+		                        check_rng_log_uniform(r, 1e-9, 1.0),
+		                   check_rng_log_uniform(r, 1.0, 1e7));
+		break;
+	}
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	switch (check_rng_next(r) % 3) {
+	case 0:
+		device_init(&pb->dev, &model_diode);
+		pb->dev.p[DIODE_IS] = check_rng_log_uniform(r, 1e-30, 1.0);
+		pb->dev.p[DIODE_N] = check_rng_log_uniform(r, 0.05, 100.0);
+		pb->dev.p[DIODE_RS] = (check_rng_next(r) & 1u)
+		                          ? check_rng_log_uniform(r, 1e-6, 1e9)
+		                          : 0.0;
+		pb->dev.p[DIODE_TEMP] = check_rng_uniform(r, -273.0, 1000.0);
+		break;
+	case 1:
+		device_init(&pb->dev, &model_power_law);
+		pb->dev.p[POWER_LAW_VREF] = check_rng_log_uniform(r, 1e-6, 1e7);
+		pb->dev.p[POWER_LAW_IREF] = check_rng_log_uniform(r, 1e-12, 1e6);
+		pb->dev.p[POWER_LAW_ALPHA] = check_rng_log_uniform(r, 0.01, 200.0);
+		break;
+	default:
+		device_init(&pb->dev, &nshape_model);
+		pb->dev.p[NSHAPE_K] = check_rng_log_uniform(r, 1e-6, 10.0);
+		pb->dev.p[NSHAPE_P] = check_rng_log_uniform(r, 0.01, 10.0);
+		pb->dev.p[NSHAPE_Q] = pb->dev.p[NSHAPE_P] * pb->dev.p[NSHAPE_P] *
+		                      check_rng_uniform(r, 0.5, 1.5);
+		break;
+	}
+}
+
+/*
+ * Test 10 (robustness): random valid problems from wide, extreme ranges,
+ * every method and order, random or automatic starts: every call
+ * returns, every point returned is finite and passes solve_verify, every
+ * trace row is finite, and no trace is longer than the step cap allows.
+ */
+static void test_never_unverified(void **state)
+{
+	(void)state;
+	struct check_rng rng = { 0xfeed5eedu };
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	unsigned ok = 0, runs = 0;
+	for (int k = 0; k < 1500; k++) {
+		struct problem pb;
+		random_problem(&rng, &pb);
+		char err[200];
+		assert_int_equal(device_validate(&pb.dev, err, sizeof err), 0);
+		for (int m = 0; m < METHOD_COUNT; m++)
+			for (int ord = 0; ord < ORDER_COUNT; ord++) {
+				struct solve_options o;
+				struct solve_result res;
+				solve_options_init(&o);
+				o.method = (enum solve_method)m;
+				o.order = (enum projection_order)ord;
+				o.max_steps = 1 + (unsigned)(check_rng_next(&rng) % 300);
+				if (check_rng_next(&rng) & 1u)
+					o.start_v = check_rng_uniform(&rng, -5.0, 5.0);
+				enum solve_status s = solve_problem(&pb, &o, &res);
+				runs++;
+				assert_true(res.n <= SOLVE_MAX_POINTS);
+				if (s == SOLVE_OK) {
+					ok++;
+					assert_true(res.n >= 1);
+					check_points_verified(&pb, &res, o.tol);
+				} else {
+					assert_int_equal(res.n, 0);
+					assert_true(res.message[0] != '\0');
+				}
+				if (m == METHOD_AUTO)
+					continue;
+				if (stepper_init(st, &pb, &o) != 0)
+					continue;
+				stepper_run(st);
+				size_t n;
+				const struct trace_row *tr = stepper_trace(st, &n);
+				assert_true(n >= 1 && n <= o.max_steps + 1);
+				for (size_t j = 0; j < n; j++)
+					if (!isfinite(tr[j].v) || !isfinite(tr[j].i))
+						fail_msg("problem %d, %s: row %zu not finite", k,
+						         solve_method_name(o.method), j);
+			}
+	}
+	print_message("# robustness: %u of %u solves found points\n", ok, runs);
+	stepper_destroy(st);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_reference_agrees),
 		cmocka_unit_test(test_diode_exact),
 		cmocka_unit_test(test_power_law_gsl),
+		cmocka_unit_test(test_every_root_scan),
+		cmocka_unit_test(test_bad_input),
+		cmocka_unit_test(test_never_unverified),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);
