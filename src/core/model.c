@@ -64,6 +64,11 @@ static void model_param_describe_range(const struct model_param *mp, char *buf,
 int model_param_check(const struct model_param *mp, double value, char *err,
                       size_t errlen)
 {
+	bool below = mp->min_open ? !(value > mp->min) : !(value >= mp->min);
+	bool above = mp->max_open ? !(value < mp->max) : !(value <= mp->max);
+	if (isfinite(value) && !below && !above)
+		return 0;
+	/* Only a rejected value pays for formatting the range. */
 	char range[128];
 	model_param_describe_range(mp, range, sizeof range);
 	if (isnan(value)) {
@@ -74,16 +79,11 @@ int model_param_check(const struct model_param *mp, double value, char *err,
 		snprintf(err, errlen, "%s: must be finite (%s)", mp->key, range);
 		return -1;
 	}
-	bool below = mp->min_open ? !(value > mp->min) : !(value >= mp->min);
-	bool above = mp->max_open ? !(value < mp->max) : !(value <= mp->max);
-	if (below || above) {
-		char got[48];
-		qty_format(got, sizeof got, value, mp->kind, 6, 1);
-		snprintf(err, errlen, "%s: %s is out of range: expected %s", mp->key,
-		         got, range);
-		return -1;
-	}
-	return 0;
+	char got[48];
+	qty_format(got, sizeof got, value, mp->kind, 6, 1);
+	snprintf(err, errlen, "%s: %s is out of range: expected %s", mp->key, got,
+	         range);
+	return -1;
 }
 
 /* Check every parameter of DEV. */
