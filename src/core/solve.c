@@ -46,7 +46,26 @@ bool solve_verify(const struct problem *pb, double v, double i, double tol)
 			return false;
 	}
 	/* On the device curve, allowing for the curve's slope at V. */
-	if (pb->dev.type->current != NULL) {
+	const struct model_type *t = pb->dev.type;
+	if (t->series_resistance != NULL && t->intrinsic_current != NULL &&
+	    t->intrinsic_conductance != NULL) {
+		/*
+		 * Behind a series resistance: the junction at vj = V - Rs I must
+		 * carry I.  This needs no inner solve for the terminal current
+		 * (device_current would run one, and device_conductance another);
+		 * the allowance is the same relative distance from the curve in V.
+		 */
+		double rser = t->series_resistance(pb->dev.p);
+		double vj = v - rser * i;
+		double ij = t->intrinsic_current(pb->dev.p, vj);
+		double gj = fabs(t->intrinsic_conductance(pb->dev.p, vj));
+		double allow = rtol * (fabs(i) + (isfinite(gj)
+		                                      ? gj * (fabs(v) + fabs(rser * i))
+		                                      : 0.0)) +
+		               1e-300;
+		if (!(fabs(ij - i) <= allow))
+			return false;
+	} else if (t->current != NULL) {
 		double id = device_current(&pb->dev, v);
 		double g = fabs(device_conductance(&pb->dev, v));
 		double allow = rtol * (fabs(i) + (isfinite(g) ? g * fabs(v) : 0.0)) +
