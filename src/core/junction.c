@@ -11,6 +11,7 @@
 #include "junction.h"
 
 #include <math.h>
+#include <stdbool.h>
 
 /* Intrinsic current of TYPE (the whole current when it has no split). */
 static double junction_current(const struct model_type *t, const double *p,
@@ -39,6 +40,53 @@ static double junction_estimate(const struct model_type *t, const double *p,
 	return v;
 }
 
+/*
+ * The inverse of the intrinsic curve, Vj(I), when the model gives it: the
+ * intrinsic voltage, or the voltage of a model without a series split.
+ */
+static bool junction_has_inverse(const struct model_type *t)
+{
+	return t->intrinsic_voltage != NULL ||
+	       (t->series_resistance == NULL && t->voltage != NULL &&
+	        t->resistance != NULL);
+}
+
+/* dVj/dI of the intrinsic curve at I (NaN when unknown). */
+static double junction_resistance(const struct model_type *t, const double *p,
+                                  double i)
+{
+	if (t->resistance == NULL)
+		return NAN;
+	double rd = t->resistance(p, i);
+	if (t->series_resistance != NULL)
+		rd -= t->series_resistance(p);
+	return rd;
+}
+
+/*
+ * One Newton step on the log-domain residual G(v) = v - Vj((voc - v)/r),
+ * which has the sign of F and the same root, where the load line is the
+ * flatter curve (dVj/dI < r, so 1 <= G' < 2).  There G is nearly linear
+ * and costs one log instead of exp and expm1 (for a junction: Vj is
+ * nVt log1p(I/Is)).  Returns false where it does not apply; else fills
+ * *G and *STEP (the Newton step to subtract).
+ */
+static bool junction_log_step(const struct model_type *t, const double *p,
+                              double voc, double r, double v, double *g,
+                              double *step)
+{
+	double il = (voc - v) / r;
+	double rj = junction_resistance(t, p, il);
+	if (!(rj >= 0.0 && rj < r))
+		return false;
+	double vd = junction_estimate(t, p, il);
+	if (!isfinite(vd))
+		return false;
+	*g = v - vd;
+	*step = *g / (1.0 + rj / r);
+	return isfinite(*step);
+}
+
 /* Solve vj + r Ij(vj) = voc (see junction.h). */
 struct junction_result junction_solve(const struct model_type *t,
                                       const double *p, double voc, double r,
@@ -56,10 +104,18 @@ struct junction_result junction_solve(const struct model_type *t,
 	if (voc > 0.0 && isfinite(est) && est < hi && est > lo)
 		hi = est;
 	double v = voc > 0.0 ? hi : lo;
+	bool inverse = junction_has_inverse(t);
+	bool line_flatter = false; /* the last step was a log-domain one */
 	for (unsigned it = 1; it <= 400; it++) {
-		double ij = junction_current(t, p, v);
-		double f = v + r * ij - voc;
 		res.iters = it;
+		double f, dv = NAN;
+		line_flatter = inverse && junction_log_step(t, p, voc, r, v, &f, &dv);
+		if (!line_flatter) {
+			f = v + r * junction_current(t, p, v) - voc;
+			double d = 1.0 + r * junction_conductance(t, p, v);
+			if (isfinite(f) && isfinite(d) && d > 0.0)
+				dv = f / d;
+		}
 		if (f == 0.0) {
 			res.ok = 1;
 			break;
@@ -69,9 +125,7 @@ struct junction_result junction_solve(const struct model_type *t,
 		else
 			hi = v; /* F > 0, or overflow: v is above the root */
 		double vn = NAN;
-		double d = 1.0 + r * junction_conductance(t, p, v);
-		if (isfinite(f) && isfinite(d) && d > 0.0) {
-			double dv = f / d;
+		if (isfinite(dv)) {
 			if (fabs(dv) <= tol * fabs(v)) {
 				/* Quadratic convergence: this last step is below TOL. */
 				v -= dv;
@@ -79,23 +133,26 @@ struct junction_result junction_solve(const struct model_type *t,
 				break;
 			}
 			vn = v - dv;
-			if (t->limit)
+			if (t->limit && !line_flatter)
 				vn = t->limit(p, vn, v);
 		}
 		if (!(vn > lo && vn < hi))
 			vn = 0.5 * (lo + hi);
-		double dv = vn - v;
+		double step = vn - v;
 		v = vn;
-		if (fabs(dv) <= tol * fabs(v) || hi - lo <= tol * fabs(v) ||
-		    fabs(dv) < 1e-300) {
+		if (fabs(step) <= tol * fabs(v) || hi - lo <= tol * fabs(v) ||
+		    fabs(step) < 1e-300) {
 			res.ok = 1;
 			break;
 		}
 	}
 	res.vj = v;
-	double g = junction_conductance(t, p, v);
-	/* Take the current from the better-conditioned side (see solve.c). */
-	if (r * g > 1.0)
+	/*
+	 * Take the current from the better-conditioned side (see solve.c):
+	 * the line where the device is the steeper curve - known without an
+	 * exp when the last step was a log-domain one.
+	 */
+	if (line_flatter || r * junction_conductance(t, p, v) > 1.0)
 		res.ij = (voc - v) / r;
 	else
 		res.ij = junction_current(t, p, v);
