@@ -20,12 +20,21 @@ void solve_finish_point(const struct problem *pb, struct op_point *pt)
 {
 	const struct model_type *t = pb->dev.type;
 	pt->power = pt->v * pt->i;
-	if (t->resistance != NULL)
-		pt->rd = t->resistance(pb->dev.p, pt->i);
-	else
-		pt->rd = 1.0 / device_conductance(&pb->dev, pt->v);
-	if (!isfinite(pt->rd) && t->conductance != NULL)
-		pt->rd = 1.0 / device_conductance(&pb->dev, pt->v);
+	if (t->series_resistance != NULL && t->intrinsic_conductance != NULL) {
+		/*
+		 * 1/gj + Rs at the junction voltage.  resistance(I) divides by
+		 * Is + I, which cancels in reverse bias (rd off by 2e-8 at
+		 * I = -Is (1 - 1e-8), and NaN once it rounds to 0), and the
+		 * fallback device_conductance ran an inner junction solve.
+		 */
+		double rser = t->series_resistance(pb->dev.p);
+		double gj = t->intrinsic_conductance(pb->dev.p, pt->v - rser * pt->i);
+		pt->rd = 1.0 / gj + rser;
+	} else {
+		pt->rd = t->resistance != NULL ? t->resistance(pb->dev.p, pt->i) : NAN;
+		if (!isfinite(pt->rd) && t->conductance != NULL)
+			pt->rd = 1.0 / device_conductance(&pb->dev, pt->v);
+	}
 	pt->residual = fabs(source_line_residual(&pb->src, pt->v, pt->i));
 }
 
