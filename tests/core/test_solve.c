@@ -4,6 +4,7 @@
  * a GSL bracketed root for the power law, the every-root scan on an
  * N-shaped test device, and bad input.
  */
+#include <float.h>
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -98,6 +99,20 @@ static enum solve_status diode_check_method(const struct problem *pb,
 		         "V=%.17g (exact %.17Lg, rel %.3g), bound %.3g",
 		         me->name, k, res.pts[0].i, iref, ei, res.pts[0].v, vref, ev,
 		         me->bound);
+	/*
+	 * r_d = nVt / (Is exp(vj / nVt)) + Rs, the Shockley slope at the
+	 * exact junction voltage (no Is + I cancellation in reverse bias);
+	 * relative 1e-9, as r_d carries the error of V amplified by V/nVt.
+	 */
+	const double *p = pb->dev.p;
+	long double nvt = check_nvt(p[DIODE_N], p[DIODE_TEMP]);
+	long double vj = vref - p[DIODE_RS] * iref;
+	long double rd = nvt / (is * expl(vj / nvt)) + p[DIODE_RS];
+	double er = rd > DBL_MAX ? (res.pts[0].rd == INFINITY ? 0.0 : INFINITY)
+	                         : check_rel(res.pts[0].rd, rd, 1e-300);
+	if (!(er <= 1e-9))
+		fail_msg("%s, circuit %d: r_d %.17g, exact %.17Lg (rel %.3g)", me->name,
+		         k, res.pts[0].rd, rd, er);
 	return st;
 }
 
