@@ -66,6 +66,16 @@ bool solve_verify(const struct problem *pb, double v, double i, double tol)
 		 */
 		double rser = t->series_resistance(pb->dev.p);
 		double vj = v - rser * i;
+		if (i > 0.0 && t->intrinsic_voltage != NULL) {
+			/*
+			 * Forward: the same check horizontally, |vj - Vj(I)|, one
+			 * log instead of an exp and an expm1; Vj is well conditioned
+			 * for I > 0 (I dVj/dI < nVt for a junction).
+			 */
+			double vd = t->intrinsic_voltage(pb->dev.p, i);
+			return fabs(vj - vd) <=
+			       rtol * (fabs(v) + fabs(rser * i) + fabs(vd)) + 1e-300;
+		}
 		double ij = t->intrinsic_current(pb->dev.p, vj);
 		double gj = fabs(t->intrinsic_conductance(pb->dev.p, vj));
 		double allow = rtol * (fabs(i) + (isfinite(gj)
