@@ -104,9 +104,14 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 	}
 	section_path(sub, sizeof sub, path, "model");
 	if (model == NULL) {
+		char list[256] = "";
+		size_t o = 0;
+		for (size_t k = 0; model_registry[k] != NULL && o < sizeof list; k++)
+			o += (size_t)snprintf(list + o, sizeof list - o, "%s%s",
+			                      k ? ", " : "", model_registry[k]->name);
 		ytree_error(c->err, c->name, key != NULL ? key : map, sub,
-		            "missing required key 'model' in device (which device "
-		            "model: diode or power-law)");
+		            "missing required key 'model' in device (one of: %s)",
+		            list);
 		return -1;
 	}
 	if (section_need_scalar(c, model, sub, "a model name") != 0)
