@@ -755,6 +755,43 @@ static void test_recovery(void **state)
 	free(d);
 }
 
+/* Every sample (BIASLINE_SAMPLES folder) loads and round-trips exactly. */
+static void test_samples(void **state)
+{
+	(void)state;
+	const char *dir = getenv("BIASLINE_SAMPLES");
+	assert_non_null(dir);
+	DIR *d = opendir(dir);
+	assert_non_null(d);
+	int count = 0;
+	struct dirent *e;
+	while ((e = readdir(d)) != NULL) {
+		size_t len = strlen(e->d_name);
+		if (len < 6 || strcmp(e->d_name + len - 5, ".yaml") != 0)
+			continue;
+		char path[2048];
+		snprintf(path, sizeof path, "%s/%s", dir, e->d_name);
+		struct session s;
+		struct session_error err;
+		enum session_status st = session_load_file(&s, path, &err);
+		if (st != SESSION_OK) {
+			char msg[1024];
+			session_error_format(&err, msg, sizeof msg);
+			fail_msg("sample does not load: %s", msg);
+		}
+		check_round_trip(&s);
+		/* the loaded sample builds a problem the core accepts */
+		struct problem pb;
+		char why[256];
+		assert_int_equal(session_problem(&s, &pb, why, sizeof why), 0);
+		session_fini(&s);
+		printf("# sample round-tripped: %s\n", e->d_name);
+		count++;
+	}
+	closedir(d);
+	assert_true(count >= 6);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -776,6 +813,7 @@ int main(void)
 		cmocka_unit_test(test_save_file),
 		cmocka_unit_test(test_header),
 		cmocka_unit_test(test_recovery),
+		cmocka_unit_test(test_samples),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
