@@ -127,10 +127,13 @@ static int root_finish(struct load_ctx *c, const struct session_section *sec,
 	const struct ynode *dev = ytree_get(ytree_get(map, "device"),
 	                                    "temperature");
 	if (dev != NULL && s->device.p[k] != s->conditions.temperature) {
+		char a[96], b[96];
+		ytree_describe(cond, a, sizeof a);
+		ytree_describe(dev, b, sizeof b);
 		ytree_error(c->err, c->name, cond, "conditions.temperature",
 		            "found %s, which differs from device.temperature %s on "
 		            "line %u: expected one temperature (give it in one place)",
-		            cond != NULL ? cond->text : "?", dev->text, dev->line);
+		            a, b, dev->line);
 		return -1;
 	}
 	s->device.p[k] = s->conditions.temperature;

@@ -63,9 +63,12 @@ static int view_load_range(struct load_ctx *c, const struct session_field *f,
 	                      false, &hi) != 0)
 		return -1;
 	if (!(lo < hi)) {
+		char a[96], b[96];
+		ytree_describe(v->kids[0], a, sizeof a);
+		ytree_describe(v->kids[1], b, sizeof b);
 		ytree_error(c->err, c->name, v, path,
 		            "found [%s, %s], expected the minimum below the maximum",
-		            v->kids[0]->text, v->kids[1]->text);
+		            a, b);
 		return -1;
 	}
 	*field_double(c->s, f) = lo;

@@ -123,8 +123,8 @@ void ytree_describe(const struct ynode *n, char *buf, size_t len)
 		return;
 	}
 	char shown[64];
-	size_t o = 0;
-	for (size_t k = 0; k < n->len && o + 5 < sizeof shown; k++) {
+	size_t o = 0, k = 0;
+	for (; k < n->len && o + 5 < sizeof shown; k++) {
 		unsigned char c = (unsigned char)n->text[k];
 		if (c == '\n') {
 			shown[o++] = '\\';
@@ -136,13 +136,15 @@ void ytree_describe(const struct ynode *n, char *buf, size_t len)
 		}
 	}
 	shown[o] = '\0';
+	bool cut = k < n->len;
 	/* do not cut a UTF-8 sequence in the middle */
-	bool cut = o + 5 >= sizeof shown;
-	if (cut)
+	if (cut && o > 0 && ((unsigned char)shown[o - 1] & 0x80) != 0) {
 		while (o > 0 && ((unsigned char)shown[o - 1] & 0xc0) == 0x80)
-			shown[--o] = '\0';
-	if (cut && o > 0 && ((unsigned char)shown[o - 1] & 0xc0) == 0xc0)
-		shown[--o] = '\0';
+			o--;
+		if (o > 0 && ((unsigned char)shown[o - 1] & 0xc0) == 0xc0)
+			o--;
+		shown[o] = '\0';
+	}
 	snprintf(buf, len, "\"%s%s\"", shown, cut ? "..." : "");
 }
 
