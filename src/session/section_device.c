@@ -2,6 +2,7 @@
  * section_device.c - the device section: model: names a model in the
  * registry, and the other keys are that model's own parameter table
  * (key, unit, range, default, help), so a new model needs no loader code.
+ * A model with named presets also takes preset:, applied before the keys.
  */
 #include <math.h>
 #include <stdio.h>
@@ -40,9 +41,11 @@ static void device_unknown_model(struct load_ctx *c, const struct ynode *v,
 static void device_unknown_key(struct load_ctx *c, const struct model_type *type,
                                const struct ynode *k, const char *path)
 {
-	const char *cands[MODEL_MAX_PARAMS + 1];
+	const char *cands[MODEL_MAX_PARAMS + 2];
 	size_t n = 0;
 	cands[n++] = "model";
+	if (type->presets != NULL)
+		cands[n++] = "preset";
 	for (size_t j = 0; j < type->nparams; j++)
 		cands[n++] = type->params[j].key;
 	char found[96];
@@ -73,6 +76,50 @@ static void device_unknown_key(struct load_ctx *c, const struct model_type *type
 	            type->name, keys);
 }
 
+/*
+ * Apply the named preset in V to the device: the preset's values first,
+ * then the keys given in the file override them.  The file is saved with
+ * every value written out, so the preset name itself is not kept.
+ */
+static int device_apply_preset(struct load_ctx *c, const struct model_type *type,
+                               const struct ynode *v, const char *path)
+{
+	char sub[SECTION_PATH_MAX];
+	section_path(sub, sizeof sub, path, "preset");
+	if (type->presets == NULL || type->apply_preset == NULL) {
+		ytree_error(c->err, c->name, v, sub,
+		            "the %s model has no presets, expected its parameters "
+		            "instead", type->name);
+		return -1;
+	}
+	if (section_need_scalar(c, v, sub, "a preset name") != 0)
+		return -1;
+	if (type->apply_preset(v->text, c->s->device.p) == 0)
+		return 0;
+	const char *names[32];
+	size_t n = 0;
+	char list[256] = "";
+	size_t o = 0;
+	for (; type->presets[n] != NULL && n < 32; n++) {
+		names[n] = type->presets[n];
+		if (o < sizeof list)
+			o += (size_t)snprintf(list + o, sizeof list - o, "%s%s",
+			                      n ? ", " : "", names[n]);
+	}
+	char found[96];
+	ytree_describe(v, found, sizeof found);
+	const char *near = section_suggest(v->text, names, n);
+	if (near != NULL)
+		ytree_error(c->err, c->name, v, sub,
+		            "found %s, expected a preset of the %s model (%s); did "
+		            "you mean '%s'?", found, type->name, list, near);
+	else
+		ytree_error(c->err, c->name, v, sub,
+		            "found %s, expected a preset of the %s model (%s)", found,
+		            type->name, list);
+	return -1;
+}
+
 /* Load the device: the model first, then its parameters in file order. */
 static int device_load(struct load_ctx *c, const struct session_section *sec,
                        const struct ynode *key, const struct ynode *map,
@@ -81,6 +128,7 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 	(void)sec;
 	char sub[SECTION_PATH_MAX];
 	const struct ynode *model = NULL, *modelkey = NULL;
+	const struct ynode *preset = NULL, *presetkey = NULL;
 	for (size_t k = 0; k + 1 < map->nkids; k += 2) {
 		const struct ynode *kn = map->kids[k];
 		if (kn->type != YNODE_SCALAR) {
@@ -90,17 +138,25 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 			            "found %s as a key, expected a key name", found);
 			return -1;
 		}
-		if (strcmp(kn->text, "model") != 0)
+		const struct ynode **slot = NULL, **slotkey = NULL;
+		if (strcmp(kn->text, "model") == 0) {
+			slot = &model;
+			slotkey = &modelkey;
+		} else if (strcmp(kn->text, "preset") == 0) {
+			slot = &preset;
+			slotkey = &presetkey;
+		} else {
 			continue;
-		section_path(sub, sizeof sub, path, "model");
-		if (modelkey != NULL) {
+		}
+		section_path(sub, sizeof sub, path, kn->text);
+		if (*slotkey != NULL) {
 			ytree_error(c->err, c->name, kn, sub,
 			            "duplicate key (first given on line %u), expected "
-			            "each key once", modelkey->line);
+			            "each key once", (*slotkey)->line);
 			return -1;
 		}
-		modelkey = kn;
-		model = map->kids[k + 1];
+		*slotkey = kn;
+		*slot = map->kids[k + 1];
 	}
 	section_path(sub, sizeof sub, path, "model");
 	if (model == NULL) {
@@ -122,12 +178,14 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 		return -1;
 	}
 	device_init(&c->s->device, type);
+	if (preset != NULL && device_apply_preset(c, type, preset, path) != 0)
+		return -1;
 
 	const struct ynode *seen[MODEL_MAX_PARAMS] = { NULL };
 	for (size_t k = 0; k + 1 < map->nkids; k += 2) {
 		const struct ynode *kn = map->kids[k];
 		const struct ynode *v = map->kids[k + 1];
-		if (kn == modelkey)
+		if (kn == modelkey || kn == presetkey)
 			continue;
 		section_path(sub, sizeof sub, path, kn->text);
 		int j = model_param_index(type, kn->text);
@@ -164,7 +222,7 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 		c->s->device.p[j] = x;
 	}
 	for (size_t j = 0; j < type->nparams; j++)
-		if (seen[j] == NULL && isnan(type->params[j].def)) {
+		if (seen[j] == NULL && isnan(c->s->device.p[j])) {
 			section_path(sub, sizeof sub, path, type->params[j].key);
 			ytree_error(c->err, c->name, key != NULL ? key : map, sub,
 			            "missing required key '%s' for the %s model (%s)",

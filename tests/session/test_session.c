@@ -792,6 +792,43 @@ static void test_samples(void **state)
 	assert_true(count >= 6);
 }
 
+/* A preset fills the model's values; keys in the file override it. */
+static void test_preset(void **state)
+{
+	(void)state;
+	const struct model_type *type = NULL;
+	for (size_t k = 0; model_registry[k] != NULL; k++)
+		if (model_registry[k]->presets != NULL)
+			type = model_registry[k];
+	if (type == NULL)
+		fail_msg("no registered model has presets: the preset key is untested");
+	const char *name = type->presets[0];
+	int pk = 0; /* the parameter the file overrides */
+	double expect[MODEL_MAX_PARAMS];
+	struct device dev;
+	device_init(&dev, type);
+	assert_int_equal(type->apply_preset(name, dev.p), 0);
+	memcpy(expect, dev.p, sizeof expect);
+	/* an override inside the parameter's range, unlike the preset's value */
+	const struct model_param *mp = &type->params[pk];
+	double over = expect[pk] * 1.0371;
+	char err[256];
+	assert_int_equal(model_param_check(mp, over, err, sizeof err), 0);
+	expect[pk] = over;
+	char text[512];
+	snprintf(text, sizeof text,
+	         "source: {vs: 17.25, rs: 1.385k}\n"
+	         "device:\n  %s: %.17g\n  model: %s\n  preset: %s\n",
+	         mp->key, over, type->name, name);
+	struct session s;
+	struct session_error serr;
+	assert_int_equal(session_load_buffer(&s, "p.yaml", text, strlen(text), &serr),
+	                 SESSION_OK);
+	assert_memory_equal(s.device.p, expect, type->nparams * sizeof(double));
+	check_round_trip(&s);
+	session_fini(&s);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -814,6 +851,7 @@ int main(void)
 		cmocka_unit_test(test_header),
 		cmocka_unit_test(test_recovery),
 		cmocka_unit_test(test_samples),
+		cmocka_unit_test(test_preset),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
