@@ -161,7 +161,7 @@ static size_t render_utf8_encode(uint32_t cp, char *out)
 }
 
 /* Decode one UTF-8 code point at *S, advancing *S ('?' for bad bytes). */
-static uint32_t render_utf8_next(const char **s)
+uint32_t render_utf8_next(const char **s)
 {
 	const unsigned char *p = (const unsigned char *)*s;
 	uint32_t cp;
@@ -194,7 +194,7 @@ static uint32_t render_utf8_next(const char **s)
 }
 
 /* Number of code points in the UTF-8 string S. */
-static int render_text_width(const char *s)
+int render_text_width(const char *s)
 {
 	int n = 0;
 	while (*s != '\0') {
@@ -232,6 +232,7 @@ size_t grid_row_text(const struct grid *g, int row, char *buf, size_t n)
 void render_view_init(struct render_view *v)
 {
 	v->frame = FRAME_LINE;
+	v->fixed = (struct render_window){ 0.0, 0.0, 0.0, 0.0 };
 	v->zoom = 1.0;
 	v->pan_v = 0.0;
 	v->pan_i = 0.0;
@@ -413,8 +414,13 @@ enum render_status render_window_compute(const struct render_input *in,
 	struct render_window f;
 	bool have_point = in->pts != NULL && in->npts > 0 &&
 	                  isfinite(in->pts[0].v) && isfinite(in->pts[0].i);
+	const struct render_window *x = &view->fixed;
+	bool fixed_ok = isfinite(x->v_lo) && isfinite(x->v_hi) && x->v_hi > x->v_lo &&
+	                isfinite(x->i_lo) && isfinite(x->i_hi) && x->i_hi > x->i_lo;
 	if (view->frame == FRAME_POINT && have_point)
 		render_frame_point(in, &f);
+	else if (view->frame == FRAME_FIXED && fixed_ok)
+		f = *x;
 	else
 		render_frame_line(in, &f);
 	double zoom = isfinite(view->zoom) && view->zoom > 0.0 ? view->zoom : 1.0;

@@ -65,21 +65,23 @@ enum render_status {
 enum render_frame {
 	FRAME_LINE,   /* both load-line intercepts and every operating point */
 	FRAME_POINT,  /* a box around the first operating point */
-};
-
-/* How to look at the plot. */
-struct render_view {
-	enum render_frame frame;
-	double zoom;          /* 1 = the frame; 2 = twice as close */
-	double pan_v, pan_i;  /* centre offset in spans of the frame (0 = none) */
-	bool unicode;         /* box-drawing and symbol characters */
-	bool legend;          /* draw the legend line at the top */
+	FRAME_FIXED,  /* the view's fixed window (a session's stored ranges) */
 };
 
 /* The data window actually drawn. */
 struct render_window {
 	double v_lo, v_hi;    /* volts, left and right edge */
 	double i_lo, i_hi;    /* amperes, bottom and top edge */
+};
+
+/* How to look at the plot. */
+struct render_view {
+	enum render_frame frame;
+	struct render_window fixed;  /* the window of FRAME_FIXED */
+	double zoom;          /* 1 = the frame; 2 = twice as close */
+	double pan_v, pan_i;  /* centre offset in spans of the frame (0 = none) */
+	bool unicode;         /* box-drawing and symbol characters */
+	bool legend;          /* draw the legend line at the top */
 };
 
 /* Where the data area lies in the grid (cells, inclusive bounds). */
@@ -120,6 +122,12 @@ const struct cell *grid_at(const struct grid *g, int row, int col);
  * trailing blanks removed.  Returns the length written.
  */
 size_t grid_row_text(const struct grid *g, int row, char *buf, size_t n);
+
+/* Decode one UTF-8 code point at *S and advance *S ('?' for bad bytes). */
+uint32_t render_utf8_next(const char **s);
+
+/* Number of code points (cells) in the UTF-8 string S. */
+int render_text_width(const char *s);
 
 /* Fill V with the defaults: whole-line frame, zoom 1, ASCII, legend on. */
 void render_view_init(struct render_view *v);

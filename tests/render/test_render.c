@@ -549,6 +549,22 @@ static void test_zoom_pan(void **state)
 	/* The line frame holds both intercepts and the point. */
 	assert_true(w1.v_lo <= 0.0 && w1.v_hi >= 6.271);
 	assert_true(w1.i_lo <= 0.0 && w1.i_hi >= 6.271 / 8.21e2);
+	/* A fixed window is used as given. */
+	struct render_view fv;
+	render_view_init(&fv);
+	fv.frame = FRAME_FIXED;
+	fv.fixed = (struct render_window){ -0.4137, 3.291, -1.173e-3, 1.219e-2 };
+	struct render_window w3;
+	assert_int_equal(render_window_compute(&in, &fv, &w3), RENDER_OK);
+	assert_float_equal(w3.v_lo, -0.4137, 1e-12);
+	assert_float_equal(w3.v_hi, 3.291, 1e-12);
+	assert_float_equal(w3.i_lo, -1.173e-3, 1e-15);
+	assert_float_equal(w3.i_hi, 1.219e-2, 1e-15);
+	/* An empty fixed window falls back to the whole line. */
+	fv.fixed.v_hi = fv.fixed.v_lo;
+	assert_int_equal(render_window_compute(&in, &fv, &w3), RENDER_OK);
+	assert_float_equal(w3.v_lo, w1.v_lo, 1e-12);
+	assert_float_equal(w3.v_hi, w1.v_hi, 1e-12);
 	/* A point zoomed out of view leaves no point mark. */
 	view.zoom = 40.0;
 	view.pan_v = -0.4;
