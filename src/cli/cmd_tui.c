@@ -1,13 +1,68 @@
-/* cmd_tui.c - placeholder until the 'tui' command lands (exits 70). */
+/*
+ * cmd_tui.c - the terminal front end: biasline [options] [FILE].
+ */
+#include <getopt.h>
 #include <stdio.h>
+#include <stdlib.h>
 
 #include "commands.h"
+#include "tui/tui.h"
 
-/* Report that 'tui' is not built yet. */
+/* Print the front end's usage to OUT. */
+static void tui_usage(FILE *out)
+{
+	fprintf(out,
+	        "Usage: biasline [--no-color] [--unicode] [FILE]\n"
+	        "\n"
+	        "Open the terminal front end on the session FILE, or on the built-in\n"
+	        "demo without one.  Press ? inside for the keys.\n"
+	        "\n"
+	        "Options:\n"
+	        "  -C, --no-color  no colour (also when NO_COLOR is set)\n"
+	        "  -u, --unicode   line-drawing and symbol characters in the plot\n"
+	        "  -h, --help      show this help and exit\n"
+	        "\n"
+	        "Exit status: 0 done, 64 bad usage, 65 bad session data, 66 FILE\n"
+	        "unreadable, 69 unusable terminal, 128+N stopped by signal N\n"
+	        "(unsaved changes then go to the recovery file).\n");
+}
+
+/* Entry point of the front end. */
 int cmd_tui(int argc, char **argv)
 {
-	(void)argc;
-	(void)argv;
-	fprintf(stderr, "biasline: 'tui' is not available in this build yet\n");
-	return EXIT_SOFTWARE;
+	static const struct option longopts[] = {
+		{ "no-color", no_argument, NULL, 'C' },
+		{ "unicode", no_argument, NULL, 'u' },
+		{ "help", no_argument, NULL, 'h' },
+		{ NULL, 0, NULL, 0 },
+	};
+	const char *nc = getenv("NO_COLOR");
+	struct tui_options opt = { NULL, nc == NULL || nc[0] == '\0', false };
+	optind = 1;
+	opterr = 0;
+	int ch;
+	while ((ch = getopt_long(argc, argv, "Cuh", longopts, NULL)) != -1) {
+		switch (ch) {
+		case 'C':
+			opt.color = false;
+			break;
+		case 'u':
+			opt.unicode = true;
+			break;
+		case 'h':
+			tui_usage(stdout);
+			return EXIT_OK_CODE;
+		default:
+			fprintf(stderr, "biasline: unknown option '%s' "
+			        "(try 'biasline --help')\n", argv[optind - 1]);
+			return EXIT_USAGE;
+		}
+	}
+	if (argc - optind > 1) {
+		fprintf(stderr, "biasline: give at most one session FILE\n");
+		return EXIT_USAGE;
+	}
+	if (argc - optind == 1)
+		opt.path = argv[optind];
+	return tui_run(&opt);
 }

@@ -1,0 +1,183 @@
+/*
+ * app.h - the front end's state and the actions keys trigger.  One struct
+ * app is passed to every function; nothing here calls curses (term.h does)
+ * and nothing computes physics (core does: solve_problem, the stepper and
+ * diagnose_*).
+ *
+ * Flow: a key runs an action, which changes the session and returns flags;
+ * the loop redraws once when asked.  Every parameter change re-solves at
+ * once and restarts the path from the same start point.
+ */
+#ifndef BIASLINE_APP_H
+#define BIASLINE_APP_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "core/diagnose.h"
+#include "core/solve.h"
+#include "core/stepper.h"
+#include "render/render.h"
+#include "session/session.h"
+#include "tui/term.h"
+
+/* Smallest screen the full layout needs. */
+#define APP_MIN_ROWS 24
+#define APP_MIN_COLS 80
+/* Exit status when the terminal cannot be used (EX_UNAVAILABLE). */
+#define APP_EXIT_UNAVAILABLE 69
+
+/* What a key handler asks the loop to do (bit flags). */
+enum app_flags {
+	APP_HANDLED = 1 << 0,   /* the key meant something */
+	APP_REDRAW = 1 << 1,    /* draw the screen again */
+	APP_QUIT = 1 << 2,      /* leave the loop */
+	APP_REPLOT = 1 << 3,    /* the plot must be rendered again */
+};
+
+/* What the one-line prompt is asking for. */
+enum prompt_kind {
+	PROMPT_NONE,
+	PROMPT_VALUE,      /* an exact value for the selected parameter */
+	PROMPT_SAVE_AS,    /* a file name to save to */
+	PROMPT_QUIT,       /* y/n: quit without saving */
+	PROMPT_RESTORE,    /* y/n: restore the recovery file */
+};
+
+/* The prompt on the bottom line. */
+struct prompt {
+	enum prompt_kind kind;
+	char text[256];    /* what was typed (UTF-8) */
+	size_t len;
+	char error[256];   /* why the last entry was refused, or "" */
+};
+
+/* Kinds of parameter rows in the side pane. */
+enum param_id {
+	PARAM_SOURCE_A,    /* vs (Thevenin) or is (Norton) */
+	PARAM_SOURCE_B,    /* rs (Thevenin) or rp (Norton) */
+	PARAM_DEVICE,      /* + index into the model's table */
+	PARAM_METHOD = PARAM_DEVICE + MODEL_MAX_PARAMS,
+	PARAM_ORDER,
+	PARAM_START,
+	PARAM_OMEGA,
+};
+
+/* One row of the parameter list. */
+struct param {
+	int id;                 /* enum param_id (device rows: PARAM_DEVICE + k) */
+	const char *label;
+	enum qty_kind kind;
+	double *value;          /* NULL for a choice (method, order) */
+	bool log_step;          /* nudge multiplicatively */
+	double fine, coarse;    /* additive steps for linear rows (0: relative) */
+};
+
+#define APP_MAX_PARAMS (MODEL_MAX_PARAMS + 8)
+
+/* Options from the command line. */
+struct tui_options {
+	const char *path;       /* session file, NULL for the demo */
+	bool color;             /* false: --no-color or NO_COLOR */
+	bool unicode;
+};
+
+/* The whole front end. */
+struct app {
+	struct term_ctx term;
+	struct tui_options opt;
+	struct session s;
+	char *path;             /* the session's file (owned), NULL for the demo */
+	bool dirty;             /* changes not saved */
+
+	struct problem pb;
+	bool pb_ok;
+	char pb_err[256];
+	struct solve_result res;
+	struct stepper *st;
+
+	struct render_view view;
+	struct grid grid;
+	bool grid_ok;           /* the grid shows the current state */
+
+	int sel;                /* selected parameter row */
+	bool side_hidden;
+	bool help;
+	struct prompt prompt;
+	char status[256];       /* the last message */
+	bool status_error;
+};
+
+/* Fill A from the options: load the session or the demo, solve. */
+int app_init(struct app *a, const struct tui_options *opt, char *err,
+             size_t errlen);
+
+/* Free what A owns. */
+void app_fini(struct app *a);
+
+/* Build the parameter rows of A's session into OUT; returns the count. */
+size_t app_params(struct app *a, struct param *out, size_t max);
+
+/* Re-solve, restart the path from the start point, and mark the plot. */
+void app_resolve(struct app *a);
+
+/*
+ * Set parameter row P to VALUE after checking it; on refusal the old value
+ * is kept and ERR says why.  Returns 0 or -1.
+ */
+int app_param_set(struct app *a, const struct param *p, double value,
+                  char *err, size_t errlen);
+
+/* Show MSG on the status line (ERROR: styled as an error). */
+void app_message(struct app *a, bool error, const char *fmt, ...)
+#if defined(__GNUC__)
+	__attribute__((format(printf, 3, 4)))
+#endif
+	;
+
+/* Save to PATH (NULL: the session's own file).  Returns 0 or -1. */
+int app_save(struct app *a, const char *path);
+
+/* Draw the whole screen. */
+void app_draw(struct app *a);
+
+/* Handle key KEY; returns enum app_flags. */
+unsigned app_key(struct app *a, int key);
+
+/* Run the front end until quit; returns the exit status. */
+int app_run(struct app *a);
+
+/* One help line of the key table: the keys and what they do. */
+struct key_help {
+	const char *keys;
+	const char *help;
+};
+
+/* Fill OUT with up to MAX help lines from the key table; returns the count. */
+size_t keys_help(struct key_help *out, size_t max);
+
+/* Run the action bound to KEY in the key table; APP_HANDLED when found. */
+unsigned keys_dispatch(struct app *a, int key);
+
+/* Draw the plot pane into the rectangle at ROW, COL of ROWS x COLS. */
+void pane_plot_draw(struct app *a, int row, int col, int rows, int cols);
+
+/* Draw the side pane into the rectangle at ROW, COL of ROWS x COLS. */
+void pane_side_draw(struct app *a, int row, int col, int rows, int cols);
+
+/* Draw the help overlay centred on a screen of ROWS x COLS. */
+void pane_help_draw(struct app *a, int rows, int cols);
+
+/* Draw the bottom line (prompt or status) at ROW, COLS wide. */
+void pane_prompt_draw(struct app *a, int row, int cols);
+
+/* Open the prompt for KIND (the text starts as INITIAL, may be NULL). */
+void pane_prompt_open(struct app *a, enum prompt_kind kind, const char *initial);
+
+/* Handle KEY while the prompt is open; returns enum app_flags. */
+unsigned pane_prompt_key(struct app *a, int key);
+
+/* Format VALUE compactly in engineering notation without a unit ("-4.31m"). */
+char *app_eng(char *buf, size_t n, double value, int sig);
+
+#endif
