@@ -9,6 +9,7 @@
 
 #include "biasline_version.h"
 #include "commands.h"
+#include "session/atomic.h"
 #include "session/session.h"
 
 /* Print the usage of 'tidy' to OUT. */
@@ -18,8 +19,8 @@ static void tidy_usage(FILE *out)
 	        "Usage: biasline tidy [OPTIONS] FILE\n"
 	        "\n"
 	        "Print the session in FILE in canonical form: every key in the\n"
-	        "standard order, defaults written out, numbers exact.  Comments\n"
-	        "other than the header line are not kept.\n"
+	        "standard order, defaults written out, numbers exact.  The comment\n"
+	        "block at the top of the file is kept; other comments are not.\n"
 	        "\n"
 	        "Exit status: 0 done, 65 FILE is not a valid session, 66 FILE\n"
 	        "cannot be read, 73 FILE cannot be rewritten, 64 bad command line.\n"
@@ -74,24 +75,26 @@ int cmd_tidy(int argc, char **argv)
 		fprintf(stderr, "%s\n", line);
 		return st == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
 	}
-	if (in_place) {
-		st = session_save_file(&s, path, &err);
-		session_fini(&s);
-		if (st != SESSION_OK) {
-			session_error_format(&err, line, sizeof line);
-			fprintf(stderr, "biasline tidy: %s\n", line);
-			return EXIT_CANT_CREATE;
-		}
-		return EXIT_OK_CODE;
-	}
+	char *comments = session_file_comments(path);
 	char *buf;
 	size_t len;
-	st = session_save_buffer(&s, &buf, &len, &err);
+	st = session_save_buffer_with(&s, comments, &buf, &len, &err);
+	free(comments);
 	session_fini(&s);
 	if (st != SESSION_OK) {
 		session_error_format(&err, line, sizeof line);
 		fprintf(stderr, "biasline tidy: %s\n", line);
 		return EXIT_SOFTWARE;
+	}
+	if (in_place) {
+		char why[512];
+		int rc = atomic_write_file(path, buf, len, why, sizeof why);
+		free(buf);
+		if (rc != 0) {
+			fprintf(stderr, "biasline tidy: %s\n", why);
+			return EXIT_CANT_CREATE;
+		}
+		return EXIT_OK_CODE;
 	}
 	size_t w = fwrite(buf, 1, len, stdout);
 	free(buf);

@@ -291,7 +291,7 @@ static int session_emit(yaml_emitter_t *em, const struct session *s,
 	return 0;
 }
 
-/* Write S with an optional extra comment line. */
+/* Write S with optional extra comment lines after the header. */
 enum session_status session_save_buffer_with(const struct session *s,
                                              const char *extra, char **out,
                                              size_t *len,
@@ -307,16 +307,22 @@ enum session_status session_save_buffer_with(const struct session *s,
 	char head[128];
 	snprintf(head, sizeof head, "# biasline session, written by biasline %s\n",
 	         BIASLINE_VERSION);
-	if (session_out_put(&o, head, strlen(head)) != 0 ||
-	    (extra != NULL &&
-	     (strchr(extra, '\n') != NULL || session_out_put(&o, "# ", 2) != 0 ||
-	      session_out_put(&o, extra, strlen(extra)) != 0 ||
-	      session_out_put(&o, "\n", 1) != 0))) {
+	int bad = session_out_put(&o, head, strlen(head));
+	for (const char *p = extra; p != NULL && *p != '\0' && bad == 0;) {
+		size_t n = strcspn(p, "\n");
+		if (n > 0 && p[0] != '#')
+			bad = session_out_put(&o, "# ", 2);
+		if (bad == 0)
+			bad = session_out_put(&o, p, n);
+		if (bad == 0)
+			bad = session_out_put(&o, "\n", 1);
+		p += n;
+		if (*p == '\n')
+			p++;
+	}
+	if (bad != 0) {
 		free(o.buf);
-		ytree_error_at(err, "", 0, 0, "",
-		               extra != NULL && strchr(extra, '\n') != NULL
-		                       ? "a comment line must not hold a line break"
-		                       : "out of memory while writing");
+		ytree_error_at(err, "", 0, 0, "", "out of memory while writing");
 		return SESSION_IO_ERROR;
 	}
 	yaml_emitter_t em;
@@ -338,6 +344,49 @@ enum session_status session_save_buffer_with(const struct session *s,
 	*out = o.buf;
 	*len = o.len;
 	return SESSION_OK;
+}
+
+/* The leading comment block of PATH, without biasline's own header. */
+char *session_file_comments(const char *path)
+{
+	FILE *f = fopen(path, "r");
+	if (f == NULL)
+		return NULL;
+	static const char own[] = "# biasline session, written by biasline";
+	struct session_out o = { 0 };
+	char *line = NULL;
+	size_t cap = 0, blank = 0; /* blank lines held until a comment follows */
+	ssize_t n;
+	int bad = 0;
+	while (bad == 0 && o.len < SESSION_MAX_BYTES &&
+	       (n = getline(&line, &cap, f)) > 0) {
+		if (line[strspn(line, " \t\r\n")] == '\0') {
+			blank++;
+			continue;
+		}
+		if (line[0] != '#')
+			break;
+		if (strncmp(line, own, sizeof own - 1) == 0)
+			continue;
+		for (; blank > 0 && o.len > 0 && bad == 0; blank--)
+			bad = session_out_put(&o, "\n", 1);
+		blank = 0;
+		line[strcspn(line, "\r\n")] = '\0';
+		if (bad == 0)
+			bad = session_out_put(&o, line, strlen(line));
+		if (bad == 0)
+			bad = session_out_put(&o, "\n", 1);
+	}
+	free(line);
+	fclose(f);
+	if (bad != 0) {
+		free(o.buf);
+		return NULL;
+	}
+	/* drop the final line break: the writer adds one per line */
+	if (o.len > 0 && o.buf[o.len - 1] == '\n')
+		o.buf[--o.len] = '\0';
+	return o.buf;
 }
 
 /* Write S as YAML into a new buffer. */

@@ -92,8 +92,10 @@ enum session_status session_save_buffer(const struct session *s, char **out,
                                         size_t *len, struct session_error *err);
 
 /*
- * Like session_save_buffer with EXTRA (may be NULL) written as a second
- * comment line after the header; EXTRA must be one line.
+ * Like session_save_buffer with the comment text EXTRA (may be NULL)
+ * written after the header line: each line of EXTRA that starts with '#'
+ * is written as it is, an empty line stays empty, any other line gets "# "
+ * in front.
  */
 enum session_status session_save_buffer_with(const struct session *s,
                                              const char *extra, char **out,
@@ -106,6 +108,14 @@ enum session_status session_save_buffer_with(const struct session *s,
  */
 enum session_status session_save_file(const struct session *s, const char *path,
                                       struct session_error *err);
+
+/*
+ * The comment block at the top of the session file PATH (every line up to
+ * the first that is neither a comment nor blank; the header line biasline
+ * writes is left out), as a new string the caller frees, or NULL when
+ * there is none or the file cannot be read.  tidy keeps it this way.
+ */
+char *session_file_comments(const char *path);
 
 /*
  * True when A and B hold the same session: every number bit for bit, the

@@ -667,9 +667,10 @@ static void test_header(void **state)
 	assert_true(strncmp(y, "# biasline session, written by biasline ", 40) == 0);
 	assert_non_null(strstr(y, "\n# origin: /x/y.yaml\n"));
 	free(y);
-	assert_int_equal(session_save_buffer_with(&s, "two\nlines", &y, &n, NULL),
-	                 SESSION_IO_ERROR);
-	assert_null(y);
+	assert_int_equal(session_save_buffer_with(&s, "two\n\n# lines", &y, &n, NULL),
+	                 SESSION_OK);
+	assert_non_null(strstr(y, "\n# two\n\n# lines\nformat_version: 1\n"));
+	free(y);
 	session_fini(&s);
 }
 
