@@ -10,6 +10,7 @@
 #include "biasline_version.h"
 #include "commands.h"
 #include "core/diagnose.h"
+#include "core/safety.h"
 #include "core/solve.h"
 #include "core/stepper.h"
 #include "session/session.h"
@@ -224,6 +225,16 @@ static void solve_print_text(const char *file, const struct session *se,
 		       d.verdict);
 		if (d.advice[0] != '\0')
 			printf("  advice: %s\n", d.advice);
+	}
+	unsigned flags = 0;
+	for (size_t k = 0; k < res->n; k++)
+		flags |= safety_check(pb, res->pts[k].v, res->pts[k].i);
+	if (res->n == 0)
+		flags |= safety_check(pb, 0.0, 0.0);
+	if (flags != 0) {
+		char msg[320];
+		safety_message(flags, msg, sizeof msg);
+		printf("\n  %s\n", msg);
 	}
 }
 
