@@ -49,8 +49,8 @@ static void model_param_describe_range(const struct model_param *mp, char *buf,
                                        size_t n)
 {
 	char lo[48], hi[48];
-	qty_format(lo, sizeof lo, mp->min, mp->kind, 6, 1);
-	qty_format(hi, sizeof hi, mp->max, mp->kind, 6, 1);
+	qty_format(lo, sizeof lo, mp->min, mp->kind, 4, 1);
+	qty_format(hi, sizeof hi, mp->max, mp->kind, 4, 1);
 	if (isinf(mp->max))
 		snprintf(buf, n, "a value %s %s", mp->min_open ? ">" : ">=", lo);
 	else if (isinf(mp->min))
