@@ -42,7 +42,8 @@ static void solve_usage(FILE *out)
 	        "                     crossing and refines each with Newton)\n"
 	        "  -o, --order O      voltage-from-line or voltage-from-device\n"
 	        "                     (projection order; default: the session's)\n"
-	        "  -t, --trace        print the iteration table\n"
+	        "  -t, --trace        print the iteration table (with --format csv,\n"
+	        "                     the table replaces the points)\n"
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
@@ -189,18 +190,18 @@ static void solve_print_text(const char *file, const struct session *se,
 	char a[48], b[48];
 	printf("%s\n", file);
 	if (isinf(pb->src.r)) {
-		qty_format(a, sizeof a, pb->src.isc, QTY_CURRENT, 6, 1);
+		qty_format_short(a, sizeof a, pb->src.isc, QTY_CURRENT, 6, 1);
 		printf("  source   ideal current source %s\n", a);
 	} else {
-		qty_format(a, sizeof a, pb->src.voc, QTY_VOLTAGE, 6, 1);
-		qty_format(b, sizeof b, pb->src.r, QTY_RESISTANCE, 6, 1);
+		qty_format_short(a, sizeof a, pb->src.voc, QTY_VOLTAGE, 6, 1);
+		qty_format_short(b, sizeof b, pb->src.r, QTY_RESISTANCE, 6, 1);
 		printf("  source   %s behind %s%s\n", a, b,
 		       se->source.form == SOURCE_NORTON ? " (from the Norton form)" : "");
 	}
 	printf("  device   %s:", pb->dev.type->name);
 	for (size_t k = 0; k < pb->dev.type->nparams; k++) {
 		const struct model_param *mp = &pb->dev.type->params[k];
-		qty_format(a, sizeof a, pb->dev.p[k], mp->kind, 6, 1);
+		qty_format_short(a, sizeof a, pb->dev.p[k], mp->kind, 6, 1);
 		printf("%s %s = %s", k ? "," : "", mp->label, a);
 	}
 	printf("\n  method   %s\n\n", solve_method_name(o->method));
@@ -282,12 +283,15 @@ int cmd_solve(int argc, char **argv)
 
 	struct solve_result res;
 	solve_problem(&pb, &o, &res);
-	if (a.csv)
+	/* CSV carries one table: the trace when asked for, else the points. */
+	if (a.csv && a.trace)
+		solve_print_trace(&pb, &o, true);
+	else if (a.csv)
 		solve_print_csv(&res);
 	else
 		solve_print_text(a.file, &se, &pb, &o, &res);
-	if (a.trace)
-		solve_print_trace(&pb, &o, a.csv);
+	if (a.trace && !a.csv)
+		solve_print_trace(&pb, &o, false);
 	if (res.status != SOLVE_OK) {
 		fprintf(stderr, "biasline solve: %s: no operating point: %s\n", a.file,
 		        res.message);

@@ -659,3 +659,23 @@ char *qty_format_exact(char *buf, size_t n, double value)
 	qty_copy_out(buf, n, out);
 	return buf;
 }
+
+/* Engineering format without trailing zeros in the mantissa. */
+char *qty_format_short(char *buf, size_t n, double value, enum qty_kind kind,
+                       int sig, int ascii)
+{
+	qty_format(buf, n, value, kind, sig, ascii);
+	char *dot = strchr(buf, '.');
+	if (dot == NULL)
+		return buf;
+	char *end = dot + 1;
+	while (*end >= '0' && *end <= '9')
+		end++;
+	char *cut = end;
+	while (cut > dot + 1 && cut[-1] == '0')
+		cut--;
+	if (cut == dot + 1)
+		cut = dot;
+	memmove(cut, end, strlen(end) + 1);
+	return buf;
+}

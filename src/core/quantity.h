@@ -90,6 +90,13 @@ char *qty_format(char *buf, size_t n, double value, enum qty_kind kind,
                  int sig, int ascii);
 
 /*
+ * As qty_format, but with trailing zeros of the mantissa dropped: for
+ * values a person typed ("12 V", "2.2 kΩ"), where fixed digits are noise.
+ */
+char *qty_format_short(char *buf, size_t n, double value, enum qty_kind kind,
+                       int sig, int ascii);
+
+/*
  * Format VALUE as a plain number that reads back bit-for-bit ("%.17g"
  * shortened to the fewest digits that round-trip).  Locale-independent.
  */

@@ -455,6 +455,33 @@ static void test_format(void **state)
 }
 
 /* Formatted values read back as the same quantity within SIG digits. */
+/* qty_format_short drops only trailing zeros of the mantissa. */
+static void test_format_short(void **state)
+{
+	static const struct {
+		double v;
+		enum qty_kind k;
+		int sig;
+		const char *want;
+	} cases[] = {
+		{ 12.0, QTY_VOLTAGE, 6, "12 V" },
+		{ 2200.0, QTY_RESISTANCE, 6, "2.2 kohm" },
+		{ 0.4, QTY_RESISTANCE, 6, "400 mohm" },
+		{ 1.12656, QTY_VOLTAGE, 6, "1.12656 V" },
+		{ 1.0306, QTY_VOLTAGE, 4, "1.031 V" },
+		{ 1.0302, QTY_VOLTAGE, 4, "1.03 V" },
+		{ 100.0, QTY_NUMBER, 6, "100" },
+		{ -40.0, QTY_TEMPERATURE, 6, "-40 degC" },
+		{ 0.0, QTY_CURRENT, 6, "0 A" },
+	};
+	(void)state;
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		char buf[64];
+		qty_format_short(buf, sizeof buf, cases[k].v, cases[k].k, cases[k].sig, 1);
+		assert_string_equal(buf, cases[k].want);
+	}
+}
+
 static void test_format_reads_back(void **state)
 {
 	static const double values[] = { 6.813e3, 2.385e-13, -7.31e-9, 0.2718,
@@ -645,6 +672,7 @@ int main(void)
 		cmocka_unit_test(test_parse_message_limits),
 		cmocka_unit_test(test_names),
 		cmocka_unit_test(test_format),
+		cmocka_unit_test(test_format_short),
 		cmocka_unit_test(test_format_reads_back),
 		cmocka_unit_test(test_format_truncates),
 		cmocka_unit_test(test_format_exact_known),
