@@ -331,7 +331,7 @@ static void nodal_g(struct nodal *nd, size_t a, size_t b, double g)
 static void rand_resistor(struct network *net, struct nodal *nd,
                           gsl_rng *rng, size_t a, size_t b)
 {
-	char na[16], nb[16], name[24];
+	char na[32], nb[32], name[32];
 	double r = rnd_log(rng, 47.3, 2.13e5);
 	snprintf(name, sizeof name, "R%zu", network_part_count(net));
 	add(net, name, R, r, node_label(na, sizeof na, "n", a),
@@ -346,7 +346,7 @@ static void rand_network(struct network *net, struct nodal *nd, gsl_rng *rng,
 	memset(nd, 0, sizeof *nd);
 	nd->n = n;
 	size_t deg[MAX_NODES] = { 0 };
-	char na[16], nb[16], nm[16], name[24];
+	char na[32], nb[32], nm[32], name[32];
 	/* a random spanning tree of resistors */
 	for (size_t k = 1; k < n; k++) {
 		size_t p = gsl_rng_uniform_int(rng, k);
@@ -469,7 +469,7 @@ static void test_random_vs_gsl(void **state)
 		rand_network(net, nd, rng, n);
 		size_t pos = gsl_rng_uniform_int(rng, n);
 		size_t neg = (pos + 1 + gsl_rng_uniform_int(rng, n - 1)) % n;
-		char np[16], nn[16];
+		char np[32], nn[32];
 		assert_int_equal(network_set_terminals(net,
 		                 node_label(np, sizeof np, "n", pos),
 		                 node_label(nn, sizeof nn, "n", neg)), 0);
