@@ -101,6 +101,7 @@ struct session_section {
 /* The sections (each defined in its own file). */
 extern const struct session_section section_root;
 extern const struct session_section section_source;
+extern const struct session_section section_network;
 extern const struct session_section section_device;
 extern const struct session_section section_conditions;
 extern const struct session_section section_solver;

@@ -1,7 +1,8 @@
 /*
  * section_source.c - the source section: Thevenin (vs, rs) or Norton
  * (is, optional rp; no rp = an ideal current source), the form inferred
- * from the keys or stated with form:.
+ * from the keys or stated with form:; or a network (section_network.c)
+ * alone, reduced to one of the two.
  */
 #include <math.h>
 #include <stddef.h>
@@ -10,7 +11,7 @@
 
 #include "session/section.h"
 
-enum { SRC_FORM, SRC_VS, SRC_RS, SRC_IS, SRC_RP, SRC_NFIELDS };
+enum { SRC_FORM, SRC_VS, SRC_RS, SRC_IS, SRC_RP, SRC_NETWORK, SRC_NFIELDS };
 
 /* Load form: thevenin or norton. */
 static int source_load_form(struct load_ctx *c, const struct session_field *f,
@@ -52,12 +53,20 @@ static int source_save_form(struct emit_ctx *e, const struct session_field *f,
 	                                                      : "thevenin", true);
 }
 
+/* form is written unless the source is a network. */
+static bool source_present_form(const struct session_field *f,
+                                 const struct session *s)
+{
+	(void)f;
+	return s->network == NULL;
+}
+
 /* vs and rs are written for a Thevenin source. */
 static bool source_present_thevenin(const struct session_field *f,
                                     const struct session *s)
 {
 	(void)f;
-	return s->source.form == SOURCE_THEVENIN;
+	return s->network == NULL && s->source.form == SOURCE_THEVENIN;
 }
 
 /* is is written for a Norton source. */
@@ -65,7 +74,7 @@ static bool source_present_norton(const struct session_field *f,
                                   const struct session *s)
 {
 	(void)f;
-	return s->source.form == SOURCE_NORTON;
+	return s->network == NULL && s->source.form == SOURCE_NORTON;
 }
 
 /* rp is written for a Norton source with a finite rp. */
@@ -73,7 +82,16 @@ static bool source_present_rp(const struct session_field *f,
                               const struct session *s)
 {
 	(void)f;
-	return s->source.form == SOURCE_NORTON && isfinite(s->source.rp);
+	return s->network == NULL && s->source.form == SOURCE_NORTON &&
+	       isfinite(s->source.rp);
+}
+
+/* network is written for a network source. */
+static bool source_present_network(const struct session_field *f,
+                                   const struct session *s)
+{
+	(void)f;
+	return s->network != NULL;
 }
 
 /* Infer or check the form, require its keys, and canonicalise the rest. */
@@ -88,6 +106,19 @@ static int source_finish(struct load_ctx *c, const struct session_section *sec,
 	bool nort = foundkey[SRC_IS] != NULL || foundkey[SRC_RP] != NULL;
 	const struct ynode *at = key != NULL ? key : map;
 	char sub[SECTION_PATH_MAX];
+
+	if (foundkey[SRC_NETWORK] != NULL) {
+		for (int k = 0; k < SRC_NETWORK; k++)
+			if (foundkey[k] != NULL) {
+				section_path(sub, sizeof sub, path, foundkey[k]->text);
+				ytree_error(c->err, c->name, foundkey[k], sub,
+				            "found '%s' beside network (line %u), expected "
+				            "the network alone: it is reduced to the source",
+				            foundkey[k]->text, foundkey[SRC_NETWORK]->line);
+				return -1;
+			}
+		return 0;
+	}
 
 	if (thev && nort) {
 		const struct ynode *t = foundkey[SRC_VS] ? foundkey[SRC_VS]
@@ -159,7 +190,7 @@ static int source_finish(struct load_ctx *c, const struct session_section *sec,
 
 static const struct session_field source_fields[SRC_NFIELDS] = {
 	[SRC_FORM] = { .key = "form", .load = source_load_form,
-	               .save = source_save_form,
+	               .save = source_save_form, .present = source_present_form,
 	               .help = "thevenin (vs, rs) or norton (is, rp)" },
 	[SRC_VS] = { .key = "vs", .load = field_load_qty, .save = field_save_qty,
 	             .present = source_present_thevenin,
@@ -183,6 +214,12 @@ static const struct session_field source_fields[SRC_NFIELDS] = {
 	             .min_open = true,
 	             .help = "parallel resistance in ohms; omit for an ideal "
 	                     "current source" },
+	[SRC_NETWORK] = { .key = "network", .load = field_load_section,
+	                  .save = field_save_section,
+	                  .present = source_present_network,
+	                  .section = &section_network,
+	                  .help = "a resistive network with sources, reduced to "
+	                          "the source" },
 };
 
 const struct session_section section_source = {

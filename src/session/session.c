@@ -20,6 +20,7 @@
 #include "biasline_version.h"
 #include "session/atomic.h"
 #include "session/section.h"
+#include "session/section_network.h"
 #include "session/ytree.h"
 
 /* Largest session file read: far above any real one, small enough to hold. */
@@ -57,6 +58,8 @@ void session_fini(struct session *s)
 {
 	free(s->notes);
 	s->notes = NULL;
+	network_destroy(s->network);
+	s->network = NULL;
 }
 
 /* Deep-copy SRC into DST. */
@@ -70,11 +73,20 @@ int session_copy(struct session *dst, const struct session *src)
 			return -1;
 		memcpy(notes, src->notes, n);
 	}
+	struct network *net = NULL;
+	if (src->network != NULL && (net = network_copy(src->network)) == NULL) {
+		free(notes);
+		return -1;
+	}
 	if (dst != src) {
 		free(dst->notes);
+		network_destroy(dst->network);
 		*dst = *src;
+	} else {
+		network_destroy(dst->network);
 	}
 	dst->notes = notes;
+	dst->network = net;
 	return 0;
 }
 
@@ -91,6 +103,8 @@ bool session_equal(const struct session *a, const struct session *b)
 	if (x->form != y->form || !session_same(x->vs, y->vs) ||
 	    !session_same(x->rs, y->rs) || !session_same(x->is, y->is) ||
 	    !session_same(x->rp, y->rp))
+		return false;
+	if (!session_network_equal(a->network, b->network))
 		return false;
 	if (a->device.type != b->device.type)
 		return false;
@@ -450,7 +464,11 @@ int session_problem(const struct session *s, struct problem *pb, char *err,
                     size_t errlen)
 {
 	char why[256];
-	if (source_from_spec(&s->source, &pb->src, why, sizeof why) != 0) {
+	struct source_spec spec = s->source;
+	if (s->network != NULL &&
+	    session_network_spec(s->network, &spec, err, errlen) != 0)
+		return -1;
+	if (source_from_spec(&spec, &pb->src, why, sizeof why) != 0) {
 		snprintf(err, errlen, "source.%s", why);
 		return -1;
 	}

@@ -12,6 +12,7 @@
 #include <stddef.h>
 
 #include "core/model.h"
+#include "core/network.h"
 #include "core/problem.h"
 #include "core/source.h"
 #include "core/stepper.h"
@@ -38,6 +39,8 @@ struct session_conditions {
 /* One case. */
 struct session {
 	struct source_spec source;
+	struct network *network;   /* the source as a network, or NULL; then
+	                              source is its reduction (section_network.h) */
 	struct device device;
 	struct session_conditions conditions;
 	struct solve_options solver;
