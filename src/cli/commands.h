@@ -22,6 +22,7 @@ int cmd_solve(int argc, char **argv);
 int cmd_check(int argc, char **argv);
 int cmd_tidy(int argc, char **argv);
 int cmd_plot(int argc, char **argv);
+int cmd_reduce(int argc, char **argv);
 /* The terminal front end: biasline [options] [FILE]. */
 int cmd_tui(int argc, char **argv);
 

@@ -21,6 +21,7 @@ static const struct command commands[] = {
 	{ "check", cmd_check, "validate session files" },
 	{ "tidy", cmd_tidy, "print a session file in canonical form" },
 	{ "plot", cmd_plot, "print the load-line plot as text" },
+	{ "reduce", cmd_reduce, "reduce a network source to its Thevenin equivalent" },
 };
 
 /* Print the program's usage to OUT. */
