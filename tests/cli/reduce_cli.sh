@@ -1,0 +1,186 @@
+#!/bin/sh
+# biasline reduce as a script sees it: exit statuses, the CSV columns
+# against closed-form Thevenin values, the power balance at the operating
+# point, ideal sources, errors that name the file, line and part, and the
+# safety caution.
+# Usage: reduce_cli.sh BIASLINE
+set -u
+bl=$1
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+fails=0
+n=0
+
+# Check that COMMAND exits with WANT.
+expect_exit() {
+	want=$1; shift
+	n=$((n + 1))
+	"$@" >"$tmp/out" 2>"$tmp/err"
+	got=$?
+	if [ "$got" -ne "$want" ]; then
+		echo "not ok $n - '$*' exited $got, expected $want"; cat "$tmp/err"
+		fails=$((fails + 1))
+	else
+		echo "ok $n - '$*' exits $want"
+	fi
+}
+
+# Check that FILE contains the fixed string S.
+expect_text() {
+	n=$((n + 1))
+	if grep -F -q -- "$2" "$1"; then
+		echo "ok $n - output has '$2'"
+	else
+		echo "not ok $n - output lacks '$2'"; cat "$1"
+		fails=$((fails + 1))
+	fi
+}
+
+# Check that the awk program PROG exits 0 on FILE; WHAT names the check.
+expect_awk() {
+	n=$((n + 1))
+	if awk -F, "$2" "$1"; then
+		echo "ok $n - $3"
+	else
+		echo "not ok $n - $3"; cat "$1"
+		fails=$((fails + 1))
+	fi
+}
+
+# Invented values: a divider from a 13.7 V rail, an emitter-side resistor
+# to a -4.3 V rail, a 0.37 mA current source into the base.
+cat >"$tmp/net.yaml" <<'YAML'
+source:
+  network:
+    device_between: [base, emitter]
+    parts:
+      - name: upper rail
+        voltage_source: 13.7 V
+        from: ground
+        to: top
+      - name: lower rail
+        voltage_source: 4.3 V
+        from: bottom
+        to: ground
+      - name: upper, divider
+        resistor: 56k
+        from: top
+        to: base
+      - name: lower divider
+        resistor: 18k
+        from: base
+        to: ground
+      - name: trim
+        current_source: 0.37 mA
+        from: ground
+        to: base
+      - name: emitter resistor
+        resistor: 3.3k
+        from: emitter
+        to: bottom
+device:
+  model: diode
+  saturation_current: 2.2e-14
+  ideality: 1.04
+YAML
+expect_exit 0 "$bl" reduce --format csv "$tmp/net.yaml"
+expect_text "$tmp/out" "vth_V,rth_ohm,isc_A"
+# Superposition at the base (divider plus the current source into R1||R2),
+# the lower rail below the emitter; Rth = R1||R2 + Re (circuit theorems,
+# Alexander & Sadiku, Fundamentals of Electric Circuits).
+expect_awk "$tmp/out" 'NR==2 { p=56e3*18e3/(56e3+18e3);
+	vth=13.7*18e3/(56e3+18e3) + 0.37e-3*p + 4.3; rth=p+3.3e3;
+	a=($1-vth)/vth; b=($2-rth)/rth; if (a<0) a=-a; if (b<0) b=-b;
+	exit !(a < 1e-12 && b < 1e-12) }' "Vth and Rth match the closed form"
+expect_exit 0 "$bl" reduce --nodes --format csv "$tmp/net.yaml"
+expect_text "$tmp/out" "point,part,kind,from,to,voltage_V,current_A,power_W"
+expect_text "$tmp/out" '1,"upper, divider",resistor,top,base,'
+# Tellegen's theorem (Tellegen, Philips Res. Rep. 7, 1952): the parts'
+# absorbed powers and the device's sum to zero.
+expect_awk "$tmp/out" '/^point,voltage_V/ { s=1; next } s==1 && NF==4 { dev=$4; s=2; next }
+	/^point,part/ { s=3; next } s==3 && NF>=8 { sum+=$NF; mag+=($NF<0?-$NF:$NF) }
+	END { t=sum+dev; if (t<0) t=-t; exit !(mag > 0 && t < 1e-12*mag) }' \
+	"part powers and the device's sum to zero"
+expect_exit 0 "$bl" reduce --nodes --reference ground "$tmp/net.yaml"
+expect_text "$tmp/out" "Node voltages (relative to ground):"
+expect_text "$tmp/out" "13.7000 V"
+
+cat >"$tmp/current.yaml" <<'YAML'
+source:
+  network:
+    device_between: [anode, ground]
+    parts:
+      - name: feed
+        current_source: 2.5 mA
+        from: ground
+        to: x
+      - name: series
+        resistor: 1k
+        from: x
+        to: anode
+device:
+  model: diode
+  saturation_current: 2.2e-14
+  ideality: 1.04
+YAML
+expect_exit 0 "$bl" reduce --format csv "$tmp/current.yaml"
+expect_text "$tmp/out" "nan,inf,0.0025"
+
+cat >"$tmp/high.yaml" <<'YAML'
+source:
+  network:
+    device_between: [plus, ground]
+    parts:
+      - name: rail
+        voltage_source: 170 V
+        from: ground
+        to: plus
+      - name: bleeder
+        resistor: 47k
+        from: plus
+        to: ground
+device:
+  model: diode
+  saturation_current: 2.2e-14
+  ideality: 1.04
+  series_resistance: 2.2k
+YAML
+expect_exit 0 "$bl" reduce "$tmp/high.yaml"
+expect_text "$tmp/out" "Rth  0: an ideal voltage source"
+expect_text "$tmp/err" "caution: this circuit has more than 60 V DC"
+
+cat >"$tmp/loop.yaml" <<'YAML'
+source:
+  network:
+    device_between: [plus, ground]
+    parts:
+      - name: cell
+        voltage_source: 1.5 V
+        from: ground
+        to: plus
+      - name: load
+        resistor: 1k
+        from: plus
+        to: ground
+      - name: spare cell
+        voltage_source: 1.6 V
+        from: ground
+        to: plus
+device:
+  model: diode
+  saturation_current: 2.2e-14
+  ideality: 1.04
+YAML
+expect_exit 65 "$bl" reduce "$tmp/loop.yaml"
+expect_text "$tmp/err" "loop.yaml:13:9: source.network.spare cell: voltage source 'spare cell' closes a loop"
+expect_exit 66 "$bl" reduce "$tmp/does-not-exist.yaml"
+expect_exit 64 "$bl" reduce
+expect_exit 64 "$bl" reduce --format xml "$tmp/net.yaml"
+expect_exit 64 "$bl" reduce --reference ground "$tmp/net.yaml"
+expect_exit 64 "$bl" reduce --nodes --reference nowhere "$tmp/net.yaml"
+expect_exit 64 "$bl" reduce --bogus "$tmp/net.yaml"
+expect_exit 0 "$bl" reduce --help
+expect_text "$tmp/out" "--nodes"
+
+echo "1..$n"
+[ "$fails" -eq 0 ]
