@@ -25,7 +25,8 @@
 #define PATH_MAX 4096
 #endif
 
-#define RECOVERY_HEADER "# recovery of: "
+#define RECOVERY_LABEL "recovery of: "
+#define RECOVERY_HEADER "# " RECOVERY_LABEL
 #define RECOVERY_DEMO "(the built-in demo)"
 
 /* The recovery folder. */
@@ -140,7 +141,7 @@ enum session_status recovery_save(const struct session *s, const char *origin,
 	char abs[RECOVERY_PATH_MAX];
 	if (origin == NULL || recovery_absolute(origin, abs, sizeof abs) != 0)
 		snprintf(abs, sizeof abs, "%s", origin == NULL ? RECOVERY_DEMO : origin);
-	snprintf(line, sizeof line, "%s%s", RECOVERY_HEADER + 2, abs);
+	snprintf(line, sizeof line, "%s%s", RECOVERY_LABEL, abs);
 	for (char *p = line; *p; p++)
 		if (*p == '\n' || *p == '\r')
 			*p = '?';

@@ -77,6 +77,7 @@ struct text {
 };
 
 /* Append formatted text to T. */
+__attribute__((format(printf, 2, 3)))
 static void text_add(struct text *t, const char *fmt, ...)
 {
 	va_list ap;
