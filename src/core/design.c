@@ -176,7 +176,7 @@ int design_apply(const struct problem *pb, enum design_unknown u, double value,
 			return -1;
 		out->src.voc = value;
 	}
-	out->src.isc = out->src.r > 0.0 ? out->src.voc / out->src.r : INFINITY;
+	out->src.isc = out->src.r > 0.0 ? out->src.voc / out->src.r : NAN;
 	return 0;
 }
 

@@ -1,0 +1,79 @@
+/*
+ * paramref.h - a parameter of a problem named by its session key, so that
+ * sweeps, sensitivities and tolerances can vary any of them alike:
+ *
+ *   vs  the source's open-circuit voltage (RS kept)
+ *   rs  the source's series resistance (VS kept)
+ *   is  the source's short-circuit current (RP kept)
+ *   rp  the source's parallel resistance (IS kept)
+ *   any key of the device model's parameter table ("temperature", ...)
+ *
+ * vs and rs need a source with a finite resistance; is and rp one with a
+ * non-zero resistance.  Either pair works whatever form the user wrote the
+ * source in: the problem holds the load line, and each pair is one way of
+ * moving it.
+ */
+#ifndef BIASLINE_PARAMREF_H
+#define BIASLINE_PARAMREF_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "problem.h"
+#include "quantity.h"
+
+/* Which part of the problem a reference points at. */
+enum paramref_kind {
+	PARAMREF_VS,
+	PARAMREF_RS,
+	PARAMREF_IS,
+	PARAMREF_RP,
+	PARAMREF_DEVICE,
+};
+
+/* A parameter of a problem. */
+struct paramref {
+	enum paramref_kind kind;
+	int index;              /* the device parameter's index (DEVICE only) */
+};
+
+/*
+ * Look KEY up for PB into *OUT.  Returns 0, or -1 with a message in ERR
+ * (unknown key, listing the valid ones; or a source key that PB's source
+ * cannot take).
+ */
+int paramref_find(const struct problem *pb, const char *key,
+                  struct paramref *out, char *err, size_t errlen);
+
+/* The key of R ("vs", "saturation_current", ...). */
+const char *paramref_key(const struct problem *pb, const struct paramref *r);
+
+/* The unit of R's value. */
+enum qty_kind paramref_unit(const struct problem *pb, const struct paramref *r);
+
+/* R's value in PB. */
+double paramref_get(const struct problem *pb, const struct paramref *r);
+
+/*
+ * Whether X is a valid value of R (finite, inside the model's range for a
+ * device parameter, a resistance >= 0 or > 0 as the key needs).  Returns
+ * 0, or -1 with a message in ERR (may be NULL).
+ */
+int paramref_check(const struct problem *pb, const struct paramref *r,
+                   double x, char *err, size_t errlen);
+
+/* Whether X is inside MP's table range (no message; for loops). */
+bool paramref_in_range(const struct model_param *mp, double x);
+
+/* Set R to X in PB (after paramref_check); returns 0 or -1. */
+int paramref_set(struct problem *pb, const struct paramref *r, double x);
+
+/*
+ * Every parameter PB can vary: vs and rs (when the resistance is finite),
+ * is (when it is infinite), then the device's.  Writes at most MAX and
+ * returns how many.
+ */
+size_t paramref_all(const struct problem *pb, struct paramref *out,
+                    size_t max);
+
+#endif

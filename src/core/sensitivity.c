@@ -1,0 +1,116 @@
+/*
+ * sensitivity.c - implicit differentiation of the operating point (see
+ * sensitivity.h).
+ */
+#include "sensitivity.h"
+
+#include <math.h>
+#include <stdbool.h>
+#include <string.h>
+
+/* Relative difference step: about the cube root of the double epsilon,
+ * which balances truncation and rounding for a central difference. */
+#define SENS_REL_STEP 6e-6
+
+/* The device current at V with parameter INDEX set to X. */
+static double sens_current_with(const struct problem *pb, int index, double x,
+                                double v)
+{
+	struct device d = pb->dev;
+	d.p[index] = x;
+	return device_current(&d, v);
+}
+
+/* dI/dp at fixed V for device parameter INDEX. */
+double sensitivity_model_partial(const struct problem *pb, int index,
+                                 double v)
+{
+	const struct model_param *mp = &pb->dev.type->params[index];
+	double p = pb->dev.p[index];
+	double h = SENS_REL_STEP * fabs(p);
+	if (h == 0.0)
+		h = SENS_REL_STEP;
+	bool down = paramref_in_range(mp, p - h);
+	bool up = paramref_in_range(mp, p + h);
+	if (down && up) {
+		double a = sens_current_with(pb, index, p + h, v);
+		double b = sens_current_with(pb, index, p - h, v);
+		return (a - b) / (2.0 * h);
+	}
+	/* One-sided, second order: (-3 f0 + 4 f1 - f2) / (2 h). */
+	double s = up ? h : -h;
+	if (!paramref_in_range(mp, p + 2.0 * s))
+		return NAN;
+	double f0 = sens_current_with(pb, index, p, v);
+	double f1 = sens_current_with(pb, index, p + s, v);
+	double f2 = sens_current_with(pb, index, p + 2.0 * s, v);
+	return (-3.0 * f0 + 4.0 * f1 - f2) / (2.0 * s);
+}
+
+/* (P / Y) DY, NaN when Y is 0. */
+static double sens_norm(double p, double y, double dy)
+{
+	return y != 0.0 ? p / y * dy : NAN;
+}
+
+/* Sensitivities of (V, I) to R. */
+int sensitivity_at(const struct problem *pb, double v, double i,
+                   const struct paramref *r, struct sensitivity *out)
+{
+	memset(out, 0, sizeof *out);
+	out->param = *r;
+	out->value = paramref_get(pb, r);
+	if (pb->dev.type->current == NULL)
+		return -1;
+	const struct source *s = &pb->src;
+	bool amps = isinf(s->r); /* the residual is in amperes */
+	double fv = problem_residual_slope(pb, v);
+	double g = device_conductance(&pb->dev, v);
+	double fp = 0.0, ip = 0.0; /* dF/dp, and dI/dp at fixed V */
+	switch (r->kind) {
+	case PARAMREF_VS:
+		if (amps)
+			return -1;
+		fp = -1.0;
+		break;
+	case PARAMREF_RS:
+		if (amps)
+			return -1;
+		fp = i;
+		break;
+	case PARAMREF_IS:
+		fp = amps ? -1.0 : -s->r;
+		break;
+	case PARAMREF_RP:
+		if (amps)
+			return -1;
+		fp = i - s->isc;
+		break;
+	case PARAMREF_DEVICE:
+		ip = sensitivity_model_partial(pb, r->index, v);
+		fp = amps ? ip : s->r * ip;
+		break;
+	}
+	if (!isfinite(fv) || fv == 0.0 || !isfinite(fp) || !isfinite(g))
+		return -1;
+	out->dv = -fp / fv;
+	out->di = g * out->dv + ip;
+	out->dp = i * out->dv + v * out->di;
+	out->sv = sens_norm(out->value, v, out->dv);
+	out->si = sens_norm(out->value, i, out->di);
+	out->sp = sens_norm(out->value, v * i, out->dp);
+	return 0;
+}
+
+/* Sensitivities to every parameter. */
+size_t sensitivity_all(const struct problem *pb, double v, double i,
+                       struct sensitivity *out, size_t max)
+{
+	struct paramref refs[4 + MODEL_MAX_PARAMS];
+	size_t nr = paramref_all(pb, refs, sizeof refs / sizeof refs[0]);
+	size_t n = 0;
+	for (size_t k = 0; k < nr && n < max; k++)
+		if (sensitivity_at(pb, v, i, &refs[k], &out[n]) == 0)
+			n++;
+	return n;
+}
