@@ -279,9 +279,6 @@ static int app_side_width(const struct app *a, int cols)
 static void app_draw_title(struct app *a, int cols)
 {
 	term_fill(&a->term, 0, 0, cols, TS_TITLE);
-	char left[512];
-	const char *name = a->path != NULL ? a->path : "demo (not saved to a file)";
-	snprintf(left, sizeof left, " biasline  %s%s", name, a->dirty ? "  [modified]" : "");
 	char right[160] = "";
 	int ascii = a->view.unicode ? 0 : 1;
 	if (a->res.n > 0) {
@@ -294,7 +291,23 @@ static void app_draw_title(struct app *a, int cols)
 		snprintf(right, sizeof right, "no operating point  ? help ");
 	}
 	int rw = render_text_width(right);
-	term_text(&a->term, 0, 0, left, cols - rw - 1, TS_TITLE);
+	/* The name loses its start, never the modified mark, when short of room. */
+	char head[64];
+	snprintf(head, sizeof head, " biasline %s ", a->dirty ? "[modified]" : "");
+	const char *name = a->path != NULL ? a->path : "demo (not saved to a file)";
+	int room = cols - rw - 2 - render_text_width(head);
+	int nw = render_text_width(name);
+	char shown[512];
+	if (room > 3 && nw > room) {
+		const char *p = name;
+		for (int skip = nw - (room - 3); skip > 0 && *p != '\0'; skip--)
+			render_utf8_next(&p);
+		snprintf(shown, sizeof shown, "...%s", p);
+	} else {
+		snprintf(shown, sizeof shown, "%s", name);
+	}
+	int c = term_text(&a->term, 0, 0, head, cols - rw - 1, TS_TITLE);
+	term_text(&a->term, 0, c, shown, cols - rw - 1 - c, TS_TITLE);
 	term_text(&a->term, 0, cols - rw, right, rw, TS_TITLE);
 }
 
