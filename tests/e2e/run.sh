@@ -1,0 +1,382 @@
+#!/bin/bash
+# run.sh - end-to-end tests of the terminal front end through tmux.
+#
+# Usage: run.sh SCENARIO BIASLINE SAMPLES_DIR
+#
+# Each scenario starts the real program in a private tmux server (its own
+# socket, HOME and XDG_STATE_HOME under a temporary folder), sends keys and
+# reads the screen with capture-pane.  Waits poll with short sleeps and a
+# bounded number of tries; nothing asserts on time.  Exit 77 = skipped.
+set -u
+
+scenario=$1
+bin=$2
+samples=$3
+
+if [ "$scenario" != plot ] && ! command -v tmux >/dev/null 2>&1; then
+	echo "tmux not found: skipped"
+	exit 77
+fi
+
+work=$(mktemp -d "${TMPDIR:-/tmp}/biasline-e2e.XXXXXX")
+export HOME=$work/home XDG_STATE_HOME=$work/state TERM=xterm-256color
+unset TMUX NO_COLOR ESCDELAY
+mkdir -p "$HOME"
+sock=$work/tmux.sock
+
+# tmux on the private server, ignoring any user configuration.
+tmx() { tmux -S "$sock" -f /dev/null "$@"; }
+
+# Stop the server; the program may still be writing its recovery file.
+cleanup() {
+	tmx kill-server >/dev/null 2>&1
+	local k
+	for ((k = 0; k < 50; k++)); do
+		rm -rf "$work" 2>/dev/null && return
+		sleep 0.1
+	done
+}
+trap cleanup EXIT
+
+fail() { echo "FAIL: $*"; echo "--- screen ---"; screen; exit 1; }
+
+# The visible screen as text.
+screen() { tmx capture-pane -p 2>/dev/null; }
+
+# Start the program in a W x H window: start W H ARGS...
+start() {
+	local w=$1 h=$2; shift 2
+	local cmd="exec $(printf '%q ' "$bin" "$@") 2>>$(printf '%q' "$work/stderr")"
+	tmx new-session -d -x "$w" -y "$h" "$cmd" || fail "tmux could not start"
+}
+
+# Wait until the screen contains TEXT (fixed string): wait_for TEXT [TRIES].
+wait_for() {
+	local tries=${2:-100} k
+	for ((k = 0; k < tries; k++)); do
+		screen | grep -qF -- "$1" && return 0
+		sleep 0.1
+	done
+	fail "did not see '$1'"
+}
+
+# Wait until the screen does not contain TEXT.
+wait_gone() {
+	local tries=${2:-100} k
+	for ((k = 0; k < tries; k++)); do
+		screen | grep -qF -- "$1" || return 0
+		sleep 0.1
+	done
+	fail "still see '$1'"
+}
+
+# Wait until the tmux server is gone (the program exited).
+wait_exit() {
+	local k
+	for ((k = 0; k < 100; k++)); do
+		tmx has-session >/dev/null 2>&1 || return 0
+		sleep 0.1
+	done
+	fail "the program did not exit"
+}
+
+# Send keys (tmux key names).
+keys() { tmx send-keys "$@"; }
+
+# An engineering value ("4.312m", "2.145", "9.9339 mA", "-3.1e-21") in base units.
+eng() {
+	awk -v s="$*" 'BEGIN {
+		gsub(/ /, "", s); sub(/(V|A|W|ohm|S)$/, "", s)
+		p = substr(s, length(s), 1); m = 1
+		if (p == "f") m = 1e-15; else if (p == "p") m = 1e-12
+		else if (p == "n") m = 1e-9; else if (p == "u") m = 1e-6
+		else if (p == "m") m = 1e-3; else if (p == "k") m = 1e3
+		else if (p == "M") m = 1e6; else if (p == "G") m = 1e9
+		if (m != 1) s = substr(s, 1, length(s) - 1)
+		printf "%.17g\n", s * m }'
+}
+
+# True when A and B agree to relative tolerance TOL.
+close_to() {
+	awk -v a="$1" -v b="$2" -v t="$3" 'BEGIN {
+		d = a - b; if (d < 0) d = -d; m = b < 0 ? -b : b
+		exit !(d <= t * m) }'
+}
+
+# The operating point in the title bar: sets TV and TI (as displayed).
+title_point() {
+	local line
+	line=$(screen | head -1)
+	TV=$(sed -n 's/.*point \([^,]*\), \([^ ]* [^ ]*\).*/\1/p' <<<"$line")
+	TI=$(sed -n 's/.*point \([^,]*\), \([^ ]* [^ ]*\).*/\2/p' <<<"$line")
+	[ -n "$TV" ] && [ -n "$TI" ] || fail "no operating point in the title"
+}
+
+# Rows of the convergence table: lines of the side pane after its header.
+table_rows() {
+	screen | awk -F'|' 'NF > 1 { print $NF }' |
+		awk '/^ *k +V +I/ { on = 1; next } on && /^ *[0-9]+ / { print }'
+}
+
+case $scenario in
+plot)
+	# 'biasline plot' on every sample at three sizes, then its errors.
+	for f in "$samples"/*.yaml; do
+		for size in 60x20 100x30 200x60; do
+			w=${size%x*} h=${size#*x}
+			out=$("$bin" plot --width "$w" --height "$h" --steps 4 "$f") ||
+				fail "plot $f at $size exited $?"
+			[ "$(wc -l <<<"$out")" -eq "$h" ] || fail "plot $f at $size: not $h lines"
+			for mark in '#' '*' 'o' 'I^ V>'; do
+				grep -qF -- "$mark" <<<"$out" || fail "plot $f at $size: no '$mark'"
+			done
+			awk -v w="$w" 'length($0) > w { exit 1 }' <<<"$out" ||
+				fail "plot $f at $size: a line is wider than $w"
+		done
+		out=$("$bin" plot --zoom-point "$f") || fail "plot --zoom-point $f"
+		grep -qF '@' <<<"$out" || fail "plot --zoom-point $f: no operating point"
+		out=$("$bin" plot --unicode --steps 3 "$f") || fail "plot --unicode $f"
+		grep -qF "$(printf '\342\227\211')" <<<"$out" || fail "plot --unicode $f: no point mark"
+	done
+	"$bin" plot --help | grep -q -- "--zoom-point" || fail "plot --help"
+	"$bin" plot "$work/missing.yaml" 2>/dev/null; rc=$?
+	[ $rc -eq 66 ] || fail "missing file exited $rc, not 66"
+	printf 'format_version: 1\nsource: [\n' >"$work/bad.yaml"
+	"$bin" plot "$work/bad.yaml" 2>/dev/null; rc=$?
+	[ $rc -eq 65 ] || fail "bad data exited $rc, not 65"
+	for args in "--width 5 x.yaml" "--steps -1 x.yaml" "--frobnicate x.yaml" "" "a.yaml b.yaml"; do
+		# shellcheck disable=SC2086
+		"$bin" plot $args 2>/dev/null; rc=$?
+		[ $rc -eq 64 ] || fail "plot $args exited $rc, not 64"
+	done
+	echo "ok: every sample plots at 60x20, 100x30, 200x60; exit codes 64, 65, 66"
+	;;
+steps)
+	# Ten projections give ten new table rows, numbered 1 to 10.
+	start 100 30 "$samples/diode-string-reference.yaml"
+	wait_for "Convergence"
+	for ((k = 1; k <= 10; k++)); do
+		keys Space
+		wait_for "k=$k "
+	done
+	rows=$(table_rows)
+	for ((k = 1; k <= 10; k++)); do
+		grep -qE "^ *$k " <<<"$rows" || fail "table row $k missing"
+	done
+	n=$(grep -cE '^ *([1-9]|10) ' <<<"$rows")
+	[ "$n" -eq 10 ] || fail "expected 10 step rows, found $n"
+	# Stepping back removes the newest row.
+	keys b
+	wait_for "k=9 "
+	table_rows | grep -qE '^ *10 ' && fail "row 10 still shown after b"
+	echo "ok: ten steps, ten rows; b removed the newest"
+	;;
+converge)
+	# Running to convergence ends on the solved point.
+	file=$samples/indicator-led-24v.yaml
+	start 100 30 "$file"
+	wait_for "Convergence"
+	keys g
+	wait_for "converged after"
+	title_point
+	last=$(table_rows | tail -1)
+	rv=$(awk '{ print $2 }' <<<"$last")
+	ri=$(awk '{ print $3 }' <<<"$last")
+	close_to "$(eng "$rv")" "$(eng "$TV")" 5e-4 || fail "last row V $rv vs point $TV"
+	close_to "$(eng "$ri")" "$(eng "$TI")" 5e-4 || fail "last row I $ri vs point $TI"
+	echo "ok: converged row V=$rv I=$ri matches the solved point $TV, $TI"
+	# Compare with 'biasline solve' when it is built and its output parses.
+	if out=$("$bin" solve "$file" 2>/dev/null); then
+		sv=$(grep -oE -- '-?[0-9.]+(e-?[0-9]+)? ?[fpnumkM]?V\b' <<<"$out" | head -1)
+		si=$(grep -oE -- '-?[0-9.]+(e-?[0-9]+)? ?[fpnumkM]?A\b' <<<"$out" | head -1)
+		if [ -n "$sv" ] && [ -n "$si" ]; then
+			close_to "$(eng "$sv")" "$(eng "$TV")" 1e-4 || fail "solve V $sv vs TUI $TV"
+			close_to "$(eng "$si")" "$(eng "$TI")" 1e-4 || fail "solve I $si vs TUI $TI"
+			echo "ok: matches 'biasline solve' ($sv, $si)"
+		else
+			echo "note: 'biasline solve' output had no V and A values to compare"
+		fi
+	else
+		echo "note: 'biasline solve' not available; compared with the TUI's own point"
+	fi
+	;;
+order)
+	# The demo diverges in its stored order; flipping the order fixes it.
+	start 100 30
+	wait_for "predicted: spirals out"
+	keys g
+	wait_for "after"
+	screen | tail -1 | grep -q "converged" && fail "the demo converged in the diverging order"
+	keys o
+	wait_for "predicted: spirals in"
+	wait_for "order: voltage from the device"
+	keys g
+	wait_for "converged after"
+	echo "ok: diagnosis changed from spiral out to spiral in; converged after the flip"
+	;;
+edit)
+	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
+	start 100 30 "$samples/projection-order-matters.yaml"
+	wait_for "Convergence"
+	title_point
+	before="$TV, $TI"
+	keys Down e
+	wait_for "RS ="
+	keys 2.2x Enter
+	wait_for "unknown"
+	keys BSpace k Enter
+	wait_for "RS       2.2000 kohm"
+	wait_for "[modified]"
+	title_point
+	[ "$TV, $TI" != "$before" ] || fail "the point did not move ($before)"
+	# Esc cancels a prompt and keeps the value.
+	keys e 47 Escape
+	wait_for "cancelled"
+	wait_for "RS       2.2000 kohm"
+	echo "ok: point moved from $before to $TV, $TI"
+	;;
+resize)
+	# Axes and the table survive resizes to 80x24 and 200x60; tiny waits.
+	start 100 30 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	keys Space Space Space
+	wait_for "k=3 "
+	for size in 80x24 200x60 50x15 100x30; do
+		tmx resize-window -x "${size%x*}" -y "${size#*x}"
+		if [ "$size" = 50x15 ]; then
+			wait_for "terminal too small"
+			continue
+		fi
+		wait_gone "terminal too small"
+		wait_for "I^ V>"
+		screen | grep -qE '^ *[0-9.]+ [munp]?A\+' || fail "no current axis at $size"
+		screen | grep -qE '\+-+\+' || fail "no voltage axis at $size"
+		wait_for "Convergence"
+		table_rows | grep -qE '^ *3 ' || fail "table lost row 3 at $size"
+	done
+	echo "ok: axes and table at 80x24, 200x60; too-small screen at 50x15"
+	;;
+save)
+	# Save, quit, reopen: the same state.
+	cp "$samples/lamp-12v-battery.yaml" "$work/lamp.yaml"
+	start 100 30 "$work/lamp.yaml"
+	wait_for "Convergence"
+	was=$(screen | grep -oE 'order +V from (line|device)' | awk '{ print $NF }')
+	[ -n "$was" ] || fail "no order shown"
+	now=line
+	[ "$was" = line ] && now=device
+	keys o
+	wait_for "[modified]"
+	wait_for "V from $now"
+	keys s
+	wait_for "saved"
+	wait_gone "[modified]"
+	keys q
+	wait_exit
+	grep -q "order: voltage-from-$now" "$work/lamp.yaml" ||
+		fail "the saved file lacks order voltage-from-$now"
+	start 100 30 "$work/lamp.yaml"
+	wait_for "Convergence"
+	wait_for "V from $now"
+	screen | grep -qF "[modified]" && fail "reopened file shows as modified"
+	screen | grep -qF "recovery" && fail "a recovery prompt after a clean save"
+	keys q
+	wait_exit
+	echo "ok: order flipped from $was to $now survived save, quit and reopen"
+	;;
+hangup)
+	# Killing the tmux server (SIGHUP) leaves a recovery file with the edit.
+	cp "$samples/projection-order-matters.yaml" "$work/order.yaml"
+	start 100 30 "$work/order.yaml"
+	wait_for "Convergence"
+	keys Down e 2.2k Enter
+	wait_for "RS       2.2000 kohm"
+	tmx kill-server
+	for ((k = 0; k < 50; k++)); do
+		rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
+		[ -n "$rec" ] && break
+		sleep 0.1
+	done
+	[ -n "$rec" ] || fail "no recovery file under $XDG_STATE_HOME/biasline"
+	"$bin" check "$rec" >/dev/null || fail "the recovery file is not a valid session"
+	grep -qE 'rs: *(2200|2\.2 ?k)' "$rec" || { cat "$rec"; fail "the recovery file lacks rs = 2.2k"; }
+	# Reopening offers it back; y restores the edit.
+	start 100 30 "$work/order.yaml"
+	wait_for "restore it? (y/n)"
+	keys y
+	wait_for "RS       2.2000 kohm"
+	wait_for "[modified]"
+	echo "ok: recovery file $(basename "$rec") holds rs = 2.2k and restores"
+	;;
+bytes)
+	# Bytes written for the first full draw and for each Space step.
+	out=$work/pane.bytes
+	tmx new-session -d -x 100 -y 30 \
+		"read _; exec $(printf '%q ' "$bin" "$samples/diode-string-reference.yaml")" ||
+		fail "tmux could not start"
+	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
+	keys Enter
+	wait_for "Convergence"
+	settle() {
+		local last=-1 same=0 size k
+		for ((k = 0; k < 100 && same < 3; k++)); do
+			size=$(stat -c %s "$out" 2>/dev/null || echo 0)
+			if [ "$size" = "$last" ]; then same=$((same + 1)); else same=0; fi
+			last=$size
+			sleep 0.1
+		done
+		echo "$last"
+	}
+	full=$(settle)
+	prev=$full total=0
+	for ((s = 1; s <= 10; s++)); do
+		keys Space
+		wait_for "k=$s "
+		now=$(settle)
+		total=$((total + now - prev))
+		prev=$now
+	done
+	avg=$((total / 10))
+	echo "bytes: first full draw $full, average Space step $avg (100x30)"
+	[ "$full" -gt 1000 ] || fail "the full draw is implausibly small ($full bytes)"
+	[ $((avg * 100)) -le $((full * 15)) ] || fail "a step costs $avg bytes, over 15% of $full"
+	echo "ok: a step costs $((avg * 100 / full))% of the full draw"
+	;;
+valgrind)
+	command -v valgrind >/dev/null 2>&1 || { echo "valgrind not found: skipped"; exit 77; }
+	log=$work/valgrind.log
+	tmx new-session -d -x 100 -y 30 \
+		"exec valgrind --error-exitcode=1 --leak-check=full --errors-for-leak-kinds=definite --log-file=$(printf '%q' "$log") $(printf '%q ' "$bin" "$samples/indicator-led-24v.yaml")"
+	wait_for "Convergence" 600
+	keys Space Space
+	wait_for "k=2 " 300
+	keys g
+	wait_for "after" 300
+	keys o Down e 4.7k Enter
+	wait_for "RS       4.7000 kohm" 300
+	tmx resize-window -x 80 -y 24
+	wait_for "Convergence" 300
+	keys '?'
+	wait_for "Keys (any key" 300
+	keys x q
+	wait_for "quit without saving" 300
+	keys y
+	wait_exit
+	for ((k = 0; k < 100; k++)); do
+		grep -q "ERROR SUMMARY" "$log" 2>/dev/null && break
+		sleep 0.1
+	done
+	grep -q "ERROR SUMMARY: 0 errors" "$log" || { cat "$log"; fail "valgrind found errors"; }
+	grep -E "definitely lost|ERROR SUMMARY" "$log" | sed 's/^==[0-9]*== *//'
+	echo "ok: valgrind clean over a scripted session"
+	;;
+*)
+	echo "unknown scenario $scenario"
+	exit 2
+	;;
+esac
+if [ -s "$work/stderr" ]; then
+	echo "--- stderr of the program ---"
+	cat "$work/stderr"
+fi
+exit 0
