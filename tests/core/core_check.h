@@ -132,8 +132,10 @@ static inline long double check_diode_exact_current(double is, double nvt,
 	long double b = ((long double)vs + (long double)is * r) / nvt;
 	long double lx = logl(a) + b;
 	long double w;
+	/* exp of the whole logarithm: under valgrind long double has only
+	 * the range of double, where exp(b) alone may overflow. */
 	if (lx < 700.0L)
-		w = gsl_sf_lambert_W0((double)(a * expl(b)));
+		w = gsl_sf_lambert_W0((double)expl(lx));
 	else
 		w = check_wright_omega(lx);
 	return (long double)nvt / r * w - is;
