@@ -60,13 +60,19 @@ static void model_param_describe_range(const struct model_param *mp, char *buf,
 		         lo, hi, mp->max_open ? ")" : "]");
 }
 
+/* True when VALUE is finite and inside MP's range (no message). */
+static inline bool model_param_ok(const struct model_param *mp, double value)
+{
+	bool below = mp->min_open ? !(value > mp->min) : !(value >= mp->min);
+	bool above = mp->max_open ? !(value < mp->max) : !(value <= mp->max);
+	return isfinite(value) && !below && !above;
+}
+
 /* Check one value against its table entry. */
 int model_param_check(const struct model_param *mp, double value, char *err,
                       size_t errlen)
 {
-	bool below = mp->min_open ? !(value > mp->min) : !(value >= mp->min);
-	bool above = mp->max_open ? !(value < mp->max) : !(value <= mp->max);
-	if (isfinite(value) && !below && !above)
+	if (model_param_ok(mp, value))
 		return 0;
 	/* Only a rejected value pays for formatting the range. */
 	char range[128];
@@ -93,9 +99,11 @@ int device_validate(const struct device *dev, char *err, size_t errlen)
 		snprintf(err, errlen, "model: no device model given");
 		return -1;
 	}
+	/* The inline test first: every solve validates, so keep it cheap. */
 	for (size_t k = 0; k < dev->type->nparams; k++)
-		if (model_param_check(&dev->type->params[k], dev->p[k], err, errlen) != 0)
-			return -1;
+		if (!model_param_ok(&dev->type->params[k], dev->p[k]))
+			return model_param_check(&dev->type->params[k], dev->p[k], err,
+			                         errlen);
 	if (dev->type->validate != NULL)
 		return dev->type->validate(dev->p, err, errlen);
 	return 0;
