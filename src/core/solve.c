@@ -20,7 +20,10 @@ void solve_finish_point(const struct problem *pb, struct op_point *pt)
 {
 	const struct model_type *t = pb->dev.type;
 	pt->power = pt->v * pt->i;
-	if (t->series_resistance != NULL && t->intrinsic_conductance != NULL) {
+	if (pt->i > 0.0 && t->resistance != NULL) {
+		/* Forward: resistance(I) is well conditioned, and needs no exp. */
+		pt->rd = t->resistance(pb->dev.p, pt->i);
+	} else if (t->series_resistance != NULL && t->intrinsic_conductance != NULL) {
 		/*
 		 * 1/gj + Rs at the junction voltage.  resistance(I) divides by
 		 * Is + I, which cancels in reverse bias (rd off by 2e-8 at
@@ -32,9 +35,10 @@ void solve_finish_point(const struct problem *pb, struct op_point *pt)
 		pt->rd = 1.0 / gj + rser;
 	} else {
 		pt->rd = t->resistance != NULL ? t->resistance(pb->dev.p, pt->i) : NAN;
-		if (!isfinite(pt->rd) && t->conductance != NULL)
-			pt->rd = 1.0 / device_conductance(&pb->dev, pt->v);
 	}
+	if (!isfinite(pt->rd) && t->conductance != NULL &&
+	    (t->series_resistance == NULL || t->intrinsic_conductance == NULL))
+		pt->rd = 1.0 / device_conductance(&pb->dev, pt->v);
 	pt->residual = fabs(source_line_residual(&pb->src, pt->v, pt->i));
 }
 
