@@ -118,6 +118,32 @@ table_rows() {
 		awk '/^ *k +V +I/ { on = 1; next } on && /^ *[0-9]+ / { print }'
 }
 
+# Start with pipe-pane capturing the program's output into OUT from its
+# first byte: start_piped W H OUT ENV ARGS... (ENV: "" or VAR=value).
+start_piped() {
+	local w=$1 h=$2 out=$3 envset=$4; shift 4
+	tmx new-session -d -x "$w" -y "$h" \
+		"read _; exec env $envset $(printf '%q ' "$bin" "$@") 2>>$(printf '%q' "$work/stderr")" ||
+		fail "tmux could not start"
+	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
+	keys Enter
+}
+
+# The program's process id (the pane runs it with exec).
+pane_pid() { tmx display -p '#{pane_pid}'; }
+
+# Wait until the file OUT stops growing; prints its size.
+settle() {
+	local out=$1 last=-1 same=0 size k
+	for ((k = 0; k < 100 && same < 3; k++)); do
+		size=$(stat -c %s "$out" 2>/dev/null || echo 0)
+		if [ "$size" = "$last" ]; then same=$((same + 1)); else same=0; fi
+		last=$size
+		sleep 0.1
+	done
+	echo "$last"
+}
+
 case $scenario in
 plot)
 	# 'biasline plot' on every sample at three sizes, then its errors.
@@ -308,28 +334,14 @@ hangup)
 bytes)
 	# Bytes written for the first full draw and for each Space step.
 	out=$work/pane.bytes
-	tmx new-session -d -x 100 -y 30 \
-		"read _; exec $(printf '%q ' "$bin" "$samples/diode-string-reference.yaml")" ||
-		fail "tmux could not start"
-	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
-	keys Enter
+	start_piped 100 30 "$out" "" "$samples/diode-string-reference.yaml"
 	wait_for "Convergence"
-	settle() {
-		local last=-1 same=0 size k
-		for ((k = 0; k < 100 && same < 3; k++)); do
-			size=$(stat -c %s "$out" 2>/dev/null || echo 0)
-			if [ "$size" = "$last" ]; then same=$((same + 1)); else same=0; fi
-			last=$size
-			sleep 0.1
-		done
-		echo "$last"
-	}
-	full=$(settle)
+	full=$(settle "$out")
 	prev=$full total=0
 	for ((s = 1; s <= 10; s++)); do
 		keys Space
 		wait_for "k=$s "
-		now=$(settle)
+		now=$(settle "$out")
 		total=$((total + now - prev))
 		prev=$now
 	done
@@ -338,6 +350,87 @@ bytes)
 	[ "$full" -gt 1000 ] || fail "the full draw is implausibly small ($full bytes)"
 	[ $((avg * 100)) -le $((full * 15)) ] || fail "a step costs $avg bytes, over 15% of $full"
 	echo "ok: a step costs $((avg * 100 / full))% of the full draw"
+	;;
+color)
+	# Colour codes (setaf 1-6) appear by default, never with NO_COLOR or
+	# --no-color; bold and reverse still carry the meaning then.
+	esc=$(printf '\033')
+	for mode in default NO_COLOR no-color; do
+		out=$work/$mode.bytes
+		case $mode in
+		default) start_piped 100 30 "$out" "" ;;
+		NO_COLOR) start_piped 100 30 "$out" "NO_COLOR=1" ;;
+		no-color) start_piped 100 30 "$out" "" --no-color ;;
+		esac
+		wait_for "Convergence"
+		settle "$out" >/dev/null
+		n=$(grep -c "$esc\[[0-9;]*3[1-6]m" "$out")
+		if [ "$mode" = default ]; then
+			[ "$n" -gt 0 ] || fail "no colour codes by default"
+		else
+			[ "$n" -eq 0 ] || fail "$n colour codes with $mode"
+			grep -q "$esc\[[0;]*7m" "$out" || fail "no reverse video with $mode"
+		fi
+		keys q
+		wait_exit
+	done
+	echo "ok: colour by default, none with NO_COLOR or --no-color"
+	;;
+signals)
+	# SIGTERM with an unsaved edit: recovery file, status 143, terminal
+	# restored.  A fatal signal: the handler still restores the terminal.
+	esc=$(printf '\033')
+	cp "$samples/indicator-led-24v.yaml" "$work/led.yaml"
+	out=$work/term.bytes
+	tmx new-session -d -x 100 -y 30 \
+		"read _; $(printf '%q ' "$bin" "$work/led.yaml") 2>/dev/null; echo \"status=\$?\"; read _" ||
+		fail "tmux could not start"
+	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
+	keys Enter
+	wait_for "Convergence"
+	keys Down e 1.8k Enter
+	wait_for "RS       1.8000 kohm"
+	pid=$(pgrep -P "$(pane_pid)" -x biasline || true)
+	[ -n "$pid" ] || fail "no biasline process"
+	kill -TERM "$pid"
+	wait_for "status=143"
+	grep -q "$esc\[?1049l" "$out" || fail "the terminal was not restored after SIGTERM"
+	ls "$XDG_STATE_HOME"/biasline/*.yaml >/dev/null 2>&1 || fail "no recovery file after SIGTERM"
+	keys Enter
+	wait_exit
+	out=$work/segv.bytes
+	start_piped 100 30 "$out" "" "$work/led.yaml"
+	wait_for "restore it?"
+	pid=$(pane_pid)
+	kill -SEGV "$pid"
+	wait_exit
+	tail -c 200 "$out" | grep -q "$esc\[?1049l" || fail "no reset written after SIGSEGV"
+	echo "ok: SIGTERM saved the recovery file and exited 143; SIGSEGV restored the terminal"
+	;;
+badterm)
+	# An unknown TERM gets a clear message and status 69, not a crash.
+	tmx new-session -d -x 100 -y 30 \
+		"TERM=no-such-terminal-here $(printf '%q ' "$bin"); echo \"status=\$?\"; read _" ||
+		fail "tmux could not start"
+	wait_for "status=69"
+	wait_for "set TERM to e.g. xterm-256color"
+	keys Enter
+	wait_exit
+	echo "ok: unknown TERM: message and status 69"
+	;;
+idle)
+	# Waiting for a key costs no CPU: the read blocks.
+	start 100 30 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	pid=$(pane_pid)
+	t0=$(awk '{ print $14 + $15 }' "/proc/$pid/stat")
+	sleep 1
+	t1=$(awk '{ print $14 + $15 }' "/proc/$pid/stat")
+	echo "CPU ticks while idle for a second: $((t1 - t0))"
+	[ $((t1 - t0)) -le 2 ] || fail "the program uses CPU while idle"
+	state=$(awk '{ print $3 }' "/proc/$pid/stat")
+	[ "$state" = S ] || fail "idle process state is $state, not S (sleeping)"
+	echo "ok: asleep in a blocking read while idle"
 	;;
 valgrind)
 	command -v valgrind >/dev/null 2>&1 || { echo "valgrind not found: skipped"; exit 77; }
