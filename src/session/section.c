@@ -379,8 +379,11 @@ int section_save(struct emit_ctx *e, const struct session_section *sec,
 /* Emit event EV (consumed either way); records an emitter failure. */
 static int emit_event(struct emit_ctx *e, yaml_event_t *ev)
 {
-	if (e->failed)
+	if (e->failed) {
+		/* not handed to the emitter, so still ours to free */
+		yaml_event_delete(ev);
 		return -1;
+	}
 	if (!yaml_emitter_emit(e->em, ev)) {
 		e->failed = true;
 		ytree_error_at(e->err, "", 0, 0, "", "cannot write YAML: %s",

@@ -831,6 +831,29 @@ static void test_preset(void **state)
 	session_fini(&s);
 }
 
+/* Text that cannot be written as YAML fails cleanly: a status, no output. */
+static void test_save_refuses_bad_text(void **state)
+{
+	(void)state;
+	struct session s;
+	session_init(&s);
+	s.notes = strdup("caf\xc3\x28 and more");
+	char *y = (char *)1;
+	size_t n = 99;
+	struct session_error err;
+	assert_int_equal(session_save_buffer(&s, &y, &n, &err), SESSION_IO_ERROR);
+	assert_null(y);
+	assert_int_equal(n, 0);
+	assert_non_null(strstr(err.message, "UTF-8"));
+	/* a non-finite number cannot be written either */
+	free(s.notes);
+	s.notes = NULL;
+	s.view.zoom = NAN;
+	assert_int_equal(session_save_buffer(&s, &y, &n, &err), SESSION_IO_ERROR);
+	assert_non_null(strstr(err.message, "non-finite"));
+	session_fini(&s);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -854,6 +877,7 @@ int main(void)
 		cmocka_unit_test(test_recovery),
 		cmocka_unit_test(test_samples),
 		cmocka_unit_test(test_preset),
+		cmocka_unit_test(test_save_refuses_bad_text),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
