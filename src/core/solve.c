@@ -238,7 +238,11 @@ enum solve_status solve_problem(const struct problem *pb,
                                 const struct solve_options *o,
                                 struct solve_result *out)
 {
-	memset(out, 0, sizeof *out);
+	/* Only the header: points past n are never read (saves clearing
+	 * the whole 1.2 KB table on every solve). */
+	out->status = SOLVE_OK;
+	out->n = 0;
+	out->message[0] = '\0';
 	out->stop = STEP_CONTINUE;
 	char err[200];
 	if (device_validate(&pb->dev, err, sizeof err) != 0) {
