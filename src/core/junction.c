@@ -114,11 +114,20 @@ struct junction_result junction_solve(const struct model_type *t,
 		line_flatter = inverse && junction_log_step(t, p, voc, r, v, &f, &dv);
 		if (line_flatter != was_flatter)
 			prev_dv = NAN;
-		if (!line_flatter) {
-			f = v + r * junction_current(t, p, v) - voc;
-			double d = 1.0 + r * junction_conductance(t, p, v);
+		/* The current's scale, to hold its error below TOL as well. */
+		double iscale, gscale;
+		if (line_flatter) {
+			iscale = fabs(voc - v) / r; /* the current from the line */
+			gscale = 1.0 / r;
+		} else {
+			double ij = junction_current(t, p, v);
+			double g = junction_conductance(t, p, v);
+			f = v + r * ij - voc;
+			double d = 1.0 + r * g;
 			if (isfinite(f) && isfinite(d) && d > 0.0)
 				dv = f / d;
+			iscale = fabs(ij);
+			gscale = g;
 		}
 		if (f == 0.0) {
 			res.ok = 1;
@@ -140,15 +149,18 @@ struct junction_result junction_solve(const struct model_type *t,
 			 * Two plain Newton steps in the quadratic regime (this one
 			 * below 1e-3 of the last) estimate the error constant as
 			 * dv / prev^2, so the step after this one would be about
-			 * dv^3 / prev^2.  When that is 100 times below TOL, this
+			 * dv^3 / prev^2.  When that is 100 times below TOL on the
+			 * voltage and on the current it moves (the current is
+			 * steeper: g dv / I reaches V / nVt times dv / V), this
 			 * step lands within TOL: take it and skip the evaluation
 			 * that would only confirm it (Newton's error estimate;
 			 * Burden & Faires, Numerical Analysis, 9th ed., 2010,
 			 * sec. 2.4).  The caller still verifies the point.
 			 */
+			double next = fabs(dv) * (dv / prev_dv) * (dv / prev_dv);
 			if (isfinite(prev_dv) && fabs(dv) <= 1e-3 * fabs(prev_dv) &&
-			    fabs(dv) * (dv / prev_dv) * (dv / prev_dv) <=
-			        0.01 * tol * fabs(v)) {
+			    next <= 0.01 * tol * fabs(v) &&
+			    next * gscale <= 0.01 * tol * iscale) {
 				v -= dv;
 				res.ok = 1;
 				break;
