@@ -486,7 +486,7 @@ static double tol_draw(const struct tol_case *c, const struct tol_item *it,
 
 /* Monte Carlo. */
 int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
-                    size_t nbins, const struct tol_window *w,
+                    size_t nbins, const struct tol_window *w, size_t nw,
                     struct tol_mc *out, char *err, size_t errlen)
 {
 	memset(out, 0, sizeof *out);
@@ -518,7 +518,7 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 	tol_rng_seed(&rng, seed);
 	size_t m = 0;
 	out->trials = trials;
-	out->has_window = w != NULL;
+	out->has_window = nw > 0;
 	for (size_t t = 0; t < trials; t++) {
 		double x[TOL_MAX_ITEMS], y[TOL_NOUT];
 		for (size_t k = 0; k < n; k++)
@@ -530,10 +530,13 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 		for (int o = 0; o < TOL_NOUT; o++)
 			col[o][m] = y[o];
 		m++;
-		if (w != NULL) {
-			double q = y[w->output];
-			if (!(q < w->lo) && !(q > w->hi))
-				out->inside++;
+		if (nw > 0) {
+			bool in = true;
+			for (size_t j = 0; j < nw && in; j++) {
+				double q = y[w[j].output];
+				in = !(q < w[j].lo) && !(q > w[j].hi);
+			}
+			out->inside += in;
 		}
 	}
 	if (m == 0) {
@@ -543,7 +546,7 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 	}
 	for (int o = 0; o < TOL_NOUT; o++)
 		tol_summarise(col[o], m, nbins, &out->stats[o], &out->hist[o]);
-	out->yield = w != NULL ? (double)out->inside / (double)trials : NAN;
+	out->yield = nw > 0 ? (double)out->inside / (double)trials : NAN;
 	free(buf);
 	return 0;
 }

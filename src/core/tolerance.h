@@ -123,8 +123,8 @@ struct tol_mc {
 	struct tol_stats stats[TOL_NOUT];
 	struct tol_hist hist[TOL_NOUT];
 	bool has_window;
-	size_t inside;          /* trials inside the window */
-	double yield;           /* inside / (trials - failed) */
+	size_t inside;          /* trials inside every window */
+	double yield;           /* inside / trials (NaN without a window) */
 };
 
 /* The generator state. */
@@ -182,12 +182,14 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 
 /*
  * TRIALS Monte Carlo trials of C from SEED into *OUT with NBINS histogram
- * bins (1 ... TOL_MAX_BINS) and an optional spec window W (may be NULL).
+ * bins (1 ... TOL_MAX_BINS) and NW spec windows W (NW may be 0): a trial
+ * passes when it is inside every window; a trial with no operating point
+ * fails.
  * Returns 0, or -1 with a message (bad counts, no memory, no point at the
  * nominal values).
  */
 int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
-                    size_t nbins, const struct tol_window *w,
+                    size_t nbins, const struct tol_window *w, size_t nw,
                     struct tol_mc *out, char *err, size_t errlen);
 
 #endif

@@ -93,7 +93,7 @@ int main(int argc, char **argv)
 	if (mc == NULL)
 		return 1;
 	t0 = bench_now();
-	if (tol_monte_carlo(&c, trials, 12345, 50, NULL, mc, err, sizeof err)) {
+	if (tol_monte_carlo(&c, trials, 12345, 50, NULL, 0, mc, err, sizeof err)) {
 		fprintf(stderr, "bench_montecarlo: %s\n", err);
 		free(mc);
 		return 1;

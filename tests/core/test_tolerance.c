@@ -206,7 +206,7 @@ static void test_monte_carlo_gum(void **state)
 	const size_t n = 40000;
 	struct tol_mc mc;
 	char err[200];
-	assert_int_equal(tol_monte_carlo(&c, n, 20261201, 40, NULL, &mc, err,
+	assert_int_equal(tol_monte_carlo(&c, n, 20261201, 40, NULL, 0, &mc, err,
 	                                 sizeof err), 0);
 	assert_int_equal(mc.trials, n);
 	assert_int_equal(mc.failed, 0);
@@ -250,11 +250,11 @@ static void test_monte_carlo_seed(void **state)
 	add_rel(&c, "rs", 0.05, TOL_NORMAL);
 	struct tol_mc a, b, d;
 	char err[200];
-	assert_int_equal(tol_monte_carlo(&c, 3001, 77, 17, NULL, &a, err,
+	assert_int_equal(tol_monte_carlo(&c, 3001, 77, 17, NULL, 0, &a, err,
 	                                 sizeof err), 0);
-	assert_int_equal(tol_monte_carlo(&c, 3001, 77, 17, NULL, &b, err,
+	assert_int_equal(tol_monte_carlo(&c, 3001, 77, 17, NULL, 0, &b, err,
 	                                 sizeof err), 0);
-	assert_int_equal(tol_monte_carlo(&c, 3001, 78, 17, NULL, &d, err,
+	assert_int_equal(tol_monte_carlo(&c, 3001, 78, 17, NULL, 0, &d, err,
 	                                 sizeof err), 0);
 	assert_memory_equal(&a.stats, &b.stats, sizeof a.stats);
 	assert_memory_equal(&a.hist, &b.hist, sizeof a.hist);
@@ -336,7 +336,7 @@ static void test_uniform_output(void **state)
 	const size_t n = 50000;
 	struct tol_window win = { TOL_VOLTAGE, 12.0, 12.6 };
 	struct tol_mc mc;
-	assert_int_equal(tol_monte_carlo(&c, n, 4242, 12, &win, &mc, err,
+	assert_int_equal(tol_monte_carlo(&c, n, 4242, 12, &win, 1, &mc, err,
 	                                 sizeof err), 0);
 	const struct tol_stats *s = &mc.stats[TOL_VOLTAGE];
 	/* Uniform quantiles lo + p (hi - lo), within 5 binomial errors. */
@@ -354,9 +354,16 @@ static void test_uniform_output(void **state)
 		assert_true(fabs((double)mc.hist[TOL_VOLTAGE].counts[b] - e) < 5.0 * sd);
 	/* An open-ended window: V >= 12.45 holds a 0.375 share. */
 	win = (struct tol_window){ TOL_VOLTAGE, 12.45, NAN };
-	assert_int_equal(tol_monte_carlo(&c, n, 4242, 12, &win, &mc, err,
+	assert_int_equal(tol_monte_carlo(&c, n, 4242, 12, &win, 1, &mc, err,
 	                                 sizeof err), 0);
 	assert_true(fabs(mc.yield - 0.375) < 5.0 * sqrt(0.25 / (double)n));
+	/* Two windows: 12.45 <= V and P <= the power at 12.75 V: 0.25. */
+	double v2 = 12.75, p2 = v2 * 0.0913 * pow(v2 / 9.37, 2.3);
+	struct tol_window two[2] = { { TOL_VOLTAGE, 12.45, NAN },
+	                             { TOL_DEVICE_POWER, NAN, p2 } };
+	assert_int_equal(tol_monte_carlo(&c, n, 4242, 12, two, 2, &mc, err,
+	                                 sizeof err), 0);
+	assert_true(fabs(mc.yield - 0.25) < 5.0 * sqrt(0.1875 / (double)n));
 }
 
 /* Bad tolerances and runs are refused with a reason. */
@@ -382,11 +389,11 @@ static void test_bad(void **state)
 	assert_int_equal(tol_case_add(&c, "gain", 1.0, 2.0, TOL_UNIFORM, err,
 	                              sizeof err), -1);
 	struct tol_mc mc;
-	assert_int_equal(tol_monte_carlo(&c, 0, 1, 10, NULL, &mc, err, sizeof err),
+	assert_int_equal(tol_monte_carlo(&c, 0, 1, 10, NULL, 0, &mc, err, sizeof err),
 	                 -1);
-	assert_int_equal(tol_monte_carlo(&c, 10, 1, 0, NULL, &mc, err, sizeof err),
+	assert_int_equal(tol_monte_carlo(&c, 10, 1, 0, NULL, 0, &mc, err, sizeof err),
 	                 -1);
-	assert_int_equal(tol_monte_carlo(&c, 10, 1, TOL_MAX_BINS + 1, NULL, &mc,
+	assert_int_equal(tol_monte_carlo(&c, 10, 1, TOL_MAX_BINS + 1, NULL, 0, &mc,
 	                                 err, sizeof err), -1);
 	/* Thirteen parameters are too many for the corners. */
 	c.nitems = 13;
