@@ -10,6 +10,7 @@
 #include <string.h>
 
 #include "session/section.h"
+#include "session/section_analysis.h"
 
 /* Load format_version: an integer no higher than ours. */
 static int root_load_version(struct load_ctx *c, const struct session_field *f,
@@ -161,6 +162,16 @@ static const struct session_field root_fields[] = {
 	{ .key = "view", .load = field_load_section, .save = field_save_section,
 	  .present = field_present_section, .section = &section_view,
 	  .help = "the plot's axes" },
+	{ .key = "target", .load = field_load_section, .save = field_save_section,
+	  .present = field_present_section, .section = &section_target,
+	  .help = "what to design for: current, voltage or power" },
+	{ .key = "ratings", .load = field_load_section,
+	  .save = field_save_section, .present = field_present_section,
+	  .section = &section_ratings, .help = "the parts' ratings" },
+	{ .key = "tolerances", .load = field_load_section,
+	  .save = field_save_section, .present = section_tolerances_present,
+	  .section = &section_tolerances,
+	  .help = "per-parameter tolerances for worst case and Monte Carlo" },
 	{ .key = "notes", .load = root_load_notes, .save = root_save_notes,
 	  .present = root_present_notes, .help = "free text" },
 };

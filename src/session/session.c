@@ -50,6 +50,7 @@ void session_init(struct session *s)
 	s->view.i_min = 0.0;
 	s->view.i_max = 1.0;
 	s->view.zoom = 1.0;
+	session_analysis_init(&s->analysis);
 	s->notes = NULL;
 }
 
@@ -105,6 +106,8 @@ bool session_equal(const struct session *a, const struct session *b)
 	    !session_same(x->rp, y->rp))
 		return false;
 	if (!session_network_equal(a->network, b->network))
+		return false;
+	if (!session_analysis_equal(&a->analysis, &b->analysis))
 		return false;
 	if (a->device.type != b->device.type)
 		return false;

@@ -16,6 +16,7 @@
 #include "core/problem.h"
 #include "core/source.h"
 #include "core/stepper.h"
+#include "session/analysis.h"
 
 #define SESSION_FORMAT_VERSION 1
 
@@ -45,6 +46,7 @@ struct session {
 	struct session_conditions conditions;
 	struct solve_options solver;
 	struct session_view view;
+	struct session_analysis analysis; /* target, ratings, tolerances */
 	char *notes;               /* free text, may be NULL */
 };
 
