@@ -12,7 +12,9 @@
 #include "diagnose.h"
 
 #include <math.h>
+#include <stdbool.h>
 #include <stdio.h>
+#include <string.h>
 
 /* Within this distance of 1, |g'| is treated as "no contraction". */
 #define NEUTRAL_BAND 1e-6
@@ -85,9 +87,50 @@ static const char *diagnose_other_name(enum projection_order order)
 	                                 : ORDER_VOLTAGE_FROM_LINE);
 }
 
-/* Diagnose ORDER of PB at V. */
+/* True when the device has the curve ORDER projects onto (I(V) or V(I)). */
+static bool diagnose_order_exists(const struct problem *pb,
+                                  enum projection_order order)
+{
+	const struct model_type *t = pb->dev.type;
+	return order == ORDER_VOLTAGE_FROM_LINE ? t->current != NULL
+	                                        : t->voltage != NULL;
+}
+
+static void diagnose_core(const struct problem *pb, enum projection_order order,
+                          double v, double tol, double start_err,
+                          struct diagnosis *d);
+
+/*
+ * Diagnose ORDER of PB at V, then add the caution for a point on a
+ * negative-resistance branch (r_d < 0): plain projection reaches it in at
+ * most one order, and in a real circuit such a point can be unstable --
+ * with three crossings the middle one is, and the device's capacitance or
+ * a series inductance can make the circuit switch or oscillate (Sze & Ng,
+ * Physics of Semiconductor Devices, 3rd ed., 2007, ch. 8, tunnel diode
+ * circuits; common practice).
+ */
 void diagnose_at(const struct problem *pb, enum projection_order order,
                  double v, double tol, double start_err, struct diagnosis *d)
+{
+	diagnose_core(pb, order, v, tol, start_err, d);
+	if (!(isfinite(d->r_d) && d->r_d < 0.0))
+		return;
+	bool away = !(fabs(d->gprime) < 1.0);
+	char caution[200];
+	snprintf(caution, sizeof caution,
+	         "r_d < 0 (negative resistance)%s; in a circuit it may be "
+	         "unstable: capacitance or inductance can make it switch or "
+	         "oscillate",
+	         away ? ", which this order cannot reach" : "");
+	size_t n = strlen(d->advice);
+	snprintf(d->advice + n, sizeof d->advice - n, "%s%s", n ? "; " : "",
+	         caution);
+}
+
+/* The diagnosis proper (see diagnose_at). */
+static void diagnose_core(const struct problem *pb, enum projection_order order,
+                          double v, double tol, double start_err,
+                          struct diagnosis *d)
 {
 	enum projection_order other = order == ORDER_VOLTAGE_FROM_LINE
 	                                  ? ORDER_VOLTAGE_FROM_DEVICE
@@ -95,6 +138,12 @@ void diagnose_at(const struct problem *pb, enum projection_order order,
 	d->r_d = diagnose_rd(pb, v);
 	d->gprime = diagnose_gprime(order, pb->src.r, d->r_d);
 	d->gprime_other = diagnose_gprime(other, pb->src.r, d->r_d);
+	/* An order needs its curve: I(V) for "line", V(I) for "device". */
+	bool model_lacks = !diagnose_order_exists(pb, order);
+	if (model_lacks)
+		d->gprime = NAN;
+	if (!diagnose_order_exists(pb, other))
+		d->gprime_other = NAN;
 	d->shape = diagnose_shape(d->gprime);
 	d->omega_opt = isfinite(d->gprime) ? 1.0 / (1.0 - d->gprime) : NAN;
 	double a = fabs(d->gprime);
@@ -114,6 +163,16 @@ void diagnose_at(const struct problem *pb, enum projection_order order,
 	switch (d->shape) {
 	case SHAPE_UNDEFINED:
 		snprintf(d->verdict, sizeof d->verdict, "this order cannot be used here");
+		if (model_lacks) {
+			snprintf(d->advice, sizeof d->advice,
+			         "this device has some %s at several %s, so no %s: "
+			         "use %s or newton",
+			         order == ORDER_VOLTAGE_FROM_LINE ? "voltages" : "currents",
+			         order == ORDER_VOLTAGE_FROM_LINE ? "currents" : "voltages",
+			         order == ORDER_VOLTAGE_FROM_LINE ? "I(V)" : "V(I)",
+			         diagnose_other_name(order));
+			return;
+		}
 		snprintf(d->advice, sizeof d->advice,
 		         "%s: use %s or newton",
 		         isinf(pb->src.r) ? "an ideal current source gives a horizontal load line"

@@ -15,6 +15,7 @@ const struct model_type *const model_registry[] = {
 	&model_power_law,
 	&model_zener,
 	&model_led,
+	&model_tunnel,
 	NULL,
 };
 

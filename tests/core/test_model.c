@@ -84,6 +84,14 @@ static const struct model_cases derivative_cases[] = {
 		{ 2.71, 2.2e-3, 2.63, 41.0, 25.0 },
 		{ 5.93, 7.1e-2, 6.2, 3.3, 38.4 },
 	} },
+	{ "tunnel", 4, {
+		/* peak_voltage, peak_current, valley_voltage, valley_current,
+		 * saturation_current, ideality, temperature */
+		{ 0.065, 1e-3, 0.35, 1.2e-4, 3.5e-12, 1.0, 25.0 },
+		{ 0.0713, 4.7e-3, 0.382, 5.9e-4, 1.9e-11, 1.12, 31.4 },
+		{ 0.183, 2.2e-3, 0.96, 2.3e-4, 9.3e-22, 1.03, 25.0 },
+		{ 0.052, 1.03e-2, 0.317, 8.8e-4, 7.7e-10, 1.31, 48.9 },
+	} },
 };
 
 /* Find the derivative cases for model NAME, or NULL. */

@@ -10,6 +10,7 @@ extern const struct model_type model_diode;
 extern const struct model_type model_power_law;
 extern const struct model_type model_zener;
 extern const struct model_type model_led;
+extern const struct model_type model_tunnel;
 
 /* Parameter indices of the diode model. */
 enum diode_param {
@@ -58,6 +59,25 @@ double led_saturation_current(const double *p);
 
 /* Nominal peak wavelength in nm of LED preset NAME (from memory), or NaN. */
 double led_preset_wavelength(const char *name);
+
+/* Parameter indices of the tunnel-diode model. */
+enum tunnel_param {
+	TUNNEL_VP,      /* peak_voltage, V */
+	TUNNEL_IP,      /* peak_current, A */
+	TUNNEL_VV,      /* valley_voltage, V */
+	TUNNEL_IV,      /* valley_current, A */
+	TUNNEL_IS,      /* saturation_current, A */
+	TUNNEL_N,       /* ideality */
+	TUNNEL_TEMP,    /* temperature, degC */
+	TUNNEL_NPARAMS
+};
+
+/*
+ * The observed peak (*VPK, *IPK: where dI/dV turns negative) and valley of
+ * a tunnel diode P.  Returns 0, or -1 when the curve has no peak.
+ */
+int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
+                   double *ivl);
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */
 double diode_thermal_voltage(double temp_c);
