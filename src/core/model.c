@@ -16,6 +16,8 @@ const struct model_type *const model_registry[] = {
 	&model_zener,
 	&model_led,
 	&model_tunnel,
+	&model_npn,
+	&model_pnp,
 	NULL,
 };
 
@@ -138,4 +140,18 @@ int device_voltage(const struct device *dev, double i, double *v)
 void device_range(const struct device *dev, double *vmin, double *vmax)
 {
 	dev->type->range(dev->p, vmin, vmax);
+}
+
+/* The model's extra results at (V, I). */
+int device_secondary(const struct device *dev, const struct source *src,
+                     double v, double i, struct model_extra *out)
+{
+	memset(out, 0, sizeof *out);
+	if (dev->type->secondary == NULL)
+		return -1;
+	if (dev->type->secondary(dev->p, src, v, i, out) != 0) {
+		memset(out, 0, sizeof *out);
+		return -1;
+	}
+	return 0;
 }

@@ -35,6 +35,27 @@ struct model_param {
 	const char *help;     /* one line of help text */
 };
 
+struct source;
+
+#define MODEL_MAX_EXTRA 8
+
+/* One labelled result a model reports beside V and I. */
+struct model_extra_value {
+	const char *key;      /* snake_case for CSV and files: "collector_current" */
+	const char *label;    /* short label for the side pane: "IC" */
+	enum qty_kind kind;   /* unit of the value */
+	double value;
+};
+
+/* What a model reports about an operating point beyond V and I. */
+struct model_extra {
+	size_t n;                                  /* values used */
+	struct model_extra_value v[MODEL_MAX_EXTRA];
+	const char *region;   /* "active", "saturated", ...; NULL when none */
+	bool warn;            /* the point is outside what the model trusts */
+	char note[200];       /* one line for the user, or "" */
+};
+
 /* Parameter values of a device, indexed like the type's table. */
 typedef double model_values[MODEL_MAX_PARAMS];
 
@@ -97,6 +118,15 @@ struct model_type {
 	 */
 	const char *const *presets;
 	int (*apply_preset)(const char *name, double *p);
+
+	/*
+	 * Optional results beyond V and I at the operating point (V, I) with
+	 * source SRC (a transistor's collector side and region, a thermistor's
+	 * temperature).  Fills OUT and returns 0, or -1 when they cannot be
+	 * given.  NULL when the model has none.
+	 */
+	int (*secondary)(const double *p, const struct source *src, double v,
+	                 double i, struct model_extra *out);
 };
 
 /* A device: its model and parameter values. */
@@ -141,6 +171,14 @@ int device_voltage(const struct device *dev, double i, double *v);
 
 /* Natural plotting and scanning range. */
 void device_range(const struct device *dev, double *vmin, double *vmax);
+
+/*
+ * The model's extra results at (V, I) with source SRC into OUT (see
+ * model_type.secondary).  Returns 0, or -1 (OUT then has n = 0) when the
+ * model has none.
+ */
+int device_secondary(const struct device *dev, const struct source *src,
+                     double v, double i, struct model_extra *out);
 
 /* Device power V*I at (V, I). */
 static inline double device_power(double v, double i) { return v * i; }

@@ -92,6 +92,19 @@ static const struct model_cases derivative_cases[] = {
 		{ 0.183, 2.2e-3, 0.96, 2.3e-4, 9.3e-22, 1.03, 25.0 },
 		{ 0.052, 1.03e-2, 0.317, 8.8e-4, 7.7e-10, 1.31, 48.9 },
 	} },
+	{ "npn", 4, {
+		/* saturation_current, ideality, current_gain, emitter_resistance,
+		 * collector_resistance, supply_voltage, saturation_voltage,
+		 * temperature */
+		{ 1.2e-14, 1.0, 147.0, 470.0, 2.2e3, 12.0, 0.2, 25.0 },
+		{ 6.8e-15, 1.0, 283.0, 820.0, 3.9e3, 15.3, 0.17, 25.0 },
+		{ 2.3e-14, 1.02, 96.0, 0.0, 1.5e3, 9.1, 0.25, 41.7 },
+		{ 1.03e-14, 1.0, 212.0, 1.2e3, 4.7e3, 24.0, 0.2, -12.3 },
+	} },
+	{ "pnp", 2, {
+		{ 1.2e-14, 1.0, 147.0, 470.0, 2.2e3, 12.0, 0.2, 25.0 },
+		{ 3.9e-15, 1.04, 61.0, 33.0, 470.0, 5.1, 0.3, 25.0 },
+	} },
 };
 
 /* Find the derivative cases for model NAME, or NULL. */

@@ -11,6 +11,8 @@ extern const struct model_type model_power_law;
 extern const struct model_type model_zener;
 extern const struct model_type model_led;
 extern const struct model_type model_tunnel;
+extern const struct model_type model_npn;
+extern const struct model_type model_pnp;
 
 /* Parameter indices of the diode model. */
 enum diode_param {
@@ -78,6 +80,19 @@ enum tunnel_param {
  */
 int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
                    double *ivl);
+
+/* Parameter indices of the npn and pnp base-bias models. */
+enum bjt_param {
+	BJT_IS,         /* saturation_current, A */
+	BJT_N,          /* ideality */
+	BJT_BETA,       /* current_gain */
+	BJT_RE,         /* emitter_resistance, ohm */
+	BJT_RC,         /* collector_resistance, ohm */
+	BJT_VCC,        /* supply_voltage, V */
+	BJT_VCESAT,     /* saturation_voltage, V */
+	BJT_TEMP,       /* temperature, degC */
+	BJT_NPARAMS
+};
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */
 double diode_thermal_voltage(double temp_c);
