@@ -18,6 +18,8 @@ const struct model_type *const model_registry[] = {
 	&model_tunnel,
 	&model_npn,
 	&model_pnp,
+	&model_jfet,
+	&model_nmos,
 	NULL,
 };
 

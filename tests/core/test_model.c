@@ -105,6 +105,20 @@ static const struct model_cases derivative_cases[] = {
 		{ 1.2e-14, 1.0, 147.0, 470.0, 2.2e3, 12.0, 0.2, 25.0 },
 		{ 3.9e-15, 1.04, 61.0, 33.0, 470.0, 5.1, 0.3, 25.0 },
 	} },
+	{ "jfet", 3, {
+		/* saturation_current, pinch_off_voltage, supply_voltage,
+		 * drain_resistance */
+		{ 8.7e-3, -2.43, 15.0, 1.2e3 },
+		{ 3.1e-3, -1.17, 9.0, 2.2e3 },
+		{ 1.27e-2, -3.9, 12.0, 820.0 },
+	} },
+	{ "nmos", 3, {
+		/* transconductance_parameter, threshold_voltage, supply_voltage,
+		 * drain_resistance */
+		{ 2.4e-3, 1.87, 18.0, 3.3e3 },
+		{ 0.137, 2.1, 12.0, 47.0 },
+		{ 5.3e-4, -0.71, 5.0, 10e3 },
+	} },
 };
 
 /* Find the derivative cases for model NAME, or NULL. */

@@ -13,6 +13,8 @@ extern const struct model_type model_led;
 extern const struct model_type model_tunnel;
 extern const struct model_type model_npn;
 extern const struct model_type model_pnp;
+extern const struct model_type model_jfet;
+extern const struct model_type model_nmos;
 
 /* Parameter indices of the diode model. */
 enum diode_param {
@@ -92,6 +94,16 @@ enum bjt_param {
 	BJT_VCESAT,     /* saturation_voltage, V */
 	BJT_TEMP,       /* temperature, degC */
 	BJT_NPARAMS
+};
+
+/* Parameter indices of the jfet and nmos self-bias models. */
+enum fet_param {
+	FET_K,          /* jfet: saturation_current IDSS, A;
+	                 * nmos: transconductance_parameter k, A/V^2 */
+	FET_VTH,        /* jfet: pinch_off_voltage VP (< 0); nmos: threshold */
+	FET_VDD,        /* supply_voltage, V */
+	FET_RD,         /* drain_resistance, ohm */
+	FET_NPARAMS
 };
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */
