@@ -20,6 +20,11 @@
 /* Consecutive failed reads that mean the terminal is gone. */
 #define APP_READ_FAILURES 8
 
+/* The panes, bottom to top: keys go to the top-most that takes them. */
+static const struct pane *const app_panes[] = {
+	&pane_plot, &pane_side, &pane_help, &pane_prompt,
+};
+
 /* Copy the string S into new memory (NULL when S is NULL or no memory). */
 static char *app_strdup(const char *s)
 {
@@ -87,6 +92,9 @@ int app_init(struct app *a, const struct tui_options *opt, char *err,
 		session_demo(&a->s);
 	}
 	app_view_from_session(&a->view, &a->s);
+	for (size_t k = 0; k < sizeof app_panes / sizeof app_panes[0]; k++)
+		if (app_panes[k]->init != NULL)
+			app_panes[k]->init(a);
 	app_resolve(a);
 	app_message(a, false, "Space steps, g runs, ? lists every key");
 	return 0;
@@ -326,12 +334,16 @@ void app_draw(struct app *a)
 	}
 	app_draw_title(a, cols);
 	int side = app_side_width(a, cols);
-	pane_plot_draw(a, 1, 0, rows - 2, cols - side);
+	struct rect plot = { 1, 0, rows - 2, cols - side };
+	struct rect pane = { 1, cols - side, rows - 2, side };
+	struct rect all = { 0, 0, rows, cols };
+	struct rect bottom = { rows - 1, 0, 1, cols };
+	pane_plot.draw(a, &plot);
 	if (side > 0)
-		pane_side_draw(a, 1, cols - side, rows - 2, side);
+		pane_side.draw(a, &pane);
 	if (a->help)
-		pane_help_draw(a, rows, cols);
-	pane_prompt_draw(a, rows - 1, cols);
+		pane_help.draw(a, &all);
+	pane_prompt.draw(a, &bottom);
 	term_end(&a->term);
 }
 
@@ -342,11 +354,12 @@ unsigned app_key(struct app *a, int key)
 		a->grid_ok = false;
 		return APP_HANDLED | APP_REDRAW;
 	}
-	if (a->prompt.kind != PROMPT_NONE)
-		return pane_prompt_key(a, key);
-	if (a->help) {
-		a->help = false;
-		return APP_HANDLED | APP_REDRAW;
+	for (size_t k = sizeof app_panes / sizeof app_panes[0]; k-- > 0;) {
+		if (app_panes[k]->key == NULL)
+			continue;
+		unsigned f = app_panes[k]->key(a, key);
+		if (f & APP_HANDLED)
+			return f;
 	}
 	int rows, cols;
 	term_size(&a->term, &rows, &cols);

@@ -159,25 +159,31 @@ size_t keys_help(struct key_help *out, size_t max);
 /* Run the action bound to KEY in the key table; APP_HANDLED when found. */
 unsigned keys_dispatch(struct app *a, int key);
 
-/* Draw the plot pane into the rectangle at ROW, COL of ROWS x COLS. */
-void pane_plot_draw(struct app *a, int row, int col, int rows, int cols);
+/* A rectangle of the screen, in cells. */
+struct rect {
+	int row, col, rows, cols;
+};
 
-/* Draw the side pane into the rectangle at ROW, COL of ROWS x COLS. */
-void pane_side_draw(struct app *a, int row, int col, int rows, int cols);
+/*
+ * A pane: a part of the screen with its own setup, keys and drawing.
+ * init may be NULL; key is NULL for a pane without keys of its own and
+ * returns 0 for a key it does not take (the key table then gets it).
+ */
+struct pane {
+	const char *name;
+	void (*init)(struct app *a);
+	unsigned (*key)(struct app *a, int key);
+	void (*draw)(struct app *a, const struct rect *r);
+};
 
-/* Draw the help overlay centred on a screen of ROWS x COLS. */
-void pane_help_draw(struct app *a, int rows, int cols);
+extern const struct pane pane_plot;    /* the plot */
+extern const struct pane pane_side;    /* point, parameters, diagnosis, table */
+extern const struct pane pane_help;    /* the help overlay */
+extern const struct pane pane_prompt;  /* the bottom line and its prompt */
 
-/* Draw the bottom line (prompt or status) at ROW, COLS wide. */
-void pane_prompt_draw(struct app *a, int row, int cols);
+/* The shown value of parameter row P ("2.2000 kohm", "V from line"). */
+void pane_side_value(struct app *a, const struct param *p, char *buf, size_t n);
 
 /* Open the prompt for KIND (the text starts as INITIAL, may be NULL). */
 void pane_prompt_open(struct app *a, enum prompt_kind kind, const char *initial);
-
-/* Handle KEY while the prompt is open; returns enum app_flags. */
-unsigned pane_prompt_key(struct app *a, int key);
-
-/* Format VALUE compactly in engineering notation without a unit ("-4.31m"). */
-char *app_eng(char *buf, size_t n, double value, int sig);
-
 #endif

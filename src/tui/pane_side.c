@@ -1,19 +1,19 @@
 /*
- * panes.c - the front end's panes: the plot, the side pane (operating
- * point, parameters, diagnosis, convergence table), the help overlay and
- * the bottom line with its prompt.  Each draws through term.h only and
- * shows numbers the core computed; none computes physics.
+ * pane_side.c - the side pane: the operating points, the parameter list
+ * with the selection in reverse video, the diagnosis from diagnose.h and
+ * the convergence table with the newest row at the bottom.  Every number
+ * shown comes from the core; nothing here computes physics.
  */
 #include <math.h>
+#include <stdbool.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "tui/app.h"
-#include "session/recovery.h"
 
-/* Format VALUE compactly in engineering notation without a unit. */
-char *app_eng(char *buf, size_t n, double value, int sig)
+/* Format VALUE compactly in engineering notation without a unit ("-4.31m"). */
+static char *pane_side_eng(char *buf, size_t n, double value, int sig)
 {
 	static const char prefixes[] = "fpnum kMGT";
 	if (!isfinite(value)) {
@@ -64,29 +64,6 @@ char *app_eng(char *buf, size_t n, double value, int sig)
 	return buf;
 }
 
-/* Draw the plot pane. */
-void pane_plot_draw(struct app *a, int row, int col, int rows, int cols)
-{
-	if (!a->pb_ok) {
-		term_text(&a->term, row + 1, col + 1, a->pb_err, cols - 2, TS_ERROR);
-		return;
-	}
-	if (a->grid.rows != rows || a->grid.cols != cols) {
-		if (grid_resize(&a->grid, rows, cols) != 0) {
-			term_text(&a->term, row, col, "out of memory", cols, TS_ERROR);
-			return;
-		}
-		a->grid_ok = false;
-	}
-	if (!a->grid_ok) {
-		struct render_input in = { &a->pb, a->res.pts, a->res.n, NULL, 0 };
-		in.rows = stepper_trace(a->st, &in.nrows);
-		render_plot(&in, &a->view, &a->grid, NULL);
-		a->grid_ok = true;
-	}
-	term_blit(&a->term, &a->grid, row, col);
-}
-
 /* Write a section header TITLE at ROW, COL, W wide. */
 static void pane_header(struct app *a, int row, int col, int w, const char *title)
 {
@@ -98,7 +75,7 @@ static void pane_header(struct app *a, int row, int col, int w, const char *titl
 }
 
 /* The shown value of parameter P into BUF. */
-static void pane_param_value(struct app *a, const struct param *p, char *buf,
+void pane_side_value(struct app *a, const struct param *p, char *buf,
                              size_t n)
 {
 	int ascii = a->view.unicode ? 0 : 1;
@@ -193,7 +170,7 @@ static int pane_params(struct app *a, int row, int col, int w, int max)
 	int used = 0;
 	for (int k = first; k < n && used < max; k++) {
 		char val[64], line[160];
-		pane_param_value(a, &ps[k], val, sizeof val);
+		pane_side_value(a, &ps[k], val, sizeof val);
 		snprintf(line, sizeof line, "%-8s %s", ps[k].label, val);
 		enum term_style st = k == a->sel ? TS_SELECTED : TS_NORMAL;
 		if (k == a->sel)
@@ -220,9 +197,9 @@ static int pane_diagnosis(struct app *a, int row, int col, int w, int max)
 		used += pane_wrap(a, row + used, col, w, 1, line,
 		                  fabs(d.gprime) < 1.0 ? TS_GOOD : TS_ERROR);
 		if (used < max) {
-			char g[32], o[32];
-			app_eng(g, sizeof g, d.gprime, 3);
-			app_eng(o, sizeof o, d.gprime_other, 3);
+			char g[48], o[48];
+			pane_side_eng(g, sizeof g, d.gprime, 3);
+			pane_side_eng(o, sizeof o, d.gprime_other, 3);
 			snprintf(line, sizeof line, "g' %s here, %s other order", g, o);
 			term_text(&a->term, row + used++, col, line, w, TS_NORMAL);
 		}
@@ -270,15 +247,15 @@ static void pane_table(struct app *a, int row, int col, int w, int max)
 	size_t first = n > show ? n - show : 0;
 	for (size_t k = first; k < n; k++) {
 		const struct trace_row *r = &rows[k];
-		char v[24], i[24], res[24], step[24], ratio[24];
-		app_eng(v, sizeof v, r->v, 4);
-		app_eng(i, sizeof i, r->i, 4);
-		app_eng(res, sizeof res, r->residual, 3);
-		app_eng(step, sizeof step, r->step, 3);
+		char v[48], i[48], res[48], step[48], ratio[48];
+		pane_side_eng(v, sizeof v, r->v, 4);
+		pane_side_eng(i, sizeof i, r->i, 4);
+		pane_side_eng(res, sizeof res, r->residual, 3);
+		pane_side_eng(step, sizeof step, r->step, 3);
 		if (isfinite(r->ratio))
 			snprintf(ratio, sizeof ratio, "%+.3f", r->ratio);
 		if (strlen(ratio) > 6)
-			app_eng(ratio, sizeof ratio, r->ratio, 2);
+			pane_side_eng(ratio, sizeof ratio, r->ratio, 2);
 		else
 			snprintf(ratio, sizeof ratio, "-");
 		if (wide)
@@ -291,9 +268,10 @@ static void pane_table(struct app *a, int row, int col, int w, int max)
 	}
 }
 
-/* Draw the side pane. */
-void pane_side_draw(struct app *a, int row, int col, int rows, int cols)
+/* Draw the side pane into R. */
+static void pane_side_draw(struct app *a, const struct rect *box)
 {
+	int row = box->row, col = box->col, rows = box->rows, cols = box->cols;
 	uint32_t bar = a->view.unicode ? 0x2502 : '|';
 	for (int r = 0; r < rows; r++)
 		term_put(&a->term, row + r, col, bar, TS_DIM);
@@ -337,245 +315,16 @@ void pane_side_draw(struct app *a, int row, int col, int rows, int cols)
 	}
 }
 
-/* Draw the help overlay (in two columns when one does not fit). */
-void pane_help_draw(struct app *a, int rows, int cols)
+/* Start with the first parameter selected. */
+static void pane_side_init(struct app *a)
 {
-	struct key_help help[64];
-	int n = (int)keys_help(help, 64);
-	int ncol = n + 3 <= rows - 2 ? 1 : 2;
-	int per = (n + ncol - 1) / ncol;
-	int w = ncol == 1 ? 52 : cols - 4;
-	if (w > cols - 4)
-		w = cols - 4;
-	int h = per + 3 < rows - 2 ? per + 3 : rows - 2;
-	int top = (rows - h) / 2, left = (cols - w) / 2;
-	int cw = (w - 2) / ncol;
-	for (int r = 0; r < h; r++)
-		term_fill(&a->term, top + r, left, w, TS_NORMAL);
-	term_fill(&a->term, top, left, w, TS_TITLE);
-	term_text(&a->term, top, left + 1, "Keys (any key closes this help)", w - 2,
-	          TS_TITLE);
-	for (int k = 0; k < n; k++) {
-		int c = k / per, r = k % per;
-		if (r >= h - 2)
-			continue;
-		char line[160];
-		snprintf(line, sizeof line, "%-11s %s", help[k].keys, help[k].help);
-		term_text(&a->term, top + 1 + r, left + 1 + c * cw, line, cw - 1,
-		          TS_NORMAL);
-	}
-	term_fill(&a->term, top + h - 1, left, w, TS_TITLE);
+	a->sel = 0;
 }
 
-/* The label of the open prompt into BUF. */
-static void pane_prompt_label(struct app *a, char *buf, size_t n)
-{
-	struct param ps[APP_MAX_PARAMS];
-	size_t np = app_params(a, ps, APP_MAX_PARAMS);
-	switch (a->prompt.kind) {
-	case PROMPT_VALUE:
-		if ((size_t)a->sel < np)
-			snprintf(buf, n, "%s = ", ps[a->sel].label);
-		else
-			snprintf(buf, n, "value = ");
-		break;
-	case PROMPT_SAVE_AS:
-		snprintf(buf, n, "save as: ");
-		break;
-	case PROMPT_QUIT:
-		snprintf(buf, n, "unsaved changes: quit without saving? (y/n) ");
-		break;
-	case PROMPT_RESTORE:
-		snprintf(buf, n, "a recovery file from an unclean exit exists: "
-		         "restore it? (y/n) ");
-		break;
-	default:
-		buf[0] = '\0';
-		break;
-	}
-}
-
-/* Draw the bottom line. */
-void pane_prompt_draw(struct app *a, int row, int cols)
-{
-	term_fill(&a->term, row, 0, cols, TS_NORMAL);
-	if (a->prompt.kind == PROMPT_NONE) {
-		const char *msg = a->status[0] != '\0' ? a->status
-		                  : "Space step  g run  b back  o order  e edit  ? help  q quit";
-		term_text(&a->term, row, 0, msg, cols, a->status_error ? TS_ERROR : TS_DIM);
-		return;
-	}
-	char label[160];
-	pane_prompt_label(a, label, sizeof label);
-	int c = term_text(&a->term, row, 0, label, cols, TS_HEADER);
-	c += term_text(&a->term, row, c, a->prompt.text, cols - c, TS_NORMAL);
-	int cursor = c;
-	if (a->prompt.error[0] != '\0' && c + 3 < cols)
-		term_text(&a->term, row, c + 2, a->prompt.error, cols - c - 2, TS_ERROR);
-	term_cursor(&a->term, row, cursor < cols ? cursor : cols - 1);
-}
-
-/* Open the prompt. */
-void pane_prompt_open(struct app *a, enum prompt_kind kind, const char *initial)
-{
-	a->prompt.kind = kind;
-	snprintf(a->prompt.text, sizeof a->prompt.text, "%s",
-	         initial != NULL ? initial : "");
-	a->prompt.len = strlen(a->prompt.text);
-	a->prompt.error[0] = '\0';
-}
-
-/* Close the prompt. */
-static void pane_prompt_close(struct app *a)
-{
-	a->prompt.kind = PROMPT_NONE;
-	a->prompt.text[0] = '\0';
-	a->prompt.len = 0;
-	a->prompt.error[0] = '\0';
-}
-
-/* Take the typed value for the selected parameter. */
-static unsigned pane_prompt_value(struct app *a)
-{
-	struct param ps[APP_MAX_PARAMS];
-	size_t np = app_params(a, ps, APP_MAX_PARAMS);
-	if ((size_t)a->sel >= np || ps[a->sel].value == NULL) {
-		pane_prompt_close(a);
-		return APP_HANDLED | APP_REDRAW;
-	}
-	const struct param *p = &ps[a->sel];
-	double v;
-	char err[256];
-	if (p->id == PARAM_START && strcmp(a->prompt.text, "auto") == 0) {
-		v = NAN;
-	} else if (qty_parse(a->prompt.text, p->kind, &v, err, sizeof err) != QTY_OK) {
-		snprintf(a->prompt.error, sizeof a->prompt.error, "%s", err);
-		return APP_HANDLED | APP_REDRAW;
-	}
-	if (app_param_set(a, p, v, err, sizeof err) != 0) {
-		snprintf(a->prompt.error, sizeof a->prompt.error, "%s", err);
-		return APP_HANDLED | APP_REDRAW;
-	}
-	char buf[64];
-	pane_param_value(a, p, buf, sizeof buf);
-	app_message(a, false, "%s = %s", p->label, buf);
-	pane_prompt_close(a);
-	return APP_HANDLED | APP_REDRAW;
-}
-
-/* Answer the restore question: Y restores, otherwise the file goes. */
-static unsigned pane_prompt_restore(struct app *a, bool yes)
-{
-	pane_prompt_close(a);
-	char err[1024];
-	if (!yes) {
-		recovery_remove(a->path, err, sizeof err);
-		app_message(a, false, "recovery file discarded");
-		return APP_HANDLED | APP_REDRAW;
-	}
-	struct session tmp;
-	char p[RECOVERY_PATH_MAX];
-	struct session_error serr;
-	if (recovery_find(a->path, p, sizeof p) != 1) {
-		app_message(a, true, "cannot restore: the recovery file is gone");
-		return APP_HANDLED | APP_REDRAW;
-	}
-	if (session_load_file(&tmp, p, &serr) != SESSION_OK) {
-		session_error_format(&serr, err, sizeof err);
-		app_message(a, true, "cannot restore: %s", err);
-		return APP_HANDLED | APP_REDRAW;
-	}
-	session_fini(&a->s);
-	a->s = tmp;
-	a->dirty = true;
-	app_resolve(a);
-	app_message(a, false, "restored the unsaved changes (s saves them)");
-	return APP_HANDLED | APP_REDRAW;
-}
-
-/* Handle a key while the prompt is open. */
-unsigned pane_prompt_key(struct app *a, int key)
-{
-	enum prompt_kind kind = a->prompt.kind;
-	if (kind == PROMPT_QUIT || kind == PROMPT_RESTORE) {
-		bool yes = key == 'y' || key == 'Y';
-		bool no = key == 'n' || key == 'N' || key == TK_ESC;
-		if (!yes && !no)
-			return APP_HANDLED;
-		if (kind == PROMPT_RESTORE)
-			return pane_prompt_restore(a, yes);
-		pane_prompt_close(a);
-		if (yes) {
-			char err[512];
-			recovery_remove(a->path, err, sizeof err);
-			return APP_HANDLED | APP_QUIT;
-		}
-		app_message(a, false, "not quitting");
-		return APP_HANDLED | APP_REDRAW;
-	}
-	if (key == TK_ESC) {
-		pane_prompt_close(a);
-		app_message(a, false, "cancelled");
-		return APP_HANDLED | APP_REDRAW;
-	}
-	if (key == TK_BACKSPACE) {
-		/* Drop one whole UTF-8 sequence. */
-		while (a->prompt.len > 0) {
-			unsigned char c = (unsigned char)a->prompt.text[--a->prompt.len];
-			if ((c & 0xC0) != 0x80)
-				break;
-		}
-		a->prompt.text[a->prompt.len] = '\0';
-		return APP_HANDLED | APP_REDRAW;
-	}
-	if (key == TK_ENTER) {
-		if (kind == PROMPT_VALUE)
-			return pane_prompt_value(a);
-		if (kind == PROMPT_SAVE_AS) {
-			if (a->prompt.len == 0) {
-				snprintf(a->prompt.error, sizeof a->prompt.error,
-				         "type a file name, or Esc");
-				return APP_HANDLED | APP_REDRAW;
-			}
-			char name[256];
-			snprintf(name, sizeof name, "%s", a->prompt.text);
-			if (app_save(a, name) != 0) {
-				snprintf(a->prompt.error, sizeof a->prompt.error, "%s", a->status);
-				return APP_HANDLED | APP_REDRAW;
-			}
-			pane_prompt_close(a);
-			return APP_HANDLED | APP_REDRAW;
-		}
-	}
-	if (key >= 0x20 && key < TK_BASE && key != 0x7F) {
-		char enc[8];
-		size_t k;
-		uint32_t cp = (uint32_t)key;
-		if (cp < 0x80) {
-			enc[0] = (char)cp;
-			k = 1;
-		} else if (cp < 0x800) {
-			enc[0] = (char)(0xC0 | (cp >> 6));
-			enc[1] = (char)(0x80 | (cp & 0x3F));
-			k = 2;
-		} else if (cp < 0x10000) {
-			enc[0] = (char)(0xE0 | (cp >> 12));
-			enc[1] = (char)(0x80 | ((cp >> 6) & 0x3F));
-			enc[2] = (char)(0x80 | (cp & 0x3F));
-			k = 3;
-		} else {
-			enc[0] = (char)(0xF0 | (cp >> 18));
-			enc[1] = (char)(0x80 | ((cp >> 12) & 0x3F));
-			enc[2] = (char)(0x80 | ((cp >> 6) & 0x3F));
-			enc[3] = (char)(0x80 | (cp & 0x3F));
-			k = 4;
-		}
-		if (a->prompt.len + k + 1 < sizeof a->prompt.text) {
-			memcpy(a->prompt.text + a->prompt.len, enc, k);
-			a->prompt.len += k;
-			a->prompt.text[a->prompt.len] = '\0';
-			a->prompt.error[0] = '\0';
-		}
-	}
-	return APP_HANDLED | APP_REDRAW;
-}
+/* The side pane: its keys (select, nudge, edit) live in the key table. */
+const struct pane pane_side = {
+	.name = "side",
+	.init = pane_side_init,
+	.key = NULL,
+	.draw = pane_side_draw,
+};
