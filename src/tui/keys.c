@@ -320,11 +320,11 @@ static unsigned key_quit(struct app *a)
 /* The key map.  The help overlay lists it in this order. */
 static const struct key_binding key_table[] = {
 	{ { ' ' }, "Space", "step one projection", key_step },
-	{ { 'g' }, "g", "run to the end (a key stops)", key_run },
+	{ { 'g' }, "g", "run on; any key stops", key_run },
 	{ { 'b', TK_BACKSPACE }, "b Backspace", "step back one projection", key_back },
 	{ { 'r' }, "r", "restart the path", key_reset },
-	{ { 'o' }, "o", "flip the projection order", key_order },
-	{ { 'a' }, "a", "start at the newest iterate", key_anchor },
+	{ { 'o' }, "o", "flip projection order", key_order },
+	{ { 'a' }, "a", "start at newest iterate", key_anchor },
 	{ { TK_UP }, "Up", "select parameter above", key_up },
 	{ { TK_DOWN }, "Down", "select parameter below", key_down },
 	{ { '+', '=' }, "+", "raise value a little", key_fine_up },

@@ -17,9 +17,9 @@ static void pane_help_draw(struct app *a, const struct rect *box)
 	int n = (int)keys_help(help, 64);
 	int ncol = n + 3 <= rows - 2 ? 1 : 2;
 	int per = (n + ncol - 1) / ncol;
-	int w = ncol == 1 ? 52 : cols - 4;
-	if (w > cols - 4)
-		w = cols - 4;
+	int w = ncol == 1 ? 52 : cols - 2;
+	if (w > cols - 2)
+		w = cols - 2;
 	int h = per + 3 < rows - 2 ? per + 3 : rows - 2;
 	int top = (rows - h) / 2, left = (cols - w) / 2;
 	int cw = (w - 2) / ncol;

@@ -194,9 +194,11 @@ static int pane_diagnosis(struct app *a, int row, int col, int w, int max)
 	if (have) {
 		diagnose_at(&a->pb, order, a->res.pts[0].v, a->s.solver.tol, 1.0, &d);
 		snprintf(line, sizeof line, "predicted: %s", d.verdict);
-		used += pane_wrap(a, row + used, col, w, 1, line,
+		/* Narrow: the verdict (which names |g'|) gets two lines instead. */
+		bool narrow = w < 40;
+		used += pane_wrap(a, row + used, col, w, narrow ? 2 : 1, line,
 		                  fabs(d.gprime) < 1.0 ? TS_GOOD : TS_ERROR);
-		if (used < max) {
+		if (!narrow && used < max) {
 			char g[48], o[48];
 			pane_side_eng(g, sizeof g, d.gprime, 3);
 			pane_side_eng(o, sizeof o, d.gprime_other, 3);
