@@ -21,15 +21,16 @@ static double sens_current_with(const struct problem *pb, int index, double x,
 	return device_current(&d, v);
 }
 
-/* dI/dp at fixed V for device parameter INDEX. */
-double sensitivity_model_partial(const struct problem *pb, int index,
-                                 double v)
+/*
+ * One difference estimate of dI/dp at fixed V with step H: central when
+ * both sides are inside the range, else the one-sided three-point rule
+ * (-3 f0 + 4 f1 - f2) / (2 h).  NaN when neither fits.
+ */
+static double sens_difference(const struct problem *pb, int index, double v,
+                              double h)
 {
 	const struct model_param *mp = &pb->dev.type->params[index];
 	double p = pb->dev.p[index];
-	double h = SENS_REL_STEP * fabs(p);
-	if (h == 0.0)
-		h = SENS_REL_STEP;
 	bool down = paramref_in_range(mp, p - h);
 	bool up = paramref_in_range(mp, p + h);
 	if (down && up) {
@@ -37,14 +38,36 @@ double sensitivity_model_partial(const struct problem *pb, int index,
 		double b = sens_current_with(pb, index, p - h, v);
 		return (a - b) / (2.0 * h);
 	}
-	/* One-sided, second order: (-3 f0 + 4 f1 - f2) / (2 h). */
 	double s = up ? h : -h;
-	if (!paramref_in_range(mp, p + 2.0 * s))
+	if (!(up || down) || !paramref_in_range(mp, p + 2.0 * s))
 		return NAN;
 	double f0 = sens_current_with(pb, index, p, v);
 	double f1 = sens_current_with(pb, index, p + s, v);
 	double f2 = sens_current_with(pb, index, p + 2.0 * s, v);
 	return (-3.0 * f0 + 4.0 * f1 - f2) / (2.0 * s);
+}
+
+/*
+ * dI/dp at fixed V for device parameter INDEX: the difference estimate
+ * with step h, checked against the one with h/2.  Both err by O(h^2) on a
+ * smooth curve, so they agree to about 1e-10; when they do not, the model
+ * is not smooth in p here (a switch such as a reference temperature at
+ * 0 K meaning "off") and the result is NaN.
+ */
+double sensitivity_model_partial(const struct problem *pb, int index,
+                                 double v)
+{
+	double p = pb->dev.p[index];
+	double h = SENS_REL_STEP * fabs(p);
+	if (h == 0.0)
+		h = SENS_REL_STEP;
+	double d1 = sens_difference(pb, index, v, h);
+	double d2 = sens_difference(pb, index, v, 0.5 * h);
+	double scale = fabs(device_current(&pb->dev, v)) / fmax(fabs(p), h);
+	if (!isfinite(d1) || !isfinite(d2) ||
+	    fabs(d1 - d2) > 1e-5 * fmax(fabs(d1), fabs(d2)) + 1e-9 * scale)
+		return NAN;
+	return d2;
 }
 
 /* (P / Y) DY, NaN when Y is 0. */

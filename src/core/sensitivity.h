@@ -12,7 +12,8 @@
  * the source parameters (vs: -1; rs: I; is: -r; rp: I - isc); for a
  * device parameter it is r dI/dp at fixed V, taken by a central difference
  * of the model's current (a one-sided second-order difference at the edge
- * of the parameter's range).  Then dI/dp = g dV/dp + dI/dp|V, and for the
+ * of the parameter's range), checked against the same with half the step
+ * so that a parameter the model is not smooth in is refused.  Then dI/dp = g dV/dp + dI/dp|V, and for the
  * device power P = V I, dP/dp = I dV/dp + V dI/dp.
  *
  * Normalised sensitivities are (p / y) dy/dp: the per-cent change of y per
@@ -54,7 +55,7 @@ size_t sensitivity_all(const struct problem *pb, double v, double i,
 
 /*
  * dI/dp of PB's device at fixed voltage V for device parameter INDEX, by
- * the difference rule above.  NaN when not computable.
+ * the difference rule above.  NaN when not computable or not smooth.
  */
 double sensitivity_model_partial(const struct problem *pb, int index,
                                  double v);

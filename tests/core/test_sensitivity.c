@@ -132,10 +132,13 @@ static void test_against_finite_differences(void **state)
 			const char *key = paramref_key(&pb, &refs[j]);
 			double p = paramref_get(&pb, &refs[j]);
 			/* reference_temperature at 0 K switches the diode's Is
-			 * scaling off: a switch, not a smooth parameter. */
-			if (strcmp(key, "reference_temperature") == 0 && p < -273.0)
-				continue;
+			 * scaling off: a switch, not a smooth parameter, which
+			 * must be refused rather than differenced across. */
 			struct sensitivity s;
+			if (strcmp(key, "reference_temperature") == 0 && p < -273.0) {
+				assert_int_equal(sensitivity_at(&pb, v, i, &refs[j], &s), -1);
+				continue;
+			}
 			if (sensitivity_at(&pb, v, i, &refs[j], &s) != 0)
 				fail_msg("case %zu, %s: no sensitivity", k, key);
 			double dv, di;
