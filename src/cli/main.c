@@ -22,6 +22,9 @@ static const struct command commands[] = {
 	{ "tidy", cmd_tidy, "print a session file in canonical form" },
 	{ "plot", cmd_plot, "print the load-line plot as text" },
 	{ "reduce", cmd_reduce, "reduce a network source to its Thevenin equivalent" },
+	{ "design", cmd_design, "choose RS (or VS) for a target current, voltage or power" },
+	{ "sweep", cmd_sweep, "solve along a sweep of one parameter" },
+	{ "tolerance", cmd_tolerance, "worst case and Monte Carlo over the tolerances" },
 };
 
 /* Print the program's usage to OUT. */

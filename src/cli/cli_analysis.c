@@ -1,0 +1,113 @@
+/*
+ * cli_analysis.c - helpers shared by the design, sweep and tolerance
+ * commands (see cli_analysis.h).
+ */
+#include "cli_analysis.h"
+
+#include <errno.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "commands.h"
+#include "core/safety.h"
+
+/* Load FILE and build its problem. */
+int cli_load_problem(const char *cmd, const char *file, struct session *se,
+                     struct problem *pb)
+{
+	struct session_error err;
+	enum session_status ls = session_load_file(se, file, &err);
+	if (ls != SESSION_OK) {
+		char msg[1024];
+		session_error_format(&err, msg, sizeof msg);
+		fprintf(stderr, "biasline %s: %s\n", cmd, msg);
+		return ls == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+	}
+	char emsg[512];
+	if (session_problem(se, pb, emsg, sizeof emsg) != 0) {
+		fprintf(stderr, "biasline %s: %s: %s\n", cmd, file, emsg);
+		session_fini(se);
+		return EXIT_DATA;
+	}
+	return 0;
+}
+
+/* Parse --format. */
+int cli_parse_format(const char *cmd, const char *arg, bool *csv)
+{
+	if (strcmp(arg, "csv") == 0) {
+		*csv = true;
+		return 0;
+	}
+	if (strcmp(arg, "text") == 0) {
+		*csv = false;
+		return 0;
+	}
+	fprintf(stderr, "biasline %s: --format: '%s' is not text or csv\n", cmd,
+	        arg);
+	return -1;
+}
+
+/* Parse a quantity option. */
+int cli_parse_qty(const char *cmd, const char *opt, const char *text,
+                  enum qty_kind kind, double *out)
+{
+	char why[200] = "";
+	if (qty_parse(text, kind, out, why, sizeof why) == QTY_OK)
+		return 0;
+	fprintf(stderr, "biasline %s: %s: %s\n", cmd, opt,
+	        why[0] ? why : "not a number");
+	return -1;
+}
+
+/* Parse a count option. */
+int cli_parse_count(const char *cmd, const char *opt, const char *text,
+                    unsigned long long min, unsigned long long max,
+                    unsigned long long *out)
+{
+	char *end;
+	errno = 0;
+	unsigned long long v = strtoull(text, &end, 10);
+	if (text[0] == '\0' || text[0] == '-' || *end != '\0' || errno != 0 ||
+	    v < min || v > max) {
+		fprintf(stderr, "biasline %s: %s: '%s' is not a whole number from "
+		        "%llu to %llu\n", cmd, opt, text, min, max);
+		return -1;
+	}
+	*out = v;
+	return 0;
+}
+
+/* Engineering notation, ASCII units. */
+const char *cli_fmt(char *buf, size_t n, double value, enum qty_kind kind,
+                    int sig)
+{
+	return qty_format_short(buf, n, value, kind, sig, 1);
+}
+
+/* A CSV column name. */
+const char *cli_column(char *buf, size_t n, const char *key,
+                       enum qty_kind kind)
+{
+	const char *u = qty_unit_ascii(kind);
+	if (u[0] == '\0')
+		snprintf(buf, n, "%s", key);
+	else if (strcmp(u, "%") == 0)
+		snprintf(buf, n, "%s_percent", key);
+	else if (strcmp(u, "W/K") == 0)
+		snprintf(buf, n, "%s_W_per_K", key);
+	else
+		snprintf(buf, n, "%s_%s", key, u);
+	return buf;
+}
+
+/* Print the safety caution. */
+void cli_print_caution(unsigned flags, const char *indent)
+{
+	if (flags == 0)
+		return;
+	char msg[512];
+	safety_message(flags, msg, sizeof msg);
+	printf("\n%s%s\n", indent, msg);
+}

@@ -1,0 +1,50 @@
+/*
+ * cli_analysis.h - what the design, sweep and tolerance commands share:
+ * loading a session into a problem with the right exit status, the
+ * --format choice, number formatting and the safety caution.
+ */
+#ifndef BIASLINE_CLI_ANALYSIS_H
+#define BIASLINE_CLI_ANALYSIS_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "core/problem.h"
+#include "core/quantity.h"
+#include "session/session.h"
+
+/*
+ * Load FILE into SE and its problem into PB; on failure print
+ * "biasline CMD: ..." and return the exit status (SE is then finied),
+ * else return 0.
+ */
+int cli_load_problem(const char *cmd, const char *file, struct session *se,
+                     struct problem *pb);
+
+/* Parse a --format value into *CSV; prints and returns -1 when bad. */
+int cli_parse_format(const char *cmd, const char *arg, bool *csv);
+
+/*
+ * Parse TEXT as a quantity of KIND for option OPT into *OUT; prints and
+ * returns -1 when bad.
+ */
+int cli_parse_qty(const char *cmd, const char *opt, const char *text,
+                  enum qty_kind kind, double *out);
+
+/* Parse a count in [MIN, MAX] for option OPT; prints and returns -1. */
+int cli_parse_count(const char *cmd, const char *opt, const char *text,
+                    unsigned long long min, unsigned long long max,
+                    unsigned long long *out);
+
+/* Format VALUE of KIND with SIG digits in engineering notation (ASCII). */
+const char *cli_fmt(char *buf, size_t n, double value, enum qty_kind kind,
+                    int sig);
+
+/* A CSV column name for KEY in unit KIND: "rs_ohm", "ideality". */
+const char *cli_column(char *buf, size_t n, const char *key,
+                       enum qty_kind kind);
+
+/* Print the safety caution for FLAGS (safety.h) with INDENT, if any. */
+void cli_print_caution(unsigned flags, const char *indent);
+
+#endif

@@ -1,0 +1,290 @@
+/*
+ * cmd_design.c - `biasline design FILE`: the series resistance (or source
+ * voltage) that puts the device at a target current, voltage or power,
+ * the standard values either side, what each gives, and the power in the
+ * parts against their ratings.
+ */
+#include <getopt.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "biasline_version.h"
+#include "cli_analysis.h"
+#include "commands.h"
+#include "core/design.h"
+#include "core/safety.h"
+
+/* What the command line asked for. */
+struct design_args {
+	bool csv;
+	bool have_target, have_series, have_unknown;
+	struct design_request rq;
+	const char *file;
+};
+
+/* Print the usage of `design` to OUT. */
+static void design_usage(FILE *out)
+{
+	fprintf(out,
+	        "Usage: biasline design [OPTIONS] FILE\n"
+	        "\n"
+	        "Find the series resistance RS (or the source voltage VS) that puts\n"
+	        "the device at a target current, voltage or power; show the nearest\n"
+	        "standard resistors below and above the exact value with the point,\n"
+	        "the error from the target and the power each gives, checked against\n"
+	        "the session's ratings.\n"
+	        "\n"
+	        "Options:\n"
+	        "  -c, --current I      target device current (12m, 12 mA)\n"
+	        "  -v, --voltage V      target device voltage\n"
+	        "  -p, --power P        target device power\n"
+	        "                       (one of the three; default: the session's\n"
+	        "                       target section)\n"
+	        "  -s, --series E       E6, E12, E24, E48, E96 or E192 (default E24)\n"
+	        "  -S, --solve-for X    rs (default) or vs\n"
+	        "  -f, --format FMT     text (default) or csv\n"
+	        "  -h, --help           show this help and exit\n"
+	        "  -V, --version        show the version and exit\n"
+	        "\n"
+	        "Exit status: 0 designed; 3 no value meets the target; 64 bad\n"
+	        "usage; 65 bad data in FILE; 66 FILE cannot be read.\n");
+}
+
+/* Set the target kind K from option text ARG; -1 when bad or repeated. */
+static int design_set_target(struct design_args *a, enum design_target k,
+                             const char *opt, const char *arg)
+{
+	static const enum qty_kind kinds[] = { QTY_CURRENT, QTY_VOLTAGE,
+	                                       QTY_POWER };
+	if (a->have_target) {
+		fprintf(stderr, "biasline design: give one of --current, --voltage "
+		        "or --power\n");
+		return -1;
+	}
+	if (cli_parse_qty("design", opt, arg, kinds[k], &a->rq.value) != 0)
+		return -1;
+	a->rq.target = k;
+	a->have_target = true;
+	return 0;
+}
+
+/* Parse the command line into A; returns -1 to exit with *CODE. */
+static int design_parse_args(int argc, char **argv, struct design_args *a,
+                             int *code)
+{
+	static const struct option opts[] = {
+		{ "current", required_argument, NULL, 'c' },
+		{ "voltage", required_argument, NULL, 'v' },
+		{ "power", required_argument, NULL, 'p' },
+		{ "series", required_argument, NULL, 's' },
+		{ "solve-for", required_argument, NULL, 'S' },
+		{ "format", required_argument, NULL, 'f' },
+		{ "help", no_argument, NULL, 'h' },
+		{ "version", no_argument, NULL, 'V' },
+		{ NULL, 0, NULL, 0 },
+	};
+	memset(a, 0, sizeof *a);
+	a->rq.series = ESERIES_E24;
+	a->rq.unknown = DESIGN_FOR_RS;
+	optind = 1;
+	opterr = 0;
+	*code = EXIT_USAGE;
+	int c;
+	while ((c = getopt_long(argc, argv, ":c:v:p:s:S:f:hV", opts, NULL)) != -1) {
+		switch (c) {
+		case 'c':
+		case 'v':
+		case 'p':
+			if (design_set_target(a, c == 'c' ? DESIGN_CURRENT
+			                         : c == 'v' ? DESIGN_VOLTAGE
+			                                    : DESIGN_POWER,
+			                      argv[optind - 1], optarg) != 0)
+				return -1;
+			break;
+		case 's':
+			if (eseries_from_name(optarg, &a->rq.series) != 0) {
+				fprintf(stderr, "biasline design: --series: '%s' is not E6, "
+				        "E12, E24, E48, E96 or E192\n", optarg);
+				return -1;
+			}
+			a->have_series = true;
+			break;
+		case 'S':
+			if (strcmp(optarg, "rs") == 0) {
+				a->rq.unknown = DESIGN_FOR_RS;
+			} else if (strcmp(optarg, "vs") == 0) {
+				a->rq.unknown = DESIGN_FOR_VS;
+			} else {
+				fprintf(stderr, "biasline design: --solve-for: '%s' is not "
+				        "rs or vs\n", optarg);
+				return -1;
+			}
+			a->have_unknown = true;
+			break;
+		case 'f':
+			if (cli_parse_format("design", optarg, &a->csv) != 0)
+				return -1;
+			break;
+		case 'h':
+			design_usage(stdout);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case 'V':
+			printf("biasline %s\n", BIASLINE_VERSION);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case ':':
+			fprintf(stderr, "biasline design: option '%s' needs a value\n",
+			        argv[optind - 1]);
+			return -1;
+		default:
+			fprintf(stderr, "biasline design: unknown option '%s' (try "
+			        "--help)\n", argv[optind - 1]);
+			return -1;
+		}
+	}
+	if (optind != argc - 1) {
+		fprintf(stderr, "biasline design: expected one FILE (try --help)\n");
+		return -1;
+	}
+	a->file = argv[optind];
+	*code = EXIT_OK_CODE;
+	return 0;
+}
+
+/* The unit of the target. */
+static enum qty_kind design_target_unit(enum design_target t)
+{
+	return t == DESIGN_CURRENT ? QTY_CURRENT
+	       : t == DESIGN_VOLTAGE ? QTY_VOLTAGE : QTY_POWER;
+}
+
+/* Print the result as CSV. */
+static void design_print_csv(const struct design_request *rq,
+                             const struct design_result *res)
+{
+	printf("row,%s,voltage_V,current_A,power_W,resistor_power_W,"
+	       "source_power_W,error_percent,points,suggested_resistor_W\n",
+	       rq->unknown == DESIGN_FOR_RS ? "rs_ohm" : "vs_V");
+	for (size_t k = 0; k < res->nrows; k++) {
+		const struct design_row *r = &res->rows[k];
+		printf("%s,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%zu,%.17g\n",
+		       design_row_name(r->kind), r->value, r->pt.v, r->pt.i,
+		       r->pt.power, r->power.p_resistor, r->power.p_source,
+		       r->error_percent, r->npoints,
+		       r->power.suggested_resistor_power);
+	}
+}
+
+/* Print the result as text; returns the safety flags of all rows. */
+static unsigned design_print_text(const char *file, const struct problem *pb,
+                                  const struct design_request *rq,
+                                  const struct ratings *rt,
+                                  const struct design_result *res)
+{
+	char a[48], b[48], c[48], d[48], e[48], f[48];
+	enum qty_kind tk = design_target_unit(rq->target);
+	bool for_rs = rq->unknown == DESIGN_FOR_RS;
+	printf("%s\n", file);
+	printf("  target   device %s %s, solving for %s", design_target_name(rq->target),
+	       cli_fmt(a, sizeof a, rq->value, tk, 6), for_rs ? "RS" : "VS");
+	if (for_rs)
+		printf(" (VS = %s, %s)\n", cli_fmt(b, sizeof b, pb->src.voc,
+		                                   QTY_VOLTAGE, 6),
+		       eseries_name(rq->series));
+	else
+		printf(" (RS = %s)\n", cli_fmt(b, sizeof b, pb->src.r, QTY_RESISTANCE,
+		                                6));
+	printf("  device   at the target: %s, %s\n\n",
+	       cli_fmt(a, sizeof a, res->v_target, QTY_VOLTAGE, 6),
+	       cli_fmt(b, sizeof b, res->i_target, QTY_CURRENT, 6));
+	printf("  %-7s %-13s %-12s %-12s %-12s %-12s %s\n", "", for_rs ? "RS" : "VS",
+	       "voltage", "current", "P(device)", "P(RS)", "error");
+	unsigned flags = 0;
+	for (size_t k = 0; k < res->nrows; k++) {
+		const struct design_row *r = &res->rows[k];
+		cli_fmt(a, sizeof a, r->value, for_rs ? QTY_RESISTANCE : QTY_VOLTAGE,
+		        for_rs && k > 0 ? 3 : 6);
+		if (!r->solved) {
+			printf("  %-7s %-13s (no operating point)\n",
+			       design_row_name(r->kind), a);
+			continue;
+		}
+		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %+.3g %%%s\n",
+		       design_row_name(r->kind), a,
+		       cli_fmt(b, sizeof b, r->pt.v, QTY_VOLTAGE, 5),
+		       cli_fmt(c, sizeof c, r->pt.i, QTY_CURRENT, 5),
+		       cli_fmt(d, sizeof d, r->pt.power, QTY_POWER, 4),
+		       cli_fmt(e, sizeof e, r->power.p_resistor, QTY_POWER, 4),
+		       r->error_percent, r->npoints > 1 ? "  (several points)" : "");
+		struct problem q;
+		if (design_apply(pb, rq->unknown, r->value, &q) == 0)
+			flags |= safety_check(&q, r->pt.v, r->pt.i);
+	}
+	/* Power and ratings at each standard value. */
+	for (size_t k = 0; k < res->nrows; k++) {
+		const struct design_row *r = &res->rows[k];
+		if (!r->solved || (for_rs && r->kind == DESIGN_ROW_EXACT))
+			continue;
+		printf("\n  %s %s: source delivers %s; RS needs a %s rating",
+		       design_row_name(r->kind),
+		       cli_fmt(a, sizeof a, r->value,
+		               for_rs ? QTY_RESISTANCE : QTY_VOLTAGE, 3),
+		       cli_fmt(b, sizeof b, r->power.p_source, QTY_POWER, 4),
+		       isnan(r->power.suggested_resistor_power)
+		           ? "(none in the table)"
+		           : cli_fmt(f, sizeof f, r->power.suggested_resistor_power,
+		                     QTY_POWER, 3));
+		printf("\n    (at most %.0f %% of the rating%s: common practice)\n",
+		       100.0 * RATINGS_USE_FRACTION,
+		       r->power.derating < 1.0 ? ", derated for the ambient" : "");
+		char warn[1024];
+		if (ratings_describe(&r->power, rt, warn, sizeof warn) > 0) {
+			for (char *line = strtok(warn, "\n"); line != NULL;
+			     line = strtok(NULL, "\n"))
+				printf("    warning: %s\n", line);
+		}
+	}
+	return flags;
+}
+
+/* Entry point of `biasline design`. */
+int cmd_design(int argc, char **argv)
+{
+	struct design_args a;
+	int code;
+	if (design_parse_args(argc, argv, &a, &code) != 0)
+		return code;
+	struct session se;
+	struct problem pb;
+	if ((code = cli_load_problem("design", a.file, &se, &pb)) != 0)
+		return code;
+	struct design_request rq = a.rq;
+	if (!a.have_target) {
+		if (session_design_request(&se, &rq) != 0) {
+			fprintf(stderr, "biasline design: %s: no target: give --current, "
+			        "--voltage or --power, or a target: section\n", a.file);
+			session_fini(&se);
+			return EXIT_USAGE;
+		}
+		if (a.have_series)
+			rq.series = a.rq.series;
+		if (a.have_unknown)
+			rq.unknown = a.rq.unknown;
+	}
+	struct design_result res;
+	code = EXIT_OK_CODE;
+	if (design_solve(&pb, &se.solver, &rq, &se.analysis.ratings, &res) != 0) {
+		fprintf(stderr, "biasline design: %s: %s\n", a.file, res.message);
+		code = EXIT_NO_POINT;
+	} else if (a.csv) {
+		design_print_csv(&rq, &res);
+	} else {
+		unsigned flags = design_print_text(a.file, &pb, &rq,
+		                                   &se.analysis.ratings, &res);
+		cli_print_caution(flags, "  ");
+	}
+	session_fini(&se);
+	return code;
+}

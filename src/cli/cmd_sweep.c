@@ -1,0 +1,225 @@
+/*
+ * cmd_sweep.c - `biasline sweep FILE --param KEY --from X --to Y`: the
+ * operating point(s) along a sweep of one parameter, one row per point,
+ * with the folds where the number of points changes.
+ */
+#include <getopt.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "biasline_version.h"
+#include "cli_analysis.h"
+#include "commands.h"
+#include "core/safety.h"
+#include "core/sweep.h"
+
+/* What the command line asked for. */
+struct sweep_args {
+	bool csv, log;
+	const char *param, *from, *to, *file;
+	unsigned long long points;
+};
+
+/* Print the usage of `sweep` to OUT. */
+static void sweep_usage(FILE *out)
+{
+	fprintf(out,
+	        "Usage: biasline sweep [OPTIONS] --param KEY --from X --to Y FILE\n"
+	        "\n"
+	        "Solve the session at each value of one parameter and print every\n"
+	        "operating point: voltage, current and device power.  Each step\n"
+	        "continues from the last; where the number of points changes (a\n"
+	        "fold: the circuit jumps) the value is located and reported.\n"
+	        "\n"
+	        "Options:\n"
+	        "  -P, --param KEY    vs, rs, is, rp or a device parameter key\n"
+	        "                     (temperature, saturation_current, ...)\n"
+	        "  -a, --from X       first value, with the parameter's unit\n"
+	        "  -b, --to Y         last value\n"
+	        "  -n, --points N     number of values, 1 to %d (default 51)\n"
+	        "  -l, --log          logarithmic spacing (X and Y of one sign)\n"
+	        "  -f, --format FMT   text (default) or csv; CSV rows are\n"
+	        "                     step,KEY_UNIT,point,count,voltage_V,current_A,\n"
+	        "                     power_W and folds go to standard error\n"
+	        "  -h, --help         show this help and exit\n"
+	        "  -V, --version      show the version and exit\n"
+	        "\n"
+	        "Exit status: 0 done (steps without a point are reported); 64 bad\n"
+	        "usage; 65 bad data in FILE; 66 FILE cannot be read.\n",
+	        SWEEP_MAX_POINTS);
+}
+
+/* Parse the command line into A; returns -1 to exit with *CODE. */
+static int sweep_parse_args(int argc, char **argv, struct sweep_args *a,
+                            int *code)
+{
+	static const struct option opts[] = {
+		{ "param", required_argument, NULL, 'P' },
+		{ "from", required_argument, NULL, 'a' },
+		{ "to", required_argument, NULL, 'b' },
+		{ "points", required_argument, NULL, 'n' },
+		{ "log", no_argument, NULL, 'l' },
+		{ "format", required_argument, NULL, 'f' },
+		{ "help", no_argument, NULL, 'h' },
+		{ "version", no_argument, NULL, 'V' },
+		{ NULL, 0, NULL, 0 },
+	};
+	memset(a, 0, sizeof *a);
+	a->points = 51;
+	optind = 1;
+	opterr = 0;
+	*code = EXIT_USAGE;
+	int c;
+	while ((c = getopt_long(argc, argv, ":P:a:b:n:lf:hV", opts, NULL)) != -1) {
+		switch (c) {
+		case 'P':
+			a->param = optarg;
+			break;
+		case 'a':
+			a->from = optarg;
+			break;
+		case 'b':
+			a->to = optarg;
+			break;
+		case 'n':
+			if (cli_parse_count("sweep", "--points", optarg, 1,
+			                    SWEEP_MAX_POINTS, &a->points) != 0)
+				return -1;
+			break;
+		case 'l':
+			a->log = true;
+			break;
+		case 'f':
+			if (cli_parse_format("sweep", optarg, &a->csv) != 0)
+				return -1;
+			break;
+		case 'h':
+			sweep_usage(stdout);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case 'V':
+			printf("biasline %s\n", BIASLINE_VERSION);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case ':':
+			fprintf(stderr, "biasline sweep: option '%s' needs a value\n",
+			        argv[optind - 1]);
+			return -1;
+		default:
+			fprintf(stderr, "biasline sweep: unknown option '%s' (try --help)\n",
+			        argv[optind - 1]);
+			return -1;
+		}
+	}
+	if (a->param == NULL || a->from == NULL || a->to == NULL) {
+		fprintf(stderr, "biasline sweep: --param, --from and --to are "
+		        "required (try --help)\n");
+		return -1;
+	}
+	if (optind != argc - 1) {
+		fprintf(stderr, "biasline sweep: expected one FILE (try --help)\n");
+		return -1;
+	}
+	a->file = argv[optind];
+	*code = EXIT_OK_CODE;
+	return 0;
+}
+
+/* Print the folds of RES to OUT. */
+static void sweep_print_folds(FILE *out, const char *prefix, const char *key,
+                              enum qty_kind unit, const struct sweep_result *res)
+{
+	for (size_t k = 0; k < res->nfolds; k++) {
+		const struct sweep_fold *f = &res->folds[k];
+		char v[48];
+		fprintf(out, "%sfold: %zu -> %zu operating point%s at %s = %s "
+		        "(between steps %zu and %zu)\n", prefix, f->n_before,
+		        f->n_after, f->n_after == 1 ? "" : "s", key,
+		        cli_fmt(v, sizeof v, f->value, unit, 6), f->step - 1, f->step);
+	}
+}
+
+/* Entry point of `biasline sweep`. */
+int cmd_sweep(int argc, char **argv)
+{
+	struct sweep_args a;
+	int code;
+	if (sweep_parse_args(argc, argv, &a, &code) != 0)
+		return code;
+	struct session se;
+	struct problem pb;
+	if ((code = cli_load_problem("sweep", a.file, &se, &pb)) != 0)
+		return code;
+	struct sweep_spec sp = { .points = (size_t)a.points,
+	                         .scale = a.log ? SWEEP_LOG : SWEEP_LINEAR };
+	char err[600];
+	if (paramref_find(&pb, a.param, &sp.param, err, sizeof err) != 0) {
+		fprintf(stderr, "biasline sweep: --param: %s\n", err);
+		session_fini(&se);
+		return EXIT_USAGE;
+	}
+	enum qty_kind unit = paramref_unit(&pb, &sp.param);
+	if (cli_parse_qty("sweep", "--from", a.from, unit, &sp.from) != 0 ||
+	    cli_parse_qty("sweep", "--to", a.to, unit, &sp.to) != 0) {
+		session_fini(&se);
+		return EXIT_USAGE;
+	}
+	struct sweep_result res;
+	if (sweep_run(&pb, &se.solver, &sp, &res) != 0) {
+		fprintf(stderr, "biasline sweep: %s\n", res.message);
+		session_fini(&se);
+		return EXIT_USAGE;
+	}
+	const char *key = paramref_key(&pb, &sp.param);
+	unsigned flags = 0;
+	if (a.csv) {
+		char col[96];
+		printf("step,%s,point,count,voltage_V,current_A,power_W\n",
+		       cli_column(col, sizeof col, key, unit));
+		for (size_t k = 0; k < res.nrows; k++) {
+			const struct sweep_row *r = &res.rows[k];
+			printf("%zu,%.17g,%zu,%zu,%.17g,%.17g,%.17g\n", r->step, r->value,
+			       r->index + 1, r->count, r->v, r->i, r->p);
+		}
+		sweep_print_folds(stderr, "biasline sweep: ", key, unit, &res);
+	} else {
+		char a1[48], a2[48], v[48], i[48], p[48];
+		printf("%s\n  sweep    %s from %s to %s, %zu %s points\n\n", a.file,
+		       key, cli_fmt(a1, sizeof a1, sp.from, unit, 6),
+		       cli_fmt(a2, sizeof a2, sp.to, unit, 6), sp.points,
+		       a.log ? "logarithmic" : "linear");
+		printf("  %-5s %-14s %-5s %-13s %-13s %s\n", "step", key, "point",
+		       "voltage", "current", "power");
+		for (size_t k = 0; k < res.nrows; k++) {
+			const struct sweep_row *r = &res.rows[k];
+			printf("  %-5zu %-14s %zu/%-3zu %-13s %-13s %s\n", r->step,
+			       cli_fmt(a1, sizeof a1, r->value, unit, 5), r->index + 1,
+			       r->count, cli_fmt(v, sizeof v, r->v, QTY_VOLTAGE, 6),
+			       cli_fmt(i, sizeof i, r->i, QTY_CURRENT, 6),
+			       cli_fmt(p, sizeof p, r->p, QTY_POWER, 4));
+		}
+		if (res.nfolds > 0)
+			printf("\n");
+		sweep_print_folds(stdout, "  ", key, unit, &res);
+	}
+	if (res.failed > 0)
+		fprintf(stderr, "biasline sweep: %zu of %zu steps have no operating "
+		        "point\n", res.failed, sp.points);
+	/* The caution covers every step. */
+	for (size_t k = 0; k < res.nrows; k++) {
+		struct problem q = pb;
+		paramref_set(&q, &sp.param, res.rows[k].value);
+		flags |= safety_check(&q, res.rows[k].v, res.rows[k].i);
+	}
+	if (a.csv && flags != 0) {
+		char msg[512];
+		safety_message(flags, msg, sizeof msg);
+		fprintf(stderr, "biasline sweep: %s\n", msg);
+	} else if (!a.csv) {
+		cli_print_caution(flags, "  ");
+	}
+	sweep_result_fini(&res);
+	session_fini(&se);
+	return EXIT_OK_CODE;
+}

@@ -1,0 +1,423 @@
+/*
+ * cmd_tolerance.c - `biasline tolerance FILE`: the worst case over the
+ * session's tolerances, a seeded Monte Carlo run with percentiles, a
+ * histogram and the yield, and the parts' ratings at the worst case.
+ */
+#include <getopt.h>
+#include <math.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "biasline_version.h"
+#include "cli_analysis.h"
+#include "commands.h"
+#include "core/safety.h"
+#include "core/tolerance.h"
+
+/* What the command line asked for. */
+struct tolerance_args {
+	bool csv;
+	unsigned long long trials, seed, bins;
+	const char *file;
+};
+
+/* Print the usage of `tolerance` to OUT. */
+static void tolerance_usage(FILE *out)
+{
+	fprintf(out,
+	        "Usage: biasline tolerance [OPTIONS] FILE\n"
+	        "\n"
+	        "Vary the parameters within the session's tolerances: section and\n"
+	        "report the worst case (every corner, and inside the box where the\n"
+	        "extreme is not at a corner) of the device current, voltage, device\n"
+	        "power and resistor power, then a seeded Monte Carlo run with mean,\n"
+	        "standard deviation, percentiles, a histogram and the yield against\n"
+	        "the target's current_min/max and voltage_min/max.  The ratings are\n"
+	        "checked at the worst case.\n"
+	        "\n"
+	        "Options:\n"
+	        "  -n, --trials N     Monte Carlo trials, 0 to %d (default 10000;\n"
+	        "                     0: worst case only)\n"
+	        "  -s, --seed S       generator seed (default 1); the same seed gives\n"
+	        "                     the same numbers on every platform\n"
+	        "  -b, --bins B       histogram bins, 1 to %d (default 20)\n"
+	        "  -f, --format FMT   text (default) or csv (rows: section,output,\n"
+	        "                     name,value)\n"
+	        "  -h, --help         show this help and exit\n"
+	        "  -V, --version      show the version and exit\n"
+	        "\n"
+	        "Exit status: 0 done; 3 no operating point at the nominal values;\n"
+	        "64 bad usage; 65 bad data in FILE (or no tolerances); 66 FILE\n"
+	        "cannot be read.\n",
+	        TOL_MAX_TRIALS, TOL_MAX_BINS);
+}
+
+/* Parse the command line into A; returns -1 to exit with *CODE. */
+static int tolerance_parse_args(int argc, char **argv, struct tolerance_args *a,
+                                int *code)
+{
+	static const struct option opts[] = {
+		{ "trials", required_argument, NULL, 'n' },
+		{ "seed", required_argument, NULL, 's' },
+		{ "bins", required_argument, NULL, 'b' },
+		{ "format", required_argument, NULL, 'f' },
+		{ "help", no_argument, NULL, 'h' },
+		{ "version", no_argument, NULL, 'V' },
+		{ NULL, 0, NULL, 0 },
+	};
+	memset(a, 0, sizeof *a);
+	a->trials = 10000;
+	a->seed = 1;
+	a->bins = 20;
+	optind = 1;
+	opterr = 0;
+	*code = EXIT_USAGE;
+	int c;
+	while ((c = getopt_long(argc, argv, ":n:s:b:f:hV", opts, NULL)) != -1) {
+		switch (c) {
+		case 'n':
+			if (cli_parse_count("tolerance", "--trials", optarg, 0,
+			                    TOL_MAX_TRIALS, &a->trials) != 0)
+				return -1;
+			break;
+		case 's':
+			if (cli_parse_count("tolerance", "--seed", optarg, 0,
+			                    UINT64_MAX, &a->seed) != 0)
+				return -1;
+			break;
+		case 'b':
+			if (cli_parse_count("tolerance", "--bins", optarg, 1, TOL_MAX_BINS,
+			                    &a->bins) != 0)
+				return -1;
+			break;
+		case 'f':
+			if (cli_parse_format("tolerance", optarg, &a->csv) != 0)
+				return -1;
+			break;
+		case 'h':
+			tolerance_usage(stdout);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case 'V':
+			printf("biasline %s\n", BIASLINE_VERSION);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case ':':
+			fprintf(stderr, "biasline tolerance: option '%s' needs a value\n",
+			        argv[optind - 1]);
+			return -1;
+		default:
+			fprintf(stderr, "biasline tolerance: unknown option '%s' (try "
+			        "--help)\n", argv[optind - 1]);
+			return -1;
+		}
+	}
+	if (optind != argc - 1) {
+		fprintf(stderr, "biasline tolerance: expected one FILE (try --help)\n");
+		return -1;
+	}
+	a->file = argv[optind];
+	*code = EXIT_OK_CODE;
+	return 0;
+}
+
+/* The unit of output O. */
+static enum qty_kind tolerance_unit(enum tol_output o)
+{
+	return o == TOL_CURRENT ? QTY_CURRENT
+	       : o == TOL_VOLTAGE ? QTY_VOLTAGE : QTY_POWER;
+}
+
+/* The CSV name of output O ("current_A"). */
+static const char *tolerance_column(char *buf, size_t n, enum tol_output o)
+{
+	return cli_column(buf, n, tol_output_name(o), tolerance_unit(o));
+}
+
+/* The ratings at the worst case: each use from its own extreme. */
+static void tolerance_ratings(const struct tol_worst *w, const struct ratings *r,
+                              struct ratings_report *rep)
+{
+	memset(rep, 0, sizeof *rep);
+	double pd = fmax(fabs(w->min[TOL_DEVICE_POWER].value),
+	                 fabs(w->max[TOL_DEVICE_POWER].value));
+	double im = fmax(fabs(w->min[TOL_CURRENT].value),
+	                 fabs(w->max[TOL_CURRENT].value));
+	rep->p_device = pd;
+	rep->p_resistor = w->max[TOL_RESISTOR_POWER].value;
+	rep->derating = ratings_derating(r->ambient_temperature);
+	rep->device_power_use = pd / r->device_max_power;
+	rep->device_current_use = im / r->device_max_current;
+	rep->resistor_use = NAN;
+	if (rep->device_power_use > 1.0)
+		rep->flags |= RATINGS_DEVICE_POWER;
+	if (rep->device_current_use > 1.0)
+		rep->flags |= RATINGS_DEVICE_CURRENT;
+	if (rep->derating <= 0.0)
+		rep->flags |= RATINGS_NO_RESISTOR;
+	if (isfinite(r->resistor_power) && rep->p_resistor > 0.0) {
+		double avail = r->resistor_power * rep->derating;
+		rep->resistor_use = avail > 0.0 ? rep->p_resistor / avail : INFINITY;
+		if (rep->resistor_use > 1.0)
+			rep->flags |= RATINGS_RESISTOR_POWER;
+		else if (rep->resistor_use > RATINGS_USE_FRACTION)
+			rep->flags |= RATINGS_RESISTOR_USE;
+	}
+	rep->suggested_resistor_power =
+		rep->derating > 0.0
+			? ratings_standard_power(rep->p_resistor /
+			                         (RATINGS_USE_FRACTION * rep->derating))
+			: NAN;
+}
+
+/* The safety cautions over the box. */
+static unsigned tolerance_safety(const struct tol_case *c,
+                                 const struct tol_worst *w)
+{
+	double vmax = fmax(fabs(w->min[TOL_VOLTAGE].value),
+	                   fabs(w->max[TOL_VOLTAGE].value));
+	struct problem q = c->pb;
+	for (size_t k = 0; k < c->nitems; k++)
+		if (c->items[k].param.kind == PARAMREF_VS)
+			q.src.voc = fabs(c->items[k].lo) > fabs(c->items[k].hi)
+			                ? c->items[k].lo : c->items[k].hi;
+	unsigned f = safety_check(&q, vmax, 0.0);
+	if (fmax(fabs(w->min[TOL_DEVICE_POWER].value),
+	         fabs(w->max[TOL_DEVICE_POWER].value)) > SAFETY_HOT_POWER)
+		f |= SAFETY_HOT_DEVICE;
+	if (w->max[TOL_RESISTOR_POWER].value > SAFETY_HOT_POWER)
+		f |= SAFETY_HOT_RESISTOR;
+	return f;
+}
+
+/* Print the parameters of extreme E ("vs = 21.3 V, rs = 2.31 kohm"). */
+static void tolerance_print_at(const struct tol_case *c,
+                               const struct tol_extreme *e)
+{
+	for (size_t k = 0; k < c->nitems; k++) {
+		char v[48];
+		const struct paramref *r = &c->items[k].param;
+		printf("%s%s = %s", k ? ", " : "", paramref_key(&c->pb, r),
+		       cli_fmt(v, sizeof v, e->params[k], paramref_unit(&c->pb, r), 5));
+	}
+	printf("%s\n", e->interior ? "  (inside the box)" : "");
+}
+
+/* Print everything as text. */
+static void tolerance_print_text(const char *file, const struct tol_case *c,
+                                 const struct tol_worst *w,
+                                 const struct tol_mc *mc,
+                                 const struct tol_window *win, size_t nwin,
+                                 const struct session *se)
+{
+	char a[48], b[48], d[48];
+	printf("%s\n  tolerances\n", file);
+	for (size_t k = 0; k < c->nitems; k++) {
+		const struct tol_item *it = &c->items[k];
+		enum qty_kind u = paramref_unit(&c->pb, &it->param);
+		printf("    %-20s %s ... %s (%s)\n", paramref_key(&c->pb, &it->param),
+		       cli_fmt(a, sizeof a, it->lo, u, 5),
+		       cli_fmt(b, sizeof b, it->hi, u, 5), tol_dist_name(it->dist));
+	}
+	printf("\n  worst case (%zu corners", w->corners);
+	if (w->failed)
+		printf(", %zu without an operating point", w->failed);
+	printf(")\n  %-16s %-13s %-13s %s\n", "", "nominal", "minimum", "maximum");
+	for (int o = 0; o < TOL_NOUT; o++) {
+		enum qty_kind u = tolerance_unit((enum tol_output)o);
+		printf("  %-16s %-13s %-13s %s\n", tol_output_name((enum tol_output)o),
+		       cli_fmt(a, sizeof a, w->nominal[o], u, 5),
+		       cli_fmt(b, sizeof b, w->min[o].value, u, 5),
+		       cli_fmt(d, sizeof d, w->max[o].value, u, 5));
+	}
+	for (int o = 0; o < TOL_NOUT; o += 3) {
+		printf("  %s min at: ", tol_output_name((enum tol_output)o));
+		tolerance_print_at(c, &w->min[o]);
+		printf("  %s max at: ", tol_output_name((enum tol_output)o));
+		tolerance_print_at(c, &w->max[o]);
+	}
+	/* The ratings at the worst case. */
+	const struct ratings *rt = &se->analysis.ratings;
+	struct ratings_report rep;
+	tolerance_ratings(w, rt, &rep);
+	printf("\n  resistor at worst %s: needs a %s rating (at most %.0f %% of "
+	       "the rating%s: common practice)\n",
+	       cli_fmt(a, sizeof a, rep.p_resistor, QTY_POWER, 4),
+	       isnan(rep.suggested_resistor_power)
+	           ? "(beyond the table)"
+	           : cli_fmt(b, sizeof b, rep.suggested_resistor_power, QTY_POWER,
+	                     3),
+	       100.0 * RATINGS_USE_FRACTION,
+	       rep.derating < 1.0 ? ", derated for the ambient" : "");
+	if (isfinite(rep.resistor_use))
+		printf("  resistor uses %.3g %% of its %s rating at worst\n",
+		       100.0 * rep.resistor_use,
+		       cli_fmt(a, sizeof a, rt->resistor_power, QTY_POWER, 3));
+	if (isfinite(rep.device_power_use))
+		printf("  device uses %.3g %% of its maximum power at worst\n",
+		       100.0 * rep.device_power_use);
+	if (isfinite(rep.device_current_use))
+		printf("  device uses %.3g %% of its maximum current at worst\n",
+		       100.0 * rep.device_current_use);
+	char warn[1024];
+	if (ratings_describe(&rep, rt, warn, sizeof warn) > 0)
+		for (char *line = strtok(warn, "\n"); line != NULL;
+		     line = strtok(NULL, "\n"))
+			printf("  warning: %s\n", line);
+	if (mc == NULL)
+		return;
+	printf("\n  Monte Carlo: %zu trials", mc->trials);
+	if (mc->failed)
+		printf(" (%zu without an operating point)", mc->failed);
+	printf("\n  %-16s %-12s %-12s %-12s %-12s %s\n", "", "mean", "std dev",
+	       "0.135 %", "median", "99.865 %");
+	for (int o = 0; o < TOL_NOUT; o++) {
+		enum qty_kind u = tolerance_unit((enum tol_output)o);
+		const struct tol_stats *s = &mc->stats[o];
+		char e1[48], e2[48];
+		printf("  %-16s %-12s %-12s %-12s %-12s %s\n",
+		       tol_output_name((enum tol_output)o),
+		       cli_fmt(a, sizeof a, s->mean, u, 5),
+		       cli_fmt(b, sizeof b, s->sd, u, 3),
+		       cli_fmt(d, sizeof d, s->pct[0], u, 5),
+		       cli_fmt(e1, sizeof e1, s->pct[3], u, 5),
+		       cli_fmt(e2, sizeof e2, s->pct[TOL_NPCT - 1], u, 5));
+	}
+	/* The histogram of the current, drawn from the counts. */
+	const struct tol_hist *h = &mc->hist[TOL_CURRENT];
+	size_t top = 1;
+	for (size_t k = 0; k < h->nbins; k++)
+		if (h->counts[k] > top)
+			top = h->counts[k];
+	printf("\n  current histogram\n");
+	for (size_t k = 0; k < h->nbins; k++) {
+		double lo = h->lo + (h->hi - h->lo) * (double)k / (double)h->nbins;
+		int bar = (int)(40.0 * (double)h->counts[k] / (double)top + 0.5);
+		printf("  %12s |%-40.*s %zu\n", cli_fmt(a, sizeof a, lo, QTY_CURRENT, 4),
+		       bar, "########################################", h->counts[k]);
+	}
+	if (nwin > 0) {
+		printf("\n  yield %.4g %% (%zu of %zu trials) inside", 100.0 * mc->yield,
+		       mc->inside, mc->trials);
+		for (size_t k = 0; k < nwin; k++) {
+			enum qty_kind u = tolerance_unit(win[k].output);
+			printf("%s %s %s ... %s", k ? " and" : "",
+			       tol_output_name(win[k].output),
+			       isnan(win[k].lo) ? "-inf" : cli_fmt(a, sizeof a, win[k].lo, u, 5),
+			       isnan(win[k].hi) ? "+inf" : cli_fmt(b, sizeof b, win[k].hi, u, 5));
+		}
+		printf("\n");
+	}
+}
+
+/* Print everything as CSV rows section,output,name,value. */
+static void tolerance_print_csv(const struct tol_case *c,
+                                const struct tol_worst *w,
+                                const struct tol_mc *mc)
+{
+	char col[64], nm[96];
+	printf("section,output,name,value\n");
+	for (int o = 0; o < TOL_NOUT; o++) {
+		tolerance_column(col, sizeof col, (enum tol_output)o);
+		printf("nominal,%s,value,%.17g\n", col, w->nominal[o]);
+		const struct tol_extreme *ex[2] = { &w->min[o], &w->max[o] };
+		for (int m = 0; m < 2; m++) {
+			const char *mm = m ? "max" : "min";
+			printf("worst_case,%s,%s,%.17g\n", col, mm, ex[m]->value);
+			printf("worst_case,%s,%s_inside,%d\n", col, mm, ex[m]->interior);
+			for (size_t k = 0; k < c->nitems; k++)
+				printf("worst_case,%s,%s_at_%s,%.17g\n", col, mm,
+				       paramref_key(&c->pb, &c->items[k].param),
+				       ex[m]->params[k]);
+		}
+	}
+	if (mc == NULL)
+		return;
+	printf("monte_carlo,all,trials,%zu\nmonte_carlo,all,failed,%zu\n",
+	       mc->trials, mc->failed);
+	for (int o = 0; o < TOL_NOUT; o++) {
+		const struct tol_stats *s = &mc->stats[o];
+		tolerance_column(col, sizeof col, (enum tol_output)o);
+		printf("monte_carlo,%s,mean,%.17g\n", col, s->mean);
+		printf("monte_carlo,%s,sd,%.17g\n", col, s->sd);
+		printf("monte_carlo,%s,min,%.17g\n", col, s->min);
+		printf("monte_carlo,%s,max,%.17g\n", col, s->max);
+		for (int p = 0; p < TOL_NPCT; p++) {
+			snprintf(nm, sizeof nm, "p%g", tol_percentiles[p]);
+			printf("monte_carlo,%s,%s,%.17g\n", col, nm, s->pct[p]);
+		}
+		const struct tol_hist *h = &mc->hist[o];
+		for (size_t k = 0; k < h->nbins; k++)
+			printf("histogram,%s,%.17g,%zu\n", col,
+			       h->lo + (h->hi - h->lo) * (double)k / (double)h->nbins,
+			       h->counts[k]);
+		printf("histogram,%s,upper_edge,%.17g\n", col, h->hi);
+	}
+	if (mc->has_window)
+		printf("yield,all,inside,%zu\nyield,all,fraction,%.17g\n", mc->inside,
+		       mc->yield);
+}
+
+/* Entry point of `biasline tolerance`. */
+int cmd_tolerance(int argc, char **argv)
+{
+	struct tolerance_args a;
+	int code;
+	if (tolerance_parse_args(argc, argv, &a, &code) != 0)
+		return code;
+	struct session se;
+	struct problem pb;
+	if ((code = cli_load_problem("tolerance", a.file, &se, &pb)) != 0)
+		return code;
+	struct tol_case c;
+	struct tol_worst w;
+	struct tol_mc mc;
+	char err[600];
+	code = EXIT_OK_CODE;
+	if (se.analysis.ntol == 0) {
+		fprintf(stderr, "biasline tolerance: %s: no tolerances: section "
+		        "(e.g. tolerances: {rs: 5%%, vs: 10%%})\n", a.file);
+		code = EXIT_DATA;
+	} else if (session_tolerance_case(&se, &pb, &c, err, sizeof err) != 0) {
+		fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
+		code = EXIT_DATA;
+	} else if (c.nitems > TOL_MAX_CORNER_ITEMS && a.trials == 0) {
+		fprintf(stderr, "biasline tolerance: %s: more than %d tolerances: "
+		        "the worst case cannot run; give --trials\n", a.file,
+		        TOL_MAX_CORNER_ITEMS);
+		code = EXIT_USAGE;
+	} else if (tol_worst_case(&c, &w, err, sizeof err) != 0) {
+		fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
+		code = EXIT_NO_POINT;
+	}
+	if (code != EXIT_OK_CODE) {
+		session_fini(&se);
+		return code;
+	}
+	struct tol_window win[2];
+	size_t nwin = session_target_windows(&se, win);
+	bool have_mc = a.trials > 0;
+	if (have_mc && tol_monte_carlo(&c, (size_t)a.trials, a.seed,
+	                               (size_t)a.bins, win, nwin, &mc, err,
+	                               sizeof err) != 0) {
+		fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
+		session_fini(&se);
+		return EXIT_NO_POINT;
+	}
+	unsigned flags = tolerance_safety(&c, &w);
+	if (a.csv) {
+		tolerance_print_csv(&c, &w, have_mc ? &mc : NULL);
+		if (flags != 0) {
+			char msg[512];
+			safety_message(flags, msg, sizeof msg);
+			fprintf(stderr, "biasline tolerance: %s\n", msg);
+		}
+	} else {
+		tolerance_print_text(a.file, &c, &w, have_mc ? &mc : NULL, win, nwin,
+		                     &se);
+		cli_print_caution(flags, "  ");
+	}
+	session_fini(&se);
+	return EXIT_OK_CODE;
+}
