@@ -11,6 +11,7 @@
 #include "commands.h"
 #include "core/diagnose.h"
 #include "core/safety.h"
+#include "core/sensitivity.h"
 #include "core/solve.h"
 #include "core/stepper.h"
 #include "session/session.h"
@@ -19,6 +20,7 @@
 struct solve_args {
 	bool csv;
 	bool trace;
+	bool sensitivity;
 	bool have_method, have_order;
 	enum solve_method method;
 	enum projection_order order;
@@ -44,6 +46,9 @@ static void solve_usage(FILE *out)
 	        "                     (projection order; default: the session's)\n"
 	        "  -t, --trace        print the iteration table (with --format csv,\n"
 	        "                     the table replaces the points)\n"
+	        "  -s, --sensitivity  print how each point moves with every parameter:\n"
+	        "                     dV/dp, dI/dp and the normalised %% per %% (with\n"
+	        "                     --format csv, the table replaces the points)\n"
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
@@ -60,6 +65,7 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 		{ "method", required_argument, NULL, 'm' },
 		{ "order", required_argument, NULL, 'o' },
 		{ "trace", no_argument, NULL, 't' },
+		{ "sensitivity", no_argument, NULL, 's' },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -68,7 +74,7 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 	optind = 1;
 	opterr = 0;
 	int c;
-	while ((c = getopt_long(argc, argv, ":f:m:o:thV", opts, NULL)) != -1) {
+	while ((c = getopt_long(argc, argv, ":f:m:o:tshV", opts, NULL)) != -1) {
 		switch (c) {
 		case 'f':
 			if (strcmp(optarg, "csv") == 0) {
@@ -105,6 +111,9 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 		case 't':
 			a->trace = true;
 			break;
+		case 's':
+			a->sensitivity = true;
+			break;
 		case 'h':
 			solve_usage(stdout);
 			*code = EXIT_OK_CODE;
@@ -130,8 +139,53 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 		*code = EXIT_USAGE;
 		return -1;
 	}
+	if (a->csv && a->trace && a->sensitivity) {
+		fprintf(stderr, "biasline solve: CSV holds one table: give --trace "
+		        "or --sensitivity, not both\n");
+		*code = EXIT_USAGE;
+		return -1;
+	}
 	a->file = argv[optind];
 	return 0;
+}
+
+/*
+ * Print the sensitivities of every point of RES to every parameter, by
+ * implicit differentiation (core/sensitivity.h), as text or CSV.
+ */
+static void solve_print_sensitivity(const struct problem *pb,
+                                    const struct solve_result *res, bool csv)
+{
+	if (csv)
+		printf("point,parameter,value,dV_dp,dI_dp,dP_dp,sens_V,sens_I,"
+		       "sens_P\n");
+	else
+		printf("\n  sensitivities (implicit differentiation; %% change per "
+		       "%% change of the parameter)\n");
+	for (size_t k = 0; k < res->n; k++) {
+		struct sensitivity sv[4 + MODEL_MAX_PARAMS];
+		size_t n = sensitivity_all(pb, res->pts[k].v, res->pts[k].i, sv,
+		                           sizeof sv / sizeof sv[0]);
+		if (!csv)
+			printf("  point %zu\n  %-22s %-12s %-11s %-11s %s\n", k + 1,
+			       "parameter", "value", "S(V)", "S(I)", "S(P)");
+		for (size_t j = 0; j < n; j++) {
+			const struct sensitivity *s = &sv[j];
+			const char *key = paramref_key(pb, &s->param);
+			if (csv) {
+				printf("%zu,%s,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g\n",
+				       k + 1, key, s->value, s->dv, s->di, s->dp, s->sv,
+				       s->si, s->sp);
+				continue;
+			}
+			char v[48];
+			qty_format_short(v, sizeof v, s->value,
+			                 paramref_unit(pb, &s->param), 5, 1);
+			/* + 0.0 turns a negative zero into a plain one */
+			printf("  %-22s %-12s %-+11.4g %-+11.4g %+.4g\n", key, v,
+			       s->sv + 0.0, s->si + 0.0, s->sp + 0.0);
+		}
+	}
 }
 
 /* Print the trace of the session's stepper, as text or CSV. */
@@ -286,12 +340,16 @@ int cmd_solve(int argc, char **argv)
 	/* CSV carries one table: the trace when asked for, else the points. */
 	if (a.csv && a.trace)
 		solve_print_trace(&pb, &o, true);
+	else if (a.csv && a.sensitivity)
+		solve_print_sensitivity(&pb, &res, true);
 	else if (a.csv)
 		solve_print_csv(&res);
 	else
 		solve_print_text(a.file, &se, &pb, &o, &res);
 	if (a.trace && !a.csv)
 		solve_print_trace(&pb, &o, false);
+	if (a.sensitivity && !a.csv)
+		solve_print_sensitivity(&pb, &res, false);
 	if (res.status != SOLVE_OK) {
 		fprintf(stderr, "biasline solve: %s: no operating point: %s\n", a.file,
 		        res.message);
