@@ -13,6 +13,7 @@
 #include <string.h>
 
 #include "commands.h"
+#include "core/safety.h"
 #include "core/solve.h"
 #include "core/stepper.h"
 #include "render/render.h"
@@ -83,6 +84,21 @@ static struct stepper *plot_run_path(const struct problem *pb,
 		if (stepper_step(st) != STEP_CONTINUE)
 			break;
 	return st;
+}
+
+/* Print the core's safety caution for PB to stderr (stdout keeps the plot). */
+static void plot_cautions(const struct problem *pb, const struct solve_result *res)
+{
+	unsigned flags = 0;
+	for (size_t k = 0; k < res->n; k++)
+		flags |= safety_check(pb, res->pts[k].v, res->pts[k].i);
+	if (res->n == 0)
+		flags |= safety_check(pb, 0.0, 0.0);
+	if (flags != 0) {
+		char msg[320];
+		safety_message(flags, msg, sizeof msg);
+		fprintf(stderr, "biasline: plot: %s\n", msg);
+	}
 }
 
 /* Print G to stdout, one line per row. */
@@ -212,6 +228,7 @@ int cmd_plot(int argc, char **argv)
 		        res.message);
 		res.n = 0;
 	}
+	plot_cautions(&pb, &res);
 	struct stepper *st = plot_run_path(&pb, &s.solver, nsteps);
 	struct render_input in = { &pb, res.pts, res.n, NULL, 0 };
 	if (st != NULL)

@@ -10,6 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "core/safety.h"
 #include "tui/app.h"
 
 /* Format VALUE compactly in engineering notation without a unit ("-4.31m"). */
@@ -155,6 +156,23 @@ static int pane_points(struct app *a, int row, int col, int w, int max)
 	return used;
 }
 
+/* Draw the core's safety caution for this case, if any; returns rows used. */
+static int pane_caution(struct app *a, int row, int col, int w, int max)
+{
+	if (!a->pb_ok)
+		return 0;
+	unsigned flags = 0;
+	for (size_t k = 0; k < a->res.n; k++)
+		flags |= safety_check(&a->pb, a->res.pts[k].v, a->res.pts[k].i);
+	if (a->res.n == 0)
+		flags |= safety_check(&a->pb, 0.0, 0.0);
+	if (flags == 0)
+		return 0;
+	char msg[320];
+	safety_message(flags, msg, sizeof msg);
+	return pane_wrap(a, row, col, w, max, msg, TS_ERROR);
+}
+
 /* Draw the parameter list (scrolled to keep the selection); rows used. */
 static int pane_params(struct app *a, int row, int col, int w, int max)
 {
@@ -283,6 +301,7 @@ static void pane_side_draw(struct app *a, const struct rect *box)
 
 	pane_header(a, y++, x, w, a->res.n > 1 ? "Operating points" : "Operating point");
 	y += pane_points(a, y, x, w, 2);
+	y += pane_caution(a, y, x, w, 6);
 
 	/* Share the rest: 3 diagnosis lines, up to 11 table rows, and the
 	 * parameters (scrolled) get what is left, at least 4. */
@@ -305,7 +324,10 @@ static void pane_side_draw(struct app *a, const struct rect *box)
 	pane_header(a, y++, x, w, title);
 	y += pane_params(a, y, x, w, plines);
 	if (y < end) {
-		pane_header(a, y++, x, w, "Diagnosis");
+		char dtitle[64];
+		snprintf(dtitle, sizeof dtitle, "Diagnosis (V from %s)",
+		         a->s.solver.order == ORDER_VOLTAGE_FROM_LINE ? "line" : "device");
+		pane_header(a, y++, x, w, dtitle);
 		int dl = end - y - 3 < diag ? end - y - 3 : diag;
 		if (dl > 0)
 			pane_diagnosis(a, y, x, w, dl);

@@ -281,10 +281,10 @@ resize)
 	;;
 save)
 	# Save, quit, reopen: the same state.
-	cp "$samples/lamp-12v-battery.yaml" "$work/lamp.yaml"
-	start 100 30 "$work/lamp.yaml"
+	cp "$samples/diode-string-reference.yaml" "$work/string.yaml"
+	start 100 30 "$work/string.yaml"
 	wait_for "Convergence"
-	was=$(screen | grep -oE 'order +V from (line|device)' | awk '{ print $NF }')
+	was=$(screen | grep -oE 'Diagnosis \(V from (line|device)' | awk '{ print $NF }')
 	[ -n "$was" ] || fail "no order shown"
 	now=line
 	[ "$was" = line ] && now=device
@@ -296,9 +296,9 @@ save)
 	wait_gone "[modified]"
 	keys q
 	wait_exit
-	grep -q "order: voltage-from-$now" "$work/lamp.yaml" ||
+	grep -q "order: voltage-from-$now" "$work/string.yaml" ||
 		fail "the saved file lacks order voltage-from-$now"
-	start 100 30 "$work/lamp.yaml"
+	start 100 30 "$work/string.yaml"
 	wait_for "Convergence"
 	wait_for "V from $now"
 	screen | grep -qF "[modified]" && fail "reopened file shows as modified"
