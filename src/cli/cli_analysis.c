@@ -111,3 +111,13 @@ void cli_print_caution(unsigned flags, const char *indent)
 	safety_message(flags, msg, sizeof msg);
 	printf("\n%s%s\n", indent, msg);
 }
+
+/* The note about a network source. */
+void cli_print_network_note(const struct session *se, const char *indent)
+{
+	if (se->network == NULL)
+		return;
+	printf("%snote: the source is a network; vs and rs here are its Thevenin\n"
+	       "%s      equivalent (is and rp its Norton one), not one of its parts\n",
+	       indent, indent);
+}

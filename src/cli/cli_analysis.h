@@ -44,6 +44,12 @@ const char *cli_fmt(char *buf, size_t n, double value, enum qty_kind kind,
 const char *cli_column(char *buf, size_t n, const char *key,
                        enum qty_kind kind);
 
+/*
+ * When SE's source is a network, print a note that vs and rs (and is, rp)
+ * stand for its Thevenin (Norton) equivalent, not for one of its parts.
+ */
+void cli_print_network_note(const struct session *se, const char *indent);
+
 /* Print the safety caution for FLAGS (safety.h) with INDENT, if any. */
 void cli_print_caution(unsigned flags, const char *indent);
 

@@ -283,6 +283,7 @@ int cmd_design(int argc, char **argv)
 	} else {
 		unsigned flags = design_print_text(a.file, &pb, &rq,
 		                                   &se.analysis.ratings, &res);
+		cli_print_network_note(&se, "  ");
 		cli_print_caution(flags, "  ");
 	}
 	session_fini(&se);

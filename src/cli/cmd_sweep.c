@@ -202,6 +202,8 @@ int cmd_sweep(int argc, char **argv)
 		if (res.nfolds > 0)
 			printf("\n");
 		sweep_print_folds(stdout, "  ", key, unit, &res);
+		if (sp.param.kind != PARAMREF_DEVICE)
+			cli_print_network_note(&se, "  ");
 	}
 	if (res.failed > 0)
 		fprintf(stderr, "biasline sweep: %zu of %zu steps have no operating "

@@ -416,6 +416,7 @@ int cmd_tolerance(int argc, char **argv)
 	} else {
 		tolerance_print_text(a.file, &c, &w, have_mc ? &mc : NULL, win, nwin,
 		                     &se);
+		cli_print_network_note(&se, "  ");
 		cli_print_caution(flags, "  ");
 	}
 	session_fini(&se);
