@@ -20,6 +20,8 @@ const struct model_type *const model_registry[] = {
 	&model_pnp,
 	&model_jfet,
 	&model_nmos,
+	&model_thermistor,
+	&model_thermistor_sh,
 	NULL,
 };
 

@@ -127,6 +127,13 @@ struct model_type {
 	 */
 	int (*secondary)(const double *p, const struct source *src, double v,
 	                 double i, struct model_extra *out);
+
+	/*
+	 * Optional current range of a curve given only as V(I) (current is
+	 * NULL): the currents where voltage() is defined, for the every-root
+	 * scan and for plots.  NULL for curves with current(V).
+	 */
+	void (*current_range)(const double *p, double *imin, double *imax);
 };
 
 /* A device: its model and parameter values. */

@@ -140,6 +140,61 @@ static int solve_cmp(const void *a, const void *b)
 	return (p->v > q->v) - (p->v < q->v);
 }
 
+/* V(I) + r I - voc for a curve given as V(I); NaN outside its domain. */
+static double solve_residual_i(const struct problem *pb, double i, double *v)
+{
+	if (device_voltage(&pb->dev, i, v) != 0)
+		return NAN;
+	return *v + pb->src.r * i - pb->src.voc;
+}
+
+/*
+ * Refine a bracket in current (a curve given as V(I)) by safeguarded
+ * Newton-Raphson on G(I) = V(I) + r I - voc, G' = r_d + r, keeping the end
+ * whose residual has the other sign (G may fall through the root on the
+ * falling branch past a voltage maximum) and bisecting when a step leaves
+ * the bracket.  Returns 0 and fills PT's V, I and steps, or -1.
+ */
+static int solve_refine_current(const struct problem *pb,
+                                const struct bracket *b, double tol,
+                                struct op_point *pt)
+{
+	const struct model_type *t = pb->dev.type;
+	double lo = b->lo, hi = b->hi, v;
+	double glo = solve_residual_i(pb, lo, &v);
+	double x = lo;
+	unsigned it = 0;
+	if (!b->tangent && lo != hi) {
+		x = 0.5 * (lo + hi);
+		for (it = 1; it <= 300; it++) {
+			double g = solve_residual_i(pb, x, &v);
+			if (g == 0.0 || isnan(g))
+				break;
+			if ((g < 0.0) == (glo < 0.0)) {
+				lo = x;
+				glo = g;
+			} else {
+				hi = x;
+			}
+			double d = t->resistance != NULL ? t->resistance(pb->dev.p, x) : NAN;
+			double xn = x - g / (d + pb->src.r);
+			if (!(xn > lo && xn < hi))
+				xn = 0.5 * (lo + hi);
+			double dx = xn - x;
+			x = xn;
+			if (fabs(dx) <= tol * fabs(x) || hi - lo <= tol * fabs(x) ||
+			    fabs(dx) < 1e-300)
+				break;
+		}
+	}
+	if (device_voltage(&pb->dev, x, &v) != 0)
+		return -1;
+	pt->i = x;
+	pt->v = v;
+	pt->steps = it;
+	return 0;
+}
+
 /* Scan for every crossing and refine each one with safeguarded Newton. */
 static enum solve_status solve_scan(const struct problem *pb,
                                     const struct solve_options *o,
@@ -161,7 +216,10 @@ static enum solve_status solve_scan(const struct problem *pb,
 	double rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
 	for (size_t k = 0; k < nb; k++) {
 		struct op_point pt = { .method = METHOD_NEWTON, .tangent = br[k].tangent };
-		if (br[k].tangent || br[k].lo == br[k].hi) {
+		if (br[k].in_current) {
+			if (solve_refine_current(pb, &br[k], o->tol, &pt) != 0)
+				continue;
+		} else if (br[k].tangent || br[k].lo == br[k].hi) {
 			double x = br[k].lo;
 			double ij = t->intrinsic_current ? t->intrinsic_current(pb->dev.p, x)
 			                                 : device_current(&pb->dev, x);
@@ -252,7 +310,11 @@ enum solve_status solve_problem(const struct problem *pb,
 	if (o->method != METHOD_AUTO)
 		return solve_method(pb, o, out);
 	struct op_point pt;
-	if (pb->dev.type->monotone && solve_fast(pb, o->tol, &pt) == 0) {
+	/* A monotone device has one point; so does any V(I) curve fed by an
+	 * ideal current source (the point is V(isc)). */
+	bool unique = pb->dev.type->monotone ||
+	              (isinf(pb->src.r) && pb->dev.type->voltage != NULL);
+	if (unique && solve_fast(pb, o->tol, &pt) == 0) {
 		out->pts[out->n++] = pt;
 		out->stop = STEP_CONVERGED;
 		return out->status = SOLVE_OK;

@@ -718,14 +718,89 @@ static double br_golden(const struct stepper *s, double a, double b,
 	return f1 < f2 ? x1 : x2;
 }
 
+/* The residual in current of a curve given as V(I): V(I) + r I - voc. */
+static double scan_residual_i(const struct problem *pb, double i)
+{
+	double v;
+	if (device_voltage(&pb->dev, i, &v) != 0)
+		return NAN;
+	return v + pb->src.r * i - pb->src.voc;
+}
+
+/* Golden-section minimum of |scan_residual_i| on [a, b]; returns I. */
+static double scan_golden_i(const struct problem *pb, double a, double b,
+                            double *fmin_)
+{
+	const double phi = 0.6180339887498949;
+	double x1 = b - phi * (b - a), x2 = a + phi * (b - a);
+	double f1 = fabs(scan_residual_i(pb, x1)), f2 = fabs(scan_residual_i(pb, x2));
+	for (int k = 0; k < 200 && b - a > 1e-15 * (fabs(a) + fabs(b)); k++) {
+		if (f1 < f2) {
+			b = x2, x2 = x1, f2 = f1;
+			x1 = b - phi * (b - a);
+			f1 = fabs(scan_residual_i(pb, x1));
+		} else {
+			a = x1, x1 = x2, f1 = f2;
+			x2 = a + phi * (b - a);
+			f2 = fabs(scan_residual_i(pb, x2));
+		}
+	}
+	*fmin_ = fmin(f1, f2);
+	return f1 < f2 ? x1 : x2;
+}
+
+/* The every-root scan in current for a curve given as V(I). */
+static size_t stepper_scan_current(const struct problem *pb,
+                                   struct bracket *out, size_t max)
+{
+	enum { NSAMP = 4000 };
+	const struct model_type *t = pb->dev.type;
+	if (t->voltage == NULL || t->current_range == NULL ||
+	    !isfinite(pb->src.r) || !isfinite(pb->src.voc))
+		return 0;
+	double lo, hi;
+	t->current_range(pb->dev.p, &lo, &hi);
+	if (!(lo < hi) || !isfinite(lo) || !isfinite(hi))
+		return 0;
+	size_t n = 0;
+	double x[3], f[3];
+	x[1] = lo, f[1] = scan_residual_i(pb, lo);
+	x[0] = x[1], f[0] = f[1];
+	for (int k = 1; k <= NSAMP && n < max; k++) {
+		x[2] = lo + (hi - lo) * k / NSAMP;
+		f[2] = scan_residual_i(pb, x[2]);
+		if (isfinite(f[1]) && isfinite(f[2])) {
+			if (f[1] == 0.0) {
+				if (n == 0 || out[n - 1].hi < x[1])
+					out[n++] = (struct bracket){ x[1], x[1], false, true };
+			} else if ((f[1] < 0.0 && f[2] > 0.0) || (f[1] > 0.0 && f[2] < 0.0)) {
+				out[n++] = (struct bracket){ x[1], x[2], false, true };
+			} else if (k >= 2 && fabs(f[1]) < fabs(f[0]) && fabs(f[1]) < fabs(f[2]) &&
+			           ((f[0] > 0.0) == (f[1] > 0.0)) &&
+			           ((f[2] > 0.0) == (f[1] > 0.0))) {
+				double fm, xm = scan_golden_i(pb, x[0], x[2], &fm);
+				double vm = fm + pb->src.voc - pb->src.r * xm;
+				double scale = fabs(vm) + fabs(pb->src.voc) + 1e-300;
+				if (fm <= 1e-9 * scale)
+					out[n++] = (struct bracket){ xm, xm, true, true };
+			}
+		}
+		x[0] = x[1], f[0] = f[1];
+		x[1] = x[2], f[1] = f[2];
+	}
+	return n;
+}
+
 /* Scan for every crossing (see stepper.h). */
 size_t stepper_scan(const struct problem *pb, struct bracket *out, size_t max)
 {
 	enum { NSAMP = 4000 };
 	struct stepper s = { .pb = *pb };
 	const struct model_type *t = pb->dev.type;
-	if (t->current == NULL || max == 0)
+	if (max == 0)
 		return 0;
+	if (t->current == NULL)
+		return stepper_scan_current(pb, out, max);
 	s.rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
 	double lo, hi;
 	br_range(&s, &lo, &hi);
@@ -739,9 +814,9 @@ size_t stepper_scan(const struct problem *pb, struct bracket *out, size_t max)
 		if (isfinite(f[1]) && isfinite(f[2])) {
 			if (f[1] == 0.0) {
 				if (n == 0 || out[n - 1].hi < x[1])
-					out[n++] = (struct bracket){ x[1], x[1], false };
+					out[n++] = (struct bracket){ x[1], x[1], false, false };
 			} else if ((f[1] < 0.0 && f[2] > 0.0) || (f[1] > 0.0 && f[2] < 0.0)) {
-				out[n++] = (struct bracket){ x[1], x[2], false };
+				out[n++] = (struct bracket){ x[1], x[2], false, false };
 			} else if (k >= 2 && fabs(f[1]) < fabs(f[0]) && fabs(f[1]) < fabs(f[2]) &&
 			           ((f[0] > 0.0) == (f[1] > 0.0)) &&
 			           ((f[2] > 0.0) == (f[1] > 0.0))) {
@@ -751,7 +826,7 @@ size_t stepper_scan(const struct problem *pb, struct bracket *out, size_t max)
 				if (isinf(pb->src.r))
 					scale = fabs(pb->src.isc) + 1e-300;
 				if (fm <= 1e-9 * scale)
-					out[n++] = (struct bracket){ xm, xm, true };
+					out[n++] = (struct bracket){ xm, xm, true, false };
 			}
 		}
 		x[0] = x[1], f[0] = f[1];
@@ -864,7 +939,7 @@ enum step_status stepper_rewind(struct stepper *s, size_t n)
 {
 	struct problem pb = s->pb;
 	struct solve_options o = s->o;
-	struct bracket b = { s->lo, s->hi, false };
+	struct bracket b = { s->lo, s->hi, false, false };
 	if (stepper_start(s, &pb, &o, s->have_bracket ? &b : NULL) != 0)
 		return s->status;
 	while (s->n < n + 1 && stepper_step(s) == STEP_CONTINUE)

@@ -135,6 +135,7 @@ enum step_status stepper_run(struct stepper *s);
 struct bracket {
 	double lo, hi;
 	bool tangent;
+	bool in_current;  /* lo/hi are device currents (a curve given as V(I)) */
 };
 
 /*
@@ -143,6 +144,12 @@ struct bracket {
  * of the residual on a fine grid, plus local minima of |residual| refined
  * by golden-section search that touch zero (tangent points).  Writes at
  * most MAX brackets in increasing voltage and returns how many it found.
+ *
+ * A device with no current(V) but a V(I) and a current_range (a curve that
+ * turns back in voltage, as a self-heated thermistor) is scanned in
+ * current instead, over its current range, on the residual
+ * V(I) + r I - voc for a finite source resistance r; its brackets have
+ * in_current set and are in increasing current.
  */
 size_t stepper_scan(const struct problem *pb, struct bracket *out, size_t max);
 

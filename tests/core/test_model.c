@@ -119,6 +119,18 @@ static const struct model_cases derivative_cases[] = {
 		{ 0.137, 2.1, 12.0, 47.0 },
 		{ 5.3e-4, -0.71, 5.0, 10e3 },
 	} },
+	/* The thermistors have no current(V): only their range is checked
+	 * here; test_models_thermistor checks resistance against V(I). */
+	{ "thermistor", 2, {
+		/* resistance_at_reference, reference_temperature, beta,
+		 * dissipation_constant, ambient_temperature, maximum_temperature */
+		{ 1e4, 25.0, 3977.0, 1.5e-3, 25.0, 150.0 },
+		{ 4.7e3, 25.0, 3435.0, 7.3e-3, 31.7, 125.0 },
+	} },
+	{ "thermistor-sh", 1, {
+		/* steinhart_hart_a, _b, _c, then as the beta form */
+		{ 1.129148e-3, 2.34125e-4, 8.76741e-8, 1.5e-3, 25.0, 150.0 },
+	} },
 };
 
 /* Find the derivative cases for model NAME, or NULL. */

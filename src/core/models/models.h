@@ -15,6 +15,8 @@ extern const struct model_type model_npn;
 extern const struct model_type model_pnp;
 extern const struct model_type model_jfet;
 extern const struct model_type model_nmos;
+extern const struct model_type model_thermistor;
+extern const struct model_type model_thermistor_sh;
 
 /* Parameter indices of the diode model. */
 enum diode_param {
@@ -105,6 +107,36 @@ enum fet_param {
 	FET_RD,         /* drain_resistance, ohm */
 	FET_NPARAMS
 };
+
+/* Parameter indices of the thermistor models (beta and Steinhart-Hart). */
+enum thermistor_param {
+	THERM_R0 = 0,   /* beta: resistance_at_reference, ohm */
+	THERM_T0 = 1,   /* beta: reference_temperature, degC */
+	THERM_B = 2,    /* beta: beta, K */
+	THERM_SH_A = 0, /* Steinhart-Hart: steinhart_hart_a */
+	THERM_SH_B = 1, /* Steinhart-Hart: steinhart_hart_b, 1/K */
+	THERM_SH_C = 2, /* Steinhart-Hart: steinhart_hart_c, 1/K */
+	THERM_DELTA = 3,/* dissipation_constant, W/K */
+	THERM_TAMB = 4, /* ambient_temperature, degC */
+	THERM_TMAX = 5, /* maximum_temperature, degC */
+	THERM_NPARAMS = 6
+};
+
+/* Zero-power resistance of thermistor model T (either form) at T_C degC. */
+double thermistor_resistance_at(const struct model_type *t, const double *p,
+                                double t_c);
+
+/*
+ * The voltage maximum of thermistor model T: body temperature *T_C (degC),
+ * current *I and voltage *V.  Returns 0, or -1 when there is none below
+ * the rated maximum temperature.
+ */
+int thermistor_peak(const struct model_type *t, const double *p, double *t_c,
+                    double *i, double *v);
+
+/* Body temperature *T_C (degC) at current I; 0, or -1 outside the domain. */
+int thermistor_temperature(const struct model_type *t, const double *p,
+                           double i, double *t_c);
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */
 double diode_thermal_voltage(double temp_c);
