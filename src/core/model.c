@@ -47,6 +47,7 @@ int model_param_index(const struct model_type *type, const char *key)
 void device_init(struct device *dev, const struct model_type *type)
 {
 	dev->type = type;
+	dev->curve = NULL;
 	for (size_t k = 0; k < MODEL_MAX_PARAMS; k++)
 		dev->p[k] = k < type->nparams ? type->params[k].def : 0.0;
 }

@@ -136,10 +136,19 @@ struct model_type {
 	void (*current_range)(const double *p, double *imin, double *imax);
 };
 
-/* A device: its model and parameter values. */
+struct curve_data;
+
+/*
+ * A device: its model and parameter values, and for a model drawn from a
+ * table of points (models/measured.c) the table, borrowed: whoever fills
+ * CURVE owns it and keeps it alive while the device is used.  A model that
+ * uses CURVE finds it from P (P always points at a device's p array); NULL
+ * for every other model.
+ */
 struct device {
 	const struct model_type *type;
 	model_values p;
+	const struct curve_data *curve;
 };
 
 /* The registry: all models, NULL-terminated. */

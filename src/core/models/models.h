@@ -17,6 +17,9 @@ extern const struct model_type model_jfet;
 extern const struct model_type model_nmos;
 extern const struct model_type model_thermistor;
 extern const struct model_type model_thermistor_sh;
+/* Not in the registry until the session loader fills struct device.curve
+ * (see measured.c): a device of this model needs its points. */
+extern const struct model_type model_measured;
 
 /* Parameter indices of the diode model. */
 enum diode_param {
@@ -137,6 +140,36 @@ int thermistor_peak(const struct model_type *t, const double *p, double *t_c,
 /* Body temperature *T_C (degC) at current I; 0, or -1 outside the domain. */
 int thermistor_temperature(const struct model_type *t, const double *p,
                            double i, double *t_c);
+
+#define CURVE_MAX_POINTS 4096
+
+/*
+ * Measured (V, I) points of a device and their Fritsch-Carlson node
+ * slopes.  Filled by curve_data_init, which allocates; curve_data_fini
+ * frees.  A device borrows it through struct device.curve.
+ */
+struct curve_data {
+	size_t n;          /* points, 2 .. CURVE_MAX_POINTS */
+	double *v;         /* voltages, strictly rising */
+	double *i;         /* currents, strictly rising */
+	double *slope;     /* dI/dV at each point */
+	double *delta;     /* secant slope of each segment (n - 1) */
+};
+
+/*
+ * Check N points (V[k], I[k]) and copy them into C with their slopes.
+ * Returns 0, or -1 with a message naming the row (1-based) in ERR: fewer
+ * than 2 points, a non-finite value, a voltage or current that does not
+ * rise strictly.
+ */
+int curve_data_init(struct curve_data *c, const double *v, const double *i,
+                    size_t n, char *err, size_t errlen);
+
+/* Free what C holds (C may be initialised again afterwards). */
+void curve_data_fini(struct curve_data *c);
+
+/* Deep-copy SRC into DST; 0, or -1 when out of memory. */
+int curve_data_copy(struct curve_data *dst, const struct curve_data *src);
 
 /* Thermal voltage kT/q at TEMP_C degrees Celsius (2019 SI exact k and q). */
 double diode_thermal_voltage(double temp_c);
