@@ -345,6 +345,27 @@ static void test_uniform_output(void **state)
 		double se = 1.2 * sqrt(q * (1.0 - q) / (double)n);
 		assert_true(fabs(s->pct[p] - (11.7 + 1.2 * q)) < 5.0 * se + 1e-9);
 	}
+	/* Exactly: V = VS, and VS is the generator's uniform stream, so the
+	 * percentiles are those of the sorted stream (Hyndman & Fan 1996,
+	 * definition 7: x[floor(h)] + (h - floor(h)) (x[floor(h)+1] -
+	 * x[floor(h)]), h = (n - 1) p). */
+	double *xs = malloc(n * sizeof *xs);
+	assert_non_null(xs);
+	struct tol_rng rng;
+	tol_rng_seed(&rng, 4242);
+	for (size_t k = 0; k < n; k++)
+		xs[k] = 11.7 + (12.9 - 11.7) * tol_rng_uniform(&rng);
+	qsort(xs, n, sizeof *xs, cmp_double);
+	for (int p = 0; p < TOL_NPCT; p++) {
+		double h = (double)(n - 1) * tol_percentiles[p] / 100.0;
+		size_t lo = (size_t)floor(h);
+		double want = xs[lo] + (h - (double)lo) * (xs[lo + 1] - xs[lo]);
+		if (fabs(s->pct[p] - want) > 1e-15 * want)
+			fail_msg("p%g: %.17g, sorted stream %.17g", tol_percentiles[p],
+			         s->pct[p], want);
+	}
+	assert_true(s->min == xs[0] && s->max == xs[n - 1]);
+	free(xs);
 	/* Yield: half the range is inside the window. */
 	assert_true(mc.has_window);
 	assert_true(fabs(mc.yield - 0.5) < 5.0 * sqrt(0.25 / (double)n));
