@@ -181,9 +181,13 @@ static int tol_point(const struct tol_case *c, const double *x, double v_near,
                      struct problem *q, struct op_point *pt)
 {
 	*q = c->pb;
-	for (size_t k = 0; k < c->nitems; k++)
-		if (paramref_set(q, &c->items[k].param, x[k]) != 0)
+	for (size_t k = 0; k < c->nitems; k++) {
+		const struct paramref *r = &c->items[k].param;
+		if (r->kind == PARAMREF_DEVICE)
+			q->dev.p[r->index] = x[k]; /* the common case, inline */
+		else if (paramref_set(q, r, x[k]) != 0)
 			return -1;
+	}
 	const struct model_type *t = q->dev.type;
 	if (t->validate != NULL) {
 		char err[8];
@@ -393,32 +397,60 @@ static void tol_swap(double *a, double *b)
 }
 
 /*
- * Rearrange A[0..N) so that A[K] is the K-th smallest, everything before it
- * no larger and everything after it no smaller (Wirth's selection, from
- * Hoare's FIND; Wirth, Algorithms + Data Structures = Programs, 1976).
+ * Rearrange A[LEFT..RIGHT] so that A[K] is the K-th smallest, everything
+ * before it no larger and everything after it no smaller: Floyd and
+ * Rivest's SELECT (Floyd & Rivest, "Algorithm 489: The algorithm SELECT",
+ * CACM 18(3), 1975), which first narrows the range to a small sample
+ * around K, so a large array costs little more than one pass.
  */
+static void tol_select_range(double *a, ptrdiff_t left, ptrdiff_t right,
+                             ptrdiff_t k)
+{
+	while (right > left) {
+		if (right - left > 600) {
+			double n = (double)(right - left + 1);
+			double i = (double)(k - left + 1);
+			double z = log(n);
+			double s = 0.5 * exp(2.0 * z / 3.0);
+			double sd = 0.5 * sqrt(z * s * (n - s) / n) *
+			            (i - n / 2.0 < 0.0 ? -1.0 : 1.0);
+			ptrdiff_t nl = (ptrdiff_t)((double)k - i * s / n + sd);
+			ptrdiff_t nr = (ptrdiff_t)((double)k + (n - i) * s / n + sd);
+			tol_select_range(a, nl > left ? nl : left, nr < right ? nr : right,
+			                 k);
+		}
+		double t = a[k];
+		ptrdiff_t i = left, j = right;
+		tol_swap(&a[left], &a[k]);
+		if (a[right] > t)
+			tol_swap(&a[right], &a[left]);
+		while (i < j) {
+			tol_swap(&a[i], &a[j]);
+			i++;
+			j--;
+			while (a[i] < t)
+				i++;
+			while (a[j] > t)
+				j--;
+		}
+		if (a[left] == t) {
+			tol_swap(&a[left], &a[j]);
+		} else {
+			j++;
+			tol_swap(&a[j], &a[right]);
+		}
+		if (j <= k)
+			left = j + 1;
+		if (k <= j)
+			right = j - 1;
+	}
+}
+
+/* A[K] the K-th smallest of A[0..N), partitioned around it. */
 static void tol_select(double *a, size_t n, size_t k)
 {
-	ptrdiff_t l = 0, r = (ptrdiff_t)n - 1, kk = (ptrdiff_t)k;
-	while (r > l) {
-		double x = a[kk];
-		ptrdiff_t i = l, j = r;
-		do {
-			while (a[i] < x)
-				i++;
-			while (x < a[j])
-				j--;
-			if (i <= j) {
-				tol_swap(&a[i], &a[j]);
-				i++;
-				j--;
-			}
-		} while (i <= j);
-		if (j < kk)
-			l = i;
-		if (kk < i)
-			r = j;
-	}
+	if (n > 1)
+		tol_select_range(a, 0, (ptrdiff_t)n - 1, (ptrdiff_t)k);
 }
 
 /*
@@ -447,15 +479,27 @@ static void tol_multiselect(double *a, size_t lo, size_t hi,
 static void tol_summarise(double *a, size_t n, size_t nbins,
                           struct tol_stats *st, struct tol_hist *h)
 {
-	double sum = 0.0, mn = INFINITY, mx = -INFINITY;
+	/* Sums of the data shifted by the first value, which keeps the
+	 * rounding of the mean and the variance small (and exact for equal
+	 * values); Chan, Golub & LeVeque, Am. Stat. 37(3), 1983. */
+	double shift = a[0], sum = 0.0, mn = a[0], mx = a[0];
 	for (size_t k = 0; k < n; k++) {
-		sum += a[k];
-		mn = fmin(mn, a[k]);
-		mx = fmax(mx, a[k]);
+		double x = a[k];
+		sum += x - shift;
+		if (x < mn)
+			mn = x;
+		if (x > mx)
+			mx = x;
 	}
-	double mean = sum / (double)n, ss = 0.0;
-	for (size_t k = 0; k < n; k++)
-		ss += (a[k] - mean) * (a[k] - mean);
+	double dmean = sum / (double)n, mean = shift + dmean, ss = 0.0;
+	memset(h->counts, 0, sizeof h->counts);
+	double w = mx - mn, scale = w > 0.0 ? (double)nbins / w : 0.0;
+	for (size_t k = 0; k < n; k++) {
+		double d = (a[k] - shift) - dmean;
+		ss += d * d;
+		size_t b = (size_t)((a[k] - mn) * scale);
+		h->counts[b < nbins ? b : nbins - 1]++;
+	}
 	st->mean = mean;
 	st->sd = n > 1 ? sqrt(ss / (double)(n - 1)) : 0.0;
 	st->min = mn;
@@ -463,28 +507,36 @@ static void tol_summarise(double *a, size_t n, size_t nbins,
 	h->lo = mn;
 	h->hi = mx;
 	h->nbins = nbins;
-	memset(h->counts, 0, sizeof h->counts);
-	double w = mx - mn;
-	for (size_t k = 0; k < n; k++) {
-		size_t b = w > 0.0 ? (size_t)((a[k] - mn) / w * (double)nbins) : 0;
-		h->counts[b < nbins ? b : nbins - 1]++;
-	}
-	/* The order statistics each percentile needs (floor and the one
-	 * above, for the interpolation), selected together. */
-	size_t ranks[2 * TOL_NPCT];
+	/*
+	 * Percentiles: select the order statistic below each (the ranks in
+	 * increasing order, together); the one just above it is then the
+	 * smallest value between it and the next selected rank, which
+	 * selection has already placed between the two.
+	 */
+	size_t ranks[TOL_NPCT];
 	double pos[TOL_NPCT];
 	for (int p = 0; p < TOL_NPCT; p++) {
 		pos[p] = (double)(n - 1) * tol_percentiles[p] / 100.0;
 		size_t lo = (size_t)floor(pos[p]);
-		ranks[2 * p] = lo < n ? lo : n - 1;
-		ranks[2 * p + 1] = lo + 1 < n ? lo + 1 : n - 1;
+		ranks[p] = lo < n ? lo : n - 1;
 	}
-	tol_multiselect(a, 0, n, ranks, 2 * TOL_NPCT);
+	tol_multiselect(a, 0, n, ranks, TOL_NPCT);
 	for (int p = 0; p < TOL_NPCT; p++) {
-		size_t lo = ranks[2 * p];
+		size_t lo = ranks[p];
 		double x = a[lo];
-		if (pos[p] > (double)lo)
-			x += (pos[p] - (double)lo) * (a[ranks[2 * p + 1]] - x);
+		if (pos[p] > (double)lo && lo + 1 < n) {
+			size_t end = n;
+			for (int q = p + 1; q < TOL_NPCT; q++)
+				if (ranks[q] > lo) {
+					end = ranks[q] + 1;
+					break;
+				}
+			double next = a[lo + 1];
+			for (size_t k = lo + 2; k < end; k++)
+				if (a[k] < next)
+					next = a[k];
+			x += (pos[p] - (double)lo) * (next - x);
+		}
 		st->pct[p] = x;
 	}
 }
@@ -498,7 +550,10 @@ static double tol_draw(const struct tol_case *c, const struct tol_item *it,
 		return it->lo + (it->hi - it->lo) * tol_rng_uniform(rng);
 	for (int k = 0; k < TOL_REDRAWS; k++) {
 		double x = mid + half / 3.0 * tol_rng_normal(rng);
-		if (paramref_check(&c->pb, &it->param, x, NULL, 0) == 0)
+		/* Inside the box is valid (both ends were checked); outside it,
+		 * ask the parameter's own range. */
+		if ((x >= it->lo && x <= it->hi) ||
+		    paramref_check(&c->pb, &it->param, x, NULL, 0) == 0)
 			return x;
 	}
 	return mid;

@@ -387,6 +387,41 @@ static void test_uniform_output(void **state)
 	assert_true(fabs(mc.yield - 0.25) < 5.0 * sqrt(0.1875 / (double)n));
 }
 
+/* Every trial equal: an ideal current source fixes the current. */
+static void test_all_equal(void **state)
+{
+	(void)state;
+	struct problem pb;
+	struct source_spec sp;
+	char err[200];
+	source_spec_norton(&sp, 0.0173, INFINITY);
+	assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+	device_init(&pb.dev, &model_diode);
+	pb.dev.p[DIODE_IS] = 2.2e-12;
+	pb.dev.p[DIODE_N] = 1.7;
+	struct solve_options o;
+	solve_options_init(&o);
+	struct tol_case c;
+	tol_case_init(&c, &pb, SOURCE_NORTON, &o);
+	assert_int_equal(tol_case_add(&c, "ideality", 1.6, 1.8, TOL_NORMAL, err,
+	                              sizeof err), 0);
+	struct tol_mc mc;
+	assert_int_equal(tol_monte_carlo(&c, 7001, 5, 9, NULL, 0, &mc, err,
+	                                 sizeof err), 0);
+	const struct tol_stats *s = &mc.stats[TOL_CURRENT];
+	if (!(s->sd == 0.0 && s->mean == 0.0173))
+		fail_msg("sd %.17g mean %.17g min %.17g max %.17g", s->sd, s->mean, s->min, s->max);
+	assert_true(s->min == 0.0173 && s->max == 0.0173);
+	for (int p = 0; p < TOL_NPCT; p++)
+		assert_true(s->pct[p] == 0.0173);
+	assert_int_equal(mc.hist[TOL_CURRENT].counts[0], 7001);
+	/* The voltage does vary: percentiles ordered, inside the range. */
+	const struct tol_stats *v = &mc.stats[TOL_VOLTAGE];
+	assert_true(v->sd > 0.0);
+	for (int p = 1; p < TOL_NPCT; p++)
+		assert_true(v->pct[p] >= v->pct[p - 1]);
+}
+
 /* Bad tolerances and runs are refused with a reason. */
 static void test_bad(void **state)
 {
@@ -440,6 +475,7 @@ int main(void)
 		cmocka_unit_test(test_monte_carlo_seed),
 		cmocka_unit_test(test_rng_distributions),
 		cmocka_unit_test(test_uniform_output),
+		cmocka_unit_test(test_all_equal),
 		cmocka_unit_test(test_bad),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
