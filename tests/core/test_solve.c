@@ -158,8 +158,8 @@ static void test_diode_exact(void **state)
 			enum solve_status st =
 				diode_check_method(&pb, &o, iref, vref, c.is, &me[m], k);
 			if (st != SOLVE_OK)
-				fail_msg("%s failed on circuit %d: %s", me[m].name, k,
-				         "no point");
+				fail_msg("%s did not solve circuit %d (status %d)", me[m].name,
+				         k, st);
 		}
 		/* Projections in the order that contracts at the point. */
 		struct diagnosis d;
@@ -193,8 +193,9 @@ static void test_diode_exact(void **state)
 
 /*
  * The reference itself: in the range where both apply, GSL's W0 of the
- * argument and the Wright omega of its logarithm agree to 4e-16 (both
- * from the definitions in Corless et al., Adv. Comput. Math. 5, 1996).
+ * argument and the Wright omega of its logarithm agree to 4e-16, a few
+ * ulp (both from the definitions in Corless et al., Adv. Comput. Math. 5,
+ * 1996; seen: below 7e-17).
  */
 static void test_reference_agrees(void **state)
 {
@@ -204,7 +205,7 @@ static void test_reference_agrees(void **state)
 		double w0 = gsl_sf_lambert_W0(exp(xs[k]));
 		long double wo = check_wright_omega(xs[k]);
 		double rel = check_rel(w0, wo, 1e-300);
-		if (!(rel <= 4e-16 * xs[k]))
+		if (!(rel <= 4e-16))
 			fail_msg("x=%g: W0(e^x)=%.17g omega=%.17Lg rel %.3g", xs[k], w0,
 			         wo, rel);
 	}
