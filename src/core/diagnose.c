@@ -47,6 +47,16 @@ static double diagnose_rd(const struct problem *pb, double v)
 		}
 		return 1.0 / device_conductance(&pb->dev, v);
 	}
+	/*
+	 * A curve given only as V(I) (it turns back in voltage) may pass V at
+	 * several currents: take the current the load line has at V, which
+	 * is the point's own current at an operating point.
+	 */
+	if (t->resistance != NULL) {
+		double i = source_line_current(&pb->src, v);
+		if (isfinite(i))
+			return t->resistance(pb->dev.p, i);
+	}
 	return NAN;
 }
 
@@ -171,6 +181,14 @@ static void diagnose_core(const struct problem *pb, enum projection_order order,
 			         order == ORDER_VOLTAGE_FROM_LINE ? "currents" : "voltages",
 			         order == ORDER_VOLTAGE_FROM_LINE ? "I(V)" : "V(I)",
 			         diagnose_other_name(order));
+			return;
+		}
+		if (isnan(d->r_d) && !source_is_ideal_voltage(&pb->src) &&
+		    !source_is_ideal_current(&pb->src)) {
+			snprintf(d->advice, sizeof d->advice,
+			         "the device's differential resistance is not defined "
+			         "at this voltage (outside its curve): start nearer "
+			         "the point or use newton");
 			return;
 		}
 		snprintf(d->advice, sizeof d->advice,

@@ -16,6 +16,7 @@
 
 #include "models_check.h"
 
+#include "core/diagnose.h"
 #include "core/model.h"
 #include "core/models/models.h"
 #include "core/solve.h"
@@ -267,6 +268,28 @@ static void test_crossings(void **state)
 	assert_int_equal(res.n, 1);
 	assert_true(solve_verify(&pb, res.pts[0].v, res.pts[0].i, 1e-10));
 	print_message("# once: %.5f V %.5f mA\n", res.pts[0].v, res.pts[0].i * 1e3);
+
+	/*
+	 * Past the peak r_d < 0; with r = 2 kohm the device order has
+	 * g' = -r_d / r = |r_d| / r < 1 and the projections reach the point;
+	 * the line order needs I(V), which this curve does not have.
+	 */
+	struct diagnosis dg;
+	diagnose_at(&pb, ORDER_VOLTAGE_FROM_DEVICE, res.pts[0].v, 1e-12, 1.0, &dg);
+	print_message("# device order: %s / %s\n", dg.verdict, dg.advice);
+	assert_int_equal(dg.shape, SHAPE_STAIRCASE_IN);
+	assert_true(fabs(dg.gprime + res.pts[0].rd / 2000.0) < 1e-12);
+	assert_non_null(strstr(dg.advice, "r_d < 0"));
+	diagnose_at(&pb, ORDER_VOLTAGE_FROM_LINE, res.pts[0].v, 1e-12, 1.0, &dg);
+	assert_int_equal(dg.shape, SHAPE_UNDEFINED);
+	assert_non_null(strstr(dg.advice, "voltage-from-device"));
+	struct solve_options po;
+	solve_options_init(&po);
+	po.method = METHOD_PROJECTION;
+	po.order = ORDER_VOLTAGE_FROM_DEVICE;
+	struct solve_result pres;
+	assert_int_equal(solve_problem(&pb, &po, &pres), SOLVE_OK);
+	assert_true(fabs(pres.pts[0].i / res.pts[0].i - 1.0) < 1e-9);
 
 	assert_int_equal(therm_solve(14.0, 50.0, &pb, &res), SOLVE_NONE);
 	assert_int_equal(res.n, 0);
