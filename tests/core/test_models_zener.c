@@ -150,6 +150,43 @@ static void test_load_regulation(void **state)
 	assert_true(fabs(got / want - 1.0) < 0.05);
 }
 
+/*
+ * intrinsic_voltage is the exact inverse of intrinsic_current on both
+ * branches (the junction solver takes log-domain Newton steps through it),
+ * so a reverse-biased shunt point is found in a few Newton steps rather
+ * than one thermal voltage per step from the far side.
+ */
+static void test_intrinsic_inverse(void **state)
+{
+	(void)state;
+	for (size_t k = 0; k < sizeof zcases / sizeof zcases[0]; k++) {
+		struct device d;
+		zener_case(&d, k);
+		const struct model_type *t = d.type;
+		static const double iz_mult[] = { -7.3, -1.0, -0.041, 0.037, 2.9 };
+		for (size_t j = 0; j < sizeof iz_mult / sizeof iz_mult[0]; j++) {
+			double i = iz_mult[j] * zcases[k].izt;
+			double vj = t->intrinsic_voltage(d.p, i);
+			double back = t->intrinsic_current(d.p, vj);
+			if (!(fabs(back / i - 1.0) < 1e-12))
+				fail_msg("case %zu: Ij(Vj(%.6g)) = %.17g", k, i, back);
+		}
+		struct problem pb = { .dev = d };
+		struct source_spec sp;
+		char err[128];
+		source_spec_thevenin(&sp, -2.37 * zcases[k].vz, 1.2e3);
+		assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+		struct solve_options o;
+		solve_options_init(&o);
+		struct solve_result res;
+		assert_int_equal(solve_problem(&pb, &o, &res), SOLVE_OK);
+		assert_true(solve_verify(&pb, res.pts[0].v, res.pts[0].i, 1e-10));
+		print_message("# case %zu: reverse point in %u steps\n", k,
+		              res.pts[0].steps);
+		assert_true(res.pts[0].steps <= 30);
+	}
+}
+
 /* A dynamic resistance below the junction's own is refused, naming it. */
 static void test_validation(void **state)
 {
@@ -175,6 +212,7 @@ int main(void)
 		cmocka_unit_test(test_stated_point),
 		cmocka_unit_test(test_derivatives),
 		cmocka_unit_test(test_load_regulation),
+		cmocka_unit_test(test_intrinsic_inverse),
 		cmocka_unit_test(test_validation),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);

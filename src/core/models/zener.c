@@ -102,18 +102,6 @@ static double zener_series_resistance(const double *p)
 	return k.rs;
 }
 
-/*
- * An upper bound of the junction voltage at forward current I > 0: the
- * forward junction alone (the breakdown term only adds current there).
- */
-static double zener_intrinsic_voltage(const double *p, double i)
-{
-	double x = i / p[ZENER_IS];
-	if (!(x > -1.0))
-		return NAN;
-	return p[ZENER_N] * diode_thermal_voltage(p[ZENER_TEMP]) * log1p(x);
-}
-
 /* The junction voltage at current I; 0 or -1. */
 static int zener_junction_voltage(const double *p, const struct zener_k *k,
                                   double i, double *vj)
@@ -138,6 +126,15 @@ static int zener_junction_voltage(const double *p, const struct zener_k *k,
 		return -1;
 	return model_invert(zener_intrinsic_current, zener_intrinsic_conductance,
 	                    p, i, lo, hi, vj);
+}
+
+/* The junction voltage at current I (the exact inverse), NaN outside. */
+static double zener_intrinsic_voltage(const double *p, double i)
+{
+	struct zener_k k;
+	double vj;
+	zener_derive(p, &k);
+	return zener_junction_voltage(p, &k, i, &vj) == 0 ? vj : NAN;
 }
 
 /* Terminal current at V. */
