@@ -53,8 +53,9 @@ start() {
 }
 
 # Wait until the screen contains TEXT (fixed string): wait_for TEXT [TRIES].
+# The bound is generous because the machine may be shared and loaded.
 wait_for() {
-	local tries=${2:-100} k
+	local tries=${2:-300} k
 	for ((k = 0; k < tries; k++)); do
 		screen | grep -qF -- "$1" && return 0
 		sleep 0.1
@@ -64,7 +65,7 @@ wait_for() {
 
 # Wait until the screen does not contain TEXT.
 wait_gone() {
-	local tries=${2:-100} k
+	local tries=${2:-300} k
 	for ((k = 0; k < tries; k++)); do
 		screen | grep -qF -- "$1" || return 0
 		sleep 0.1
@@ -75,7 +76,7 @@ wait_gone() {
 # Wait until the tmux server is gone (the program exited).
 wait_exit() {
 	local k
-	for ((k = 0; k < 100; k++)); do
+	for ((k = 0; k < 300; k++)); do
 		tmx has-session >/dev/null 2>&1 || return 0
 		sleep 0.1
 	done
@@ -439,19 +440,19 @@ valgrind)
 	log=$work/valgrind.log
 	tmx new-session -d -x 100 -y 30 \
 		"exec valgrind --error-exitcode=1 --leak-check=full --errors-for-leak-kinds=definite --log-file=$(printf '%q' "$log") $(printf '%q ' "$bin" "$samples/indicator-led-24v.yaml")"
-	wait_for "Convergence" 600
+	wait_for "Convergence" 1500
 	keys Space Space
-	wait_for "k=2 " 300
+	wait_for "k=2 " 1000
 	keys g
-	wait_for "after" 300
+	wait_for "after" 1000
 	keys o Down e 4.7k Enter
-	wait_for "RS       4.7000 kohm" 300
+	wait_for "RS       4.7000 kohm" 1000
 	tmx resize-window -x 80 -y 24
-	wait_for "Convergence" 300
+	wait_for "Convergence" 1000
 	keys '?'
-	wait_for "Keys (any key" 300
+	wait_for "Keys (any key" 1000
 	keys x q
-	wait_for "quit without saving" 300
+	wait_for "quit without saving" 1000
 	keys y
 	wait_exit
 	for ((k = 0; k < 100; k++)); do
