@@ -171,24 +171,33 @@ static void tolerance_ratings(const struct tol_worst *w, const struct ratings *r
 			: NAN;
 }
 
-/* The safety cautions over the box. */
-static unsigned tolerance_safety(const struct tol_case *c,
-                                 const struct tol_worst *w)
+/*
+ * The safety cautions over the box, from the largest device voltage,
+ * device power and resistor power found (VMAX, PDMAX, PRMAX).
+ */
+static unsigned tolerance_safety(const struct tol_case *c, double vmax,
+                                 double pdmax, double prmax)
 {
-	double vmax = fmax(fabs(w->min[TOL_VOLTAGE].value),
-	                   fabs(w->max[TOL_VOLTAGE].value));
 	struct problem q = c->pb;
 	for (size_t k = 0; k < c->nitems; k++)
 		if (c->items[k].param.kind == PARAMREF_VS)
 			q.src.voc = fabs(c->items[k].lo) > fabs(c->items[k].hi)
 			                ? c->items[k].lo : c->items[k].hi;
 	unsigned f = safety_check(&q, vmax, 0.0);
-	if (fmax(fabs(w->min[TOL_DEVICE_POWER].value),
-	         fabs(w->max[TOL_DEVICE_POWER].value)) > SAFETY_HOT_POWER)
+	if (pdmax > SAFETY_HOT_POWER)
 		f |= SAFETY_HOT_DEVICE;
-	if (w->max[TOL_RESISTOR_POWER].value > SAFETY_HOT_POWER)
+	if (prmax > SAFETY_HOT_POWER)
 		f |= SAFETY_HOT_RESISTOR;
 	return f;
+}
+
+/* The largest magnitude of output O in W (worst case) or MC (trials). */
+static double tolerance_largest(const struct tol_worst *w,
+                                const struct tol_mc *mc, enum tol_output o)
+{
+	if (w != NULL)
+		return fmax(fabs(w->min[o].value), fabs(w->max[o].value));
+	return fmax(fabs(mc->stats[o].min), fabs(mc->stats[o].max));
 }
 
 /* Print the parameters of extreme E ("vs = 21.3 V, rs = 2.31 kohm"). */
@@ -219,6 +228,12 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 		printf("    %-20s %s ... %s (%s)\n", paramref_key(&c->pb, &it->param),
 		       cli_fmt(a, sizeof a, it->lo, u, 5),
 		       cli_fmt(b, sizeof b, it->hi, u, 5), tol_dist_name(it->dist));
+	}
+	if (w == NULL) {
+		printf("\n  worst case skipped: more than %d tolerances (the Monte "
+		       "Carlo extremes below are observations, not bounds)\n",
+		       TOL_MAX_CORNER_ITEMS);
+		goto monte_carlo;
 	}
 	printf("\n  worst case (%zu corners", w->corners);
 	if (w->failed)
@@ -265,6 +280,7 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 		for (char *line = strtok(warn, "\n"); line != NULL;
 		     line = strtok(NULL, "\n"))
 			printf("  warning: %s\n", line);
+monte_carlo:
 	if (mc == NULL)
 		return;
 	printf("\n  Monte Carlo: %zu trials", mc->trials);
@@ -318,7 +334,7 @@ static void tolerance_print_csv(const struct tol_case *c,
 {
 	char col[64], nm[96];
 	printf("section,output,name,value\n");
-	for (int o = 0; o < TOL_NOUT; o++) {
+	for (int o = 0; o < TOL_NOUT && w != NULL; o++) {
 		tolerance_column(col, sizeof col, (enum tol_output)o);
 		printf("nominal,%s,value,%.17g\n", col, w->nominal[o]);
 		const struct tol_extreme *ex[2] = { &w->min[o], &w->max[o] };
@@ -387,7 +403,8 @@ int cmd_tolerance(int argc, char **argv)
 		        "the worst case cannot run; give --trials\n", a.file,
 		        TOL_MAX_CORNER_ITEMS);
 		code = EXIT_USAGE;
-	} else if (tol_worst_case(&c, &w, err, sizeof err) != 0) {
+	} else if (c.nitems <= TOL_MAX_CORNER_ITEMS &&
+	           tol_worst_case(&c, &w, err, sizeof err) != 0) {
 		fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
 		code = EXIT_NO_POINT;
 	}
@@ -405,17 +422,21 @@ int cmd_tolerance(int argc, char **argv)
 		session_fini(&se);
 		return EXIT_NO_POINT;
 	}
-	unsigned flags = tolerance_safety(&c, &w);
+	const struct tol_worst *wp = c.nitems <= TOL_MAX_CORNER_ITEMS ? &w : NULL;
+	const struct tol_mc *mp = have_mc ? &mc : NULL;
+	unsigned flags = tolerance_safety(
+		&c, tolerance_largest(wp, mp, TOL_VOLTAGE),
+		tolerance_largest(wp, mp, TOL_DEVICE_POWER),
+		tolerance_largest(wp, mp, TOL_RESISTOR_POWER));
 	if (a.csv) {
-		tolerance_print_csv(&c, &w, have_mc ? &mc : NULL);
+		tolerance_print_csv(&c, wp, mp);
 		if (flags != 0) {
 			char msg[512];
 			safety_message(flags, msg, sizeof msg);
 			fprintf(stderr, "biasline tolerance: %s\n", msg);
 		}
 	} else {
-		tolerance_print_text(a.file, &c, &w, have_mc ? &mc : NULL, win, nwin,
-		                     &se);
+		tolerance_print_text(a.file, &c, wp, mp, win, nwin, &se);
 		cli_print_network_note(&se, "  ");
 		cli_print_caution(flags, "  ");
 	}
