@@ -272,12 +272,12 @@ static void pane_table(struct app *a, int row, int col, int w, int max)
 		pane_side_eng(i, sizeof i, r->i, 4);
 		pane_side_eng(res, sizeof res, r->residual, 3);
 		pane_side_eng(step, sizeof step, r->step, 3);
-		if (isfinite(r->ratio))
-			snprintf(ratio, sizeof ratio, "%+.3f", r->ratio);
-		if (strlen(ratio) > 6)
-			pane_side_eng(ratio, sizeof ratio, r->ratio, 2);
-		else
+		if (!isfinite(r->ratio))
 			snprintf(ratio, sizeof ratio, "-");
+		else if (fabs(r->ratio) < 10.0)
+			snprintf(ratio, sizeof ratio, "%+.3f", r->ratio);
+		else
+			pane_side_eng(ratio, sizeof ratio, r->ratio, 3);
 		if (wide)
 			snprintf(line, sizeof line, "%3u %7s %7s %7s %7s %6s", r->k, v, i,
 			         res, step, ratio);

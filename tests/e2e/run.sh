@@ -194,6 +194,14 @@ steps)
 	done
 	n=$(grep -cE '^ *([1-9]|10) ' <<<"$rows")
 	[ "$n" -eq 10 ] || fail "expected 10 step rows, found $n"
+	# The error ratio in the newest row approaches the predicted g' (a
+	# spiral: negative), as the contraction-mapping theorem says (Burden &
+	# Faires, Numerical Analysis, 9th ed., 2010, sec. 2.2).
+	g=$(screen | grep -oE "predicted: spirals in, \|g'\| = [0-9.e-]+" | awk '{ print $NF }')
+	[ -n "$g" ] || fail "no spiral-in prediction shown"
+	ratio=$(table_rows | tail -1 | awk '{ print $6 }')
+	close_to "$ratio" "-$g" 0.05 || fail "ratio $ratio is not near the predicted -$g"
+	echo "ok: newest ratio $ratio, predicted g' -$g"
 	# Stepping back removes the newest row.
 	keys b
 	wait_for "k=9 "
