@@ -307,6 +307,18 @@ enum solve_status solve_problem(const struct problem *pb,
 		snprintf(out->message, sizeof out->message, "%s", err);
 		return out->status = SOLVE_BAD_INPUT;
 	}
+	return solve_problem_valid(pb, o, out);
+}
+
+/* Solve PB, whose device has passed device_validate (see solve.h). */
+enum solve_status solve_problem_valid(const struct problem *pb,
+                                      const struct solve_options *o,
+                                      struct solve_result *out)
+{
+	out->status = SOLVE_OK;
+	out->n = 0;
+	out->message[0] = '\0';
+	out->stop = STEP_CONTINUE;
 	if (o->method != METHOD_AUTO)
 		return solve_method(pb, o, out);
 	struct op_point pt;

@@ -52,6 +52,16 @@ enum solve_status solve_problem(const struct problem *pb,
                                 struct solve_result *out);
 
 /*
+ * solve_problem without the parameter check, for a caller that has run
+ * device_validate on PB's device once and solves it many times (a sweep,
+ * a Monte Carlo run, a benchmark).  With a device that has not passed
+ * device_validate the points may be meaningless: use solve_problem.
+ */
+enum solve_status solve_problem_valid(const struct problem *pb,
+                                      const struct solve_options *o,
+                                      struct solve_result *out);
+
+/*
  * The fast path for one operating point of a monotone device with a finite
  * source resistance (or any source): safeguarded Newton in the bracket.
  * Returns 0 and fills *PT, or -1.
