@@ -29,6 +29,7 @@
 /* The methods timed. */
 enum bench_method {
 	BENCH_AUTO,    /* solve_problem, METHOD_AUTO */
+	BENCH_VALID,   /* solve_problem_valid (validated once, outside) */
 	BENCH_FAST,    /* solve_fast */
 	BENCH_BRENT,   /* gsl_root_fsolver_brent */
 	BENCH_LAMBERT, /* closed form with gsl_sf_lambert_W0 */
@@ -36,7 +37,8 @@ enum bench_method {
 };
 
 static const char *const bench_names[BENCH_COUNT] = {
-	"solve_problem (auto)", "solve_fast", "GSL brent", "Lambert W0 closed form",
+	"solve_problem (auto)", "solve_problem_valid", "solve_fast", "GSL brent",
+	"Lambert W0 closed form",
 };
 
 /* One circuit in the form each method needs. */
@@ -146,6 +148,9 @@ static void bench_fill(struct check_rng *rng, struct bench_case *b, size_t n)
 		b[k].pb.dev.p[DIODE_N] = c.n;
 		b[k].pb.dev.p[DIODE_RS] = c.rsd;
 		b[k].pb.dev.p[DIODE_TEMP] = c.temp;
+		/* Validated once here, untimed, for solve_problem_valid. */
+		if (device_validate(&b[k].pb.dev, err, sizeof err) != 0)
+			abort();
 		b[k].is = c.is;
 		b[k].nvt = check_nvt(c.n, c.temp);
 		b[k].r = c.rs + c.rsd;
@@ -184,6 +189,12 @@ int main(int argc, char **argv)
 				case BENCH_AUTO: {
 					struct solve_result res;
 					out[k] = solve_problem(&b[k].pb, &o, &res) == SOLVE_OK
+					             ? res.pts[0].i : NAN;
+					break;
+				}
+				case BENCH_VALID: {
+					struct solve_result res;
+					out[k] = solve_problem_valid(&b[k].pb, &o, &res) == SOLVE_OK
 					             ? res.pts[0].i : NAN;
 					break;
 				}
@@ -231,6 +242,8 @@ int main(int argc, char **argv)
 	       ns[BENCH_AUTO] / ns[BENCH_BRENT]);
 	printf("  auto / lambert = %.3f   (target <= 2)\n",
 	       ns[BENCH_AUTO] / ns[BENCH_LAMBERT]);
+	printf("  valid / brent  = %.3f\n", ns[BENCH_VALID] / ns[BENCH_BRENT]);
+	printf("  valid / lambert= %.3f\n", ns[BENCH_VALID] / ns[BENCH_LAMBERT]);
 	printf("  fast / brent   = %.3f\n", ns[BENCH_FAST] / ns[BENCH_BRENT]);
 	printf("  fast / lambert = %.3f\n", ns[BENCH_FAST] / ns[BENCH_LAMBERT]);
 	gsl_root_fsolver_free(fs);

@@ -152,6 +152,13 @@ static void test_diode_exact(void **state)
 			c.is, nvt, (long double)c.rs + c.rsd, c.vs);
 		long double vref = c.vs - c.rs * iref;
 		struct solve_options o;
+		/* The pre-validated entry gives the same answer, bit for bit. */
+		struct solve_result r1, r2;
+		solve_options_init(&o);
+		assert_int_equal(solve_problem(&pb, &o, &r1), SOLVE_OK);
+		assert_int_equal(solve_problem_valid(&pb, &o, &r2), SOLVE_OK);
+		assert_int_equal(r1.n, r2.n);
+		assert_true(r1.pts[0].v == r2.pts[0].v && r1.pts[0].i == r2.pts[0].i);
 		for (int m = 0; m < 3; m++) {
 			solve_options_init(&o);
 			o.method = methods[m];
