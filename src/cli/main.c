@@ -43,7 +43,7 @@ static void main_usage(FILE *out)
 	        "\n"
 	        "Commands:\n");
 	for (size_t k = 0; k < sizeof commands / sizeof commands[0]; k++)
-		fprintf(out, "  %-8s %s\n", commands[k].name, commands[k].summary);
+		fprintf(out, "  %-10s %s\n", commands[k].name, commands[k].summary);
 	fprintf(out,
 	        "\n"
 	        "Run 'biasline COMMAND --help' for a command's options; see\n"

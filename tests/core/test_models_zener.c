@@ -96,7 +96,7 @@ static void test_derivatives(void **state)
 				continue;
 			double g = device_conductance(&d, v);
 			double h = 1e-7 * fabs(i);
-			double vp, vm;
+			double vp = NAN, vm = NAN;
 			if (device_voltage(&d, i + h, &vp) != 0 ||
 			    device_voltage(&d, i - h, &vm) != 0)
 				fail_msg("case %zu: no voltage near %g A", k, i);
