@@ -235,6 +235,25 @@ static void solve_print_trace(const struct problem *pb,
 	stepper_destroy(st);
 }
 
+/* Print what the model reports beyond V and I at P (IC, VCE, region...). */
+static void solve_print_extra(const struct problem *pb, const struct op_point *p)
+{
+	struct model_extra ex;
+	if (device_secondary(&pb->dev, &pb->src, p->v, p->i, &ex) != 0)
+		return;
+	printf("      ");
+	for (size_t k = 0; k < ex.n; k++) {
+		char b[48];
+		qty_format(b, sizeof b, ex.v[k].value, ex.v[k].kind, 5, 1);
+		printf("%s%s = %s", k ? ", " : "", ex.v[k].label, b);
+	}
+	if (ex.region != NULL)
+		printf("%sregion: %s", ex.n ? "; " : "", ex.region);
+	printf("\n");
+	if (ex.note[0] != '\0')
+		printf("      %s%s\n", ex.warn ? "warning: " : "", ex.note);
+}
+
 /* Print the text report of RES. */
 static void solve_print_text(const char *file, const struct session *se,
                              const struct problem *pb,
@@ -271,6 +290,7 @@ static void solve_print_text(const char *file, const struct session *se,
 		qty_format(r, sizeof r, p->rd, QTY_RESISTANCE, 4, 1);
 		printf("  %-3zu %-13s %-13s %-13s %-13s %u%s\n", k + 1, v, i, w, r,
 		       p->steps, p->tangent ? "  (touching point)" : "");
+		solve_print_extra(pb, p);
 	}
 	/* How the projections would behave at the (first) point. */
 	if (res->n > 0) {
@@ -294,14 +314,36 @@ static void solve_print_text(const char *file, const struct session *se,
 }
 
 /* Print RES as CSV. */
-static void solve_print_csv(const struct solve_result *res)
+static void solve_print_csv(const struct problem *pb,
+                            const struct solve_result *res)
 {
-	printf("point,voltage_V,current_A,power_W,rd_ohm,steps,method,tangent\n");
+	/* The model's extra results (same for every row) follow as columns. */
+	struct model_extra ex;
+	bool extra = res->n > 0 && device_secondary(&pb->dev, &pb->src, res->pts[0].v,
+	                                            res->pts[0].i, &ex) == 0;
+	printf("point,voltage_V,current_A,power_W,rd_ohm,steps,method,tangent");
+	if (extra) {
+		for (size_t k = 0; k < ex.n; k++) {
+			const char *u = qty_unit_ascii(ex.v[k].kind);
+			printf(",%s%s%s", ex.v[k].key, u[0] ? "_" : "", u);
+		}
+		printf(",region");
+	}
+	printf("\n");
 	for (size_t k = 0; k < res->n; k++) {
 		const struct op_point *p = &res->pts[k];
-		printf("%zu,%.17g,%.17g,%.17g,%.17g,%u,%s,%s\n", k + 1, p->v, p->i,
+		printf("%zu,%.17g,%.17g,%.17g,%.17g,%u,%s,%s", k + 1, p->v, p->i,
 		       p->power, p->rd, p->steps, solve_method_name(p->method),
 		       p->tangent ? "yes" : "no");
+		if (extra) {
+			struct model_extra e;
+			if (device_secondary(&pb->dev, &pb->src, p->v, p->i, &e) == 0) {
+				for (size_t j = 0; j < e.n; j++)
+					printf(",%.17g", e.v[j].value);
+				printf(",%s", e.region ? e.region : "");
+			}
+		}
+		printf("\n");
 	}
 }
 
@@ -343,7 +385,7 @@ int cmd_solve(int argc, char **argv)
 	else if (a.csv && a.sensitivity)
 		solve_print_sensitivity(&pb, &res, true);
 	else if (a.csv)
-		solve_print_csv(&res);
+		solve_print_csv(&pb, &res);
 	else
 		solve_print_text(a.file, &se, &pb, &o, &res);
 	if (a.trace && !a.csv)

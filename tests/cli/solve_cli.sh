@@ -101,6 +101,31 @@ if awk -F, 'NR==2 { vt=1.380649e-23*298.15/1.602176634e-19;
 else
 	echo "not ok $n - ideal current source voltage wrong"; cat "$tmp/out"; fails=$((fails + 1))
 fi
+# A transistor stage reports its collector side beside the base loop.
+cat >"$tmp/npn.yaml" <<'YAML'
+source:
+  vs: 2.385
+  rs: 8.2k
+device:
+  model: npn
+  saturation_current: 14e-15
+  ideality: 1
+  current_gain: 163
+  emitter_resistance: 390
+  collector_resistance: 1.8k
+  supply_voltage: 12
+YAML
+expect_exit 0 "$bl" solve "$tmp/npn.yaml"
+expect_text "$tmp/out" "region: active"
+expect_exit 0 "$bl" solve --format csv "$tmp/npn.yaml"
+expect_text "$tmp/out" "collector_current_A"
+# IC = beta * IB in the same row (columns 3 and 9).
+n=$((n + 1))
+if awk -F, 'NR==2 { d=($9-163*$3)/$9; if (d<0) d=-d; exit !(d < 1e-12) }' "$tmp/out"; then
+	echo "ok $n - collector current is beta times base current"
+else
+	echo "not ok $n - collector current column wrong"; cat "$tmp/out"; fails=$((fails + 1))
+fi
 expect_exit 65 "$bl" solve "$tmp/nan.yaml"
 expect_text "$tmp/err" "saturation_current"
 expect_exit 66 "$bl" solve "$tmp/does-not-exist.yaml"
