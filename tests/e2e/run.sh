@@ -29,14 +29,22 @@ sock=$work/tmux.sock
 # tmux on the private server, ignoring any user configuration.
 tmx() { tmux -S "$sock" -f /dev/null "$@"; }
 
-# Stop the server; the program may still be writing its recovery file.
+# Stop the server, wait until every pane's session has exited (a program
+# that got SIGHUP may still be writing its recovery file), then remove the
+# work folder.
 cleanup() {
+	local pids p k alive
+	pids=$(tmx list-panes -a -F '#{pane_pid}' 2>/dev/null)
 	tmx kill-server >/dev/null 2>&1
-	local k
-	for ((k = 0; k < 50; k++)); do
-		rm -rf "$work" 2>/dev/null && return
+	for ((k = 0; k < 300; k++)); do
+		alive=0
+		for p in $pids; do
+			pgrep -s "$p" >/dev/null 2>&1 && alive=1
+		done
+		[ "$alive" = 0 ] && break
 		sleep 0.1
 	done
+	rm -rf "$work"
 }
 trap cleanup EXIT
 
