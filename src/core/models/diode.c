@@ -54,6 +54,10 @@ double diode_scaled_saturation(double is_ref, double t_c, double tref_c,
 /* Saturation current at the junction temperature. */
 static double diode_is(const double *p)
 {
+	/* Without a reference temperature (the default) Is is as given: skip
+	 * the call, as every junction evaluation of a solve comes here. */
+	if (!(p[DIODE_TREF] > -ZERO_CELSIUS))
+		return p[DIODE_IS];
 	return diode_scaled_saturation(p[DIODE_IS], p[DIODE_TEMP], p[DIODE_TREF],
 	                               p[DIODE_EG], p[DIODE_XTI], p[DIODE_N]);
 }
