@@ -117,16 +117,20 @@ size_t app_params(struct app *a, struct param *out, size_t max)
 	size_t n = 0;
 	struct source_spec *sp = &a->s.source;
 #define ADD(...) do { if (n < max) out[n++] = (struct param){ __VA_ARGS__ }; } while (0)
+	/* A network source: VS and RS are its reduction, edited in the file. */
+	bool net = a->s.network != NULL;
 	if (sp->form == SOURCE_THEVENIN) {
-		ADD(.id = PARAM_SOURCE_A, .label = "VS", .kind = QTY_VOLTAGE,
-		    .value = &sp->vs);
-		ADD(.id = PARAM_SOURCE_B, .label = "RS", .kind = QTY_RESISTANCE,
-		    .value = &sp->rs, .log_step = true);
+		ADD(.id = PARAM_SOURCE_A, .label = net ? "VS (net)" : "VS",
+		    .kind = QTY_VOLTAGE, .value = &sp->vs, .readonly = net);
+		ADD(.id = PARAM_SOURCE_B, .label = net ? "RS (net)" : "RS",
+		    .kind = QTY_RESISTANCE, .value = &sp->rs, .log_step = true,
+		    .readonly = net);
 	} else {
-		ADD(.id = PARAM_SOURCE_A, .label = "IS", .kind = QTY_CURRENT,
-		    .value = &sp->is);
-		ADD(.id = PARAM_SOURCE_B, .label = "RP", .kind = QTY_RESISTANCE,
-		    .value = &sp->rp, .log_step = true);
+		ADD(.id = PARAM_SOURCE_A, .label = net ? "IS (net)" : "IS",
+		    .kind = QTY_CURRENT, .value = &sp->is, .readonly = net);
+		ADD(.id = PARAM_SOURCE_B, .label = net ? "RP (net)" : "RP",
+		    .kind = QTY_RESISTANCE, .value = &sp->rp, .log_step = true,
+		    .readonly = net);
 	}
 	const struct model_type *mt = a->s.device.type;
 	for (size_t k = 0; mt != NULL && k < mt->nparams; k++) {
@@ -212,6 +216,11 @@ int app_param_set(struct app *a, const struct param *p, double value,
 {
 	if (p->value == NULL) {
 		snprintf(err, errlen, "%s: choose with + and -", p->label);
+		return -1;
+	}
+	if (p->readonly) {
+		snprintf(err, errlen, "%s is the equivalent of the session's source "
+		         "network: edit the network's parts in the file", p->label);
 		return -1;
 	}
 	struct app_backup b = { a->s.source, a->s.device, a->s.solver };

@@ -71,6 +71,7 @@ struct param {
 	double *value;          /* NULL for a choice (method, order) */
 	bool log_step;          /* nudge multiplicatively */
 	double fine, coarse;    /* additive steps for linear rows (0: relative) */
+	bool readonly;          /* shown, not editable (a network's equivalent) */
 };
 
 #define APP_MAX_PARAMS (MODEL_MAX_PARAMS + 8)

@@ -210,6 +210,12 @@ static unsigned key_edit(struct app *a)
 		return APP_HANDLED;
 	if (ps[a->sel].value == NULL)
 		return key_nudge(a, 1, false);
+	char err[256];
+	if (ps[a->sel].readonly) {
+		app_param_set(a, &ps[a->sel], 0.0, err, sizeof err);
+		app_message(a, true, "%s", err);
+		return APP_HANDLED | APP_REDRAW;
+	}
 	pane_prompt_open(a, PROMPT_VALUE, NULL);
 	return APP_HANDLED | APP_REDRAW;
 }
