@@ -228,6 +228,46 @@ size_t grid_row_text(const struct grid *g, int row, char *buf, size_t n)
 	return len;
 }
 
+/* Break TEXT into lines of at most WIDTH cells at blanks. */
+size_t render_wrap(const char *text, int width, struct render_span *out,
+                   size_t max)
+{
+	if (text == NULL || width < 1)
+		return 0;
+	size_t n = 0;
+	const char *s = text;
+	for (;;) {
+		while (*s == ' ' || *s == '\n')
+			s++;
+		if (*s == '\0')
+			break;
+		/* Walk up to WIDTH cells, remembering the last blank seen. */
+		const char *p = s, *blank = NULL, *stop = NULL;
+		int cells = 0;
+		while (*p != '\0' && *p != '\n' && cells < width) {
+			if (*p == ' ')
+				blank = p;
+			render_utf8_next(&p);
+			cells++;
+		}
+		if (*p == '\0' || *p == ' ' || *p == '\n')
+			stop = p;                 /* the rest fits, or ends at a blank */
+		else if (blank != NULL)
+			stop = blank;             /* break at the last blank */
+		else
+			stop = p;                 /* one long word: cut it */
+		const char *end = stop;
+		while (end > s && end[-1] == ' ')
+			end--;
+		if (n < max && out != NULL)
+			out[n] = (struct render_span){ (size_t)(s - text),
+			                               (size_t)(end - s) };
+		n++;
+		s = stop;
+	}
+	return n;
+}
+
 /* Fill V with the defaults. */
 void render_view_init(struct render_view *v)
 {

@@ -129,6 +129,21 @@ uint32_t render_utf8_next(const char **s);
 /* Number of code points (cells) in the UTF-8 string S. */
 int render_text_width(const char *s);
 
+/* One line of wrapped text: a byte span of the text. */
+struct render_span {
+	size_t off, len;
+};
+
+/*
+ * Break UTF-8 TEXT into lines of at most WIDTH cells (WIDTH >= 1), at
+ * blanks where it can (the blank at a break is dropped; a word longer than
+ * WIDTH is cut between code points; a newline always breaks).  Writes up to MAX spans to OUT (may
+ * be NULL when MAX is 0) and returns how many lines the whole text needs,
+ * which may exceed MAX.  Empty text needs 0 lines.
+ */
+size_t render_wrap(const char *text, int width, struct render_span *out,
+                   size_t max);
+
 /* Fill V with the defaults: whole-line frame, zoom 1, ASCII, legend on. */
 void render_view_init(struct render_view *v);
 

@@ -90,7 +90,8 @@ void pane_side_value(struct app *a, const struct param *p, char *buf,
 	} else if (p->id == PARAM_OMEGA && *p->value == 0.0) {
 		snprintf(buf, n, "0 (optimal)");
 	} else {
-		qty_format(buf, n, *p->value, p->kind, 5, ascii);
+		/* Values a person typed: no padding zeros ("12 fA", "110e-21 A"). */
+		qty_format_short(buf, n, *p->value, p->kind, 5, ascii);
 	}
 }
 
@@ -98,32 +99,25 @@ void pane_side_value(struct app *a, const struct param *p, char *buf,
 static int pane_wrap(struct app *a, int row, int col, int w, int lines,
                      const char *text, enum term_style style)
 {
+	if (lines <= 0 || w <= 0)
+		return 0;
+	struct render_span sp[32];
+	size_t n = render_wrap(text, w, sp, 32);
 	int used = 0;
-	const char *s = text;
-	while (*s != '\0' && used < lines) {
-		while (*s == ' ')
-			s++;
-		size_t len = strlen(s);
-		/* Cut at the last blank that fits (counting bytes is close enough
-		 * for the mostly ASCII advice text). */
-		size_t cut = len;
-		if ((int)len > w) {
-			cut = (size_t)w;
-			while (cut > 0 && s[cut] != ' ')
-				cut--;
-			if (cut == 0)
-				cut = (size_t)w;
-		}
-		char line[256];
-		if (cut >= sizeof line)
-			cut = sizeof line - 1;
-		memcpy(line, s, cut);
-		line[cut] = '\0';
-		term_text(&a->term, row + used, col, line, w, style);
-		s += cut;
-		used++;
+	for (size_t k = 0; k < n && k < 32 && used < lines; k++) {
+		char line[512];
+		size_t len = sp[k].len < sizeof line ? sp[k].len : sizeof line - 1;
+		memcpy(line, text + sp[k].off, len);
+		line[len] = '\0';
+		term_text(&a->term, row + used++, col, line, w, style);
 	}
 	return used;
+}
+
+/* Lines TEXT needs when wrapped to W cells. */
+static int pane_wrap_lines(const char *text, int w)
+{
+	return w > 0 ? (int)render_wrap(text, w, NULL, 0) : 0;
 }
 
 /* Draw the operating-point lines; returns the rows used. */
@@ -199,52 +193,81 @@ static int pane_params(struct app *a, int row, int col, int w, int max)
 	return used;
 }
 
-/* Draw the diagnosis lines; returns rows used. */
-static int pane_diagnosis(struct app *a, int row, int col, int w, int max)
+/* The diagnosis as paragraphs, most important last to drop. */
+struct pane_diag {
+	int n;
+	char text[4][640];
+	enum term_style style[4];
+	int optional;     /* index of the paragraph to drop first, or -1 */
+};
+
+/* Build the diagnosis paragraphs of A into D. */
+static void pane_diag_build(struct app *a, struct pane_diag *d)
 {
-	if (!a->pb_ok || max <= 0)
-		return 0;
+	d->n = 0;
+	d->optional = -1;
+	if (!a->pb_ok)
+		return;
 	enum projection_order order = a->s.solver.order;
-	int used = 0;
-	char line[512];
-	struct diagnosis d;
+	struct diagnosis at;
 	bool have = a->res.n > 0;
 	if (have) {
-		diagnose_at(&a->pb, order, a->res.pts[0].v, a->s.solver.tol, 1.0, &d);
-		snprintf(line, sizeof line, "predicted: %s", d.verdict);
-		/* Narrow: the verdict (which names |g'|) gets two lines instead. */
-		bool narrow = w < 40;
-		used += pane_wrap(a, row + used, col, w, narrow ? 2 : 1, line,
-		                  fabs(d.gprime) < 1.0 ? TS_GOOD : TS_ERROR);
-		if (!narrow && used < max) {
-			char g[48], o[48];
-			pane_side_eng(g, sizeof g, d.gprime, 3);
-			pane_side_eng(o, sizeof o, d.gprime_other, 3);
-			snprintf(line, sizeof line, "g' %s here, %s other order", g, o);
-			term_text(&a->term, row + used++, col, line, w, TS_NORMAL);
-		}
+		diagnose_at(&a->pb, order, a->res.pts[0].v, a->s.solver.tol, 1.0, &at);
+		snprintf(d->text[d->n], sizeof d->text[0], "predicted: %s", at.verdict);
+		d->style[d->n++] = fabs(at.gprime) < 1.0 ? TS_GOOD : TS_ERROR;
+		char g[48], o[48];
+		pane_side_eng(g, sizeof g, at.gprime, 3);
+		pane_side_eng(o, sizeof o, at.gprime_other, 3);
+		snprintf(d->text[d->n], sizeof d->text[0], "g' %s here, %s other order",
+		         g, o);
+		d->optional = d->n;
+		d->style[d->n++] = TS_NORMAL;
 	}
 	enum step_status st = stepper_status(a->st);
 	const struct trace_row *last = stepper_last(a->st);
-	if (used < max) {
-		char msg[320];
-		struct diagnosis live;
-		const struct diagnosis *dp = NULL;
-		if (st != STEP_CONTINUE && last != NULL && isfinite(last->v)) {
-			diagnose_at(&a->pb, order, last->v, a->s.solver.tol, 1.0, &live);
-			dp = &live;
-		}
-		diagnose_status_message(st, order, dp, msg, sizeof msg);
-		size_t n;
-		stepper_trace(a->st, &n);
-		snprintf(line, sizeof line, "k=%zu %s: %s", n > 0 ? n - 1 : 0,
-		         step_status_name(st), msg);
-		used += pane_wrap(a, row + used, col, w, max - used, line,
-		                  st == STEP_CONVERGED ? TS_GOOD
-		                  : st == STEP_CONTINUE ? TS_NORMAL : TS_ERROR);
+	char msg[320];
+	struct diagnosis live;
+	const struct diagnosis *dp = NULL;
+	if (st != STEP_CONTINUE && last != NULL && isfinite(last->v)) {
+		diagnose_at(&a->pb, order, last->v, a->s.solver.tol, 1.0, &live);
+		dp = &live;
 	}
-	if (have && used < max && d.advice[0] != '\0')
-		used += pane_wrap(a, row + used, col, w, max - used, d.advice, TS_DIM);
+	diagnose_status_message(st, order, dp, msg, sizeof msg);
+	size_t n;
+	stepper_trace(a->st, &n);
+	snprintf(d->text[d->n], sizeof d->text[0], "k=%zu %s: %s", n > 0 ? n - 1 : 0,
+	         step_status_name(st), msg);
+	d->style[d->n++] = st == STEP_CONVERGED ? TS_GOOD
+	                   : st == STEP_CONTINUE ? TS_NORMAL : TS_ERROR;
+	/* The remedy, unless the status line already carries it. */
+	if (have && at.advice[0] != '\0' && strstr(msg, at.advice) == NULL) {
+		snprintf(d->text[d->n], sizeof d->text[0], "%s", at.advice);
+		d->style[d->n++] = TS_DIM;
+	}
+}
+
+/* Lines diagnosis D needs at width W (DROP: without the optional one). */
+static int pane_diag_lines(const struct pane_diag *d, int w, bool drop)
+{
+	int lines = 0;
+	for (int k = 0; k < d->n; k++)
+		if (!(drop && k == d->optional))
+			lines += pane_wrap_lines(d->text[k], w);
+	return lines;
+}
+
+/* Draw diagnosis D in at most MAX lines; returns rows used. */
+static int pane_diagnosis(struct app *a, const struct pane_diag *d, int row,
+                          int col, int w, int max)
+{
+	bool drop = pane_diag_lines(d, w, false) > max;
+	int used = 0;
+	for (int k = 0; k < d->n && used < max; k++) {
+		if (drop && k == d->optional)
+			continue;
+		used += pane_wrap(a, row + used, col, w, max - used, d->text[k],
+		                  d->style[k]);
+	}
 	return used;
 }
 
@@ -271,7 +294,11 @@ static void pane_table(struct app *a, int row, int col, int w, int max)
 		pane_side_eng(v, sizeof v, r->v, 4);
 		pane_side_eng(i, sizeof i, r->i, 4);
 		pane_side_eng(res, sizeof res, r->residual, 3);
-		pane_side_eng(step, sizeof step, r->step, 3);
+		/* Row 0 is the start point: it has no step yet. */
+		if (isnan(r->step))
+			snprintf(step, sizeof step, "-");
+		else
+			pane_side_eng(step, sizeof step, r->step, 3);
 		if (!isfinite(r->ratio))
 			snprintf(ratio, sizeof ratio, "-");
 		else if (fabs(r->ratio) < 10.0)
@@ -303,10 +330,21 @@ static void pane_side_draw(struct app *a, const struct rect *box)
 	y += pane_points(a, y, x, w, 2);
 	y += pane_caution(a, y, x, w, 6);
 
-	/* Share the rest: 3 diagnosis lines, up to 11 table rows, and the
-	 * parameters (scrolled) get what is left, at least 4. */
+	/* Share the rest.  The diagnosis gets the lines its text needs first
+	 * (it carries the remedy), keeping room for the parameter header and
+	 * 4 rows, and the table header with one row; then the table gets up to
+	 * 11 rows and the parameters (scrolled) what is left. */
+	struct pane_diag dg;
+	pane_diag_build(a, &dg);
 	int avail = end - y;
-	int diag = 4;
+	int diag = pane_diag_lines(&dg, w, false);
+	int room = avail - (1 + 4) - 1 - (1 + 2);
+	if (diag > room)
+		diag = pane_diag_lines(&dg, w, true);
+	if (diag > room)
+		diag = room;
+	if (diag < 1)
+		diag = 1;
 	int table = avail - (1 + diag) - 2 - (1 + 4);
 	if (table > 11)
 		table = 11;
@@ -330,7 +368,7 @@ static void pane_side_draw(struct app *a, const struct rect *box)
 		pane_header(a, y++, x, w, dtitle);
 		int dl = end - y - 3 < diag ? end - y - 3 : diag;
 		if (dl > 0)
-			pane_diagnosis(a, y, x, w, dl);
+			pane_diagnosis(a, &dg, y, x, w, dl);
 		y += dl > 0 ? dl : 0;
 	}
 	if (y < end - 1) {

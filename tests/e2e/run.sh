@@ -256,6 +256,30 @@ order)
 	wait_for "converged after"
 	echo "ok: diagnosis changed from spiral out to spiral in; converged after the flip"
 	;;
+wrap)
+	# At 80x24 the diagnosis box wraps its text at word boundaries and
+	# keeps the remedy; row 0 of the table shows "-" for its step; typed
+	# values carry no padding zeros.
+	start 80 24 "$samples/projection-order-matters.yaml"
+	wait_for "Convergence"
+	# The side pane is the last 32 columns (its bar, a blank, 30 of text);
+	# the text itself may hold '|' (as in |g'|), so cut by column.
+	bar=$(screen | sed -n '2,23p' | cut -c49 | sort -u)
+	[ "$bar" = "|" ] || fail "the side pane's bar is not at column 49"
+	side=$(screen | sed -n '2,23p' | cut -c51-)
+	# The diagnosis box as one line, wrapped lines joined with blanks.
+	box=$(awk '/- Diagnosis/ { on = 1; next } /- Convergence/ { on = 0 }
+		on { sub(/^ +/, ""); sub(/ +$/, ""); printf "%s ", $0 }' <<<"$side")
+	grep -qF "the other order contracts with |g'| = 0.0118: switch to voltage-from-device" <<<"$box" ||
+		fail "the remedy is not shown whole: $box"
+	grep -qF "Is       110e-21 A" <<<"$side" || fail "Is not in short form"
+	tmx resize-window -x 100 -y 30
+	wait_for "resid"
+	row0=$(table_rows | grep -E '^ *0 ')
+	[ "$(awk '{ print $5 }' <<<"$row0")" = "-" ] || fail "row 0 step is not '-': $row0"
+	grep -q nan <<<"$row0" && fail "row 0 shows nan: $row0"
+	echo "ok: the remedy wraps whole at 80x24; row 0 step '-'; Is as 110e-21 A"
+	;;
 edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"
@@ -267,14 +291,14 @@ edit)
 	keys 2.2x Enter
 	wait_for "unknown"
 	keys BSpace k Enter
-	wait_for "RS       2.2000 kohm"
+	wait_for "RS       2.2 kohm"
 	wait_for "[modified]"
 	title_point
 	[ "$TV, $TI" != "$before" ] || fail "the point did not move ($before)"
 	# Esc cancels a prompt and keeps the value.
 	keys e 47 Escape
 	wait_for "cancelled"
-	wait_for "RS       2.2000 kohm"
+	wait_for "RS       2.2 kohm"
 	echo "ok: point moved from $before to $TV, $TI"
 	;;
 resize)
@@ -332,7 +356,7 @@ hangup)
 	start 100 30 "$work/order.yaml"
 	wait_for "Convergence"
 	keys Down e 2.2k Enter
-	wait_for "RS       2.2000 kohm"
+	wait_for "RS       2.2 kohm"
 	tmx kill-server
 	for ((k = 0; k < 50; k++)); do
 		rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
@@ -346,7 +370,7 @@ hangup)
 	start 100 30 "$work/order.yaml"
 	wait_for "restore it? (y/n)"
 	keys y
-	wait_for "RS       2.2000 kohm"
+	wait_for "RS       2.2 kohm"
 	wait_for "[modified]"
 	echo "ok: recovery file $(basename "$rec") holds rs = 2.2k and restores"
 	;;
@@ -408,7 +432,7 @@ signals)
 	keys Enter
 	wait_for "Convergence"
 	keys Down e 1.8k Enter
-	wait_for "RS       1.8000 kohm"
+	wait_for "RS       1.8 kohm"
 	pid=$(pgrep -P "$(pane_pid)" -x biasline || true)
 	[ -n "$pid" ] || fail "no biasline process"
 	kill -TERM "$pid"
@@ -462,7 +486,7 @@ valgrind)
 	keys g
 	wait_for "after" 1000
 	keys o Down e 4.7k Enter
-	wait_for "RS       4.7000 kohm" 1000
+	wait_for "RS       4.7 kohm" 1000
 	tmx resize-window -x 80 -y 24
 	wait_for "Convergence" 1000
 	keys '?'

@@ -622,6 +622,63 @@ static void test_small_and_unicode(void **state)
 	grid_fini(&g);
 }
 
+/* One word-wrap case: text, width, and the lines joined with '|'. */
+struct wrap_case {
+	const char *text;
+	int width;
+	const char *want;
+};
+
+/*
+ * Word wrapping at blanks: each line fits the width, no word is split
+ * unless it alone is wider, and joining the lines with blanks gives the
+ * text back (greedy line filling, common practice).
+ */
+static void test_wrap(void **state)
+{
+	(void)state;
+	static const struct wrap_case cases[] = {
+		{ "", 10, "" },
+		{ "   ", 10, "" },
+		{ "short", 10, "short" },
+		{ "exactly ten", 11, "exactly ten" },
+		{ "exactly ten", 10, "exactly|ten" },
+		{ "this order diverges here (|g'| = 84.9); the other order "
+		  "contracts: switch to voltage-from-line", 30,
+		  "this order diverges here (|g'||= 84.9); the other order|"
+		  "contracts: switch to|voltage-from-line" },
+		{ "abcdefghijkl mn", 5, "abcde|fghij|kl mn" },
+		{ "two  blanks  kept inside", 12, "two  blanks|kept inside" },
+		{ "line one\nline two", 40, "line one|line two" },
+		/* Width counts cells, not bytes: "µ" and "Ω" are one cell each. */
+		{ "4.7 k\xCE\xA9 at 2.385 \xC2\xB5" "A", 9,
+		  "4.7 k\xCE\xA9 at|2.385 \xC2\xB5" "A" },
+		{ "x", 1, "x" },
+	};
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		const struct wrap_case *c = &cases[k];
+		struct render_span sp[16];
+		size_t n = render_wrap(c->text, c->width, sp, 16);
+		char got[512] = "";
+		size_t len = 0;
+		for (size_t j = 0; j < n && j < 16; j++) {
+			char line[256];
+			assert_true(sp[j].len < sizeof line);
+			memcpy(line, c->text + sp[j].off, sp[j].len);
+			line[sp[j].len] = '\0';
+			assert_true(render_text_width(line) <= c->width);
+			len += (size_t)snprintf(got + len, sizeof got - len, "%s%s",
+			                        j > 0 ? "|" : "", line);
+		}
+		if (strcmp(got, c->want) != 0)
+			fail_msg("case %zu: got \"%s\", want \"%s\"", k, got, c->want);
+		/* The count alone, without room for spans, agrees. */
+		assert_int_equal(render_wrap(c->text, c->width, NULL, 0), n);
+	}
+	assert_int_equal(render_wrap("text", 0, NULL, 0), 0);
+	assert_int_equal(render_wrap(NULL, 10, NULL, 0), 0);
+}
+
 /* Run every render test. */
 int main(void)
 {
@@ -634,6 +691,7 @@ int main(void)
 		cmocka_unit_test(test_ideal_sources),
 		cmocka_unit_test(test_zoom_pan),
 		cmocka_unit_test(test_small_and_unicode),
+		cmocka_unit_test(test_wrap),
 	};
 	return cmocka_run_group_tests_name("render", tests, NULL, NULL);
 }
