@@ -150,6 +150,66 @@ static int pane_points(struct app *a, int row, int col, int w, int max)
 	return used;
 }
 
+/*
+ * Draw what the model reports beyond V and I at the first operating point
+ * (a transistor's region and collector side, a thermistor's temperature):
+ * "label value" items packed whole onto at most MAX lines, then the
+ * model's note.  Returns rows used.
+ */
+static int pane_extra(struct app *a, int row, int col, int w, int max)
+{
+	struct model_extra ex;
+	if (!a->pb_ok || a->res.n == 0 || max <= 0 ||
+	    device_secondary(&a->pb.dev, &a->pb.src, a->res.pts[0].v,
+	                     a->res.pts[0].i, &ex) != 0)
+		return 0;
+	int ascii = a->view.unicode ? 0 : 1;
+	int used = 0;
+	/* Items take up to 4 lines, 2 when there is a note (which gets the
+	 * rest: a warning says the values are approximate). */
+	char note[256] = "";
+	if (ex.note[0] != '\0')
+		snprintf(note, sizeof note, "%s%s", ex.warn ? "warning: " : "", ex.note);
+	int items_max = note[0] != '\0' ? 2 : 4;
+	if (items_max > max)
+		items_max = max;
+	char line[256] = "";
+	int lw = 0;
+	if (ex.region != NULL) {
+		snprintf(line, sizeof line, "%s", ex.region);
+		lw = render_text_width(line);
+	}
+	for (size_t k = 0; k <= ex.n && used < items_max; k++) {
+		char item[96] = "";
+		int iw = 0;
+		if (k < ex.n) {
+			char v[64];
+			qty_format(v, sizeof v, ex.v[k].value, ex.v[k].kind, 4, ascii);
+			snprintf(item, sizeof item, "%s %s", ex.v[k].label, v);
+			iw = render_text_width(item);
+		}
+		/* Flush the line when the item does not fit, or at the end. */
+		if (k == ex.n || (lw > 0 && lw + 2 + iw > w)) {
+			if (lw > 0)
+				term_text(&a->term, row + used++, col, line, w,
+				          ex.warn ? TS_ERROR : TS_NORMAL);
+			line[0] = '\0';
+			lw = 0;
+		}
+		if (k < ex.n && used < items_max) {
+			size_t len = strlen(line);
+			snprintf(line + len, sizeof line - len, "%s%s", lw > 0 ? "  " : "",
+			         item);
+			lw += (lw > 0 ? 2 : 0) + iw;
+		}
+	}
+	if (note[0] != '\0' && used < max) {
+		used += pane_wrap(a, row + used, col, w, max - used, note,
+		                  ex.warn ? TS_ERROR : TS_DIM);
+	}
+	return used;
+}
+
 /* Draw the core's safety caution for this case, if any; returns rows used. */
 static int pane_caution(struct app *a, int row, int col, int w, int max)
 {
@@ -328,29 +388,31 @@ static void pane_side_draw(struct app *a, const struct rect *box)
 
 	pane_header(a, y++, x, w, a->res.n > 1 ? "Operating points" : "Operating point");
 	y += pane_points(a, y, x, w, 2);
+	y += pane_extra(a, y, x, w, 7);
 	y += pane_caution(a, y, x, w, 6);
 
 	/* Share the rest.  The diagnosis gets the lines its text needs first
 	 * (it carries the remedy), keeping room for the parameter header and
-	 * 4 rows, and the table header with one row; then the table gets up to
-	 * 11 rows and the parameters (scrolled) what is left. */
+	 * 3 rows, and the table's title, header and one row; then the table
+	 * gets up to 11 rows and the parameters (scrolled) what is left. */
 	struct pane_diag dg;
 	pane_diag_build(a, &dg);
 	int avail = end - y;
 	int diag = pane_diag_lines(&dg, w, false);
-	int room = avail - (1 + 4) - 1 - (1 + 2);
+	int room = avail - (1 + 3) - 1 - (1 + 2);
 	if (diag > room)
 		diag = pane_diag_lines(&dg, w, true);
 	if (diag > room)
 		diag = room;
 	if (diag < 1)
 		diag = 1;
-	int table = avail - (1 + diag) - 2 - (1 + 4);
-	if (table > 11)
-		table = 11;
+	/* The table: its header and rows (the title is counted apart). */
+	int table = avail - (1 + diag) - 1 - (1 + 4);
+	if (table > 12)
+		table = 12;
 	if (table < 2)
 		table = 2;
-	int plines = avail - (1 + diag) - (2 + table) - 1;
+	int plines = avail - (1 + diag) - (1 + table) - 1;
 	if (plines > nparams)
 		plines = nparams;
 	if (plines < 1)

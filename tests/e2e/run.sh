@@ -280,6 +280,22 @@ wrap)
 	grep -q nan <<<"$row0" && fail "row 0 shows nan: $row0"
 	echo "ok: the remedy wraps whole at 80x24; row 0 step '-'; Is as 110e-21 A"
 	;;
+extra)
+	# A transistor's results beyond V and I show under the operating point:
+	# its region and the collector current, which in the active region is
+	# beta times the base current (IC = beta IB, common practice).
+	start 100 30 "$samples/npn-divider-bias.yaml"
+	wait_for "Convergence"
+	wait_for "active"
+	title_point
+	ic=$(screen | grep -oE 'IC [0-9.]+ [munp]?A' | head -1 | cut -c4-)
+	[ -n "$ic" ] || fail "no IC shown"
+	beta=$(awk '$1 == "current_gain:" { print $2 }' "$samples/npn-divider-bias.yaml")
+	[ -n "$beta" ] || fail "no current_gain in the sample"
+	want=$(awk -v b="$beta" -v i="$(eng "$TI")" 'BEGIN { printf "%.17g", b * i }')
+	close_to "$(eng "$ic")" "$want" 1e-3 || fail "IC $ic is not beta $beta x IB $TI"
+	echo "ok: region active, IC $ic = beta $beta x IB $TI"
+	;;
 edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"
