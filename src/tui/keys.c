@@ -6,6 +6,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "core/eseries.h"
 #include "tui/app.h"
 
 /* Steps a run takes between looks at the keyboard. */
@@ -201,6 +202,43 @@ static unsigned key_coarse_up(struct app *a) { return key_nudge(a, 1, true); }
 /* Coarse nudge down. */
 static unsigned key_coarse_down(struct app *a) { return key_nudge(a, -1, true); }
 
+/*
+ * Step the selected RS or RP to the next standard value along the
+ * session's series (E24 unless its target section names another).
+ */
+static unsigned key_eseries(struct app *a, int dir)
+{
+	struct param ps[APP_MAX_PARAMS];
+	size_t n = app_params(a, ps, APP_MAX_PARAMS);
+	if (a->sel < 0 || (size_t)a->sel >= n)
+		return APP_HANDLED;
+	const struct param *p = &ps[a->sel];
+	if (p->id != PARAM_SOURCE_B || p->kind != QTY_RESISTANCE) {
+		app_message(a, true, "select RS or RP to step along the standard values");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	enum eseries es = a->s.analysis.target.series;
+	double nv;
+	char err[256];
+	if (eseries_step(es, *p->value, dir, &nv) != 0) {
+		app_message(a, true, "%s: no %s value %s this one", p->label,
+		            eseries_name(es), dir > 0 ? "above" : "below");
+	} else if (app_param_set(a, p, nv, err, sizeof err) != 0) {
+		app_message(a, true, "%s", err);
+	} else {
+		char buf[64];
+		qty_format_short(buf, sizeof buf, nv, p->kind, 5,
+		                 a->view.unicode ? 0 : 1);
+		app_message(a, false, "%s = %s (%s)", p->label, buf, eseries_name(es));
+	}
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* RS/RP to the next standard value. */
+static unsigned key_series_up(struct app *a) { return key_eseries(a, 1); }
+/* RS/RP to the previous standard value. */
+static unsigned key_series_down(struct app *a) { return key_eseries(a, -1); }
+
 /* Open the prompt to type an exact value for the selected parameter. */
 static unsigned key_edit(struct app *a)
 {
@@ -337,6 +375,8 @@ static const struct key_binding key_table[] = {
 	{ { '-' }, "-", "lower value a little", key_fine_down },
 	{ { ']' }, "]", "raise value a lot", key_coarse_up },
 	{ { '[' }, "[", "lower value a lot", key_coarse_down },
+	{ { '}' }, "}", "RS/RP: next E24 value up", key_series_up },
+	{ { '{' }, "{", "RS/RP: next E24 value down", key_series_down },
 	{ { 'e', TK_ENTER }, "e Enter", "type a value: 2.2k, 15m", key_edit },
 	{ { 'z' }, "z", "frame: line/point/ranges", key_frame },
 	{ { '>' }, ">", "zoom in", key_zoom_in },

@@ -296,6 +296,33 @@ extra)
 	close_to "$(eng "$ic")" "$want" 1e-3 || fail "IC $ic is not beta $beta x IB $TI"
 	echo "ok: region active, IC $ic = beta $beta x IB $TI"
 	;;
+eseries)
+	# } and { walk RS along E24: 3.3k -> 3.6k -> 3.9k and back; from an
+	# off-series value they go to the neighbour on that side (E24 values
+	# from IEC 60063:2015).
+	start 100 30 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	wait_for "RS       3.3 kohm"
+	title_point
+	before=$TI
+	keys Down '}'
+	wait_for "RS       3.6 kohm"
+	wait_for "(E24)"
+	wait_for "[modified]"
+	title_point
+	[ "$TI" != "$before" ] || fail "the point did not move"
+	keys '}'
+	wait_for "RS       3.9 kohm"
+	keys '{' '{'
+	wait_for "RS       3.3 kohm"
+	keys e 3.5k Enter
+	wait_for "RS       3.5 kohm"
+	keys '{'
+	wait_for "RS       3.3 kohm"
+	keys Up '}'
+	wait_for "select RS or RP"
+	echo "ok: RS stepped 3.3k, 3.6k, 3.9k, back to 3.3k; 3.5k down to 3.3k"
+	;;
 edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"
