@@ -22,7 +22,7 @@
 
 /* The panes, bottom to top: keys go to the top-most that takes them. */
 static const struct pane *const app_panes[] = {
-	&pane_plot, &pane_side, &pane_help, &pane_prompt,
+	&pane_plot, &pane_side, &pane_design, &pane_help, &pane_prompt,
 };
 
 /* Copy the string S into new memory (NULL when S is NULL or no memory). */
@@ -350,6 +350,9 @@ void app_draw(struct app *a)
 	pane_plot.draw(a, &plot);
 	if (side > 0)
 		pane_side.draw(a, &pane);
+	struct rect body = { 1, 0, rows - 2, cols };
+	if (a->design.open)
+		pane_design.draw(a, &body);
 	if (a->help)
 		pane_help.draw(a, &all);
 	pane_prompt.draw(a, &bottom);

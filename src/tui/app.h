@@ -14,6 +14,7 @@
 #include <stdbool.h>
 #include <stddef.h>
 
+#include "core/design.h"
 #include "core/diagnose.h"
 #include "core/solve.h"
 #include "core/stepper.h"
@@ -42,6 +43,7 @@ enum prompt_kind {
 	PROMPT_SAVE_AS,    /* a file name to save to */
 	PROMPT_QUIT,       /* y/n: quit without saving */
 	PROMPT_RESTORE,    /* y/n: restore the recovery file */
+	PROMPT_TARGET,     /* a target device current for the design view */
 };
 
 /* The prompt on the bottom line. */
@@ -76,6 +78,15 @@ struct param {
 
 #define APP_MAX_PARAMS (MODEL_MAX_PARAMS + 8)
 
+/* The design view: a target, the rows the core designed, the chosen row. */
+struct design_view {
+	bool open;
+	bool ok;                        /* RES holds rows (else RES.message) */
+	struct design_request rq;
+	struct design_result res;
+	int sel;
+};
+
 /* Options from the command line. */
 struct tui_options {
 	const char *path;       /* session file, NULL for the demo */
@@ -104,6 +115,7 @@ struct app {
 	int sel;                /* selected parameter row */
 	bool side_hidden;
 	bool help;
+	struct design_view design;
 	struct prompt prompt;
 	char status[256];       /* the last message */
 	bool status_error;
@@ -180,10 +192,20 @@ struct pane {
 extern const struct pane pane_plot;    /* the plot */
 extern const struct pane pane_side;    /* point, parameters, diagnosis, table */
 extern const struct pane pane_help;    /* the help overlay */
+extern const struct pane pane_design;  /* the design overlay */
 extern const struct pane pane_prompt;  /* the bottom line and its prompt */
 
 /* The shown value of parameter row P ("2.2000 kohm", "V from line"). */
 void pane_side_value(struct app *a, const struct param *p, char *buf, size_t n);
+
+/*
+ * Open the design view: for the session's target when it has one, else
+ * ask for a target current (the prompt then calls pane_design_target).
+ */
+void pane_design_open(struct app *a);
+
+/* Design for a device current of CURRENT amperes and show the view. */
+void pane_design_target(struct app *a, double current);
 
 /* Open the prompt for KIND (the text starts as INITIAL, may be NULL). */
 void pane_prompt_open(struct app *a, enum prompt_kind kind, const char *initial);

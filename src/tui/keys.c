@@ -344,6 +344,13 @@ static unsigned key_redraw(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Open the design view (asks for a target current when none is set). */
+static unsigned key_design(struct app *a)
+{
+	pane_design_open(a);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Show the help overlay. */
 static unsigned key_help(struct app *a)
 {
@@ -361,7 +368,10 @@ static unsigned key_quit(struct app *a)
 	return APP_HANDLED | APP_QUIT;
 }
 
-/* The key map.  The help overlay lists it in this order. */
+/*
+ * The key map.  The help overlay lists it in this order.  Rows without
+ * keys document what a key does inside a view (the view's pane takes it).
+ */
 static const struct key_binding key_table[] = {
 	{ { ' ' }, "Space", "step one projection", key_step },
 	{ { 'g' }, "g", "run on; any key stops", key_run },
@@ -375,9 +385,14 @@ static const struct key_binding key_table[] = {
 	{ { '-' }, "-", "lower value a little", key_fine_down },
 	{ { ']' }, "]", "raise value a lot", key_coarse_up },
 	{ { '[' }, "[", "lower value a lot", key_coarse_down },
-	{ { '}' }, "}", "RS/RP: next E24 value up", key_series_up },
-	{ { '{' }, "{", "RS/RP: next E24 value down", key_series_down },
+	{ { '}' }, "}", "RS/RP: next E24 up", key_series_up },
+	{ { '{' }, "{", "RS/RP: next E24 down", key_series_down },
 	{ { 'e', TK_ENTER }, "e Enter", "type a value: 2.2k, 15m", key_edit },
+	{ { 'D' }, "D", "design RS for a target", key_design },
+	{ { 0 }, "Up/Down", "(view) choose a row", NULL },
+	{ { 0 }, "Enter", "(view) apply the row", NULL },
+	{ { 0 }, "t", "(design) new target", NULL },
+	{ { 0 }, "Esc", "(view) close it", NULL },
 	{ { 'z' }, "z", "frame: line/point/ranges", key_frame },
 	{ { '>' }, ">", "zoom in", key_zoom_in },
 	{ { '<' }, "<", "zoom out", key_zoom_out },

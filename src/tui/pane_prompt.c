@@ -29,6 +29,9 @@ static void pane_prompt_label(struct app *a, char *buf, size_t n)
 	case PROMPT_QUIT:
 		snprintf(buf, n, "unsaved changes: quit without saving? (y/n) ");
 		break;
+	case PROMPT_TARGET:
+		snprintf(buf, n, "design: target device current = ");
+		break;
 	case PROMPT_RESTORE:
 		snprintf(buf, n, "a recovery file from an unclean exit exists: "
 		         "restore it? (y/n) ");
@@ -108,6 +111,25 @@ static unsigned pane_prompt_value(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Take the typed target current and open the design view. */
+static unsigned pane_prompt_target(struct app *a)
+{
+	double v;
+	char err[256];
+	if (qty_parse(a->prompt.text, QTY_CURRENT, &v, err, sizeof err) != QTY_OK) {
+		snprintf(a->prompt.error, sizeof a->prompt.error, "%s", err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	if (!(v > 0.0) || !isfinite(v)) {
+		snprintf(a->prompt.error, sizeof a->prompt.error,
+		         "the target current must be above zero");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	pane_prompt_close(a);
+	pane_design_target(a, v);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Answer the restore question: Y restores, otherwise the file goes. */
 static unsigned pane_prompt_restore(struct app *a, bool yes)
 {
@@ -178,6 +200,8 @@ static unsigned pane_prompt_key(struct app *a, int key)
 	if (key == TK_ENTER) {
 		if (kind == PROMPT_VALUE)
 			return pane_prompt_value(a);
+		if (kind == PROMPT_TARGET)
+			return pane_prompt_target(a);
 		if (kind == PROMPT_SAVE_AS) {
 			if (a->prompt.len == 0) {
 				snprintf(a->prompt.error, sizeof a->prompt.error,

@@ -323,6 +323,41 @@ eseries)
 	wait_for "select RS or RP"
 	echo "ok: RS stepped 3.3k, 3.6k, 3.9k, back to 3.3k; 3.5k down to 3.3k"
 	;;
+design)
+	# D asks for a target current (the sample has no target section); the
+	# view lists the exact RS and the E24 values either side, the same as
+	# 'biasline design' prints; Enter on the higher row applies it.
+	file=$samples/indicator-led-24v.yaml
+	out=$("$bin" design --current 10m "$file") || fail "'biasline design' exited $?"
+	want=$(awk '$1 == "higher" { print $2 " " $3; exit }' <<<"$out")
+	[ -n "$want" ] || { echo "$out"; fail "no higher row from 'biasline design'"; }
+	start 100 30 "$file"
+	wait_for "Convergence"
+	keys D
+	wait_for "target device current ="
+	keys 10m Enter
+	wait_for "Design: device current 10 mA"
+	got=$(screen | grep -oE 'higher +[0-9.]+ [kM]?ohm' | awk '{ print $2 " " $3 }')
+	close_to "$(eng "$got")" "$(eng "$want")" 1e-9 || fail "higher row $got, CLI says $want"
+	screen | grep -qE ' exact +[0-9.]+ [kM]?ohm' || fail "no exact row"
+	screen | grep -qE ' lower +[0-9.]+ [kM]?ohm' || fail "no lower row"
+	keys Down Enter
+	wait_for "(the higher row of the design)"
+	wait_gone "Design: device current"
+	wait_for "RS       $got"
+	wait_for "[modified]"
+	title_point
+	tcli=$(awk '$1 == "higher" { print $6 " " $7; exit }' <<<"$out")
+	close_to "$(eng "$TI")" "$(eng "$tcli")" 1e-4 || fail "point $TI after applying, CLI says $tcli"
+	# A bad target is refused in the prompt; Esc closes the view.
+	keys D
+	wait_for "target device current ="
+	keys -- -3m Enter
+	wait_for "above zero"
+	keys Escape
+	wait_for "cancelled"
+	echo "ok: design view higher row $got (CLI $want) applied; point $TI"
+	;;
 edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"
