@@ -23,9 +23,9 @@ fi
 
 # shellcheck disable=SC2086
 if [ -d "$builddir/meson-private" ]; then
-	meson setup --reconfigure "$builddir" ${MESON_ARGS:-} >/dev/null
+	meson setup --reconfigure "$builddir" -Dtests=enabled ${MESON_ARGS:-} >/dev/null
 else
-	meson setup "$builddir" ${MESON_ARGS:-} >/dev/null
+	meson setup "$builddir" -Dtests=enabled ${MESON_ARGS:-} >/dev/null
 fi
 ninja -C "$builddir"
 
