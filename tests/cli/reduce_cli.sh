@@ -6,46 +6,7 @@
 # Usage: reduce_cli.sh BIASLINE
 set -u
 bl=$1
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-fails=0
-n=0
-
-# Check that COMMAND exits with WANT.
-expect_exit() {
-	want=$1; shift
-	n=$((n + 1))
-	"$@" >"$tmp/out" 2>"$tmp/err"
-	got=$?
-	if [ "$got" -ne "$want" ]; then
-		echo "not ok $n - '$*' exited $got, expected $want"; cat "$tmp/err"
-		fails=$((fails + 1))
-	else
-		echo "ok $n - '$*' exits $want"
-	fi
-}
-
-# Check that FILE contains the fixed string S.
-expect_text() {
-	n=$((n + 1))
-	if grep -F -q -- "$2" "$1"; then
-		echo "ok $n - output has '$2'"
-	else
-		echo "not ok $n - output lacks '$2'"; cat "$1"
-		fails=$((fails + 1))
-	fi
-}
-
-# Check that the awk program PROG exits 0 on FILE; WHAT names the check.
-expect_awk() {
-	n=$((n + 1))
-	if awk -F, "$2" "$1"; then
-		echo "ok $n - $3"
-	else
-		echo "not ok $n - $3"; cat "$1"
-		fails=$((fails + 1))
-	fi
-}
+. "$(dirname "$0")/tap.sh"
 
 # Invented values: a divider from a 13.7 V rail, an emitter-side resistor
 # to a -4.3 V rail, a 0.37 mA current source into the base.
@@ -182,5 +143,4 @@ expect_exit 64 "$bl" reduce --bogus "$tmp/net.yaml"
 expect_exit 0 "$bl" reduce --help
 expect_text "$tmp/out" "--nodes"
 
-echo "1..$n"
-[ "$fails" -eq 0 ]
+tap_finish

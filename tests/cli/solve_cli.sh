@@ -4,35 +4,7 @@
 # Usage: solve_cli.sh BIASLINE
 set -u
 bl=$1
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-fails=0
-n=0
-
-# Check that COMMAND exits with WANT.
-expect_exit() {
-	want=$1; shift
-	n=$((n + 1))
-	"$@" >"$tmp/out" 2>"$tmp/err"
-	got=$?
-	if [ "$got" -ne "$want" ]; then
-		echo "not ok $n - '$*' exited $got, expected $want"; cat "$tmp/err"
-		fails=$((fails + 1))
-	else
-		echo "ok $n - '$*' exits $want"
-	fi
-}
-
-# Check that FILE contains the fixed string S.
-expect_text() {
-	n=$((n + 1))
-	if grep -F -q -- "$2" "$1"; then
-		echo "ok $n - output has '$2'"
-	else
-		echo "not ok $n - output lacks '$2'"; cat "$1"
-		fails=$((fails + 1))
-	fi
-}
+. "$(dirname "$0")/tap.sh"
 
 cat >"$tmp/diode.yaml" <<'YAML'
 source:
@@ -68,20 +40,10 @@ expect_text "$tmp/out" "1 operating point"
 expect_exit 0 "$bl" solve --format csv "$tmp/diode.yaml"
 expect_text "$tmp/out" "point,voltage_V,current_A,power_W,rd_ohm,steps,method,tangent"
 # Power in the CSV is V*I of the same row (to the printed digits).
-n=$((n + 1))
-if awk -F, 'NR==2 { p=$2*$3; d=(p-$4)/$4; if (d<0) d=-d; exit !(d < 1e-14) }' "$tmp/out"; then
-	echo "ok $n - power_W = voltage_V * current_A"
-else
-	echo "not ok $n - power_W differs from V*I"; cat "$tmp/out"; fails=$((fails + 1))
-fi
+expect_awk "$tmp/out" 'NR==2 { p=$2*$3; d=(p-$4)/$4; if (d<0) d=-d; exit !(d < 1e-14) }' "power_W = voltage_V * current_A"
 # 17 significant digits.
 expect_text "$tmp/out" "1,1.12655615"
-n=$((n + 1))
-if awk -F, 'NR==2 { s=$2; gsub(/[-.]|e.*/, "", s); exit !(length(s) >= 15) }' "$tmp/out"; then
-	echo "ok $n - voltage has full precision"
-else
-	echo "not ok $n - voltage lacks digits"; fails=$((fails + 1))
-fi
+expect_awk "$tmp/out" 'NR==2 { s=$2; gsub(/[-.]|e.*/, "", s); exit !(length(s) >= 15) }' "voltage has full precision"
 # Voltage from the line diverges for this LED-like junction (|g'| >> 1):
 # no point, exit 3, and the message says to switch.
 expect_exit 3 "$bl" solve --method projection --order voltage-from-line "$tmp/diode.yaml"
@@ -94,13 +56,8 @@ expect_exit 0 "$bl" solve --method relaxed --order voltage-from-line "$tmp/diode
 # An ideal current source: V = n Vt ln(1 + I/Is) at 25 degC
 # (Shockley; Vt = 25.6926 mV from the exact SI constants).
 expect_exit 0 "$bl" solve --format csv "$tmp/current.yaml"
-n=$((n + 1))
-if awk -F, 'NR==2 { vt=1.380649e-23*298.15/1.602176634e-19;
-	v=1.3*vt*log(1+2.5e-3/3.7e-13); d=($2-v)/v; if (d<0) d=-d; exit !(d < 1e-12) }' "$tmp/out"; then
-	echo "ok $n - ideal current source gives n Vt ln(1 + I/Is)"
-else
-	echo "not ok $n - ideal current source voltage wrong"; cat "$tmp/out"; fails=$((fails + 1))
-fi
+expect_awk "$tmp/out" 'NR==2 { vt=1.380649e-23*298.15/1.602176634e-19;
+	v=1.3*vt*log(1+2.5e-3/3.7e-13); d=($2-v)/v; if (d<0) d=-d; exit !(d < 1e-12) }' "ideal current source gives n Vt ln(1 + I/Is)"
 # A transistor stage reports its collector side beside the base loop.
 cat >"$tmp/npn.yaml" <<'YAML'
 source:
@@ -120,12 +77,7 @@ expect_text "$tmp/out" "region: active"
 expect_exit 0 "$bl" solve --format csv "$tmp/npn.yaml"
 expect_text "$tmp/out" "collector_current_A"
 # IC = beta * IB in the same row (columns 3 and 9).
-n=$((n + 1))
-if awk -F, 'NR==2 { d=($9-163*$3)/$9; if (d<0) d=-d; exit !(d < 1e-12) }' "$tmp/out"; then
-	echo "ok $n - collector current is beta times base current"
-else
-	echo "not ok $n - collector current column wrong"; cat "$tmp/out"; fails=$((fails + 1))
-fi
+expect_awk "$tmp/out" 'NR==2 { d=($9-163*$3)/$9; if (d<0) d=-d; exit !(d < 1e-12) }' "collector current is beta times base current"
 expect_exit 65 "$bl" solve "$tmp/nan.yaml"
 expect_text "$tmp/err" "saturation_current"
 expect_exit 66 "$bl" solve "$tmp/does-not-exist.yaml"
@@ -138,5 +90,4 @@ expect_text "$tmp/out" "--format"
 expect_exit 0 "$bl" --version
 expect_exit 64 "$bl" nonsense
 
-echo "1..$n"
-[ "$fails" -eq 0 ]
+tap_finish
