@@ -22,7 +22,7 @@
 
 /* The panes, bottom to top: keys go to the top-most that takes them. */
 static const struct pane *const app_panes[] = {
-	&pane_plot, &pane_side, &pane_design, &pane_help, &pane_prompt,
+	&pane_plot, &pane_side, &pane_design, &pane_tol, &pane_help, &pane_prompt,
 };
 
 /* Copy the string S into new memory (NULL when S is NULL or no memory). */
@@ -353,6 +353,8 @@ void app_draw(struct app *a)
 	struct rect body = { 1, 0, rows - 2, cols };
 	if (a->design.open)
 		pane_design.draw(a, &body);
+	if (a->tol.open)
+		pane_tol.draw(a, &body);
 	if (a->help)
 		pane_help.draw(a, &all);
 	pane_prompt.draw(a, &bottom);

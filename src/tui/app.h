@@ -18,6 +18,7 @@
 #include "core/diagnose.h"
 #include "core/solve.h"
 #include "core/stepper.h"
+#include "core/tolerance.h"
 #include "render/render.h"
 #include "session/session.h"
 #include "tui/term.h"
@@ -87,6 +88,22 @@ struct design_view {
 	int sel;
 };
 
+/* Monte Carlo trials the tolerance view runs when asked, and its bins. */
+#define APP_TOL_TRIALS 10000
+#define APP_TOL_BINS 8
+#define APP_TOL_SEED 1
+
+/* The tolerance view: the session's tolerances, worst case, Monte Carlo. */
+struct tol_view {
+	bool open;
+	bool have_case;         /* C was built (else MSG says why) */
+	bool have_wc, have_mc;
+	char msg[600];          /* why nothing can be shown, or "" */
+	struct tol_case c;
+	struct tol_worst w;
+	struct tol_mc mc;
+};
+
 /* Options from the command line. */
 struct tui_options {
 	const char *path;       /* session file, NULL for the demo */
@@ -116,6 +133,7 @@ struct app {
 	bool side_hidden;
 	bool help;
 	struct design_view design;
+	struct tol_view tol;
 	struct prompt prompt;
 	char status[256];       /* the last message */
 	bool status_error;
@@ -193,6 +211,7 @@ extern const struct pane pane_plot;    /* the plot */
 extern const struct pane pane_side;    /* point, parameters, diagnosis, table */
 extern const struct pane pane_help;    /* the help overlay */
 extern const struct pane pane_design;  /* the design overlay */
+extern const struct pane pane_tol;     /* the tolerance overlay */
 extern const struct pane pane_prompt;  /* the bottom line and its prompt */
 
 /* The shown value of parameter row P ("2.2000 kohm", "V from line"). */
@@ -206,6 +225,9 @@ void pane_design_open(struct app *a);
 
 /* Design for a device current of CURRENT amperes and show the view. */
 void pane_design_target(struct app *a, double current);
+
+/* Open the tolerance view: the worst case now, Monte Carlo on request. */
+void pane_tol_open(struct app *a);
 
 /* Open the prompt for KIND (the text starts as INITIAL, may be NULL). */
 void pane_prompt_open(struct app *a, enum prompt_kind kind, const char *initial);

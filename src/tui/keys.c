@@ -351,6 +351,13 @@ static unsigned key_design(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Open the tolerance view (worst case now; m there runs Monte Carlo). */
+static unsigned key_tolerance(struct app *a)
+{
+	pane_tol_open(a);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Show the help overlay. */
 static unsigned key_help(struct app *a)
 {
@@ -389,6 +396,8 @@ static const struct key_binding key_table[] = {
 	{ { '{' }, "{", "RS/RP: next E24 down", key_series_down },
 	{ { 'e', TK_ENTER }, "e Enter", "type a value: 2.2k, 15m", key_edit },
 	{ { 'D' }, "D", "design RS for a target", key_design },
+	{ { 'T' }, "T", "tolerance: worst case", key_tolerance },
+	{ { 0 }, "m", "(tolerance) Monte Carlo", NULL },
 	{ { 0 }, "Up/Down", "(view) choose a row", NULL },
 	{ { 0 }, "Enter", "(view) apply the row", NULL },
 	{ { 0 }, "t", "(design) new target", NULL },

@@ -358,6 +358,41 @@ design)
 	wait_for "cancelled"
 	echo "ok: design view higher row $got (CLI $want) applied; point $TI"
 	;;
+tolerance)
+	# T on a session without tolerances says so; with them it shows the
+	# worst case, and m runs 10000 seeded Monte Carlo trials; both agree
+	# with 'biasline tolerance' (seed 1, 8 bins) on the same file.
+	start 100 30 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	keys T
+	wait_for "no tolerances in this session"
+	keys Escape
+	wait_gone "no tolerances"
+	tmx kill-server
+	cp "$samples/indicator-led-24v.yaml" "$work/tol.yaml"
+	printf 'tolerances:\n  rs: 5%%\n  vs: {min: 22.5, max: 25.5}\n' >>"$work/tol.yaml"
+	out=$("$bin" tolerance --bins 8 --seed 1 --trials 10000 "$work/tol.yaml") ||
+		fail "'biasline tolerance' exited $?"
+	cli_min=$(awk '$1 == "current" { print $4 " " $5; exit }' <<<"$out")
+	cli_max=$(awk '$1 == "current" { print $6 " " $7; exit }' <<<"$out")
+	cli_bin=$(awk '/current histogram/ { getline; print $NF; exit }' <<<"$out")
+	[ -n "$cli_min" ] && [ -n "$cli_bin" ] || { echo "$out"; fail "no CLI worst case or histogram"; }
+	start 100 30 "$work/tol.yaml"
+	wait_for "Convergence"
+	keys T
+	wait_for "worst case over 4 corners"
+	row=$(screen | grep -oE 'current +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A')
+	tmin=$(awk '{ print $2 " " $3 }' <<<"$row")
+	tmax=$(awk '{ print $6 " " $7 }' <<<"$row")
+	close_to "$(eng "$tmin")" "$(eng "$cli_min")" 1e-4 || fail "worst min $tmin, CLI $cli_min"
+	close_to "$(eng "$tmax")" "$(eng "$cli_max")" 1e-4 || fail "worst max $tmax, CLI $cli_max"
+	screen | grep -qF "Monte Carlo, 10000" && fail "the trials ran before m"
+	keys m
+	wait_for "Monte Carlo, 10000 trials"
+	bin1=$(screen | grep -E '[0-9] [munp]?A \|#*' | head -1 | awk '{ print $NF }')
+	[ "$bin1" = "$cli_bin" ] || fail "first bin holds $bin1 trials, CLI says $cli_bin"
+	echo "ok: worst case $tmin ... $tmax and first histogram bin $bin1 match the CLI"
+	;;
 edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"

@@ -1,0 +1,237 @@
+/*
+ * pane_tol.c - the tolerance view: the session's tolerances, the worst
+ * case of the device current, voltage and powers (tol_worst_case), and on
+ * request a seeded Monte Carlo run (tol_monte_carlo) with a text histogram
+ * of the current.  The run happens on one key press, never per redraw.
+ */
+#include <math.h>
+#include <stdbool.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "core/safety.h"
+#include "session/analysis.h"
+#include "tui/app.h"
+
+/* The unit of output O. */
+static enum qty_kind pane_tol_unit(enum tol_output o)
+{
+	return o == TOL_CURRENT ? QTY_CURRENT : o == TOL_VOLTAGE ? QTY_VOLTAGE
+	       : QTY_POWER;
+}
+
+/* Open the view: build the case from the session and run the worst case. */
+void pane_tol_open(struct app *a)
+{
+	struct tol_view *t = &a->tol;
+	t->open = true;
+	t->have_case = t->have_wc = t->have_mc = false;
+	t->msg[0] = '\0';
+	if (!a->pb_ok) {
+		snprintf(t->msg, sizeof t->msg, "%s", a->pb_err);
+		return;
+	}
+	if (a->s.analysis.ntol == 0) {
+		snprintf(t->msg, sizeof t->msg, "no tolerances in this session: add "
+		         "a tolerances: section to its file (e.g. tolerances: {rs: 5%%, "
+		         "vs: 10%%})");
+		return;
+	}
+	char err[600];
+	if (session_tolerance_case(&a->s, &a->pb, &t->c, err, sizeof err) != 0) {
+		snprintf(t->msg, sizeof t->msg, "%s", err);
+		return;
+	}
+	t->have_case = true;
+	if (t->c.nitems > TOL_MAX_CORNER_ITEMS) {
+		snprintf(t->msg, sizeof t->msg, "more than %d tolerances: no worst "
+		         "case (m runs the Monte Carlo trials)", TOL_MAX_CORNER_ITEMS);
+		return;
+	}
+	if (tol_worst_case(&t->c, &t->w, err, sizeof err) != 0)
+		snprintf(t->msg, sizeof t->msg, "%s", err);
+	else
+		t->have_wc = true;
+}
+
+/* Run the Monte Carlo trials (on the m key). */
+static void pane_tol_run(struct app *a)
+{
+	struct tol_view *t = &a->tol;
+	if (!t->have_case)
+		return;
+	struct tol_window win[2];
+	size_t nwin = session_target_windows(&a->s, win);
+	char err[600];
+	t->have_mc = tol_monte_carlo(&t->c, APP_TOL_TRIALS, APP_TOL_SEED,
+	                             APP_TOL_BINS, win, nwin, &t->mc, err,
+	                             sizeof err) == 0;
+	if (!t->have_mc)
+		snprintf(t->msg, sizeof t->msg, "%s", err);
+}
+
+/*
+ * The usual caution over the box: the largest device voltage, device
+ * power and resistor power found, with the source at its larger VS end.
+ */
+static unsigned pane_tol_safety(const struct tol_view *t)
+{
+	double v = 0.0, pd = 0.0, pr = 0.0;
+	if (t->have_wc) {
+		v = fmax(fabs(t->w.min[TOL_VOLTAGE].value), fabs(t->w.max[TOL_VOLTAGE].value));
+		pd = fmax(fabs(t->w.min[TOL_DEVICE_POWER].value),
+		          fabs(t->w.max[TOL_DEVICE_POWER].value));
+		pr = fmax(fabs(t->w.min[TOL_RESISTOR_POWER].value),
+		          fabs(t->w.max[TOL_RESISTOR_POWER].value));
+	}
+	if (t->have_mc) {
+		v = fmax(v, fmax(fabs(t->mc.stats[TOL_VOLTAGE].min),
+		                 fabs(t->mc.stats[TOL_VOLTAGE].max)));
+		pd = fmax(pd, fabs(t->mc.stats[TOL_DEVICE_POWER].max));
+		pr = fmax(pr, fabs(t->mc.stats[TOL_RESISTOR_POWER].max));
+	}
+	struct problem q = t->c.pb;
+	for (size_t k = 0; k < t->c.nitems; k++)
+		if (t->c.items[k].param.kind == PARAMREF_VS)
+			q.src.voc = fabs(t->c.items[k].lo) > fabs(t->c.items[k].hi)
+			            ? t->c.items[k].lo : t->c.items[k].hi;
+	unsigned f = safety_check(&q, v, 0.0);
+	if (pd > SAFETY_HOT_POWER)
+		f |= SAFETY_HOT_DEVICE;
+	if (pr > SAFETY_HOT_POWER)
+		f |= SAFETY_HOT_RESISTOR;
+	return f;
+}
+
+/* Write TEXT wrapped to W cells from ROW, at most MAX lines; rows used. */
+static int pane_tol_wrap(struct app *a, int row, int col, int w, int max,
+                         const char *text, enum term_style st)
+{
+	struct render_span sp[8];
+	size_t n = render_wrap(text, w, sp, 8);
+	int used = 0;
+	for (size_t k = 0; k < n && k < 8 && used < max; k++) {
+		char part[640];
+		size_t len = sp[k].len < sizeof part ? sp[k].len : sizeof part - 1;
+		memcpy(part, text + sp[k].off, len);
+		part[len] = '\0';
+		term_text(&a->term, row + used++, col, part, w, st);
+	}
+	return used;
+}
+
+/* Draw the tolerance view centred in BOX. */
+static void pane_tol_draw(struct app *a, const struct rect *box)
+{
+	const struct tol_view *t = &a->tol;
+	int ascii = a->view.unicode ? 0 : 1;
+	int w = box->cols - 4 < 74 ? box->cols - 4 : 74;
+	int h = box->rows;
+	int top = box->row, left = box->col + (box->cols - w) / 2;
+	for (int r = 0; r < h; r++)
+		term_fill(&a->term, top + r, left, w, TS_NORMAL);
+	char line[640], b0[48], b1[48], b2[48];
+	term_fill(&a->term, top, left, w, TS_TITLE);
+	snprintf(line, sizeof line, "Tolerance: %zu parameters varied",
+	         t->have_case ? t->c.nitems : (size_t)0);
+	term_text(&a->term, top, left + 1, line, w - 2, TS_TITLE);
+	int row = top + 1, x = left + 2, cw = w - 4, end = top + h - 1;
+	if (t->have_wc) {
+		snprintf(line, sizeof line, "worst case over %zu corners%s",
+		         t->w.corners, t->w.failed ? " (some without a point)" : "");
+		term_text(&a->term, row++, x, line, cw, TS_NORMAL);
+		snprintf(line, sizeof line, "%-15s %-12s %-12s %s", "", "minimum",
+		         "nominal", "maximum");
+		term_text(&a->term, row++, x, line, cw, TS_HEADER);
+		for (int o = 0; o < TOL_NOUT && row < end; o++) {
+			enum qty_kind u = pane_tol_unit((enum tol_output)o);
+			qty_format(b0, sizeof b0, t->w.min[o].value, u, 5, ascii);
+			qty_format(b1, sizeof b1, t->w.nominal[o], u, 5, ascii);
+			qty_format(b2, sizeof b2, t->w.max[o].value, u, 5, ascii);
+			snprintf(line, sizeof line, "%-15s %-12s %-12s %s",
+			         tol_output_name((enum tol_output)o), b0, b1, b2);
+			term_text(&a->term, row++, x, line, cw, TS_NORMAL);
+		}
+	}
+	if (t->msg[0] != '\0' && row < end)
+		row += pane_tol_wrap(a, row, x, cw, end - row, t->msg,
+		                     t->have_case ? TS_ERROR : TS_HEADER);
+	if (t->have_mc && row + 2 < end) {
+		const struct tol_stats *s = &t->mc.stats[TOL_CURRENT];
+		qty_format(b0, sizeof b0, s->mean, QTY_CURRENT, 4, ascii);
+		qty_format(b1, sizeof b1, s->sd, QTY_CURRENT, 3, ascii);
+		snprintf(line, sizeof line, "Monte Carlo, %zu trials (seed %d): "
+		         "I mean %s, sd %s", t->mc.trials, APP_TOL_SEED, b0, b1);
+		row++;
+		row += pane_tol_wrap(a, row, x, cw, 2, line, TS_HEADER);
+		const struct tol_hist *hg = &t->mc.hist[TOL_CURRENT];
+		size_t most = 1;
+		for (size_t k = 0; k < hg->nbins; k++)
+			if (hg->counts[k] > most)
+				most = hg->counts[k];
+		int barw = cw - 24 > 40 ? 40 : cw - 24;
+		for (size_t k = 0; k < hg->nbins && row < end; k++) {
+			double lo = hg->lo + (hg->hi - hg->lo) * (double)k / (double)hg->nbins;
+			int bar = barw > 0 ? (int)(barw * (double)hg->counts[k] / (double)most
+			                           + 0.5) : 0;
+			char bars[64];
+			memset(bars, '#', (size_t)bar);
+			bars[bar] = '\0';
+			qty_format(b0, sizeof b0, lo, QTY_CURRENT, 4, ascii);
+			snprintf(line, sizeof line, "%12s |%-*s %zu", b0, barw, bars,
+			         hg->counts[k]);
+			term_text(&a->term, row++, x, line, cw, TS_NORMAL);
+		}
+		if (t->mc.has_window && row < end) {
+			snprintf(line, sizeof line, "yield %.4g %% inside the target's window",
+			         100.0 * t->mc.yield);
+			term_text(&a->term, row++, x, line, cw, TS_NORMAL);
+		}
+	}
+	unsigned flags = t->have_case ? pane_tol_safety(t) : 0;
+	if (flags != 0 && row + 1 < end) {
+		char caution[320];
+		safety_message(flags, caution, sizeof caution);
+		row++;
+		row += pane_tol_wrap(a, row, x, cw, end - row, caution, TS_ERROR);
+	}
+	term_fill(&a->term, end, left, w, TS_TITLE);
+	char foot[128];
+	snprintf(foot, sizeof foot, "%s  Esc close", t->have_case
+	         ? "m run the Monte Carlo trials (10000)" : "");
+	term_text(&a->term, end, left + 1, foot, w - 2, TS_TITLE);
+}
+
+/* Keys while the view is open: m runs the trials, Esc closes. */
+static unsigned pane_tol_key(struct app *a, int key)
+{
+	struct tol_view *t = &a->tol;
+	if (!t->open || key == TK_RESIZE || key == 12)
+		return 0;
+	if (key == 'm') {
+		app_message(a, false, "running %d Monte Carlo trials", APP_TOL_TRIALS);
+		pane_tol_run(a);
+		if (t->have_mc)
+			app_message(a, false, "%zu Monte Carlo trials done", t->mc.trials);
+	} else if (key == TK_ESC || key == 'q' || key == 'T') {
+		t->open = false;
+	}
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* Start closed. */
+static void pane_tol_init(struct app *a)
+{
+	a->tol.open = false;
+	a->tol.have_case = a->tol.have_wc = a->tol.have_mc = false;
+	a->tol.msg[0] = '\0';
+}
+
+/* The tolerance overlay. */
+const struct pane pane_tol = {
+	.name = "tolerance",
+	.init = pane_tol_init,
+	.key = pane_tol_key,
+	.draw = pane_tol_draw,
+};
