@@ -144,6 +144,29 @@ struct render_span {
 size_t render_wrap(const char *text, int width, struct render_span *out,
                    size_t max);
 
+/* An x-y line plot: N points (X[k], Y[k]) joined in order. */
+struct render_xy {
+	const double *x, *y;
+	size_t n;
+	bool log_x;             /* logarithmic x axis (points with x <= 0 skipped) */
+	enum qty_kind x_kind, y_kind;   /* units of the tick labels */
+	const char *title;      /* top line (may be NULL: no title line) */
+	const char *names;      /* axis names under the y labels, "I^ RS>" (or NULL) */
+	double x_mark;          /* mark the curve at this x with ROLE_POINT (NaN: none) */
+	bool unicode;
+};
+
+/*
+ * Draw IN into G: axes with labelled ticks (1, 2, 5 per decade on a log
+ * axis), the y axis including zero, the points joined with ROLE_DEVICE
+ * marks (non-finite points break the line), the mark at X_MARK.  The
+ * layout (may be NULL) gets the data area; on a log axis its x window is
+ * in log10 units.  Returns RENDER_OK, RENDER_TOO_SMALL or RENDER_BAD_INPUT
+ * (no usable point), with a message in G for the last two.
+ */
+enum render_status render_xy_plot(const struct render_xy *in, struct grid *g,
+                                  struct render_layout *lay_out);
+
 /* Fill V with the defaults: whole-line frame, zoom 1, ASCII, legend on. */
 void render_view_init(struct render_view *v);
 

@@ -22,7 +22,8 @@
 
 /* The panes, bottom to top: keys go to the top-most that takes them. */
 static const struct pane *const app_panes[] = {
-	&pane_plot, &pane_side, &pane_design, &pane_tol, &pane_help, &pane_prompt,
+	&pane_plot, &pane_sweep, &pane_side, &pane_design, &pane_tol, &pane_help,
+	&pane_prompt,
 };
 
 /* Copy the string S into new memory (NULL when S is NULL or no memory). */
@@ -179,6 +180,8 @@ void app_resolve(struct app *a)
 		a->res.n = 0;
 	struct solve_options po = app_path_options(a);
 	stepper_init(a->st, &a->pb, &po);
+	if (a->sweep.open)
+		pane_sweep_refresh(a);
 }
 
 /* The parts of a session a parameter change can touch. */
@@ -347,7 +350,10 @@ void app_draw(struct app *a)
 	struct rect pane = { 1, cols - side, rows - 2, side };
 	struct rect all = { 0, 0, rows, cols };
 	struct rect bottom = { rows - 1, 0, 1, cols };
-	pane_plot.draw(a, &plot);
+	if (a->sweep.open)
+		pane_sweep.draw(a, &plot);
+	else
+		pane_plot.draw(a, &plot);
 	if (side > 0)
 		pane_side.draw(a, &pane);
 	struct rect body = { 1, 0, rows - 2, cols };

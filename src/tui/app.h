@@ -104,6 +104,21 @@ struct tol_view {
 	struct tol_mc mc;
 };
 
+/* Points of the sweep view, RS/10 to RS*10 on a log scale. */
+#define APP_SWEEP_POINTS 61
+
+/* The sweep view: the device current against RS (or RP), from the core. */
+struct sweep_view {
+	bool open;
+	bool ok;                /* X, Y hold the sweep (else MSG says why) */
+	double r;               /* the present RS or RP (the mark) */
+	size_t n;
+	double x[APP_SWEEP_POINTS], y[APP_SWEEP_POINTS];
+	size_t multi;           /* steps with several operating points */
+	size_t folds;
+	char msg[256];
+};
+
 /* Options from the command line. */
 struct tui_options {
 	const char *path;       /* session file, NULL for the demo */
@@ -134,6 +149,7 @@ struct app {
 	bool help;
 	struct design_view design;
 	struct tol_view tol;
+	struct sweep_view sweep;
 	struct prompt prompt;
 	char status[256];       /* the last message */
 	bool status_error;
@@ -212,6 +228,7 @@ extern const struct pane pane_side;    /* point, parameters, diagnosis, table */
 extern const struct pane pane_help;    /* the help overlay */
 extern const struct pane pane_design;  /* the design overlay */
 extern const struct pane pane_tol;     /* the tolerance overlay */
+extern const struct pane pane_sweep;   /* the sweep plot (in the plot's place) */
 extern const struct pane pane_prompt;  /* the bottom line and its prompt */
 
 /* The shown value of parameter row P ("2.2000 kohm", "V from line"). */
@@ -228,6 +245,12 @@ void pane_design_target(struct app *a, double current);
 
 /* Open the tolerance view: the worst case now, Monte Carlo on request. */
 void pane_tol_open(struct app *a);
+
+/* Show or hide the sweep view. */
+void pane_sweep_toggle(struct app *a);
+
+/* Run the sweep again for the present session (while the view is open). */
+void pane_sweep_refresh(struct app *a);
 
 /* Open the prompt for KIND (the text starts as INITIAL, may be NULL). */
 void pane_prompt_open(struct app *a, enum prompt_kind kind, const char *initial);

@@ -358,6 +358,13 @@ static unsigned key_tolerance(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Show or hide the sweep of the device current against RS. */
+static unsigned key_sweep(struct app *a)
+{
+	pane_sweep_toggle(a);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Show the help overlay. */
 static unsigned key_help(struct app *a)
 {
@@ -398,6 +405,7 @@ static const struct key_binding key_table[] = {
 	{ { 'D' }, "D", "design RS for a target", key_design },
 	{ { 'T' }, "T", "tolerance: worst case", key_tolerance },
 	{ { 0 }, "m", "(tolerance) Monte Carlo", NULL },
+	{ { 'W' }, "W", "sweep: I against RS/RP", key_sweep },
 	{ { 0 }, "Up/Down", "(view) choose a row", NULL },
 	{ { 0 }, "Enter", "(view) apply the row", NULL },
 	{ { 0 }, "t", "(design) new target", NULL },

@@ -393,6 +393,38 @@ tolerance)
 	[ "$bin1" = "$cli_bin" ] || fail "first bin holds $bin1 trials, CLI says $cli_bin"
 	echo "ok: worst case $tmin ... $tmax and first histogram bin $bin1 match the CLI"
 	;;
+sweep)
+	# W replaces the load line with the device current against RS from
+	# RS/10 to RS*10 on a log axis; the mark for RS = 3.3k sits between the
+	# 1 kohm and 10 kohm ticks (log10 3300 = 3.52); } moves it; Esc goes back.
+	start 100 30 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	keys W
+	wait_for "I vs RS (log) @ 3.3 kohm"
+	wait_for "I^ RS>"
+	plot=$(screen | sed -n '2,29p' | cut -c1-56)
+	labels=$(tail -1 <<<"$plot")
+	grep -qF " 1 kohm" <<<"$labels" && grep -qF "10 kohm" <<<"$labels" ||
+		fail "no 1 kohm and 10 kohm labels: $labels"
+	# The tick columns of 1k and 10k: the '+' after the corner on the axis.
+	axis=$(tail -2 <<<"$plot" | head -1)
+	read -r c1 c10 <<<"$(awk '{ n = 0; for (k = 1; k <= length($0); k++)
+		if (substr($0, k, 1) == "+" && ++n > 1) printf "%d ", k }' <<<"$axis")"
+	[ -n "$c1" ] && [ -n "$c10" ] || fail "no decade ticks on the axis: $axis"
+	cat=$(grep -n '@' <<<"$plot" | grep -v 'I vs RS' | head -1)
+	[ -n "$cat" ] || fail "no mark on the sweep"
+	cm=$(awk -F: '{ print index(substr($0, length($1) + 2), "@") }' <<<"$cat")
+	# Log scale: 3.3k is 52 % of the way from 1k to 10k (log10 3.3 = 0.519);
+	# one cell of rounding is 4 % of this decade.
+	frac=$(awk -v m="$cm" -v a="$c1" -v b="$c10" 'BEGIN { printf "%.3f", (m - a) / (b - a) }')
+	close_to "$frac" 0.519 0.1 || fail "mark at $frac of the decade, log10(3.3) = 0.519"
+	keys Down '}'
+	wait_for "I vs RS (log) @ 3.6 kohm"
+	keys Escape
+	wait_for "I^ V>"
+	wait_gone "I vs RS"
+	echo "ok: sweep mark at $frac of the 1k-10k decade; } moved it to 3.6k; Esc back"
+	;;
 edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"

@@ -679,6 +679,85 @@ static void test_wrap(void **state)
 	assert_int_equal(render_wrap(NULL, 10, NULL, 0), 0);
 }
 
+/*
+ * The x-y plot of a sweep: the current of a resistor RD behind VS and RS,
+ * I = VS / (RS + RD) (Ohm's law, common practice), against RS on a log
+ * axis from 100 ohm to 100 kohm.  Every point lands in a curve cell, the
+ * curve falls from left to right, the decade labels sit under their
+ * ticks, the mark sits on the curve and bad points break the line.
+ */
+static void test_xy_plot(void **state)
+{
+	(void)state;
+	const double vs = 11.85, rd = 2385.0;
+	enum { N = 31 };
+	double x[N], y[N];
+	for (int k = 0; k < N; k++) {
+		x[k] = 100.0 * pow(10.0, 3.0 * k / (N - 1));
+		y[k] = vs / (x[k] + rd);
+	}
+	for (size_t s = 0; s < NSIZES; s++) {
+		int rows = sizes[s][0], cols = sizes[s][1];
+		struct render_xy in = { x, y, N, true, QTY_RESISTANCE, QTY_CURRENT,
+		                        "I against RS", "I^ RS>", 4.7e3, false };
+		struct grid g;
+		struct render_layout lay;
+		assert_int_equal(grid_init(&g, rows, cols), 0);
+		assert_int_equal(render_xy_plot(&in, &g, &lay), RENDER_OK);
+		show(&g);
+		int prev_row = -1;
+		for (int k = 0; k < N; k++) {
+			int r, c;
+			assert_true(render_cell_of(&lay, log10(x[k]), y[k], &r, &c));
+			const struct cell *cl = grid_at(&g, r, c);
+			assert_true(cl->role == ROLE_DEVICE || cl->role == ROLE_POINT);
+			/* Falling current: never a higher row to the right. */
+			assert_true(r >= prev_row);
+			prev_row = r;
+		}
+		/* The mark at 4.7 kohm, on the curve's row there (one cell slack
+		 * for reading between the points). */
+		int mr, mc;
+		assert_true(render_cell_of(&lay, log10(4.7e3), vs / (4.7e3 + rd), &mr, &mc));
+		bool found = false;
+		for (int dr = -1; dr <= 1; dr++)
+			for (int dc = -1; dc <= 1; dc++) {
+				const struct cell *cl = grid_at(&g, mr + dr, mc + dc);
+				if (cl != NULL && cl->role == ROLE_POINT)
+					found = true;
+			}
+		assert_true(found);
+		/* Decade labels on the label row, centred on their ticks. */
+		char buf[4096];
+		grid_row_text(&g, lay.axis_row + 1, buf, sizeof buf);
+		assert_non_null(strstr(buf, "1 kohm"));
+		assert_non_null(strstr(buf, "10 kohm"));
+		int tr, tc;
+		assert_true(render_cell_of(&lay, 3.0, 0.0, &tr, &tc));
+		assert_int_equal(ch_at(&g, lay.axis_row, tc), '+');
+		/* Zero is on the current axis, and the title on the top line. */
+		assert_true(lay.win.i_lo <= 0.0);
+		grid_row_text(&g, 0, buf, sizeof buf);
+		assert_non_null(strstr(buf, "I against RS"));
+		grid_fini(&g);
+	}
+	/* A bad point breaks the line, no point at all is refused, and a
+	 * grid below the minimum gets a message. */
+	y[N / 2] = NAN;
+	struct render_xy in = { x, y, N, true, QTY_RESISTANCE, QTY_CURRENT, NULL,
+	                        NULL, NAN, false };
+	struct grid g;
+	assert_int_equal(grid_init(&g, 24, 60), 0);
+	assert_int_equal(render_xy_plot(&in, &g, NULL), RENDER_OK);
+	in.n = 0;
+	assert_int_equal(render_xy_plot(&in, &g, NULL), RENDER_BAD_INPUT);
+	grid_fini(&g);
+	assert_int_equal(grid_init(&g, 5, 20), 0);
+	in.n = N;
+	assert_int_equal(render_xy_plot(&in, &g, NULL), RENDER_TOO_SMALL);
+	grid_fini(&g);
+}
+
 /* Run every render test. */
 int main(void)
 {
@@ -692,6 +771,7 @@ int main(void)
 		cmocka_unit_test(test_zoom_pan),
 		cmocka_unit_test(test_small_and_unicode),
 		cmocka_unit_test(test_wrap),
+		cmocka_unit_test(test_xy_plot),
 	};
 	return cmocka_run_group_tests_name("render", tests, NULL, NULL);
 }
