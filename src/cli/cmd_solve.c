@@ -163,7 +163,7 @@ static void solve_print_sensitivity(const struct problem *pb,
 		printf("\n  sensitivities (implicit differentiation; %% change per "
 		       "%% change of the parameter)\n");
 	for (size_t k = 0; k < res->n; k++) {
-		struct sensitivity sv[4 + MODEL_MAX_PARAMS];
+		struct sensitivity sv[PARAMREF_MAX];
 		size_t n = sensitivity_all(pb, res->pts[k].v, res->pts[k].i, sv,
 		                           sizeof sv / sizeof sv[0]);
 		if (!csv)

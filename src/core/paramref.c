@@ -7,26 +7,93 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "network.h"
+
 static const char *const paramref_source_keys[] = { "vs", "rs", "is", "rp" };
 
-/* True when PB's source can take a change of R. */
+/* True when PB's source can take a change of R (never for a network). */
 static int paramref_source_ok(const struct problem *pb, enum paramref_kind k)
 {
 	double r = pb->src.r;
+	if (pb->net != NULL)
+		return 0;
 	if (k == PARAMREF_VS || k == PARAMREF_RS)
 		return !isinf(r) && isfinite(pb->src.voc);
 	return r > 0.0 && isfinite(pb->src.isc);
+}
+
+/* Append ", source.network.<name>" for every part of PB's network. */
+static size_t paramref_list_parts(const struct problem *pb, char *err,
+                                  size_t errlen, size_t at, const char *lead)
+{
+	size_t n = network_part_count(pb->net);
+	for (size_t k = 0; k < n && at < errlen; k++)
+		at += (size_t)snprintf(err + at, errlen - at, "%s%s%s",
+		                       k ? ", " : lead, PARAMREF_NETWORK_PREFIX,
+		                       network_part(pb->net, k)->name);
+	return at;
+}
+
+/* Look up the network part key KEY ("source.network.<name>"). */
+static int paramref_find_part(const struct problem *pb, const char *key,
+                              struct paramref *out, char *err, size_t errlen)
+{
+	const char *name = key + strlen(PARAMREF_NETWORK_PREFIX);
+	if (pb->net == NULL) {
+		if (err != NULL)
+			snprintf(err, errlen, "%s: the source is not a network", key);
+		return -1;
+	}
+	long k = network_find_part(pb->net, name);
+	if (k < 0) {
+		if (err != NULL) {
+			size_t at = (size_t)snprintf(err, errlen, "%s: the network has "
+			                             "no part called '%s' (valid: ", key,
+			                             name);
+			at = paramref_list_parts(pb, err, errlen, at, "");
+			if (at < errlen)
+				snprintf(err + at, errlen - at, ")");
+		}
+		return -1;
+	}
+	if (strlen(key) >= sizeof out->key) {
+		if (err != NULL)
+			snprintf(err, errlen, "%s: the part name is too long to vary "
+			         "(at most %zu bytes)", key, sizeof out->key - 1 -
+			         strlen(PARAMREF_NETWORK_PREFIX));
+		return -1;
+	}
+	out->kind = PARAMREF_NETWORK;
+	out->index = (int)k;
+	snprintf(out->key, sizeof out->key, "%s", key);
+	return 0;
 }
 
 /* Look KEY up. */
 int paramref_find(const struct problem *pb, const char *key,
                   struct paramref *out, char *err, size_t errlen)
 {
+	memset(out, 0, sizeof *out);
+	if (strncmp(key, PARAMREF_NETWORK_PREFIX,
+	            strlen(PARAMREF_NETWORK_PREFIX)) == 0)
+		return paramref_find_part(pb, key, out, err, errlen);
 	for (int k = 0; k < 4; k++) {
 		if (strcmp(key, paramref_source_keys[k]) != 0)
 			continue;
 		out->kind = (enum paramref_kind)k;
 		out->index = -1;
+		if (pb->net != NULL) {
+			if (err != NULL) {
+				size_t at = (size_t)snprintf(
+				        err, errlen, "%s cannot vary: the source is a "
+				        "network and %s stands for its equivalent; vary "
+				        "one of its parts instead (", key, key);
+				at = paramref_list_parts(pb, err, errlen, at, "");
+				if (at < errlen)
+					snprintf(err + at, errlen - at, ")");
+			}
+			return -1;
+		}
 		if (!paramref_source_ok(pb, out->kind)) {
 			if (err != NULL)
 				snprintf(err, errlen, "%s cannot vary: the source is an "
@@ -42,7 +109,16 @@ int paramref_find(const struct problem *pb, const char *key,
 		out->index = idx;
 		return 0;
 	}
-	if (err != NULL) {
+	if (err != NULL && pb->net != NULL) {
+		size_t at = (size_t)snprintf(err, errlen,
+		                             "unknown parameter '%s' (valid: ", key);
+		at = paramref_list_parts(pb, err, errlen, at, "");
+		for (size_t k = 0; k < pb->dev.type->nparams && at < errlen; k++)
+			at += (size_t)snprintf(err + at, errlen - at, ", %s",
+			                       pb->dev.type->params[k].key);
+		if (at < errlen)
+			snprintf(err + at, errlen - at, ")");
+	} else if (err != NULL) {
 		size_t at = (size_t)snprintf(err, errlen,
 		                             "unknown parameter '%s' (valid: vs, rs, "
 		                             "is, rp", key);
@@ -60,6 +136,8 @@ const char *paramref_key(const struct problem *pb, const struct paramref *r)
 {
 	if (r->kind == PARAMREF_DEVICE)
 		return pb->dev.type->params[r->index].key;
+	if (r->kind == PARAMREF_NETWORK)
+		return r->key;
 	return paramref_source_keys[r->kind];
 }
 
@@ -74,6 +152,15 @@ enum qty_kind paramref_unit(const struct problem *pb, const struct paramref *r)
 	case PARAMREF_RS:
 	case PARAMREF_RP:
 		return QTY_RESISTANCE;
+	case PARAMREF_NETWORK:
+		switch (network_part(pb->net, (size_t)r->index)->kind) {
+		case NETWORK_VOLTAGE_SOURCE:
+			return QTY_VOLTAGE;
+		case NETWORK_CURRENT_SOURCE:
+			return QTY_CURRENT;
+		default:
+			return QTY_RESISTANCE;
+		}
 	case PARAMREF_DEVICE:
 		break;
 	}
@@ -91,6 +178,11 @@ double paramref_get(const struct problem *pb, const struct paramref *r)
 	case PARAMREF_RS:
 	case PARAMREF_RP:
 		return pb->src.r;
+	case PARAMREF_NETWORK:
+		for (size_t k = 0; k < pb->net_nset; k++)
+			if (pb->net_part[k] == (size_t)r->index)
+				return pb->net_value[k];
+		return network_part(pb->net, (size_t)r->index)->value;
 	case PARAMREF_DEVICE:
 		break;
 	}
@@ -123,6 +215,25 @@ int paramref_check(const struct problem *pb, const struct paramref *r,
 		model_param_check(mp, x, err, errlen);
 		return -1;
 	}
+	if (r->kind == PARAMREF_NETWORK) {
+		const struct network_part *np =
+		        pb->net != NULL ? network_part(pb->net, (size_t)r->index)
+		                        : NULL;
+		if (np == NULL) {
+			snprintf(err, errlen, "%s: the source has no such part", r->key);
+			return -1;
+		}
+		if (!isfinite(x)) {
+			snprintf(err, errlen, "%s must be a finite number", r->key);
+			return -1;
+		}
+		if (np->kind == NETWORK_RESISTOR && !(x > 0.0)) {
+			snprintf(err, errlen, "%s must be above 0 ohm, not %.6g", r->key,
+			         x);
+			return -1;
+		}
+		return 0;
+	}
 	const char *key = paramref_source_keys[r->kind];
 	if (!isfinite(x)) {
 		snprintf(err, errlen, "%s must be a finite number", key);
@@ -141,10 +252,51 @@ int paramref_check(const struct problem *pb, const struct paramref *r,
 	return 0;
 }
 
+/*
+ * Set network part R to X: note it among PB's changed values, and reduce a
+ * private copy of the network with every noted value into PB's source.
+ * PB is left as it was when this fails.
+ */
+static int paramref_set_part(struct problem *pb, const struct paramref *r,
+                             double x)
+{
+	if (pb->net == NULL || network_part(pb->net, (size_t)r->index) == NULL ||
+	    paramref_check(pb, r, x, NULL, 0) != 0)
+		return -1;
+	size_t slot = 0;
+	while (slot < pb->net_nset && pb->net_part[slot] != (size_t)r->index)
+		slot++;
+	if (slot >= PROBLEM_NET_MAX_SET)
+		return -1;
+	struct network *copy = network_copy(pb->net);
+	if (copy == NULL)
+		return -1;
+	for (size_t k = 0; k < pb->net_nset; k++)
+		network_set_value(copy, pb->net_part[k], pb->net_value[k]);
+	network_set_value(copy, (size_t)r->index, x);
+	struct source_spec spec;
+	struct source src;
+	char why[8];
+	int rc = -1;
+	if (network_reduce(copy, NULL, &spec, NULL) == NETWORK_OK &&
+	    source_from_spec(&spec, &src, why, sizeof why) == 0) {
+		pb->src = src;
+		pb->net_part[slot] = (size_t)r->index;
+		pb->net_value[slot] = x;
+		if (slot == pb->net_nset)
+			pb->net_nset++;
+		rc = 0;
+	}
+	network_destroy(copy);
+	return rc;
+}
+
 /* Set R to X. */
 int paramref_set(struct problem *pb, const struct paramref *r, double x)
 {
 	struct source *s = &pb->src;
+	if (r->kind == PARAMREF_NETWORK)
+		return paramref_set_part(pb, r, x);
 	if (!paramref_source_ok(pb, r->kind) && r->kind != PARAMREF_DEVICE)
 		return -1;
 	switch (r->kind) {
@@ -171,6 +323,8 @@ int paramref_set(struct problem *pb, const struct paramref *r, double x)
 	case PARAMREF_DEVICE:
 		pb->dev.p[r->index] = x;
 		return 0;
+	case PARAMREF_NETWORK:
+		break;
 	}
 	return -1;
 }
@@ -180,15 +334,24 @@ size_t paramref_all(const struct problem *pb, struct paramref *out,
                     size_t max)
 {
 	size_t n = 0;
+	size_t nparts = pb->net != NULL ? network_part_count(pb->net) : 0;
+	for (size_t k = 0; k < nparts && k < PARAMREF_MAX_PARTS && n < max; k++) {
+		char key[PARAMREF_KEY_MAX + 8];
+		snprintf(key, sizeof key, "%s%s", PARAMREF_NETWORK_PREFIX,
+		         network_part(pb->net, k)->name);
+		if (paramref_find_part(pb, key, &out[n], NULL, 0) == 0 &&
+		    out[n].index == (int)k)
+			n++;
+	}
 	if (paramref_source_ok(pb, PARAMREF_VS)) {
 		if (n < max)
-			out[n++] = (struct paramref){ PARAMREF_VS, -1 };
+			out[n++] = (struct paramref){ PARAMREF_VS, -1, "" };
 		if (n < max)
-			out[n++] = (struct paramref){ PARAMREF_RS, -1 };
+			out[n++] = (struct paramref){ PARAMREF_RS, -1, "" };
 	} else if (paramref_source_ok(pb, PARAMREF_IS) && n < max) {
-		out[n++] = (struct paramref){ PARAMREF_IS, -1 };
+		out[n++] = (struct paramref){ PARAMREF_IS, -1, "" };
 	}
 	for (size_t k = 0; k < pb->dev.type->nparams && n < max; k++)
-		out[n++] = (struct paramref){ PARAMREF_DEVICE, (int)k };
+		out[n++] = (struct paramref){ PARAMREF_DEVICE, (int)k, "" };
 	return n;
 }

@@ -7,6 +7,12 @@
  *   is  the source's short-circuit current (RP kept)
  *   rp  the source's parallel resistance (IS kept)
  *   any key of the device model's parameter table ("temperature", ...)
+ *   source.network.<part name>  a part's value, when the source is a
+ *       network (problem.h: pb->net); the network is reduced again with
+ *       the new value
+ *
+ * For a network source vs, rs, is and rp are refused: they stand for the
+ * network's equivalent, and what an engineer varies is one of its parts.
  *
  * vs and rs need a source with a finite resistance; is and rp one with a
  * non-zero resistance.  Either pair works whatever form the user wrote the
@@ -29,12 +35,27 @@ enum paramref_kind {
 	PARAMREF_IS,
 	PARAMREF_RP,
 	PARAMREF_DEVICE,
+	PARAMREF_NETWORK,
 };
+
+/* The key path prefix of a network part's value. */
+#define PARAMREF_NETWORK_PREFIX "source.network."
+
+/* Room for a key: the prefix and a part name of up to 48 bytes. */
+#define PARAMREF_KEY_MAX 64
+
+/* Most network parts paramref_all lists (the first ones). */
+#define PARAMREF_MAX_PARTS 32
+
+/* Most references paramref_all can return: size a buffer for it so. */
+#define PARAMREF_MAX (4 + MODEL_MAX_PARAMS + PARAMREF_MAX_PARTS)
 
 /* A parameter of a problem. */
 struct paramref {
 	enum paramref_kind kind;
-	int index;              /* the device parameter's index (DEVICE only) */
+	int index;              /* the device parameter's index (DEVICE) or
+	                           the part's index (NETWORK); else -1 */
+	char key[PARAMREF_KEY_MAX]; /* "source.network.<name>" (NETWORK only) */
 };
 
 /*
@@ -45,7 +66,7 @@ struct paramref {
 int paramref_find(const struct problem *pb, const char *key,
                   struct paramref *out, char *err, size_t errlen);
 
-/* The key of R ("vs", "saturation_current", ...). */
+/* The key of R ("vs", "saturation_current", "source.network.r2", ...). */
 const char *paramref_key(const struct problem *pb, const struct paramref *r);
 
 /* The unit of R's value. */
@@ -70,7 +91,8 @@ int paramref_set(struct problem *pb, const struct paramref *r, double x);
 
 /*
  * Every parameter PB can vary: vs and rs (when the resistance is finite),
- * is (when it is infinite), then the device's.  Writes at most MAX and
+ * is (when it is infinite), or for a network source its first
+ * PARAMREF_MAX_PARTS parts instead; then the device's.  Writes at most MAX and
  * returns how many.
  */
 size_t paramref_all(const struct problem *pb, struct paramref *out,

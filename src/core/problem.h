@@ -13,14 +13,38 @@
 #define BIASLINE_PROBLEM_H
 
 #include <stdbool.h>
+#include <stddef.h>
 
 #include "model.h"
 #include "source.h"
 
-/* A source driving a device. */
+struct network;
+
+/* Most network part values one problem can hold changed (a tolerance case
+ * varies at most this many parameters at once). */
+#define PROBLEM_NET_MAX_SET 16
+
+/*
+ * A source driving a device.
+ *
+ * NET is NULL for a source given directly.  For a source given as a
+ * network it points at that network, borrowed: the caller (the session)
+ * owns it and keeps it alive as long as the problem and its copies, and
+ * nothing reached through a problem ever changes it.  SRC is then the
+ * network's reduction.  A part's value is varied (paramref.h) by noting
+ * the new value in NET_PART/NET_VALUE (NET_NSET entries) and reducing a
+ * private copy of NET with every noted value into SRC, so a problem
+ * copied by value carries its own part values.  Whoever builds a problem
+ * by hand sets NET to NULL and NET_NSET to 0 (zeroing the whole struct is
+ * enough).
+ */
 struct problem {
 	struct source src;
 	struct device dev;
+	const struct network *net;
+	size_t net_nset;
+	size_t net_part[PROBLEM_NET_MAX_SET];
+	double net_value[PROBLEM_NET_MAX_SET];
 };
 
 /* F(V) as above; NaN when the device has no current(V). */

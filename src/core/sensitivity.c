@@ -70,6 +70,38 @@ double sensitivity_model_partial(const struct problem *pb, int index,
 	return d2;
 }
 
+/*
+ * dF/dp for network part R at the operating point (V, I): the part moves
+ * the reduced source (voc and r, or isc for an ideal current source), so
+ * dF/dp = I dr/dp - dvoc/dp (or -disc/dp), with dvoc/dp and dr/dp taken
+ * by a central difference of the whole reduction at p +- h.  The
+ * reduction is linear in a source value and rational in a resistance,
+ * smooth either way, so the difference errs by O(h^2).  NaN when either
+ * side cannot be reduced.
+ */
+static double sens_network_fp(const struct problem *pb,
+                              const struct paramref *r, double i)
+{
+	double p = paramref_get(pb, r);
+	double h = SENS_REL_STEP * fabs(p);
+	if (h == 0.0)
+		h = SENS_REL_STEP;
+	struct problem up = *pb, down = *pb;
+	if (paramref_set(&up, r, p + h) != 0 ||
+	    paramref_set(&down, r, p - h) != 0)
+		return NAN;
+	if (isinf(pb->src.r)) {
+		if (!isinf(up.src.r) || !isinf(down.src.r))
+			return NAN;
+		return -(up.src.isc - down.src.isc) / (2.0 * h);
+	}
+	if (isinf(up.src.r) || isinf(down.src.r))
+		return NAN;
+	double dvoc = (up.src.voc - down.src.voc) / (2.0 * h);
+	double dr = (up.src.r - down.src.r) / (2.0 * h);
+	return i * dr - dvoc;
+}
+
 /* (P / Y) DY, NaN when Y is 0. */
 static double sens_norm(double p, double y, double dy)
 {
@@ -113,6 +145,9 @@ int sensitivity_at(const struct problem *pb, double v, double i,
 		ip = sensitivity_model_partial(pb, r->index, v);
 		fp = amps ? ip : s->r * ip;
 		break;
+	case PARAMREF_NETWORK:
+		fp = sens_network_fp(pb, r, i);
+		break;
 	}
 	if (!isfinite(fv) || fv == 0.0 || !isfinite(fp) || !isfinite(g))
 		return -1;
@@ -129,7 +164,7 @@ int sensitivity_at(const struct problem *pb, double v, double i,
 size_t sensitivity_all(const struct problem *pb, double v, double i,
                        struct sensitivity *out, size_t max)
 {
-	struct paramref refs[4 + MODEL_MAX_PARAMS];
+	struct paramref refs[PARAMREF_MAX];
 	size_t nr = paramref_all(pb, refs, sizeof refs / sizeof refs[0]);
 	size_t n = 0;
 	for (size_t k = 0; k < nr && n < max; k++)

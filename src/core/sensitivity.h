@@ -13,7 +13,11 @@
  * device parameter it is r dI/dp at fixed V, taken by a central difference
  * of the model's current (a one-sided second-order difference at the edge
  * of the parameter's range), checked against the same with half the step
- * so that a parameter the model is not smooth in is refused.  Then dI/dp = g dV/dp + dI/dp|V, and for the
+ * so that a parameter the model is not smooth in is refused.  For a part
+ * of a network source, dF/dp = I dr/dp - dvoc/dp (or -disc/dp for an
+ * ideal current source), with the reduced source's dvoc/dp and dr/dp taken
+ * by a central difference of the network's reduction.  Then dI/dp =
+ * g dV/dp + dI/dp|V, and for the
  * device power P = V I, dP/dp = I dV/dp + V dI/dp.
  *
  * Normalised sensitivities are (p / y) dy/dp: the per-cent change of y per

@@ -480,5 +480,7 @@ int session_problem(const struct session *s, struct problem *pb, char *err,
 		return -1;
 	}
 	pb->dev = s->device;
+	pb->net = s->network; /* borrowed: S outlives PB (problem.h) */
+	pb->net_nset = 0;
 	return 0;
 }

@@ -131,7 +131,10 @@ bool session_equal(const struct session *a, const struct session *b);
 /* The built-in demo session. */
 void session_demo(struct session *s);
 
-/* Build the core problem from S; returns 0 or -1 with a message. */
+/*
+ * Build the core problem from S; returns 0 or -1 with a message.  For a
+ * network source PB->net borrows S's network, so S must outlive PB.
+ */
 int session_problem(const struct session *s, struct problem *pb,
                     char *err, size_t errlen);
 

@@ -48,7 +48,7 @@ int main(int argc, char **argv)
 		        TOL_MAX_TRIALS);
 		return 2;
 	}
-	struct problem pb;
+	struct problem pb = { .net = NULL }; /* no network */
 	struct source_spec sp;
 	char err[256];
 	source_spec_thevenin(&sp, 23.7, 2.2e3);

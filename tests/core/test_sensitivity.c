@@ -52,6 +52,7 @@ static void case_problem(const struct sens_case *c, struct problem *pb)
 {
 	struct source_spec sp;
 	char err[200];
+	memset(pb, 0, sizeof *pb); /* no network */
 	if (c->form == SOURCE_THEVENIN)
 		source_spec_thevenin(&sp, c->a, c->b);
 	else
@@ -125,7 +126,7 @@ static void test_against_finite_differences(void **state)
 		size_t nr = paramref_all(&pb, refs, 20);
 		assert_true(nr >= pb.dev.type->nparams + 1);
 		double v, i;
-		struct paramref none = { PARAMREF_DEVICE, 0 };
+		struct paramref none = { .kind = PARAMREF_DEVICE, .index = 0 };
 		solve_with(&pb, &none, pb.dev.p[0], &v, &i);
 		size_t checked = 0;
 		for (size_t j = 0; j < nr; j++) {
@@ -195,7 +196,7 @@ static void test_singular(void **state)
 	                       SOURCE_NORTON, 0.0, INFINITY };
 	struct problem pb;
 	case_problem(&c, &pb);
-	struct paramref r = { PARAMREF_IS, -1 };
+	struct paramref r = { .kind = PARAMREF_IS, .index = -1 };
 	struct sensitivity s;
 	assert_int_equal(sensitivity_at(&pb, 0.0, 0.0, &r, &s), -1);
 }

@@ -68,6 +68,7 @@ static void make_problem(struct problem *pb, const struct model_type *t,
 {
 	struct source_spec sp;
 	char err[200];
+	memset(pb, 0, sizeof *pb); /* no network */
 	source_spec_thevenin(&sp, vs, rs);
 	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
 	device_init(&pb->dev, t);

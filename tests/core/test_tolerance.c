@@ -36,7 +36,7 @@
 /* The LED-like case: 23.7 V through 2.2 kohm into a junction. */
 static void led_case(struct tol_case *c)
 {
-	struct problem pb;
+	struct problem pb = { .net = NULL }; /* no network */
 	struct source_spec sp;
 	char err[200];
 	source_spec_thevenin(&sp, 23.7, 2.2e3);
@@ -131,7 +131,7 @@ static void test_worst_case_monotone(void **state)
 static void test_worst_case_interior(void **state)
 {
 	(void)state;
-	struct problem pb;
+	struct problem pb = { .net = NULL }; /* no network */
 	struct source_spec sp;
 	char err[200];
 	source_spec_thevenin(&sp, 12.3, 100.0);
@@ -318,7 +318,7 @@ static void test_uniform_output(void **state)
 {
 	(void)state;
 	/* An ideal voltage source: V = VS exactly, so V is uniform. */
-	struct problem pb;
+	struct problem pb = { .net = NULL }; /* no network */
 	struct source_spec sp;
 	char err[200];
 	source_spec_thevenin(&sp, 12.3, 0.0);
@@ -391,7 +391,7 @@ static void test_uniform_output(void **state)
 static void test_all_equal(void **state)
 {
 	(void)state;
-	struct problem pb;
+	struct problem pb = { .net = NULL }; /* no network */
 	struct source_spec sp;
 	char err[200];
 	source_spec_norton(&sp, 0.0173, INFINITY);
