@@ -33,8 +33,8 @@
 #include "core/ratings.h"
 #include "core/tolerance.h"
 
-/* Longest tolerance key in bytes. */
-#define SESSION_TOL_KEY_MAX 48
+/* Longest tolerance key in bytes ("source.network." and a part name fit). */
+#define SESSION_TOL_KEY_MAX 64
 
 /* How a tolerance was written. */
 enum session_tol_form {

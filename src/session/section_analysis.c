@@ -11,6 +11,7 @@
 #include "core/paramref.h"
 #include "session/analysis.h"
 #include "session/section_analysis.h"
+#include "session/section_network.h"
 
 /* Fill A with "nothing given". */
 void session_analysis_init(struct session_analysis *a)
@@ -285,11 +286,24 @@ static const char *const tol_source_keys[] = { "vs", "rs", "is", "rp" };
 static const enum qty_kind tol_source_units[] = { QTY_VOLTAGE, QTY_RESISTANCE,
                                                   QTY_CURRENT, QTY_RESISTANCE };
 
-/* The unit of tolerance key KEY for the session's device; -1 if unknown. */
+/* Most network part keys an unknown-key message lists. */
+#define TOL_MAX_NETWORK_KEYS 24
+
+/*
+ * The unit of tolerance key KEY for the session's source and device; -1 if
+ * unknown.  A network source takes its parts' key paths
+ * ("source.network.<part name>") instead of vs, rs, is and rp.
+ */
 static int tol_key_unit(const struct session *s, const char *key,
                         enum qty_kind *kind)
 {
-	for (int k = 0; k < 4; k++)
+	long part = s->network != NULL ? session_network_find(s, key) : -1;
+	if (part >= 0) {
+		*kind = session_network_kind_unit(
+		        network_part(s->network, (size_t)part)->kind);
+		return 0;
+	}
+	for (int k = 0; k < 4 && s->network == NULL; k++)
 		if (strcmp(key, tol_source_keys[k]) == 0) {
 			*kind = tol_source_units[k];
 			return 0;
@@ -305,14 +319,21 @@ static int tol_key_unit(const struct session *s, const char *key,
 static void tol_unknown_key(struct load_ctx *c, const struct ynode *k,
                             const char *path)
 {
-	const char *cands[4 + MODEL_MAX_PARAMS];
+	const char *cands[4 + MODEL_MAX_PARAMS + TOL_MAX_NETWORK_KEYS];
+	char netkeys[TOL_MAX_NETWORK_KEYS][SESSION_TOL_KEY_MAX];
 	size_t n = 0;
-	for (int j = 0; j < 4; j++)
+	size_t nparts = c->s->network ? network_part_count(c->s->network) : 0;
+	for (size_t j = 0; j < nparts && j < TOL_MAX_NETWORK_KEYS; j++) {
+		snprintf(netkeys[j], sizeof netkeys[j], "%s%s", SESSION_NETWORK_PREFIX,
+		         network_part(c->s->network, j)->name);
+		cands[n++] = netkeys[j];
+	}
+	for (int j = 0; j < 4 && c->s->network == NULL; j++)
 		cands[n++] = tol_source_keys[j];
 	const struct model_type *t = c->s->device.type;
 	for (size_t j = 0; t != NULL && j < t->nparams; j++)
 		cands[n++] = t->params[j].key;
-	char found[96], keys[512] = "";
+	char found[96], keys[1024] = "";
 	size_t o = 0;
 	for (size_t j = 0; j < n && o < sizeof keys; j++)
 		o += (size_t)snprintf(keys + o, sizeof keys - o, "%s%s", j ? ", " : "",
