@@ -118,6 +118,7 @@ void cli_print_network_note(const struct session *se, const char *indent)
 	if (se->network == NULL)
 		return;
 	printf("%snote: the source is a network; vs and rs here are its Thevenin\n"
-	       "%s      equivalent (is and rp its Norton one), not one of its parts\n",
-	       indent, indent);
+	       "%s      equivalent (is and rp its Norton one), not one of its parts;\n"
+	       "%s      sweeps and tolerances vary a part as source.network.<name>\n",
+	       indent, indent, indent);
 }

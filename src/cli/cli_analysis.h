@@ -46,7 +46,8 @@ const char *cli_column(char *buf, size_t n, const char *key,
 
 /*
  * When SE's source is a network, print a note that vs and rs (and is, rp)
- * stand for its Thevenin (Norton) equivalent, not for one of its parts.
+ * stand for its Thevenin (Norton) equivalent, not for one of its parts,
+ * and that sweeps and tolerances vary the parts by their key paths.
  */
 void cli_print_network_note(const struct session *se, const char *indent);
 

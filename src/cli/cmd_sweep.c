@@ -33,7 +33,10 @@ static void sweep_usage(FILE *out)
 	        "fold: the circuit jumps) the value is located and reported.\n"
 	        "\n"
 	        "Options:\n"
-	        "  -P, --param KEY    vs, rs, is, rp or a device parameter key\n"
+	        "  -P, --param KEY    vs, rs, is, rp or a device parameter key; for a\n"
+	        "                     network source, a part's value as\n"
+	        "                     source.network.<part name> (quote it when the\n"
+	        "                     name has spaces) instead of vs, rs, is, rp\n"
 	        "                     (temperature, saturation_current, ...)\n"
 	        "  -a, --from X       first value, with the parameter's unit\n"
 	        "  -b, --to Y         last value\n"
@@ -202,8 +205,6 @@ int cmd_sweep(int argc, char **argv)
 		if (res.nfolds > 0)
 			printf("\n");
 		sweep_print_folds(stdout, "  ", key, unit, &res);
-		if (sp.param.kind != PARAMREF_DEVICE)
-			cli_print_network_note(&se, "  ");
 	}
 	if (res.failed > 0)
 		fprintf(stderr, "biasline sweep: %zu of %zu steps have no operating "
