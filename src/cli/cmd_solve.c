@@ -166,8 +166,14 @@ static void solve_print_sensitivity(const struct problem *pb,
 		struct sensitivity sv[PARAMREF_MAX];
 		size_t n = sensitivity_all(pb, res->pts[k].v, res->pts[k].i, sv,
 		                           sizeof sv / sizeof sv[0]);
+		int w = 22; /* wide enough for the longest key (network parts) */
+		for (size_t j = 0; j < n; j++) {
+			size_t len = strlen(paramref_key(pb, &sv[j].param));
+			if (len > (size_t)w)
+				w = (int)len;
+		}
 		if (!csv)
-			printf("  point %zu\n  %-22s %-12s %-11s %-11s %s\n", k + 1,
+			printf("  point %zu\n  %-*s %-12s %-11s %-11s %s\n", k + 1, w,
 			       "parameter", "value", "S(V)", "S(I)", "S(P)");
 		for (size_t j = 0; j < n; j++) {
 			const struct sensitivity *s = &sv[j];
@@ -182,7 +188,7 @@ static void solve_print_sensitivity(const struct problem *pb,
 			qty_format_short(v, sizeof v, s->value,
 			                 paramref_unit(pb, &s->param), 5, 1);
 			/* + 0.0 turns a negative zero into a plain one */
-			printf("  %-22s %-12s %-+11.4g %-+11.4g %+.4g\n", key, v,
+			printf("  %-*s %-12s %-+11.4g %-+11.4g %+.4g\n", w, key, v,
 			       s->sv + 0.0, s->si + 0.0, s->sp + 0.0);
 		}
 	}

@@ -192,11 +192,12 @@ int cmd_sweep(int argc, char **argv)
 		       key, cli_fmt(a1, sizeof a1, sp.from, unit, 6),
 		       cli_fmt(a2, sizeof a2, sp.to, unit, 6), sp.points,
 		       a.log ? "logarithmic" : "linear");
-		printf("  %-5s %-14s %-5s %-13s %-13s %s\n", "step", key, "point",
+		int w = strlen(key) > 14 ? (int)strlen(key) : 14;
+		printf("  %-5s %-*s %-5s %-13s %-13s %s\n", "step", w, key, "point",
 		       "voltage", "current", "power");
 		for (size_t k = 0; k < res.nrows; k++) {
 			const struct sweep_row *r = &res.rows[k];
-			printf("  %-5zu %-14s %zu/%-3zu %-13s %-13s %s\n", r->step,
+			printf("  %-5zu %-*s %zu/%-3zu %-13s %-13s %s\n", r->step, w,
 			       cli_fmt(a1, sizeof a1, r->value, unit, 5), r->index + 1,
 			       r->count, cli_fmt(v, sizeof v, r->v, QTY_VOLTAGE, 6),
 			       cli_fmt(i, sizeof i, r->i, QTY_CURRENT, 6),
