@@ -16,6 +16,7 @@
 #include <string.h>
 
 #include "session/recovery.h"
+#include "session/section_network.h"
 
 /* Consecutive failed reads that mean the terminal is gone. */
 #define APP_READ_FAILURES 8
@@ -117,9 +118,22 @@ size_t app_params(struct app *a, struct param *out, size_t max)
 {
 	size_t n = 0;
 	struct source_spec *sp = &a->s.source;
-#define ADD(...) do { if (n < max) out[n++] = (struct param){ __VA_ARGS__ }; } while (0)
-	/* A network source: VS and RS are its reduction, edited in the file. */
-	bool net = a->s.network != NULL;
+#define ADD(...) do { if (n < max) { out[n] = (struct param){ __VA_ARGS__ }; \
+	out[n].part = -1; if (out[n].value != NULL) out[n].cur = *out[n].value; \
+	n++; } } while (0)
+	/* A network source: its parts are edited; VS and RS are its reduction. */
+	const struct network *nw = a->s.network;
+	bool net = nw != NULL;
+	size_t nparts = net ? network_part_count(nw) : 0;
+	for (size_t k = 0; k < nparts && k < APP_MAX_NET_PARTS && n < max; k++) {
+		const struct network_part *pt = network_part(nw, k);
+		ADD(.id = PARAM_NET + (int)k, .label = pt->name,
+		    .kind = session_network_kind_unit(pt->kind), .cur = pt->value,
+		    .log_step = pt->kind == NETWORK_RESISTOR);
+		out[n - 1].part = (long)k;
+		snprintf(out[n - 1].path, sizeof out[n - 1].path, "%s%s",
+		         SESSION_NETWORK_PREFIX, pt->name);
+	}
 	if (sp->form == SOURCE_THEVENIN) {
 		ADD(.id = PARAM_SOURCE_A, .label = net ? "VS (net)" : "VS",
 		    .kind = QTY_VOLTAGE, .value = &sp->vs, .readonly = net);
@@ -145,8 +159,8 @@ size_t app_params(struct app *a, struct param *out, size_t max)
 		    .value = &a->s.device.p[k], .log_step = mp->log_step,
 		    .fine = fine, .coarse = coarse);
 	}
-	ADD(.id = PARAM_METHOD, .label = "method", .kind = QTY_NUMBER);
-	ADD(.id = PARAM_ORDER, .label = "order", .kind = QTY_NUMBER);
+	ADD(.id = PARAM_METHOD, .label = "method", .kind = QTY_NUMBER, .choice = true);
+	ADD(.id = PARAM_ORDER, .label = "order", .kind = QTY_NUMBER, .choice = true);
 	ADD(.id = PARAM_START, .label = "start V", .kind = QTY_VOLTAGE,
 	    .value = &a->s.solver.start_v, .fine = 0.0, .coarse = 0.0);
 	ADD(.id = PARAM_OMEGA, .label = "omega", .kind = QTY_NUMBER,
@@ -213,17 +227,37 @@ static int app_check(struct app *a, char *err, size_t errlen)
 	return session_problem(&a->s, &pb, err, errlen);
 }
 
+/* Set a network part's value: reduce again, check, or put the old back. */
+static int app_part_set(struct app *a, const struct param *p, double value,
+                        char *err, size_t errlen)
+{
+	if (session_network_set_value(&a->s, p->path, value, err, errlen) != 0)
+		return -1;
+	if (app_check(a, err, errlen) != 0) {
+		char ignored[256];
+		session_network_set_value(&a->s, p->path, p->cur, ignored,
+		                          sizeof ignored);
+		return -1;
+	}
+	a->dirty = true;
+	app_resolve(a);
+	return 0;
+}
+
 /* Set a parameter after checking it. */
 int app_param_set(struct app *a, const struct param *p, double value,
                   char *err, size_t errlen)
 {
-	if (p->value == NULL) {
-		snprintf(err, errlen, "%s: choose with + and -", p->label);
-		return -1;
-	}
 	if (p->readonly) {
 		snprintf(err, errlen, "%s is the equivalent of the session's source "
-		         "network: edit the network's parts in the file", p->label);
+		         "network: change one of the network's parts (listed first)",
+		         p->label);
+		return -1;
+	}
+	if (p->part >= 0)
+		return app_part_set(a, p, value, err, errlen);
+	if (p->value == NULL) {
+		snprintf(err, errlen, "%s: choose with + and -", p->label);
 		return -1;
 	}
 	struct app_backup b = { a->s.source, a->s.device, a->s.solver };

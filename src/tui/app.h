@@ -64,6 +64,7 @@ enum param_id {
 	PARAM_ORDER,
 	PARAM_START,
 	PARAM_OMEGA,
+	PARAM_NET,         /* + index of a part of the source's network */
 };
 
 /* One row of the parameter list. */
@@ -71,13 +72,20 @@ struct param {
 	int id;                 /* enum param_id (device rows: PARAM_DEVICE + k) */
 	const char *label;
 	enum qty_kind kind;
-	double *value;          /* NULL for a choice (method, order) */
+	double *value;          /* where the value lives; NULL for a choice or a
+	                           network part (set through PATH) */
+	double cur;             /* the value when the rows were built */
+	bool choice;            /* a choice cycled with + and - (method, order) */
 	bool log_step;          /* nudge multiplicatively */
 	double fine, coarse;    /* additive steps for linear rows (0: relative) */
 	bool readonly;          /* shown, not editable (a network's equivalent) */
+	long part;              /* the network part's index, or -1 */
+	char path[64];          /* "source.network.<name>" of a part, or "" */
 };
 
-#define APP_MAX_PARAMS (MODEL_MAX_PARAMS + 8)
+/* Most network parts listed as rows. */
+#define APP_MAX_NET_PARTS 32
+#define APP_MAX_PARAMS (MODEL_MAX_PARAMS + 8 + APP_MAX_NET_PARTS)
 
 /* The design view: a target, the rows the core designed, the chosen row. */
 struct design_view {

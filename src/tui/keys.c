@@ -168,7 +168,7 @@ static unsigned key_nudge(struct app *a, int dir, bool coarse)
 	}
 	if (p->id == PARAM_ORDER)
 		return key_order(a);
-	double v = *p->value, nv;
+	double v = p->cur, nv;
 	if (p->id == PARAM_START && isnan(v))
 		v = 0.0;
 	if (p->log_step && v > 0.0) {
@@ -213,14 +213,17 @@ static unsigned key_eseries(struct app *a, int dir)
 	if (a->sel < 0 || (size_t)a->sel >= n)
 		return APP_HANDLED;
 	const struct param *p = &ps[a->sel];
-	if (p->id != PARAM_SOURCE_B || p->kind != QTY_RESISTANCE) {
-		app_message(a, true, "select RS or RP to step along the standard values");
+	bool resistor = p->kind == QTY_RESISTANCE &&
+	                (p->id == PARAM_SOURCE_B || p->part >= 0);
+	if (!resistor) {
+		app_message(a, true, "select RS, RP or a network resistor to step "
+		            "along the standard values");
 		return APP_HANDLED | APP_REDRAW;
 	}
 	enum eseries es = a->s.analysis.target.series;
 	double nv;
 	char err[256];
-	if (eseries_step(es, *p->value, dir, &nv) != 0) {
+	if (eseries_step(es, p->cur, dir, &nv) != 0) {
 		app_message(a, true, "%s: no %s value %s this one", p->label,
 		            eseries_name(es), dir > 0 ? "above" : "below");
 	} else if (app_param_set(a, p, nv, err, sizeof err) != 0) {
@@ -246,7 +249,7 @@ static unsigned key_edit(struct app *a)
 	size_t n = app_params(a, ps, APP_MAX_PARAMS);
 	if (a->sel < 0 || (size_t)a->sel >= n)
 		return APP_HANDLED;
-	if (ps[a->sel].value == NULL)
+	if (ps[a->sel].choice)
 		return key_nudge(a, 1, false);
 	char err[256];
 	if (ps[a->sel].readonly) {
@@ -399,8 +402,8 @@ static const struct key_binding key_table[] = {
 	{ { '-' }, "-", "lower value a little", key_fine_down },
 	{ { ']' }, "]", "raise value a lot", key_coarse_up },
 	{ { '[' }, "[", "lower value a lot", key_coarse_down },
-	{ { '}' }, "}", "RS/RP: next E24 up", key_series_up },
-	{ { '{' }, "{", "RS/RP: next E24 down", key_series_down },
+	{ { '}' }, "}", "RS/RP/part: next E24 up", key_series_up },
+	{ { '{' }, "{", "RS/RP/part: E24 down", key_series_down },
 	{ { 'e', TK_ENTER }, "e Enter", "type a value: 2.2k, 15m", key_edit },
 	{ { 'D' }, "D", "design RS for a target", key_design },
 	{ { 'T' }, "T", "tolerance: worst case", key_tolerance },

@@ -186,6 +186,7 @@ static unsigned pane_design_apply(struct app *a)
 			return APP_HANDLED | APP_REDRAW;
 		}
 		char b[64];
+		app_params(a, ps, APP_MAX_PARAMS);
 		pane_side_value(a, &ps[k], b, sizeof b);
 		app_message(a, false, "%s = %s (the %s row of the design)", ps[k].label,
 		            b, design_row_name(r->kind));

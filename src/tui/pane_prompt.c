@@ -87,7 +87,7 @@ static unsigned pane_prompt_value(struct app *a)
 {
 	struct param ps[APP_MAX_PARAMS];
 	size_t np = app_params(a, ps, APP_MAX_PARAMS);
-	if ((size_t)a->sel >= np || ps[a->sel].value == NULL) {
+	if ((size_t)a->sel >= np || ps[a->sel].choice) {
 		pane_prompt_close(a);
 		return APP_HANDLED | APP_REDRAW;
 	}
@@ -104,9 +104,13 @@ static unsigned pane_prompt_value(struct app *a)
 		snprintf(a->prompt.error, sizeof a->prompt.error, "%s", err);
 		return APP_HANDLED | APP_REDRAW;
 	}
+	/* The rows again: the value shown is the one now in the session. */
 	char buf[64];
-	pane_side_value(a, p, buf, sizeof buf);
-	app_message(a, false, "%s = %s", p->label, buf);
+	np = app_params(a, ps, APP_MAX_PARAMS);
+	if ((size_t)a->sel < np) {
+		pane_side_value(a, &ps[a->sel], buf, sizeof buf);
+		app_message(a, false, "%s = %s", ps[a->sel].label, buf);
+	}
 	pane_prompt_close(a);
 	return APP_HANDLED | APP_REDRAW;
 }

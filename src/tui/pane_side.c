@@ -85,13 +85,13 @@ void pane_side_value(struct app *a, const struct param *p, char *buf,
 	} else if (p->id == PARAM_ORDER) {
 		snprintf(buf, n, "V from %s", a->s.solver.order == ORDER_VOLTAGE_FROM_LINE
 		         ? "line" : "device");
-	} else if (p->id == PARAM_START && isnan(*p->value)) {
+	} else if (p->id == PARAM_START && isnan(p->cur)) {
 		snprintf(buf, n, "auto (0 V)");
-	} else if (p->id == PARAM_OMEGA && *p->value == 0.0) {
+	} else if (p->id == PARAM_OMEGA && p->cur == 0.0) {
 		snprintf(buf, n, "0 (optimal)");
 	} else {
 		/* Values a person typed: no padding zeros ("12 fA", "110e-21 A"). */
-		qty_format_short(buf, n, *p->value, p->kind, 5, ascii);
+		qty_format_short(buf, n, p->cur, p->kind, 5, ascii);
 	}
 }
 

@@ -425,6 +425,45 @@ sweep)
 	wait_gone "I vs RS"
 	echo "ok: sweep mark at $frac of the 1k-10k decade; } moved it to 3.6k; Esc back"
 	;;
+network)
+	# A network source lists its parts first; typing a part's value reduces
+	# the network again.  Upper divider 68k -> 56k with 22k below it from
+	# +15 V and 4.7k to -5 V gives, by Thevenin's theorem (common
+	# practice), VS = 15 V x 22/(56 + 22) + 5 V and RS = 56k || 22k + 4.7k.
+	cp "$samples/split-supply-bias.yaml" "$work/split.yaml"
+	start 100 30 "$work/split.yaml"
+	wait_for "Convergence"
+	wait_for "upper divider 68 kohm"
+	title_point
+	before=$TI
+	keys Down Down
+	keys e
+	wait_for "upper divider ="
+	keys 56k Enter
+	wait_for "upper divider 56 kohm"
+	wait_for "[modified]"
+	title_point
+	[ "$TI" != "$before" ] || fail "the point did not move"
+	keys Down Down Down
+	wait_for "VS (net)"
+	vs=$(screen | grep -oE 'VS \(net\) [0-9.]+ [mk]?V' | awk '{ print $3 " " $4 }')
+	rs=$(screen | grep -oE 'RS \(net\) [0-9.]+ [mk]?ohm' | awk '{ print $3 " " $4 }')
+	[ -n "$vs" ] && [ -n "$rs" ] || fail "no VS (net) or RS (net) shown"
+	close_to "$(eng "$vs")" "$(awk 'BEGIN { printf "%.17g", 15 * 22 / 78 + 5 }')" 1e-4 ||
+		fail "VS (net) $vs"
+	close_to "$(eng "$rs")" "$(awk 'BEGIN { printf "%.17g", 56e3 * 22e3 / 78e3 + 4.7e3 }')" 1e-4 ||
+		fail "RS (net) $rs"
+	# The equivalent itself stays read-only; } steps a network resistor.
+	keys e
+	wait_for "change one of the network"
+	keys Up Up Up '}'
+	wait_for "upper divider 62 kohm"
+	# Saving writes the part's new value into the network.
+	keys s
+	wait_for "saved"
+	grep -qE 'resistor: *(62000|62 ?k)' "$work/split.yaml" || fail "the saved file lacks 62k"
+	echo "ok: upper divider 56k gives VS (net) $vs, RS (net) $rs; } stepped it to 62k"
+	;;
 edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"
