@@ -320,7 +320,7 @@ eseries)
 	keys '{'
 	wait_for "RS       3.3 kohm"
 	keys Up '}'
-	wait_for "select RS or RP"
+	wait_for "select RS, RP or a network resistor"
 	echo "ok: RS stepped 3.3k, 3.6k, 3.9k, back to 3.3k; 3.5k down to 3.3k"
 	;;
 design)
