@@ -256,15 +256,22 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 	const struct ratings *rt = &se->analysis.ratings;
 	struct ratings_report rep;
 	tolerance_ratings(w, rt, &rep);
-	printf("\n  resistor at worst %s: needs a %s rating (at most %.0f %% of "
-	       "the rating%s: common practice)\n",
-	       cli_fmt(a, sizeof a, rep.p_resistor, QTY_POWER, 4),
-	       isnan(rep.suggested_resistor_power)
-	           ? "(beyond the table)"
-	           : cli_fmt(b, sizeof b, rep.suggested_resistor_power, QTY_POWER,
-	                     3),
-	       100.0 * RATINGS_USE_FRACTION,
-	       rep.derating < 1.0 ? ", derated for the ambient" : "");
+	if (se->network != NULL) {
+		/* The equivalent resistance is no physical part: rate none. */
+		printf("\n  the source is a network: its resistors' powers are not the "
+		       "equivalent's;\n  check each one with 'biasline reduce --nodes'\n");
+		rep.resistor_use = NAN;
+	} else {
+		printf("\n  resistor at worst %s: needs a %s rating (at most %.0f %% of "
+		       "the rating%s: common practice)\n",
+		       cli_fmt(a, sizeof a, rep.p_resistor, QTY_POWER, 4),
+		       isnan(rep.suggested_resistor_power)
+		           ? "(beyond the table)"
+		           : cli_fmt(b, sizeof b, rep.suggested_resistor_power,
+		                     QTY_POWER, 3),
+		       100.0 * RATINGS_USE_FRACTION,
+		       rep.derating < 1.0 ? ", derated for the ambient" : "");
+	}
 	if (isfinite(rep.resistor_use))
 		printf("  resistor uses %.3g %% of its %s rating at worst\n",
 		       100.0 * rep.resistor_use,

@@ -94,6 +94,9 @@ tolerances:
   "source.network.lower divider": 5%
 YAML
 expect_exit 0 "$bl" tolerance --trials 200 "$tmp/tol.yaml"
+# The equivalent resistance is no physical part: no rating advice for it
+# (safety: each real resistor's power comes from reduce --nodes).
+expect_text "$tmp/out" "check each one with 'biasline reduce --nodes'"
 expect_text "$tmp/out" "source.network.upper divider"
 expect_text "$tmp/out" "worst case (4 corners)"
 expect_exit 0 "$bl" tolerance --trials 0 --format csv "$tmp/tol.yaml"
