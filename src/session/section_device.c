@@ -3,12 +3,22 @@
  * registry, and the other keys are that model's own parameter table
  * (key, unit, range, default, help), so a new model needs no loader code.
  * A model with named presets also takes preset:, applied before the keys.
+ * The measured model has no parameters but a table: points:, a list of
+ * [V, I] pairs (see device_load_points).
  */
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
+#include "core/models/models.h"
 #include "session/section.h"
+
+/* True when TYPE is drawn from a table of points (device.curve). */
+static bool device_has_points(const struct model_type *type)
+{
+	return type == &model_measured;
+}
 
 /* Report an unknown model name in V with a suggestion and the choices. */
 static void device_unknown_model(struct load_ctx *c, const struct ynode *v,
@@ -41,11 +51,13 @@ static void device_unknown_model(struct load_ctx *c, const struct ynode *v,
 static void device_unknown_key(struct load_ctx *c, const struct model_type *type,
                                const struct ynode *k, const char *path)
 {
-	const char *cands[MODEL_MAX_PARAMS + 2];
+	const char *cands[MODEL_MAX_PARAMS + 3];
 	size_t n = 0;
 	cands[n++] = "model";
 	if (type->presets != NULL)
 		cands[n++] = "preset";
+	if (device_has_points(type))
+		cands[n++] = "points";
 	for (size_t j = 0; j < type->nparams; j++)
 		cands[n++] = type->params[j].key;
 	char found[96];
@@ -55,6 +67,12 @@ static void device_unknown_key(struct load_ctx *c, const struct model_type *type
 		ytree_error(c->err, c->name, k, path,
 		            "unknown key %s for the %s model; did you mean '%s'?",
 		            found, type->name, near);
+		return;
+	}
+	if (!device_has_points(type) && strcmp(k->text, "points") == 0) {
+		ytree_error(c->err, c->name, k, path,
+		            "found %s, which only the measured model takes, expected "
+		            "a parameter of the %s model", found, type->name);
 		return;
 	}
 	for (size_t m = 0; model_registry[m] != NULL; m++)
@@ -120,6 +138,79 @@ static int device_apply_preset(struct load_ctx *c, const struct model_type *type
 	return -1;
 }
 
+/*
+ * Load points: V, a list of [V, I] pairs, into the session's table.  Each
+ * value is a number or a quantity with its unit; a row that breaks the
+ * strict rise in V or I is reported at its own line.
+ */
+static int device_load_points(struct load_ctx *c, const struct ynode *key,
+                              const struct ynode *v, const char *path)
+{
+	char found[96];
+	ytree_describe(v, found, sizeof found);
+	if (v->type != YNODE_SEQUENCE) {
+		ytree_error(c->err, c->name, v, path,
+		            "found %s, expected a list of [V, I] pairs", found);
+		return -1;
+	}
+	size_t n = v->nkids;
+	if (n < 2) {
+		ytree_error(c->err, c->name, n > 0 ? v : key, path,
+		            "found %zu point%s, expected at least 2 [V, I] pairs", n,
+		            n == 1 ? "" : "s");
+		return -1;
+	}
+	if (n > CURVE_MAX_POINTS) {
+		ytree_error(c->err, c->name, v->kids[CURVE_MAX_POINTS], path,
+		            "found %zu points, expected at most %d", n,
+		            CURVE_MAX_POINTS);
+		return -1;
+	}
+	double *vs = malloc(2 * n * sizeof *vs);
+	if (vs == NULL) {
+		ytree_error(c->err, c->name, v, path, "out of memory");
+		return -1;
+	}
+	double *is = vs + n;
+	char sub[SECTION_PATH_MAX + 16];
+	int rc = 0;
+	for (size_t k = 0; k < n && rc == 0; k++) {
+		const struct ynode *row = v->kids[k];
+		snprintf(sub, sizeof sub, "%s[%zu]", path, k);
+		if (row->type != YNODE_SEQUENCE || row->nkids != 2) {
+			ytree_describe(row, found, sizeof found);
+			ytree_error(c->err, c->name, row, sub,
+			            "row %zu: found %s, expected a pair [V, I] of two "
+			            "numbers", k + 1, found);
+			rc = -1;
+			break;
+		}
+		rc = section_parse_qty(c, row->kids[0], sub, QTY_VOLTAGE, -INFINITY,
+		                       INFINITY, false, false, &vs[k]);
+		if (rc == 0)
+			rc = section_parse_qty(c, row->kids[1], sub, QTY_CURRENT,
+			                       -INFINITY, INFINITY, false, false, &is[k]);
+	}
+	char why[256];
+	if (rc == 0 &&
+	    session_set_curve(c->s, vs, is, n, why, sizeof why) != 0) {
+		/* the core names the row; find it again for its line */
+		const struct ynode *at = v;
+		for (size_t k = 1; k < n; k++)
+			if (!(vs[k] > vs[k - 1]) || !(is[k] > is[k - 1])) {
+				at = v->kids[k];
+				break;
+			}
+		const char *msg = why;
+		if (strncmp(msg, "points: ", 8) == 0)
+			msg += 8;
+		ytree_error(c->err, c->name, at, path, "%s", msg);
+		rc = -1;
+	}
+	free(vs);
+	return rc;
+}
+
 /* Load the device: the model first, then its parameters in file order. */
 static int device_load(struct load_ctx *c, const struct session_section *sec,
                        const struct ynode *key, const struct ynode *map,
@@ -182,12 +273,25 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 		return -1;
 
 	const struct ynode *seen[MODEL_MAX_PARAMS] = { NULL };
+	const struct ynode *pointskey = NULL;
 	for (size_t k = 0; k + 1 < map->nkids; k += 2) {
 		const struct ynode *kn = map->kids[k];
 		const struct ynode *v = map->kids[k + 1];
 		if (kn == modelkey || kn == presetkey)
 			continue;
 		section_path(sub, sizeof sub, path, kn->text);
+		if (device_has_points(type) && strcmp(kn->text, "points") == 0) {
+			if (pointskey != NULL) {
+				ytree_error(c->err, c->name, kn, sub,
+				            "duplicate key (first given on line %u), "
+				            "expected each key once", pointskey->line);
+				return -1;
+			}
+			pointskey = kn;
+			if (device_load_points(c, kn, v, sub) != 0)
+				return -1;
+			continue;
+		}
 		int j = model_param_index(type, kn->text);
 		if (j < 0) {
 			device_unknown_key(c, type, kn, sub);
@@ -229,6 +333,13 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 			            type->params[j].key, type->name, type->params[j].help);
 			return -1;
 		}
+	if (device_has_points(type) && pointskey == NULL) {
+		section_path(sub, sizeof sub, path, "points");
+		ytree_error(c->err, c->name, key != NULL ? key : map, sub,
+		            "missing required key 'points' for the %s model (a list "
+		            "of at least 2 [V, I] pairs)", type->name);
+		return -1;
+	}
 	char why[256];
 	if (device_validate(&c->s->device, why, sizeof why) != 0) {
 		ytree_error(c->err, c->name, key != NULL ? key : map, path, "%s", why);
@@ -256,6 +367,19 @@ static int device_save(struct emit_ctx *e, const struct session_section *sec,
 		if (emit_scalar(e, type->params[j].key, true) != 0 ||
 		    emit_number(e, s->device.p[j]) != 0)
 			return -1;
+	const struct curve_data *cv = s->device.curve;
+	if (device_has_points(type) && cv != NULL) {
+		if (emit_scalar(e, "points", true) != 0 ||
+		    emit_sequence_start(e, false) != 0)
+			return -1;
+		for (size_t k = 0; k < cv->n; k++)
+			if (emit_sequence_start(e, true) != 0 ||
+			    emit_number(e, cv->v[k]) != 0 ||
+			    emit_number(e, cv->i[k]) != 0 || emit_sequence_end(e) != 0)
+				return -1;
+		if (emit_sequence_end(e) != 0)
+			return -1;
+	}
 	return emit_mapping_end(e);
 }
 

@@ -18,6 +18,7 @@
 #include <yaml.h>
 
 #include "biasline_version.h"
+#include "core/models/models.h"
 #include "session/atomic.h"
 #include "session/section.h"
 #include "session/section_network.h"
@@ -54,11 +55,44 @@ void session_init(struct session *s)
 	s->notes = NULL;
 }
 
+/* Free the measured table C (NULL is fine). */
+static void session_curve_free(struct curve_data *c)
+{
+	if (c == NULL)
+		return;
+	curve_data_fini(c);
+	free(c);
+}
+
+/* Give S its own copy of the points and point the device at it. */
+int session_set_curve(struct session *s, const double *v, const double *i,
+                      size_t n, char *err, size_t errlen)
+{
+	struct curve_data *c = malloc(sizeof *c);
+	if (c == NULL) {
+		snprintf(err, errlen, "points: out of memory");
+		return -1;
+	}
+	if (curve_data_init(c, v, i, n, err, errlen) != 0) {
+		free(c);
+		return -1;
+	}
+	session_curve_free(s->curve);
+	s->curve = c;
+	s->device.curve = c;
+	return 0;
+}
+
 /* Free what S owns. */
 void session_fini(struct session *s)
 {
 	free(s->notes);
 	s->notes = NULL;
+	/* the device only borrows the table: drop the pointer with it */
+	if (s->device.curve == s->curve)
+		s->device.curve = NULL;
+	session_curve_free(s->curve);
+	s->curve = NULL;
 	network_destroy(s->network);
 	s->network = NULL;
 }
@@ -79,6 +113,22 @@ int session_copy(struct session *dst, const struct session *src)
 		free(notes);
 		return -1;
 	}
+	/* the points are copied too, and the copy's device borrows its own
+	 * table: a shallow copy would leave it pointing into SRC */
+	struct curve_data *curve = NULL;
+	if (src->curve != NULL) {
+		curve = malloc(sizeof *curve);
+		if (curve == NULL || curve_data_copy(curve, src->curve) != 0) {
+			free(curve);
+			network_destroy(net);
+			free(notes);
+			return -1;
+		}
+	}
+	const struct curve_data *borrowed = src->device.curve;
+	if (borrowed != NULL && borrowed == src->curve)
+		borrowed = curve;
+	struct curve_data *old_curve = dst->curve;
 	if (dst != src) {
 		free(dst->notes);
 		network_destroy(dst->network);
@@ -86,8 +136,11 @@ int session_copy(struct session *dst, const struct session *src)
 	} else {
 		network_destroy(dst->network);
 	}
+	session_curve_free(old_curve);
 	dst->notes = notes;
 	dst->network = net;
+	dst->curve = curve;
+	dst->device.curve = borrowed;
 	return 0;
 }
 
@@ -95,6 +148,20 @@ int session_copy(struct session *dst, const struct session *src)
 static bool session_same(double a, double b)
 {
 	return memcmp(&a, &b, sizeof a) == 0;
+}
+
+/* True when the devices' tables A and B (either may be NULL) are the same. */
+static bool session_curve_equal(const struct curve_data *a,
+                                const struct curve_data *b)
+{
+	if (a == NULL || b == NULL)
+		return a == b;
+	if (a->n != b->n)
+		return false;
+	for (size_t k = 0; k < a->n; k++)
+		if (!session_same(a->v[k], b->v[k]) || !session_same(a->i[k], b->i[k]))
+			return false;
+	return true;
 }
 
 /* True when A and B hold the same session. */
@@ -114,6 +181,8 @@ bool session_equal(const struct session *a, const struct session *b)
 	for (size_t k = 0; k < MODEL_MAX_PARAMS; k++)
 		if (!session_same(a->device.p[k], b->device.p[k]))
 			return false;
+	if (!session_curve_equal(a->device.curve, b->device.curve))
+		return false;
 	if (!session_same(a->conditions.temperature, b->conditions.temperature))
 		return false;
 	const struct solve_options *p = &a->solver, *q = &b->solver;

@@ -43,6 +43,8 @@ struct session {
 	struct network *network;   /* the source as a network, or NULL; then
 	                              source is its reduction (section_network.h) */
 	struct device device;
+	struct curve_data *curve;  /* a measured device's points, owned; NULL
+	                              when none (device.curve borrows it) */
 	struct session_conditions conditions;
 	struct solve_options solver;
 	struct session_view view;
@@ -75,6 +77,14 @@ void session_fini(struct session *s);
 
 /* Deep-copy SRC into DST (DST must be initialised or finied). */
 int session_copy(struct session *dst, const struct session *src);
+
+/*
+ * Give S the measured points (V[k], I[k]), K < N, as its own table and
+ * point S's device at it (any table S held before is freed).  Returns 0,
+ * or -1 with the core's message naming the row in ERR (S unchanged).
+ */
+int session_set_curve(struct session *s, const double *v, const double *i,
+                      size_t n, char *err, size_t errlen);
 
 /* Format ERR as one line "FILE:LINE:COL: KEY: MESSAGE" into BUF. */
 void session_error_format(const struct session_error *err, char *buf, size_t n);
