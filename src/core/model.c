@@ -22,6 +22,7 @@ const struct model_type *const model_registry[] = {
 	&model_nmos,
 	&model_thermistor,
 	&model_thermistor_sh,
+	&model_measured,
 	NULL,
 };
 

@@ -17,8 +17,8 @@ extern const struct model_type model_jfet;
 extern const struct model_type model_nmos;
 extern const struct model_type model_thermistor;
 extern const struct model_type model_thermistor_sh;
-/* Not in the registry until the session loader fills struct device.curve
- * (see measured.c): a device of this model needs its points. */
+/* A device of this model needs its points in struct device.curve (see
+ * measured.c); the session loader fills them from points:. */
 extern const struct model_type model_measured;
 
 /* Parameter indices of the diode model. */
