@@ -10,6 +10,7 @@
 #include "biasline_version.h"
 #include "commands.h"
 #include "core/diagnose.h"
+#include "core/models/models.h"
 #include "core/safety.h"
 #include "core/sensitivity.h"
 #include "core/solve.h"
@@ -283,6 +284,8 @@ static void solve_print_text(const char *file, const struct session *se,
 		qty_format_short(a, sizeof a, pb->dev.p[k], mp->kind, 6, 1);
 		printf("%s %s = %s", k ? "," : "", mp->label, a);
 	}
+	if (pb->dev.curve != NULL)
+		printf(" %zu measured points", pb->dev.curve->n);
 	printf("\n  method   %s\n\n", solve_method_name(o->method));
 	printf("  %zu operating point%s\n", res->n, res->n == 1 ? "" : "s");
 	printf("  %-3s %-13s %-13s %-13s %-13s %s\n", "#", "voltage", "current",
