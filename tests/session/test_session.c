@@ -780,6 +780,97 @@ static void test_recovery(void **state)
 	free(d);
 }
 
+/*
+ * A measured device's points: mixed plain and unit-carrying values load
+ * to the numbers they name, save back as plain exact numbers, and load
+ * again bit for bit; a copy owns its own table and outlives the original.
+ */
+static void test_measured_points(void **state)
+{
+	(void)state;
+	static const char text[] =
+		"source:\n  vs: 4.87\n  rs: 1.33k\n"
+		"device:\n  model: measured\n  points:\n"
+		"    - [0.5513, 10.7u]\n"
+		"    - [0.6247, 103.9u]\n"
+		"    - [\"0.7018 V\", \"1.087 mA\"]\n"
+		"    - [\"753.3 mV\", 3.917m]\n"
+		"    - [0.8129, 9.863e-3]\n";
+	/* what the text names, by the SI prefixes (u = 1e-6, m = 1e-3) */
+	static const double want_v[] = { 0.5513, 0.6247, 0.7018, 0.7533, 0.8129 };
+	static const double want_i[] = { 10.7e-6, 103.9e-6, 1.087e-3, 3.917e-3,
+	                                 9.863e-3 };
+	struct session a;
+	struct session_error err;
+	assert_int_equal(session_load_buffer(&a, "m.yaml", text, strlen(text), &err),
+	                 SESSION_OK);
+	assert_non_null(a.curve);
+	assert_ptr_equal(a.device.curve, a.curve);
+	assert_int_equal(a.curve->n, 5);
+	for (size_t k = 0; k < 5; k++) {
+		assert_true(fabs(a.curve->v[k] - want_v[k]) <= 1e-15 * want_v[k]);
+		assert_true(fabs(a.curve->i[k] - want_i[k]) <= 1e-15 * want_i[k]);
+	}
+	check_round_trip(&a);
+
+	/* the copy's device points at the copy's own table */
+	struct session b;
+	session_init(&b);
+	assert_int_equal(session_copy(&b, &a), 0);
+	assert_non_null(b.curve);
+	assert_ptr_not_equal(b.curve, a.curve);
+	assert_ptr_equal(b.device.curve, b.curve);
+	assert_true(session_equal(&a, &b));
+	double ia = device_current(&a.device, 0.7391);
+	session_fini(&a);
+	double ib = device_current(&b.device, 0.7391);
+	assert_memory_equal(&ia, &ib, sizeof ia);
+	assert_true(ib > want_i[2] && ib < want_i[3]);
+
+	/* one point changed by one ulp makes the sessions differ */
+	struct session c;
+	session_init(&c);
+	assert_int_equal(session_copy(&c, &b), 0);
+	c.curve->i[4] = nextafter(c.curve->i[4], 1.0);
+	assert_false(session_equal(&b, &c));
+	/* copying onto itself keeps a working table */
+	assert_int_equal(session_copy(&c, &c), 0);
+	assert_ptr_equal(c.device.curve, c.curve);
+	assert_true(isfinite(device_current(&c.device, 0.6)));
+	session_fini(&c);
+	session_fini(&b);
+}
+
+/* More points than CURVE_MAX_POINTS are refused at the first extra row. */
+static void test_measured_point_cap(void **state)
+{
+	(void)state;
+	struct text t = { 0 };
+	text_add(&t, "source:\n  vs: 4.87\n  rs: 1.33k\n"
+	         "device:\n  model: measured\n  points:\n");
+	for (int k = 0; k <= CURVE_MAX_POINTS; k++)
+		text_add(&t, "    - [%.6f, %.6e]\n", 0.3 + 1e-4 * k,
+		         1e-9 * exp(0.0137 * k));
+	/* the rows start on line 7: row CURVE_MAX_POINTS + 1 is on 7 + cap */
+	check_rejected("too many points", t.buf, t.len, 7 + CURVE_MAX_POINTS,
+	               "expected at most 4096");
+	free(t.buf);
+	/* exactly the cap is accepted */
+	t = (struct text){ 0 };
+	text_add(&t, "source:\n  vs: 4.87\n  rs: 1.33k\n"
+	         "device:\n  model: measured\n  points:\n");
+	for (int k = 0; k < CURVE_MAX_POINTS; k++)
+		text_add(&t, "    - [%.6f, %.6e]\n", 0.3 + 1e-4 * k,
+		         1e-9 * exp(0.0137 * k));
+	struct session s;
+	struct session_error err;
+	assert_int_equal(session_load_buffer(&s, "cap.yaml", t.buf, t.len, &err),
+	                 SESSION_OK);
+	assert_int_equal(s.curve->n, CURVE_MAX_POINTS);
+	session_fini(&s);
+	free(t.buf);
+}
+
 /* Every sample (BIASLINE_SAMPLES folder) loads and round-trips exactly. */
 static void test_samples(void **state)
 {
@@ -899,6 +990,8 @@ int main(void)
 		cmocka_unit_test(test_header),
 		cmocka_unit_test(test_recovery),
 		cmocka_unit_test(test_samples),
+		cmocka_unit_test(test_measured_points),
+		cmocka_unit_test(test_measured_point_cap),
 		cmocka_unit_test(test_preset),
 		cmocka_unit_test(test_save_refuses_bad_text),
 	};
