@@ -841,6 +841,105 @@ static void test_measured_points(void **state)
 	session_fini(&b);
 }
 
+/* Write a session whose device reads CSV (file "pts/run.csv" beside it). */
+static void points_file_case(const char *d, const char *csv, char *session_path,
+                             size_t n)
+{
+	char p[1024];
+	snprintf(p, sizeof p, "%s/pts", d);
+	mkdir(p, 0700);
+	snprintf(p, sizeof p, "%s/pts/run.csv", d);
+	write_file(p, csv, strlen(csv));
+	static const char yaml[] =
+		"source:\n  vs: 4.87\n  rs: 1.33k\n"
+		"device:\n  model: measured\n  points_file: pts/run.csv\n";
+	snprintf(session_path, n, "%s/bench.yaml", d);
+	write_file(session_path, yaml, strlen(yaml));
+}
+
+/*
+ * points_file: reads V,I rows relative to the session's folder (header,
+ * blank and '#' lines skipped) into the same table as the inline list, and
+ * its errors name the CSV file, line and row.
+ */
+static void test_measured_points_file(void **state)
+{
+	(void)state;
+	char *d = make_temp_dir();
+	char path[1100];
+	points_file_case(d, "V (volts),I (amperes)\n0.5513,10.7u\n\n"
+	                 "# second sweep\n0.6247, 103.9u\r\n0.7018 V,1.087 mA\n"
+	                 "753.3 mV,3.917m\n0.8129,9.863e-3\n", path, sizeof path);
+	static const char inline_text[] =
+		"source:\n  vs: 4.87\n  rs: 1.33k\n"
+		"device:\n  model: measured\n  points:\n"
+		"    - [0.5513, 10.7u]\n    - [0.6247, 103.9u]\n"
+		"    - [\"0.7018 V\", \"1.087 mA\"]\n    - [\"753.3 mV\", 3.917m]\n"
+		"    - [0.8129, 9.863e-3]\n";
+	struct session a, b;
+	struct session_error err;
+	char msg[1400];
+	if (session_load_file(&a, path, &err) != SESSION_OK) {
+		session_error_format(&err, msg, sizeof msg);
+		fail_msg("points_file not loaded: %s", msg);
+	}
+	assert_int_equal(session_load_buffer(&b, "inline.yaml", inline_text,
+	                                     strlen(inline_text), &err), SESSION_OK);
+	assert_true(session_equal(&a, &b));
+	/* saved as an inline list, which loads back bit for bit */
+	check_round_trip(&a);
+	session_fini(&a);
+	session_fini(&b);
+
+	static const struct {
+		const char *csv;
+		unsigned line;        /* line in run.csv (0: the session's) */
+		const char *needle;
+	} bad[] = {
+		{ "V,I\n0.5513,10.7u\n0.6247,103.9u\n0.6247,1.087m\n", 4,
+		  "row 3: V = 0.6247 is the same as row 2" },
+		{ "0.5513,10.7u\n\n0.6247,9.9u\n", 3, "row 2: I = 9.9e-06 is below row 1" },
+		{ "0.5513,10.7u\n0.6247,103.9u,7\n", 2, "row 2: expected two columns" },
+		{ "0.5513,10.7u\n0.6247\n", 2, "row 2: expected two columns" },
+		{ "0.5513,10.7u\n0.6247,1.2 V\n", 2, "expected a current" },
+		{ "V,I\nvolts,amperes\n", 2, "expected a voltage" },
+		{ "V,I\n0.5513,10.7u\n", 0, "holds 1 point, expected at least 2" },
+	};
+	for (size_t k = 0; k < sizeof bad / sizeof bad[0]; k++) {
+		remove_dir(d);
+		assert_int_equal(mkdir(d, 0700), 0);
+		points_file_case(d, bad[k].csv, path, sizeof path);
+		assert_int_equal(session_load_file(&a, path, &err), SESSION_BAD_DATA);
+		session_error_format(&err, msg, sizeof msg);
+		if (strstr(msg, bad[k].needle) == NULL ||
+		    err.line != (bad[k].line ? bad[k].line : 6) ||
+		    strstr(err.file, bad[k].line ? "pts/run.csv" : "bench.yaml") == NULL)
+			fail_msg("case %zu: got \"%s\", expected line %u and \"%s\"", k,
+			         msg, bad[k].line, bad[k].needle);
+	}
+	/* a missing file and both forms at once */
+	remove_dir(d);
+	assert_int_equal(mkdir(d, 0700), 0);
+	char p[1100];
+	snprintf(p, sizeof p, "%s/bench.yaml", d);
+	static const char missing[] =
+		"source:\n  vs: 4.87\n  rs: 1.33k\n"
+		"device:\n  model: measured\n  points_file: absent.csv\n";
+	write_file(p, missing, strlen(missing));
+	assert_int_equal(session_load_file(&a, p, &err), SESSION_BAD_DATA);
+	session_error_format(&err, msg, sizeof msg);
+	assert_non_null(strstr(msg, "cannot open the file"));
+	assert_int_equal(err.line, 6);
+	static const char both[] =
+		"source:\n  vs: 4.87\n  rs: 1.33k\n"
+		"device:\n  model: measured\n  points: [[0.5, 1m], [0.6, 2m]]\n"
+		"  points_file: absent.csv\n";
+	check_rejected("points and points_file", both, strlen(both), 7,
+	               "points given twice");
+	remove_dir(d);
+	free(d);
+}
+
 /* More points than CURVE_MAX_POINTS are refused at the first extra row. */
 static void test_measured_point_cap(void **state)
 {
@@ -992,6 +1091,7 @@ int main(void)
 		cmocka_unit_test(test_samples),
 		cmocka_unit_test(test_measured_points),
 		cmocka_unit_test(test_measured_point_cap),
+		cmocka_unit_test(test_measured_points_file),
 		cmocka_unit_test(test_preset),
 		cmocka_unit_test(test_save_refuses_bad_text),
 	};
