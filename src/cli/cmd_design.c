@@ -20,6 +20,7 @@ struct design_args {
 	bool csv;
 	bool have_target, have_series, have_unknown;
 	struct design_request rq;
+	const char *part;       /* --solve-for source.network.NAME, or NULL */
 	const char *file;
 };
 
@@ -42,7 +43,8 @@ static void design_usage(FILE *out)
 	        "                       (one of the three; default: the session's\n"
 	        "                       target section)\n"
 	        "  -s, --series E       E6, E12, E24, E48, E96 or E192 (default E24)\n"
-	        "  -S, --solve-for X    rs (default) or vs\n"
+	        "  -S, --solve-for X    rs (default), vs, or for a network source\n"
+	        "                       the part to design: source.network.NAME\n"
 	        "  -f, --format FMT     text (default) or csv\n"
 	        "  -h, --help           show this help and exit\n"
 	        "  -V, --version        show the version and exit\n"
@@ -115,9 +117,12 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 				a->rq.unknown = DESIGN_FOR_RS;
 			} else if (strcmp(optarg, "vs") == 0) {
 				a->rq.unknown = DESIGN_FOR_VS;
+			} else if (strncmp(optarg, "source.network.", 15) == 0) {
+				a->rq.unknown = DESIGN_FOR_PART;
+				a->part = optarg;
 			} else {
 				fprintf(stderr, "biasline design: --solve-for: '%s' is not "
-				        "rs or vs\n", optarg);
+				        "rs, vs or source.network.PART\n", optarg);
 				return -1;
 			}
 			a->have_unknown = true;
@@ -161,19 +166,27 @@ static enum qty_kind design_target_unit(enum design_target t)
 }
 
 /* Print the result as CSV. */
-static void design_print_csv(const struct design_request *rq,
+static void design_print_csv(const struct problem *pb,
+                             const struct design_request *rq,
                              const struct design_result *res)
 {
+	const char *col = rq->unknown == DESIGN_FOR_RS   ? "rs_ohm"
+	                  : rq->unknown == DESIGN_FOR_VS ? "vs_V"
+	                  : design_unknown_unit(pb, rq) == QTY_RESISTANCE
+	                      ? "part_ohm"
+	                  : design_unknown_unit(pb, rq) == QTY_VOLTAGE ? "part_V"
+	                                                               : "part_A";
 	printf("row,%s,voltage_V,current_A,power_W,resistor_power_W,"
-	       "source_power_W,error_percent,points,suggested_resistor_W\n",
-	       rq->unknown == DESIGN_FOR_RS ? "rs_ohm" : "vs_V");
+	       "source_power_W,error_percent,points,suggested_resistor_W\n", col);
 	for (size_t k = 0; k < res->nrows; k++) {
 		const struct design_row *r = &res->rows[k];
+		/* A network's equivalent resistor is no part: no power for it. */
+		bool part = rq->unknown == DESIGN_FOR_PART;
 		printf("%s,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%zu,%.17g\n",
 		       design_row_name(r->kind), r->value, r->pt.v, r->pt.i,
-		       r->pt.power, r->power.p_resistor, r->power.p_source,
-		       r->error_percent, r->npoints,
-		       r->power.suggested_resistor_power);
+		       r->pt.power, part ? NAN : r->power.p_resistor,
+		       part ? NAN : r->power.p_source, r->error_percent, r->npoints,
+		       part ? NAN : r->power.suggested_resistor_power);
 	}
 }
 
@@ -185,11 +198,18 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
 {
 	char a[48], b[48], c[48], d[48], e[48], f[48];
 	enum qty_kind tk = design_target_unit(rq->target);
-	bool for_rs = rq->unknown == DESIGN_FOR_RS;
+	bool for_part = rq->unknown == DESIGN_FOR_PART;
+	bool for_rs = rq->unknown == DESIGN_FOR_RS ||
+	              (for_part && design_unknown_unit(pb, rq) == QTY_RESISTANCE);
+	enum qty_kind uk = design_unknown_unit(pb, rq);
+	const char *uname = for_part ? paramref_key(pb, &rq->part)
+	                    : rq->unknown == DESIGN_FOR_RS ? "RS" : "VS";
 	printf("%s\n", file);
 	printf("  target   device %s %s, solving for %s", design_target_name(rq->target),
-	       cli_fmt(a, sizeof a, rq->value, tk, 6), for_rs ? "RS" : "VS");
-	if (for_rs)
+	       cli_fmt(a, sizeof a, rq->value, tk, 6), uname);
+	if (for_part)
+		printf(" (%s)\n", eseries_name(rq->series));
+	else if (for_rs)
 		printf(" (VS = %s, %s)\n", cli_fmt(b, sizeof b, pb->src.voc,
 		                                   QTY_VOLTAGE, 6),
 		       eseries_name(rq->series));
@@ -199,13 +219,13 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
 	printf("  device   at the target: %s, %s\n\n",
 	       cli_fmt(a, sizeof a, res->v_target, QTY_VOLTAGE, 6),
 	       cli_fmt(b, sizeof b, res->i_target, QTY_CURRENT, 6));
-	printf("  %-7s %-13s %-12s %-12s %-12s %-12s %s\n", "", for_rs ? "RS" : "VS",
-	       "voltage", "current", "P(device)", "P(RS)", "error");
+	printf("  %-7s %-13s %-12s %-12s %-12s %-12s %s\n", "",
+	       for_part ? "value" : for_rs ? "RS" : "VS",
+	       "voltage", "current", "P(device)", for_part ? "" : "P(RS)", "error");
 	unsigned flags = 0;
 	for (size_t k = 0; k < res->nrows; k++) {
 		const struct design_row *r = &res->rows[k];
-		cli_fmt(a, sizeof a, r->value, for_rs ? QTY_RESISTANCE : QTY_VOLTAGE,
-		        for_rs && k > 0 ? 3 : 6);
+		cli_fmt(a, sizeof a, r->value, uk, for_rs && k > 0 ? 3 : 6);
 		if (!r->solved) {
 			printf("  %-7s %-13s (no operating point)\n",
 			       design_row_name(r->kind), a);
@@ -216,16 +236,17 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
 		       cli_fmt(b, sizeof b, r->pt.v, QTY_VOLTAGE, 5),
 		       cli_fmt(c, sizeof c, r->pt.i, QTY_CURRENT, 5),
 		       cli_fmt(d, sizeof d, r->pt.power, QTY_POWER, 4),
-		       cli_fmt(e, sizeof e, r->power.p_resistor, QTY_POWER, 4),
+		       for_part ? ""
+		                : cli_fmt(e, sizeof e, r->power.p_resistor, QTY_POWER, 4),
 		       r->error_percent, r->npoints > 1 ? "  (several points)" : "");
 		struct problem q;
-		if (design_apply(pb, rq->unknown, r->value, &q) == 0)
+		if (design_apply_request(pb, rq, r->value, &q) == 0)
 			flags |= safety_check(&q, r->pt.v, r->pt.i);
 	}
 	/* Power and ratings at each standard value. */
 	for (size_t k = 0; k < res->nrows; k++) {
 		const struct design_row *r = &res->rows[k];
-		if (!r->solved || (for_rs && r->kind == DESIGN_ROW_EXACT))
+		if (!r->solved || (for_rs && r->kind == DESIGN_ROW_EXACT) || for_part)
 			continue;
 		printf("\n  %s %s: source delivers %s; RS needs a %s rating",
 		       design_row_name(r->kind),
@@ -273,13 +294,28 @@ int cmd_design(int argc, char **argv)
 		if (a.have_unknown)
 			rq.unknown = a.rq.unknown;
 	}
+	if (rq.unknown == DESIGN_FOR_PART) {
+		char err[512];
+		if (paramref_find(&pb, a.part, &rq.part, err, sizeof err) != 0) {
+			fprintf(stderr, "biasline design: %s: --solve-for: %s\n", a.file, err);
+			session_fini(&se);
+			return EXIT_USAGE;
+		}
+	} else if (se.network != NULL) {
+		/* The equivalent's RS or VS is no part anyone can change. */
+		fprintf(stderr, "biasline design: %s: the source is a network: name "
+		        "the part to design with --solve-for source.network.NAME\n",
+		        a.file);
+		session_fini(&se);
+		return EXIT_USAGE;
+	}
 	struct design_result res;
 	code = EXIT_OK_CODE;
 	if (design_solve(&pb, &se.solver, &rq, &se.analysis.ratings, &res) != 0) {
 		fprintf(stderr, "biasline design: %s: %s\n", a.file, res.message);
 		code = EXIT_NO_POINT;
 	} else if (a.csv) {
-		design_print_csv(&rq, &res);
+		design_print_csv(&pb, &rq, &res);
 	} else {
 		unsigned flags = design_print_text(a.file, &pb, &rq,
 		                                   &se.analysis.ratings, &res);

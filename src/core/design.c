@@ -181,6 +181,114 @@ int design_apply(const struct problem *pb, enum design_unknown u, double value,
 }
 
 /* Solve the problem with one candidate value and fill ROW. */
+/* As design_apply, for any unknown of RQ. */
+int design_apply_request(const struct problem *pb,
+                         const struct design_request *rq, double value,
+                         struct problem *out)
+{
+	if (rq->unknown != DESIGN_FOR_PART)
+		return design_apply(pb, rq->unknown, value, out);
+	*out = *pb;
+	if (paramref_check(pb, &rq->part, value, NULL, 0) != 0)
+		return -1;
+	return paramref_set(out, &rq->part, value);
+}
+
+/* The unit of RQ's unknown. */
+enum qty_kind design_unknown_unit(const struct problem *pb,
+                                  const struct design_request *rq)
+{
+	switch (rq->unknown) {
+	case DESIGN_FOR_RS:
+		return QTY_RESISTANCE;
+	case DESIGN_FOR_VS:
+		return QTY_VOLTAGE;
+	case DESIGN_FOR_PART:
+		break;
+	}
+	return paramref_unit(pb, &rq->part);
+}
+
+/* The load line's residual at (V, I) with the part at X; NaN if X is bad. */
+static double design_part_gap(const struct problem *pb,
+                              const struct design_request *rq, double x,
+                              double v, double i)
+{
+	struct problem q;
+	if (design_apply_request(pb, rq, x, &q) != 0)
+		return NAN;
+	return source_line_residual(&q.src, v, i);
+}
+
+/*
+ * The part value that puts the load line through (V, I).  A source's value
+ * enters the reduced source linearly (superposition), so two evaluations
+ * give it; a resistor's enters as a ratio of polynomials, so its value is
+ * bracketed on a logarithmic grid (10^-6 to 10^6 times the present value)
+ * and bisected in log space, taking the root nearest the present value.
+ */
+static int design_part_value(const struct problem *pb,
+                             const struct design_request *rq, double v,
+                             double i, double *out, char *err, size_t errlen)
+{
+	double x0 = paramref_get(pb, &rq->part);
+	if (paramref_unit(pb, &rq->part) != QTY_RESISTANCE) {
+		double h = fmax(fabs(x0), 1.0) * 1e-3;
+		double f0 = design_part_gap(pb, rq, x0, v, i);
+		double f1 = design_part_gap(pb, rq, x0 + h, v, i);
+		double x = x0 - f0 * h / (f1 - f0);
+		double fx = design_part_gap(pb, rq, x, v, i);
+		if (!isfinite(x) || !(fabs(fx) <= 1e-9 * (fabs(v) + fabs(f0) + 1e-300))) {
+			snprintf(err, errlen, "no value of this part puts the device at "
+			         "the target");
+			return -1;
+		}
+		*out = x;
+		return 0;
+	}
+	enum { NGRID = 481 };
+	double best = INFINITY, lo = NAN, hi = NAN;
+	double xp = NAN, fp = NAN;
+	for (int k = 0; k < NGRID; k++) {
+		double x = x0 * pow(10.0, -6.0 + 12.0 * k / (NGRID - 1));
+		double f = design_part_gap(pb, rq, x, v, i);
+		if (isfinite(f) && isfinite(fp) && (f == 0.0 || (f < 0.0) != (fp < 0.0))) {
+			double d = fabs(log(sqrt(x * xp) / x0));
+			if (d < best) {
+				best = d;
+				lo = xp;
+				hi = x;
+			}
+		}
+		xp = x;
+		fp = f;
+	}
+	if (isnan(lo)) {
+		snprintf(err, errlen, "no value of this resistor from 1e-6 to 1e6 "
+		         "times its present value puts the device at the target");
+		return -1;
+	}
+	double flo = design_part_gap(pb, rq, lo, v, i);
+	for (int k = 0; k < 200 && hi - lo > 1e-15 * hi; k++) {
+		double m = sqrt(lo * hi);
+		if (!(m > lo && m < hi))
+			break;
+		double fm = design_part_gap(pb, rq, m, v, i);
+		if (fm == 0.0) {
+			lo = hi = m;
+			break;
+		}
+		if ((fm < 0.0) == (flo < 0.0)) {
+			lo = m;
+			flo = fm;
+		} else {
+			hi = m;
+		}
+	}
+	*out = 0.5 * (lo + hi);
+	return 0;
+}
+
 static void design_row_solve(const struct problem *pb,
                              const struct solve_options *o,
                              const struct design_request *rq,
@@ -196,7 +304,7 @@ static void design_row_solve(const struct problem *pb,
 	memset(&row->pt, 0, sizeof row->pt);
 	row->pt.v = row->pt.i = NAN;
 	memset(&row->power, 0, sizeof row->power);
-	if (design_apply(pb, rq->unknown, row->value, &q) != 0)
+	if (design_apply_request(pb, rq, row->value, &q) != 0)
 		return;
 	if (solve_problem(&q, o, &sr) != SOLVE_OK || sr.n == 0)
 		return;
@@ -253,7 +361,11 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 	out->v_target = v;
 	out->i_target = i;
 	double exact;
-	if (rq->unknown == DESIGN_FOR_VS) {
+	if (rq->unknown == DESIGN_FOR_PART) {
+		if (design_part_value(pb, rq, v, i, &exact, out->message,
+		                      sizeof out->message) != 0)
+			return -1;
+	} else if (rq->unknown == DESIGN_FOR_VS) {
 		exact = v + s->r * i;
 	} else {
 		if (i == 0.0) {
@@ -285,7 +397,7 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 	}
 	out->rows[out->nrows].kind = DESIGN_ROW_EXACT;
 	out->rows[out->nrows++].value = exact;
-	if (rq->unknown == DESIGN_FOR_RS) {
+	if (design_unknown_unit(pb, rq) == QTY_RESISTANCE) {
 		double lo, hi;
 		if (eseries_lower(rq->series, exact, &lo) == 0) {
 			out->rows[out->nrows].kind = DESIGN_ROW_LOWER;

@@ -22,6 +22,7 @@
 #include <stddef.h>
 
 #include "eseries.h"
+#include "paramref.h"
 #include "problem.h"
 #include "ratings.h"
 #include "solve.h"
@@ -37,6 +38,7 @@ enum design_target {
 enum design_unknown {
 	DESIGN_FOR_RS,    /* the series resistance; VS stays */
 	DESIGN_FOR_VS,    /* the source voltage; RS stays */
+	DESIGN_FOR_PART,  /* a part of a network source (design_request.part) */
 };
 
 /* Which value a result row holds. */
@@ -51,7 +53,8 @@ struct design_request {
 	enum design_target target;
 	double value;              /* the target: A, V or W */
 	enum design_unknown unknown;
-	enum eseries series;       /* for the lower/higher rows (RS only) */
+	enum eseries series;       /* for the lower/higher rows (resistances) */
+	struct paramref part;      /* DESIGN_FOR_PART: which part (paramref.h) */
 };
 
 /* One candidate value and what it gives. */
@@ -104,6 +107,18 @@ int design_apply(const struct problem *pb, enum design_unknown u, double value,
  * each row's point.  Returns 0 with the rows (exact, then lower and higher
  * for RS), or -1 with a plain-language reason in OUT->message.
  */
+/*
+ * As design_apply, for any unknown of RQ (a network part too): OUT is PB
+ * with the unknown set to VALUE.  Returns 0, or -1 when VALUE is not valid.
+ */
+int design_apply_request(const struct problem *pb,
+                         const struct design_request *rq, double value,
+                         struct problem *out);
+
+/* The unit of RQ's unknown (a resistance, a voltage or a current). */
+enum qty_kind design_unknown_unit(const struct problem *pb,
+                                  const struct design_request *rq);
+
 int design_solve(const struct problem *pb, const struct solve_options *o,
                  const struct design_request *rq, const struct ratings *r,
                  struct design_result *out);

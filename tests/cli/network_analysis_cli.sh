@@ -133,5 +133,19 @@ else
 	echo "ok $n - vs not listed for a network source"
 fi
 
+# design names a part of the network; the equivalent's rs is refused.
+expect_exit 64 "$bl" design --current 1m "$sample"
+expect_text "$tmp/err" "--solve-for source.network.NAME"
+expect_exit 0 "$bl" design --current 400u --solve-for "source.network.upper divider" \
+	--format csv "$sample"
+expect_text "$tmp/out" "row,part_ohm,voltage_V,current_A"
+# The exact row meets the target, and its value re-solves to it.
+n=$((n + 1))
+if awk -F, 'NR==2 { d=($4-400e-6)/400e-6; if (d<0) d=-d; exit !($1=="exact" && d < 1e-9) }' "$tmp/out"; then
+	echo "ok $n - the exact part value meets the target current"
+else
+	echo "not ok $n - exact part value misses the target"; cat "$tmp/out"; fails=$((fails + 1))
+fi
+
 echo "1..$n"
 [ "$fails" -eq 0 ]

@@ -23,6 +23,7 @@
 
 #include "core/design.h"
 #include "core/models/models.h"
+#include "core/network.h"
 
 #define K_BOLTZMANN 1.380649e-23      /* J/K, exact (SI 2019) */
 #define Q_ELECTRON 1.602176634e-19    /* C, exact (SI 2019) */
@@ -120,8 +121,8 @@ static void test_design_cases(void **state)
 		const struct design_case *c = &cases[k];
 		struct problem pb;
 		case_problem(c, &pb);
-		struct design_request rq = { c->target, c->value, c->unknown,
-		                             c->series };
+		struct design_request rq = { .target = c->target, .value = c->value,
+		                             .unknown = c->unknown, .series = c->series };
 		struct design_result res;
 		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
 			fail_msg("case %zu: %s", k, res.message);
@@ -244,8 +245,8 @@ static void test_design_impossible(void **state)
 		                         ESERIES_E24 };
 		struct problem pb;
 		case_problem(&c, &pb);
-		struct design_request rq = { b->target, b->value, b->unknown,
-		                             ESERIES_E24 };
+		struct design_request rq = { .target = b->target, .value = b->value,
+		                             .unknown = b->unknown, .series = ESERIES_E24 };
 		struct design_result res;
 		if (design_solve(&pb, &o, &rq, NULL, &res) != -1)
 			fail_msg("bad case %zu was designed: %.17g", k, res.rows[0].value);
@@ -263,8 +264,8 @@ static void test_design_impossible(void **state)
 	pb.dev.p[POWER_LAW_VREF] = 3.71;
 	pb.dev.p[POWER_LAW_IREF] = 0.213;
 	pb.dev.p[POWER_LAW_ALPHA] = 0.617;
-	struct design_request rq = { DESIGN_CURRENT, 0.0137, DESIGN_FOR_RS,
-	                             ESERIES_E24 };
+	struct design_request rq = { .target = DESIGN_CURRENT, .value = 0.0137,
+		                             .unknown = DESIGN_FOR_RS, .series = ESERIES_E24 };
 	struct design_result res;
 	assert_int_equal(design_solve(&pb, &o, &rq, NULL, &res), -1);
 	assert_non_null(strstr(res.message, "current source"));
@@ -283,8 +284,8 @@ static void test_design_ratings(void **state)
 	ratings_init(&r);
 	r.resistor_power = 0.25;
 	r.device_max_power = 0.0157;
-	struct design_request rq = { DESIGN_CURRENT, 9.83e-3, DESIGN_FOR_RS,
-	                             ESERIES_E24 };
+	struct design_request rq = { .target = DESIGN_CURRENT, .value = 9.83e-3,
+		                             .unknown = DESIGN_FOR_RS, .series = ESERIES_E24 };
 	struct design_result res;
 	assert_int_equal(design_solve(&pb, &o, &rq, &r, &res), 0);
 	const struct design_row *ex = &res.rows[0];
@@ -302,12 +303,82 @@ static void test_design_ratings(void **state)
 	assert_non_null(strstr(buf, "common practice"));
 }
 
+/*
+ * Designing a part of a network source: a divider E, R1 (top), R2
+ * (bottom) feeding a diode.  The divider's Thevenin equivalent (Vth =
+ * E R2/(R1+R2), Rth = R1 R2/(R1+R2): the divider formula, Alexander &
+ * Sadiku, Fundamentals of Electric Circuits, Thevenin's theorem) passes
+ * through the target point (v, i) when
+ *     R1 = R2 (E - v) / (v + R2 i)    or    E = (v (R1+R2) + R1 R2 i) / R2.
+ */
+static void test_design_network_part(void **state)
+{
+	(void)state;
+	const double e = 11.83, r1 = 3.37e3, r2 = 2.41e3;
+	struct network *net = network_create();
+	assert_non_null(net);
+	assert_true(network_add_part(net, "rail", NETWORK_VOLTAGE_SOURCE, e, "gnd",
+	                             "top") >= 0);
+	assert_true(network_add_part(net, "upper", NETWORK_RESISTOR, r1, "top",
+	                             "mid") >= 0);
+	assert_true(network_add_part(net, "lower", NETWORK_RESISTOR, r2, "mid",
+	                             "gnd") >= 0);
+	assert_int_equal(network_set_terminals(net, "mid", "gnd"), 0);
+	struct problem pb;
+	memset(&pb, 0, sizeof pb);
+	struct source_spec spec;
+	char err[200];
+	assert_int_equal(network_reduce(net, NULL, &spec, NULL), NETWORK_OK);
+	assert_int_equal(source_from_spec(&spec, &pb.src, err, sizeof err), 0);
+	pb.net = net;
+	device_init(&pb.dev, &model_diode);
+	pb.dev.p[DIODE_IS] = 2.77e-14;
+	pb.dev.p[DIODE_N] = 1.41;
+	pb.dev.p[DIODE_RS] = 1.93;
+	struct solve_options o;
+	solve_options_init(&o);
+	static const double targets[] = { 1.37e-3, 0.418e-3, 2.9e-3 };
+	for (size_t k = 0; k < sizeof targets / sizeof targets[0]; k++) {
+		struct design_request rq = { .target = DESIGN_CURRENT,
+		                             .value = targets[k],
+		                             .unknown = DESIGN_FOR_PART,
+		                             .series = ESERIES_E24 };
+		assert_int_equal(paramref_find(&pb, "source.network.upper", &rq.part,
+		                               err, sizeof err), 0);
+		struct design_result res;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("upper: %s", res.message);
+		double v = res.v_target, i = res.i_target;
+		double want = r2 * (e - v) / (v + r2 * i);
+		assert_true(fabs(res.rows[0].value - want) <= 1e-12 * want);
+		/* Standard neighbours bracket it, and each row re-solves. */
+		assert_int_equal(res.nrows, 3);
+		assert_true(res.rows[1].value <= want && res.rows[2].value >= want);
+		for (size_t r = 0; r < res.nrows; r++)
+			assert_true(res.rows[r].solved);
+		assert_true(fabs(res.rows[0].pt.i - targets[k]) <= 1e-9 * targets[k]);
+		/* The rail voltage instead: one exact row. */
+		assert_int_equal(paramref_find(&pb, "source.network.rail", &rq.part,
+		                               err, sizeof err), 0);
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("rail: %s", res.message);
+		double want_e = (v * (r1 + r2) + r1 * r2 * i) / r2;
+		assert_int_equal(res.nrows, 1);
+		assert_true(fabs(res.rows[0].value - want_e) <= 1e-10 * want_e);
+	}
+	/* The session's network is never changed by a design. */
+	assert_true(network_part(net, 1)->value == r1);
+	assert_true(network_part(net, 0)->value == e);
+	network_destroy(net);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_design_cases),
 		cmocka_unit_test(test_design_impossible),
 		cmocka_unit_test(test_design_ratings),
+		cmocka_unit_test(test_design_network_part),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
