@@ -23,7 +23,8 @@
 
 /* The panes, bottom to top: keys go to the top-most that takes them. */
 static const struct pane *const app_panes[] = {
-	&pane_plot, &pane_sweep, &pane_side, &pane_design, &pane_tol, &pane_help,
+	&pane_plot, &pane_sweep, &pane_side, &pane_design, &pane_tol, &pane_sens,
+	&pane_help,
 	&pane_prompt,
 };
 
@@ -395,6 +396,8 @@ void app_draw(struct app *a)
 		pane_design.draw(a, &body);
 	if (a->tol.open)
 		pane_tol.draw(a, &body);
+	if (a->sens.open)
+		pane_sens.draw(a, &body);
 	if (a->help)
 		pane_help.draw(a, &all);
 	pane_prompt.draw(a, &bottom);

@@ -18,6 +18,7 @@
 #include "core/diagnose.h"
 #include "core/solve.h"
 #include "core/stepper.h"
+#include "core/sensitivity.h"
 #include "core/tolerance.h"
 #include "render/render.h"
 #include "session/session.h"
@@ -112,6 +113,18 @@ struct tol_view {
 	struct tol_mc mc;
 };
 
+/* Parameters the sensitivity view lists at most. */
+#define APP_SENS_MAX 48
+
+/* The sensitivity view: how the first operating point moves with each
+ * parameter (sensitivity_all from the core). */
+struct sens_view {
+	bool open;
+	size_t n;
+	struct sensitivity s[APP_SENS_MAX];
+	char msg[256];          /* why nothing can be shown, or "" */
+};
+
 /* Points of the sweep view, RS/10 to RS*10 on a log scale. */
 #define APP_SWEEP_POINTS 61
 
@@ -157,6 +170,7 @@ struct app {
 	bool help;
 	struct design_view design;
 	struct tol_view tol;
+	struct sens_view sens;
 	struct sweep_view sweep;
 	struct prompt prompt;
 	char status[256];       /* the last message */
@@ -236,6 +250,7 @@ extern const struct pane pane_side;    /* point, parameters, diagnosis, table */
 extern const struct pane pane_help;    /* the help overlay */
 extern const struct pane pane_design;  /* the design overlay */
 extern const struct pane pane_tol;     /* the tolerance overlay */
+extern const struct pane pane_sens;    /* the sensitivity overlay */
 extern const struct pane pane_sweep;   /* the sweep plot (in the plot's place) */
 extern const struct pane pane_prompt;  /* the bottom line and its prompt */
 
@@ -253,6 +268,9 @@ void pane_design_target(struct app *a, double current);
 
 /* Open the tolerance view: the worst case now, Monte Carlo on request. */
 void pane_tol_open(struct app *a);
+
+/* Open the sensitivity view at the first operating point. */
+void pane_sens_open(struct app *a);
 
 /* Show or hide the sweep view. */
 void pane_sweep_toggle(struct app *a);

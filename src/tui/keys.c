@@ -361,6 +361,13 @@ static unsigned key_tolerance(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Open the sensitivity view (% change of V and I per % of each parameter). */
+static unsigned key_sensitivity(struct app *a)
+{
+	pane_sens_open(a);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Show or hide the sweep of the device current against RS. */
 static unsigned key_sweep(struct app *a)
 {
@@ -408,6 +415,7 @@ static const struct key_binding key_table[] = {
 	{ { 'D' }, "D", "design RS for a target", key_design },
 	{ { 'T' }, "T", "tolerance: worst case", key_tolerance },
 	{ { 0 }, "m", "(tolerance) Monte Carlo", NULL },
+	{ { 'S' }, "S", "sensitivities, % per %", key_sensitivity },
 	{ { 'W' }, "W", "sweep: I against RS/RP", key_sweep },
 	{ { 0 }, "Up/Down", "(view) choose a row", NULL },
 	{ { 0 }, "Enter", "(view) apply the row", NULL },

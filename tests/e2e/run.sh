@@ -393,6 +393,25 @@ tolerance)
 	[ "$bin1" = "$cli_bin" ] || fail "first bin holds $bin1 trials, CLI says $cli_bin"
 	echo "ok: worst case $tmin ... $tmax and first histogram bin $bin1 match the CLI"
 	;;
+sensitivity)
+	# S lists the normalised sensitivities of the point; the % of I per %
+	# of RS is the one 'biasline solve --sensitivity' prints.
+	out=$("$bin" solve --sensitivity --format csv "$samples/indicator-led-24v.yaml") ||
+		fail "'biasline solve --sensitivity' exited $?"
+	cli_si=$(awk -F, '$2 == "rs" { print $8; exit }' <<<"$out")
+	[ -n "$cli_si" ] || { echo "$out"; fail "no rs row in the CLI's sensitivities"; }
+	start 100 30 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	keys S
+	wait_for "Sensitivities at the first operating point"
+	si=$(screen | grep -oE ' rs +[0-9.]+ [kM]?ohm +[-+0-9.e]+ +[-+0-9.e]+' |
+		awk '{ print $NF; exit }')
+	[ -n "$si" ] || { screen; fail "no rs row on screen"; }
+	close_to "$si" "$cli_si" 2e-3 || fail "S(I) to rs on screen $si, CLI $cli_si"
+	keys Escape
+	wait_gone "Sensitivities at the first"
+	echo "ok: the sensitivity of I to rs on screen ($si) matches the CLI ($cli_si)"
+	;;
 sweep)
 	# W replaces the load line with the device current against RS from
 	# RS/10 to RS*10 on a log axis; the mark for RS = 3.3k sits between the
