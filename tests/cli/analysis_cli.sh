@@ -6,35 +6,7 @@
 # Usage: analysis_cli.sh BIASLINE
 set -u
 bl=$1
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-fails=0
-n=0
-
-# Check that COMMAND exits with WANT.
-expect_exit() {
-	want=$1; shift
-	n=$((n + 1))
-	"$@" >"$tmp/out" 2>"$tmp/err"
-	got=$?
-	if [ "$got" -ne "$want" ]; then
-		echo "not ok $n - '$*' exited $got, expected $want"; cat "$tmp/err"
-		fails=$((fails + 1))
-	else
-		echo "ok $n - '$*' exits $want"
-	fi
-}
-
-# Check that FILE contains the fixed string S.
-expect_text() {
-	n=$((n + 1))
-	if grep -F -q -- "$2" "$1"; then
-		echo "ok $n - output has '$2'"
-	else
-		echo "not ok $n - output lacks '$2'"; cat "$1"
-		fails=$((fails + 1))
-	fi
-}
+. "$(dirname "$0")/tap.sh"
 
 # Check that the number in field 4 of the CSV row starting with PREFIX in
 # FILE is within 1e-9 (relative) of WANT.
@@ -200,5 +172,4 @@ expect_text "$tmp/out" "point,parameter,value,dV_dp,dI_dp,dP_dp,sens_V,sens_I,se
 expect_text "$tmp/out" "1,vs,5,"
 expect_exit 64 "$bl" solve --sensitivity --trace --format csv "$tmp/plain.yaml"
 
-echo "1..$n"
-[ "$fails" -eq 0 ]
+tap_finish

@@ -9,35 +9,7 @@
 set -u
 bl=$1
 sample=$2/split-supply-bias.yaml
-tmp=$(mktemp -d)
-trap 'rm -rf "$tmp"' EXIT
-fails=0
-n=0
-
-# Check that COMMAND exits with WANT.
-expect_exit() {
-	want=$1; shift
-	n=$((n + 1))
-	"$@" >"$tmp/out" 2>"$tmp/err"
-	got=$?
-	if [ "$got" -ne "$want" ]; then
-		echo "not ok $n - '$*' exited $got, expected $want"; cat "$tmp/err"
-		fails=$((fails + 1))
-	else
-		echo "ok $n - '$*' exits $want"
-	fi
-}
-
-# Check that FILE contains the fixed string S.
-expect_text() {
-	n=$((n + 1))
-	if grep -F -q -- "$2" "$1"; then
-		echo "ok $n - output has '$2'"
-	else
-		echo "not ok $n - output lacks '$2'"; cat "$1"
-		fails=$((fails + 1))
-	fi
-}
+. "$(dirname "$0")/tap.sh"
 
 # Check that V (volts) and I (amperes) lie on the equivalent's load line
 # for R1 and R2 (ohm) within 1e-9 of Vth; WHAT names the check.
@@ -147,5 +119,4 @@ else
 	echo "not ok $n - exact part value misses the target"; cat "$tmp/out"; fails=$((fails + 1))
 fi
 
-echo "1..$n"
-[ "$fails" -eq 0 ]
+tap_finish
