@@ -171,35 +171,6 @@ static void tolerance_ratings(const struct tol_worst *w, const struct ratings *r
 			: NAN;
 }
 
-/*
- * The safety cautions over the box, from the largest device voltage,
- * device power and resistor power found (VMAX, PDMAX, PRMAX).
- */
-static unsigned tolerance_safety(const struct tol_case *c, double vmax,
-                                 double pdmax, double prmax)
-{
-	struct problem q = c->pb;
-	for (size_t k = 0; k < c->nitems; k++)
-		if (c->items[k].param.kind == PARAMREF_VS)
-			q.src.voc = fabs(c->items[k].lo) > fabs(c->items[k].hi)
-			                ? c->items[k].lo : c->items[k].hi;
-	unsigned f = safety_check(&q, vmax, 0.0);
-	if (pdmax > SAFETY_HOT_POWER)
-		f |= SAFETY_HOT_DEVICE;
-	if (prmax > SAFETY_HOT_POWER)
-		f |= SAFETY_HOT_RESISTOR;
-	return f;
-}
-
-/* The largest magnitude of output O in W (worst case) or MC (trials). */
-static double tolerance_largest(const struct tol_worst *w,
-                                const struct tol_mc *mc, enum tol_output o)
-{
-	if (w != NULL)
-		return fmax(fabs(w->min[o].value), fabs(w->max[o].value));
-	return fmax(fabs(mc->stats[o].min), fabs(mc->stats[o].max));
-}
-
 /* Print the parameters of extreme E ("vs = 21.3 V, rs = 2.31 kohm"). */
 static void tolerance_print_at(const struct tol_case *c,
                                const struct tol_extreme *e)
@@ -431,10 +402,7 @@ int cmd_tolerance(int argc, char **argv)
 	}
 	const struct tol_worst *wp = c.nitems <= TOL_MAX_CORNER_ITEMS ? &w : NULL;
 	const struct tol_mc *mp = have_mc ? &mc : NULL;
-	unsigned flags = tolerance_safety(
-		&c, tolerance_largest(wp, mp, TOL_VOLTAGE),
-		tolerance_largest(wp, mp, TOL_DEVICE_POWER),
-		tolerance_largest(wp, mp, TOL_RESISTOR_POWER));
+	unsigned flags = tol_safety(&c, wp, mp);
 	if (a.csv) {
 		tolerance_print_csv(&c, wp, mp);
 		if (flags != 0) {

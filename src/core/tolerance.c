@@ -10,6 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "safety.h"
 #include "sensitivity.h"
 #include "solve.h"
 
@@ -624,4 +625,33 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 	out->yield = nw > 0 ? (double)out->inside / (double)trials : NAN;
 	free(buf);
 	return 0;
+}
+
+/* The largest magnitude of output O over W and MC (either may be NULL). */
+static double tol_largest(const struct tol_worst *w, const struct tol_mc *mc,
+                          enum tol_output o)
+{
+	double m = 0.0;
+	if (w != NULL)
+		m = fmax(fabs(w->min[o].value), fabs(w->max[o].value));
+	if (mc != NULL)
+		m = fmax(m, fmax(fabs(mc->stats[o].min), fabs(mc->stats[o].max)));
+	return m;
+}
+
+/* The safety cautions over the tolerance box. */
+unsigned tol_safety(const struct tol_case *c, const struct tol_worst *w,
+                    const struct tol_mc *mc)
+{
+	struct problem q = c->pb;
+	for (size_t k = 0; k < c->nitems; k++)
+		if (c->items[k].param.kind == PARAMREF_VS)
+			q.src.voc = fabs(c->items[k].lo) > fabs(c->items[k].hi)
+			                ? c->items[k].lo : c->items[k].hi;
+	unsigned f = safety_check(&q, tol_largest(w, mc, TOL_VOLTAGE), 0.0);
+	if (tol_largest(w, mc, TOL_DEVICE_POWER) > SAFETY_HOT_POWER)
+		f |= SAFETY_HOT_DEVICE;
+	if (tol_largest(w, mc, TOL_RESISTOR_POWER) > SAFETY_HOT_POWER)
+		f |= SAFETY_HOT_RESISTOR;
+	return f;
 }

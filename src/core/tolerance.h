@@ -192,4 +192,13 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
                     size_t nbins, const struct tol_window *w, size_t nw,
                     struct tol_mc *out, char *err, size_t errlen);
 
+/*
+ * The safety cautions (safety.h flags) over the tolerance box: the largest
+ * device voltage, device power and resistor power the worst case W and the
+ * trials MC found (either may be NULL), with the source at the larger end
+ * of a vs tolerance.
+ */
+unsigned tol_safety(const struct tol_case *c, const struct tol_worst *w,
+                    const struct tol_mc *mc);
+
 #endif

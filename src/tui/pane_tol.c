@@ -71,39 +71,6 @@ static void pane_tol_run(struct app *a)
 		snprintf(t->msg, sizeof t->msg, "%s", err);
 }
 
-/*
- * The usual caution over the box: the largest device voltage, device
- * power and resistor power found, with the source at its larger VS end.
- */
-static unsigned pane_tol_safety(const struct tol_view *t)
-{
-	double v = 0.0, pd = 0.0, pr = 0.0;
-	if (t->have_wc) {
-		v = fmax(fabs(t->w.min[TOL_VOLTAGE].value), fabs(t->w.max[TOL_VOLTAGE].value));
-		pd = fmax(fabs(t->w.min[TOL_DEVICE_POWER].value),
-		          fabs(t->w.max[TOL_DEVICE_POWER].value));
-		pr = fmax(fabs(t->w.min[TOL_RESISTOR_POWER].value),
-		          fabs(t->w.max[TOL_RESISTOR_POWER].value));
-	}
-	if (t->have_mc) {
-		v = fmax(v, fmax(fabs(t->mc.stats[TOL_VOLTAGE].min),
-		                 fabs(t->mc.stats[TOL_VOLTAGE].max)));
-		pd = fmax(pd, fabs(t->mc.stats[TOL_DEVICE_POWER].max));
-		pr = fmax(pr, fabs(t->mc.stats[TOL_RESISTOR_POWER].max));
-	}
-	struct problem q = t->c.pb;
-	for (size_t k = 0; k < t->c.nitems; k++)
-		if (t->c.items[k].param.kind == PARAMREF_VS)
-			q.src.voc = fabs(t->c.items[k].lo) > fabs(t->c.items[k].hi)
-			            ? t->c.items[k].lo : t->c.items[k].hi;
-	unsigned f = safety_check(&q, v, 0.0);
-	if (pd > SAFETY_HOT_POWER)
-		f |= SAFETY_HOT_DEVICE;
-	if (pr > SAFETY_HOT_POWER)
-		f |= SAFETY_HOT_RESISTOR;
-	return f;
-}
-
 /* Write TEXT wrapped to W cells from ROW, at most MAX lines; rows used. */
 static int pane_tol_wrap(struct app *a, int row, int col, int w, int max,
                          const char *text, enum term_style st)
@@ -189,7 +156,9 @@ static void pane_tol_draw(struct app *a, const struct rect *box)
 			term_text(&a->term, row++, x, line, cw, TS_NORMAL);
 		}
 	}
-	unsigned flags = t->have_case ? pane_tol_safety(t) : 0;
+	unsigned flags = t->have_case ? tol_safety(&t->c, t->have_wc ? &t->w : NULL,
+	                                           t->have_mc ? &t->mc : NULL)
+	                              : 0;
 	if (flags != 0 && row + 1 < end) {
 		char caution[320];
 		safety_message(flags, caution, sizeof caution);
