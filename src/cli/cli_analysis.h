@@ -1,7 +1,8 @@
 /*
- * cli_analysis.h - what the design, sweep and tolerance commands share:
- * loading a session into a problem with the right exit status, the
- * --format choice, number formatting and the safety caution.
+ * cli_analysis.h - what the commands share: loading a session into a
+ * problem with the right exit status (every command that solves), and for
+ * design, sweep and tolerance the --format choice, number formatting and
+ * the safety caution.
  */
 #ifndef BIASLINE_CLI_ANALYSIS_H
 #define BIASLINE_CLI_ANALYSIS_H

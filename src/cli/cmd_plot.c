@@ -12,6 +12,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "cli_analysis.h"
 #include "commands.h"
 #include "core/safety.h"
 #include "core/solve.h"
@@ -199,21 +200,10 @@ int cmd_plot(int argc, char **argv)
 	}
 
 	struct session s;
-	struct session_error serr;
-	enum session_status ss = session_load_file(&s, argv[optind], &serr);
-	if (ss != SESSION_OK) {
-		char msg[1024];
-		session_error_format(&serr, msg, sizeof msg);
-		fprintf(stderr, "biasline: plot: %s\n", msg);
-		return ss == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
-	}
 	struct problem pb;
-	char err[256];
-	if (session_problem(&s, &pb, err, sizeof err) != 0) {
-		fprintf(stderr, "biasline: plot: %s: %s\n", argv[optind], err);
-		session_fini(&s);
-		return EXIT_DATA;
-	}
+	int code = cli_load_problem("plot", argv[optind], &s, &pb);
+	if (code != 0)
+		return code;
 
 	plot_view_from_session(&view, &s);
 	if (zoom_point) {

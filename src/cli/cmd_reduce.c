@@ -17,6 +17,7 @@
 #include <string.h>
 
 #include "biasline_version.h"
+#include "cli_analysis.h"
 #include "commands.h"
 #include "core/network.h"
 #include "core/quantity.h"
@@ -426,20 +427,10 @@ int cmd_reduce(int argc, char **argv)
 		return EXIT_USAGE;
 	}
 	struct session s;
-	struct session_error err;
-	char line[1024];
-	enum session_status st = session_load_file(&s, argv[optind], &err);
-	if (st != SESSION_OK) {
-		session_error_format(&err, line, sizeof line);
-		fprintf(stderr, "%s\n", line);
-		return st == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
-	}
 	struct problem pb;
-	if (session_problem(&s, &pb, line, sizeof line) != 0) {
-		fprintf(stderr, "%s: %s\n", argv[optind], line);
-		session_fini(&s);
-		return EXIT_DATA;
-	}
+	int code = cli_load_problem("reduce", argv[optind], &s, &pb);
+	if (code != 0)
+		return code;
 	const char *pos = NULL, *neg = NULL;
 	size_t p, n;
 	if (s.network != NULL && network_terminals(s.network, &p, &n) == 0) {

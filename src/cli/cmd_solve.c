@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "biasline_version.h"
+#include "cli_analysis.h"
 #include "commands.h"
 #include "core/diagnose.h"
 #include "core/models/models.h"
@@ -365,21 +366,9 @@ int cmd_solve(int argc, char **argv)
 		return code;
 
 	struct session se;
-	struct session_error err;
-	enum session_status ls = session_load_file(&se, a.file, &err);
-	if (ls != SESSION_OK) {
-		char msg[1024];
-		session_error_format(&err, msg, sizeof msg);
-		fprintf(stderr, "biasline solve: %s\n", msg);
-		return ls == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
-	}
 	struct problem pb;
-	char emsg[256];
-	if (session_problem(&se, &pb, emsg, sizeof emsg) != 0) {
-		fprintf(stderr, "biasline solve: %s: %s\n", a.file, emsg);
-		session_fini(&se);
-		return EXIT_DATA;
-	}
+	if ((code = cli_load_problem("solve", a.file, &se, &pb)) != 0)
+		return code;
 	struct solve_options o = se.solver;
 	if (a.have_method)
 		o.method = a.method;
