@@ -1,6 +1,6 @@
 /*
  * pane_side.c - the side pane: the operating points, the parameter list
- * with the selection in reverse video, the diagnosis from diagnose.h and
+ * with the selection shown inverted, the diagnosis from diagnose.h and
  * the convergence table with the newest row at the bottom.  Every number
  * shown comes from the core; nothing here computes physics.
  */

@@ -31,7 +31,7 @@ enum term_key {
 enum term_style {
 	TS_NORMAL,
 	TS_TITLE,      /* title bar */
-	TS_SELECTED,   /* selected list row: always reverse video */
+	TS_SELECTED,   /* selected list row: always inverted (A_REVERSE) */
 	TS_HEADER,     /* section headers: bold */
 	TS_ERROR,      /* messages about errors: bold (and red with colour) */
 	TS_DIM,        /* hints */

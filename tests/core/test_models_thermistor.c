@@ -89,7 +89,7 @@ static void test_beta_is_steinhart_hart(void **state)
  * manual's Steinhart-Hart fit is within 0.003 degC of every row.  (Its
  * 40 degC row reads 5331 ohm in the stored copy, 0.47 degC off a smooth
  * curve through its neighbours, against the manual's own 0.0003 degC fit
- * error there: taken as a transcription slip and left out.)  Steinhart &
+ * error there: taken as a copying slip and left out.)  Steinhart &
  * Hart's three-point fit (Deep-Sea Research 15, 1968) through the 0, 25
  * and 50 degC rows must then reproduce the other rows within 0.01 degC,
  * and the model's inverse R(T) must give the fit points back exactly.

@@ -615,7 +615,7 @@ color)
 			[ "$n" -gt 0 ] || fail "no colour codes by default"
 		else
 			[ "$n" -eq 0 ] || fail "$n colour codes with $mode"
-			grep -q "$esc\[[0;]*7m" "$out" || fail "no reverse video with $mode"
+			grep -q "$esc\[[0;]*7m" "$out" || fail "no inverted (A_REVERSE) cells with $mode"
 		fi
 		keys q
 		wait_exit
