@@ -13,11 +13,13 @@ builddir=${BUILDDIR:-build}
 
 if [ "$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1 &&
    [ -z "${BIASLINE_NO_INSTALL:-}" ]; then
-	# shellcheck disable=SC2046
-	DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $(cat .ci/packages) \
-		>/dev/null || {
+	# What the program needs to build, and what the tests add.
+	pkgs=$(cat .ci/packages-build .ci/packages-test)
+	# shellcheck disable=SC2086
+	DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $pkgs \
+		>/dev/null 2>&1 || {
 		DEBIAN_FRONTEND=noninteractive apt-get update -qq >/dev/null
-		DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $(cat .ci/packages) >/dev/null
+		DEBIAN_FRONTEND=noninteractive apt-get install -y -qq $pkgs >/dev/null
 	}
 fi
 
