@@ -1,6 +1,6 @@
 /*
  * cmd_check.c - 'biasline check FILE...': validate session files, one line
- * per file; stop at the first that is not valid.
+ * per file; every file is checked, and the exit status is the worst one's.
  */
 #include <getopt.h>
 #include <stdio.h>
@@ -15,12 +15,13 @@ static void check_usage(FILE *out)
 	fprintf(out,
 	        "Usage: biasline check [OPTIONS] FILE...\n"
 	        "\n"
-	        "Validate session files.  Prints \"FILE: ok\" for each valid file;\n"
-	        "stops at the first file that is not valid and prints its error as\n"
+	        "Validate session files.  Checks every FILE: prints \"FILE: ok\" for\n"
+	        "each valid one and the error of each other one as\n"
 	        "FILE:LINE:COL: KEY: MESSAGE.\n"
 	        "\n"
-	        "Exit status: 0 all valid, 65 a file is not a valid session,\n"
-	        "66 a file cannot be read, 64 bad command line.\n"
+	        "Exit status (the worst file's): 0 all valid, 65 a file is not a\n"
+	        "valid session, 66 a file cannot be read (wins over 65), 64 bad\n"
+	        "command line.\n"
 	        "\n"
 	        "Options:\n"
 	        "  -q, --quiet    print errors only\n"
@@ -62,6 +63,7 @@ int cmd_check(int argc, char **argv)
 		        "check --help')\n");
 		return EXIT_USAGE;
 	}
+	int worst = EXIT_OK_CODE;
 	for (int k = optind; k < argc; k++) {
 		struct session s;
 		struct session_error err;
@@ -69,12 +71,19 @@ int cmd_check(int argc, char **argv)
 		if (st != SESSION_OK) {
 			char line[1024];
 			session_error_format(&err, line, sizeof line);
+			fflush(stdout);
 			fprintf(stderr, "%s\n", line);
-			return st == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+			/* A file that could not be read at all is worse than one
+			 * that was read and found invalid. */
+			if (st == SESSION_NO_INPUT)
+				worst = EXIT_NO_INPUT;
+			else if (worst == EXIT_OK_CODE)
+				worst = EXIT_DATA;
+			continue;
 		}
 		session_fini(&s);
 		if (!quiet)
 			printf("%s: ok\n", argv[k]);
 	}
-	return fflush(stdout) == 0 ? EXIT_OK_CODE : EXIT_IO;
+	return fflush(stdout) == 0 ? worst : EXIT_IO;
 }

@@ -12,6 +12,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
 #include "core/safety.h"
@@ -45,6 +46,7 @@ static void plot_usage(FILE *out)
 	        "  -p, --zoom-point    frame the first operating point instead of\n"
 	        "                      the whole load line\n"
 	        "  -h, --help          show this help and exit\n"
+	        "  -V, --version       show the version and exit\n"
 	        "\n"
 	        "Exit status: 0 plotted, 64 bad usage, 65 bad session data,\n"
 	        "66 FILE unreadable.\n",
@@ -140,6 +142,7 @@ int cmd_plot(int argc, char **argv)
 		{ "unicode", no_argument, NULL, 'u' },
 		{ "zoom-point", no_argument, NULL, 'p' },
 		{ "help", no_argument, NULL, 'h' },
+		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
 	};
 	long cols = 80, rows = 24, nsteps = 0;
@@ -149,7 +152,7 @@ int cmd_plot(int argc, char **argv)
 	optind = 1;
 	opterr = 0;
 	int ch;
-	while ((ch = getopt_long(argc, argv, ":w:H:n:uph", longopts, NULL)) != -1) {
+	while ((ch = getopt_long(argc, argv, ":w:H:n:uphV", longopts, NULL)) != -1) {
 		switch (ch) {
 		case 'w':
 			if (plot_parse_int(optarg, RENDER_MIN_COLS, PLOT_MAX_COLS, &cols) != 0) {
@@ -182,6 +185,9 @@ int cmd_plot(int argc, char **argv)
 			break;
 		case 'h':
 			plot_usage(stdout);
+			return EXIT_OK_CODE;
+		case 'V':
+			printf("biasline %s\n", BIASLINE_VERSION);
 			return EXIT_OK_CODE;
 		case ':':
 			fprintf(stderr, "biasline: plot: option '%s' needs a value\n",

@@ -5,6 +5,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 
+#include "biasline_version.h"
 #include "commands.h"
 #include "tui/tui.h"
 
@@ -21,6 +22,7 @@ static void tui_usage(FILE *out)
 	        "  -C, --no-color  no colour (also when NO_COLOR is set)\n"
 	        "  -u, --unicode   line-drawing and symbol characters in the plot\n"
 	        "  -h, --help      show this help and exit\n"
+	        "  -V, --version   show the version and exit\n"
 	        "\n"
 	        "Exit status: 0 done, 64 bad usage, 65 bad session data, 66 FILE\n"
 	        "unreadable, 69 unusable terminal, 128+N stopped by signal N\n"
@@ -34,6 +36,7 @@ int cmd_tui(int argc, char **argv)
 		{ "no-color", no_argument, NULL, 'C' },
 		{ "unicode", no_argument, NULL, 'u' },
 		{ "help", no_argument, NULL, 'h' },
+		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
 	};
 	const char *nc = getenv("NO_COLOR");
@@ -41,7 +44,7 @@ int cmd_tui(int argc, char **argv)
 	optind = 1;
 	opterr = 0;
 	int ch;
-	while ((ch = getopt_long(argc, argv, "Cuh", longopts, NULL)) != -1) {
+	while ((ch = getopt_long(argc, argv, "CuhV", longopts, NULL)) != -1) {
 		switch (ch) {
 		case 'C':
 			opt.color = false;
@@ -51,6 +54,9 @@ int cmd_tui(int argc, char **argv)
 			break;
 		case 'h':
 			tui_usage(stdout);
+			return EXIT_OK_CODE;
+		case 'V':
+			printf("biasline %s\n", BIASLINE_VERSION);
 			return EXIT_OK_CODE;
 		default:
 			fprintf(stderr, "biasline: unknown option '%s' "
