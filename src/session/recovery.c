@@ -11,11 +11,13 @@
 #include <dirent.h>
 #include <errno.h>
 #include <limits.h>
+#include <stdbool.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <time.h>
 #include <unistd.h>
 
 #include "session/atomic.h"
@@ -167,6 +169,75 @@ int recovery_find(const char *origin, char *buf, size_t n)
 		return -1;
 	struct stat st;
 	return stat(buf, &st) == 0 && S_ISREG(st.st_mode) ? 1 : 0;
+}
+
+/* True when A is later than B. */
+static bool recovery_later(const struct timespec *a, const struct timespec *b)
+{
+	return a->tv_sec != b->tv_sec ? a->tv_sec > b->tv_sec
+	                              : a->tv_nsec > b->tv_nsec;
+}
+
+/* Compare the recovery file of ORIGIN with ORIGIN. */
+enum recovery_state recovery_check(const char *origin, char *buf, size_t n,
+                                   time_t *mtime)
+{
+	char err[256];
+	if (recovery_path(origin, buf, n, err, sizeof err) != 0)
+		return RECOVERY_UNKNOWN;
+	struct stat rs, os;
+	if (stat(buf, &rs) != 0 || !S_ISREG(rs.st_mode))
+		return RECOVERY_NONE;
+	if (mtime != NULL)
+		*mtime = rs.st_mtime;
+	if (origin == NULL || stat(origin, &os) != 0)
+		return RECOVERY_NEWER;
+	return recovery_later(&rs.st_mtim, &os.st_mtim) ? RECOVERY_NEWER
+	                                                : RECOVERY_OLDER;
+}
+
+/* Rename the recovery file of ORIGIN out of the way. */
+int recovery_set_aside(const char *origin, char *newpath, size_t n, char *err,
+                       size_t errlen)
+{
+	char path[RECOVERY_PATH_MAX];
+	if (recovery_path(origin, path, sizeof path, err, errlen) != 0)
+		return -1;
+	struct stat st;
+	if (stat(path, &st) != 0) {
+		snprintf(err, errlen, "%s: cannot set the recovery file aside: %s",
+		         path, strerror(errno));
+		return -1;
+	}
+	char stamp[32];
+	struct tm tm;
+	if (localtime_r(&st.st_mtime, &tm) == NULL ||
+	    strftime(stamp, sizeof stamp, "%Y%m%d-%H%M%S", &tm) == 0)
+		snprintf(stamp, sizeof stamp, "%lld", (long long)st.st_mtime);
+	size_t stem = strlen(path) - strlen(".yaml"); /* recovery_path ends so */
+	for (int k = 1; k < 1000; k++) {
+		char num[16] = "";
+		if (k > 1)
+			snprintf(num, sizeof num, "-%d", k);
+		int r = snprintf(newpath, n, "%.*s.aside-%s%s.yaml", (int)stem, path,
+		                 stamp, num);
+		if (r < 0 || (size_t)r >= n) {
+			snprintf(err, errlen, "the recovery file's path is too long");
+			return -1;
+		}
+		struct stat taken;
+		if (lstat(newpath, &taken) == 0)
+			continue;
+		if (rename(path, newpath) != 0) {
+			snprintf(err, errlen, "%s: cannot set the recovery file aside: %s",
+			         path, strerror(errno));
+			return -1;
+		}
+		return 0;
+	}
+	snprintf(err, errlen, "%s: cannot set the recovery file aside: too many "
+	         "set-aside copies", path);
+	return -1;
 }
 
 /* Read the origin from the second line of recovery file PATH into E. */

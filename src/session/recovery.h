@@ -51,6 +51,33 @@ enum session_status recovery_save(const struct session *s, const char *origin,
 int recovery_find(const char *origin, char *buf, size_t n);
 
 /*
+ * Look for the recovery file of ORIGIN and compare it with ORIGIN itself:
+ * RECOVERY_NONE (none), RECOVERY_NEWER (newer than ORIGIN, or ORIGIN is
+ * the demo or gone: it holds work the file lacks), RECOVERY_OLDER (ORIGIN
+ * was written after it: stale), RECOVERY_UNKNOWN (no recovery folder).
+ * The recovery file's path goes to BUF and its time to *MTIME (may be
+ * NULL) when there is one.
+ */
+enum recovery_state {
+	RECOVERY_UNKNOWN = -1,
+	RECOVERY_NONE = 0,
+	RECOVERY_NEWER = 1,
+	RECOVERY_OLDER = 2,
+};
+enum recovery_state recovery_check(const char *origin, char *buf, size_t n,
+                                   time_t *mtime);
+
+/*
+ * Set the recovery file of ORIGIN aside: rename it, in the same folder, to
+ * "<its name without .yaml>.aside-YYYYMMDD-HHMMSS.yaml" (its own time; a
+ * number is added when that name is taken), so it is no longer offered but
+ * nothing is lost.  The new path goes to NEWPATH.  Returns 0, or -1 with a
+ * message in ERR.
+ */
+int recovery_set_aside(const char *origin, char *newpath, size_t n, char *err,
+                       size_t errlen);
+
+/*
  * List every recovery file, newest first, into a new array *OUT of *N
  * entries (free with recovery_list_free).  A missing folder is an empty
  * list.  Returns 0, or -1 with a message in ERR.

@@ -6,14 +6,20 @@
  * Nothing polls while idle: the read blocks until a key, a resize or a
  * signal arrives.
  */
+/* getpwnam() for "~user" in typed file names */
+#define _POSIX_C_SOURCE 200809L
+
 #include "tui/app.h"
 
 #include <math.h>
+#include <pwd.h>
 #include <signal.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <time.h>
 
 #include "session/recovery.h"
 #include "session/section_network.h"
@@ -274,6 +280,56 @@ int app_param_set(struct app *a, const struct param *p, double value,
 	return 0;
 }
 
+/* Expand "~" and "~user" at the start of a typed file name. */
+int app_expand_path(const char *in, char *out, size_t n)
+{
+	if (in[0] != '~') {
+		if (snprintf(out, n, "%s", in) >= (int)n) {
+			snprintf(out, n, "the file name is too long");
+			return -1;
+		}
+		return 0;
+	}
+	size_t ul = strcspn(in + 1, "/");
+	const char *rest = in + 1 + ul;
+	const char *home;
+	if (ul == 0) {
+		home = getenv("HOME");
+		if (home == NULL || home[0] == '\0') {
+			snprintf(out, n, "cannot expand ~: HOME is not set");
+			return -1;
+		}
+	} else {
+		char user[256];
+		if (ul >= sizeof user) {
+			snprintf(out, n, "cannot expand ~: the user name is too long");
+			return -1;
+		}
+		memcpy(user, in + 1, ul);
+		user[ul] = '\0';
+		const struct passwd *pw = getpwnam(user);
+		if (pw == NULL || pw->pw_dir == NULL) {
+			snprintf(out, n, "cannot expand ~%s: no such user", user);
+			return -1;
+		}
+		home = pw->pw_dir;
+	}
+	if (snprintf(out, n, "%s%s", home, rest) >= (int)n) {
+		snprintf(out, n, "the file name is too long");
+		return -1;
+	}
+	return 0;
+}
+
+/* True when PATH is the session's own (existing) file. */
+bool app_is_own_file(const struct app *a, const char *path)
+{
+	struct stat x, y;
+	if (a->path == NULL || stat(a->path, &x) != 0 || stat(path, &y) != 0)
+		return false;
+	return x.st_dev == y.st_dev && x.st_ino == y.st_ino;
+}
+
 /* Save to PATH or the session's own file. */
 int app_save(struct app *a, const char *path)
 {
@@ -376,6 +432,12 @@ void app_draw(struct app *a)
 	if (rows < APP_MIN_ROWS || cols < APP_MIN_COLS) {
 		a->grid_ok = false;
 		app_draw_small(a, rows, cols);
+		/* a question is never hidden: it wraps above the bottom line;
+		 * the last message (what an answer did) shows there too */
+		if (a->prompt.kind != PROMPT_NONE || a->status[0] != '\0') {
+			struct rect bottom = { rows - 1, 0, 1, cols };
+			pane_prompt.draw(a, &bottom);
+		}
 		term_end(&a->term);
 		return;
 	}
@@ -411,6 +473,10 @@ unsigned app_key(struct app *a, int key)
 		a->grid_ok = false;
 		return APP_HANDLED | APP_REDRAW;
 	}
+	/* Ctrl-C is q: it quits (asking when unsaved) or closes a view; in a
+	 * prompt or question it cancels, as Esc does. */
+	if (key == TK_INTERRUPT)
+		key = a->prompt.kind != PROMPT_NONE ? TK_ESC : 'q';
 	for (size_t k = sizeof app_panes / sizeof app_panes[0]; k-- > 0;) {
 		if (app_panes[k]->key == NULL)
 			continue;
@@ -446,12 +512,34 @@ static void app_write_recovery(struct app *a)
 	}
 }
 
-/* Offer the recovery file, if one exists, before anything else. */
+/*
+ * Offer the recovery file before anything else when it is newer than the
+ * file (work the file lacks); an older one is set aside, not deleted.
+ */
 static void app_offer_recovery(struct app *a)
 {
-	char p[RECOVERY_PATH_MAX];
-	if (recovery_find(a->path, p, sizeof p) == 1)
+	char p[RECOVERY_PATH_MAX], err[512];
+	time_t when = 0;
+	enum recovery_state rs = recovery_check(a->path, p, sizeof p, &when);
+	if (rs == RECOVERY_NEWER) {
 		pane_prompt_open(a, PROMPT_RESTORE, NULL);
+		struct tm tm;
+		if (localtime_r(&when, &tm) == NULL ||
+		    strftime(a->prompt.when, sizeof a->prompt.when,
+		             "%Y-%m-%d %H:%M", &tm) == 0)
+			snprintf(a->prompt.when, sizeof a->prompt.when, "earlier");
+	} else if (rs == RECOVERY_OLDER) {
+		char aside[RECOVERY_PATH_MAX];
+		if (recovery_set_aside(a->path, aside, sizeof aside, err,
+		                       sizeof err) == 0) {
+			const char *base = strrchr(aside, '/');
+			app_message(a, false, "the file is newer than its recovery "
+			            "file; that was set aside as %s",
+			            base != NULL ? base + 1 : aside);
+		} else {
+			app_message(a, true, "%s", err);
+		}
+	}
 }
 
 /* Run the front end until quit. */

@@ -43,8 +43,9 @@ enum prompt_kind {
 	PROMPT_NONE,
 	PROMPT_VALUE,      /* an exact value for the selected parameter */
 	PROMPT_SAVE_AS,    /* a file name to save to */
+	PROMPT_OVERWRITE,  /* y/n: replace the existing file PENDING */
 	PROMPT_QUIT,       /* y/n: quit without saving */
-	PROMPT_RESTORE,    /* y/n: restore the recovery file */
+	PROMPT_RESTORE,    /* y/n: restore the recovery file or set it aside */
 	PROMPT_TARGET,     /* a target device current for the design view */
 };
 
@@ -53,7 +54,9 @@ struct prompt {
 	enum prompt_kind kind;
 	char text[256];    /* what was typed (UTF-8) */
 	size_t len;
-	char error[256];   /* why the last entry was refused, or "" */
+	char error[1024];  /* why the last entry was refused, or "" */
+	char pending[1024];/* PROMPT_OVERWRITE: the file to replace */
+	char when[64];     /* PROMPT_RESTORE: when the recovery file was written */
 };
 
 /* Kinds of parameter rows in the side pane. */
@@ -204,8 +207,22 @@ void app_message(struct app *a, bool error, const char *fmt, ...)
 #endif
 	;
 
-/* Save to PATH (NULL: the session's own file).  Returns 0 or -1. */
+/*
+ * Save to PATH (NULL: the session's own file; the demo asks for a name).
+ * On failure the session stays as it was, unsaved, the status line says
+ * why, and -1 is returned.  Returns 0 when saved.
+ */
 int app_save(struct app *a, const char *path);
+
+/*
+ * Expand a typed file name IN into OUT: "~" and "~/..." take $HOME,
+ * "~user/..." that user's home folder.  Returns 0, or -1 with a message in
+ * OUT when the name cannot be expanded.
+ */
+int app_expand_path(const char *in, char *out, size_t n);
+
+/* True when PATH names the same existing file as the session's own. */
+bool app_is_own_file(const struct app *a, const char *path);
 
 /* Draw the whole screen. */
 void app_draw(struct app *a);

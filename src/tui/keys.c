@@ -332,10 +332,30 @@ static unsigned key_side(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Save (a name is asked for the demo). */
+/*
+ * Save to the session's file (the demo asks for a name).  When that fails
+ * (a read-only folder, a full disk) the session stays open and unsaved and
+ * the save-as prompt opens with the reason, so another place can be typed.
+ */
 static unsigned key_save(struct app *a)
 {
-	app_save(a, NULL);
+	if (a->path == NULL) {
+		pane_prompt_open(a, PROMPT_SAVE_AS, "");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	if (app_save(a, NULL) != 0) {
+		char why[sizeof a->prompt.error];
+		snprintf(why, sizeof why, "%s", a->status);
+		pane_prompt_open(a, PROMPT_SAVE_AS, a->path);
+		snprintf(a->prompt.error, sizeof a->prompt.error, "%s", why);
+	}
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* Save under another name: the prompt starts with the present one. */
+static unsigned key_save_as(struct app *a)
+{
+	pane_prompt_open(a, PROMPT_SAVE_AS, a->path != NULL ? a->path : "");
 	return APP_HANDLED | APP_REDRAW;
 }
 
@@ -431,9 +451,10 @@ static const struct key_binding key_table[] = {
 	{ { 'w' }, "w", "undo zoom and pan", key_whole },
 	{ { '\t' }, "Tab", "hide/show side pane", key_side },
 	{ { 's' }, "s", "save (demo: asks a name)", key_save },
+	{ { 'A' }, "A", "save as another file", key_save_as },
 	{ { 12 }, "Ctrl-L", "repaint the screen", key_redraw },
 	{ { '?', TK_F1 }, "? F1", "this help", key_help },
-	{ { 'q' }, "q", "quit (asks if unsaved)", key_quit },
+	{ { 'q' }, "q Ctrl-C", "quit (asks if unsaved)", key_quit },
 };
 #define NKEYS (sizeof key_table / sizeof key_table[0])
 

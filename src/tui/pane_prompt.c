@@ -8,6 +8,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <sys/stat.h>
+
 #include "tui/app.h"
 #include "session/recovery.h"
 
@@ -26,6 +28,9 @@ static void pane_prompt_label(struct app *a, char *buf, size_t n)
 	case PROMPT_SAVE_AS:
 		snprintf(buf, n, "save as: ");
 		break;
+	case PROMPT_OVERWRITE:
+		snprintf(buf, n, "%s exists: replace it? (y/N) ", a->prompt.pending);
+		break;
 	case PROMPT_QUIT:
 		snprintf(buf, n, "unsaved changes: quit without saving? (y/n) ");
 		break;
@@ -33,8 +38,10 @@ static void pane_prompt_label(struct app *a, char *buf, size_t n)
 		snprintf(buf, n, "design: target device current = ");
 		break;
 	case PROMPT_RESTORE:
-		snprintf(buf, n, "a recovery file from an unclean exit exists: "
-		         "restore it? (y/n) ");
+		snprintf(buf, n, "a recovery file holds unsaved changes from %s, "
+		         "newer than the %s: restore them? (y restores, n sets "
+		         "the recovery file aside) ", a->prompt.when,
+		         a->path != NULL ? "file" : "demo");
 		break;
 	default:
 		buf[0] = '\0';
@@ -42,7 +49,44 @@ static void pane_prompt_label(struct app *a, char *buf, size_t n)
 	}
 }
 
-/* Draw the bottom line (the prompt, or the last message) into R. */
+/* Most lines a prompt and its error take. */
+#define PROMPT_MAX_LINES 12
+
+/*
+ * Split TEXT into lines of at most COLS cells, breaking after a blank when
+ * there is one in the line, else anywhere.  Fills START[k] and LEN[k]
+ * (bytes) and returns the number of lines (at least 1).
+ */
+static int pane_prompt_wrap(const char *text, int cols, const char **start,
+                            size_t *len, int max)
+{
+	int n = 0;
+	const char *p = text;
+	if (cols < 1)
+		cols = 1;
+	do {
+		const char *q = p, *brk = NULL;
+		int w = 0;
+		while (*q != '\0' && w < cols) {
+			if (render_utf8_next(&q) == ' ')
+				brk = q;
+			w++;
+		}
+		if (*q != '\0' && brk != NULL && n + 1 < max)
+			q = brk;
+		start[n] = p;
+		len[n] = (size_t)(q - p);
+		n++;
+		p = q;
+	} while (*p != '\0' && n < max);
+	return n;
+}
+
+/*
+ * Draw the bottom line into BOX: the prompt, or the last message.  A
+ * prompt or an error longer than the line wraps onto the rows above it,
+ * so a question is whole on any screen (the too-small one included).
+ */
 static void pane_prompt_draw(struct app *a, const struct rect *box)
 {
 	int row = box->row, cols = box->cols;
@@ -53,14 +97,64 @@ static void pane_prompt_draw(struct app *a, const struct rect *box)
 		term_text(&a->term, row, 0, msg, cols, a->status_error ? TS_ERROR : TS_DIM);
 		return;
 	}
-	char label[160];
+	char label[1400];
 	pane_prompt_label(a, label, sizeof label);
-	int c = term_text(&a->term, row, 0, label, cols, TS_HEADER);
-	c += term_text(&a->term, row, c, a->prompt.text, cols - c, TS_NORMAL);
-	int cursor = c;
-	if (a->prompt.error[0] != '\0' && c + 3 < cols)
-		term_text(&a->term, row, c + 2, a->prompt.error, cols - c - 2, TS_ERROR);
-	term_cursor(&a->term, row, cursor < cols ? cursor : cols - 1);
+	size_t ll = strlen(label);
+	char whole[sizeof label + sizeof a->prompt.text];
+	bool question = a->prompt.kind == PROMPT_QUIT ||
+	                a->prompt.kind == PROMPT_RESTORE ||
+	                a->prompt.kind == PROMPT_OVERWRITE;
+	snprintf(whole, sizeof whole, "%s%s", label, question ? "" : a->prompt.text);
+	const char *qs[PROMPT_MAX_LINES], *es[PROMPT_MAX_LINES];
+	size_t ql[PROMPT_MAX_LINES], el[PROMPT_MAX_LINES];
+	int nq = pane_prompt_wrap(whole, cols, qs, ql, PROMPT_MAX_LINES);
+	int ne = a->prompt.error[0] != '\0'
+	         ? pane_prompt_wrap(a->prompt.error, cols, es, el,
+	                            PROMPT_MAX_LINES - nq)
+	         : 0;
+	/* the cursor goes after the typed text: a line of its own when full */
+	const char *end = whole + strlen(whole);
+	int last_w = 0;
+	for (const char *p = qs[nq - 1]; p < end;) {
+		render_utf8_next(&p);
+		last_w++;
+	}
+	bool cursor_line = last_w >= cols && nq < PROMPT_MAX_LINES;
+	int top = row - (nq + (cursor_line ? 1 : 0) + ne) + 1;
+	if (top < 0)
+		top = 0;
+	int r = top;
+	char line[sizeof whole];
+	for (int k = 0; k < ne && r <= row; k++, r++) {
+		snprintf(line, sizeof line, "%.*s", (int)el[k], es[k]);
+		term_fill(&a->term, r, 0, cols, TS_NORMAL);
+		term_text(&a->term, r, 0, line, cols, TS_ERROR);
+	}
+	int crow = r, ccol = 0;
+	for (int k = 0; k < nq && r <= row; k++, r++) {
+		term_fill(&a->term, r, 0, cols, TS_NORMAL);
+		size_t off = (size_t)(qs[k] - whole);
+		/* the label in bold, the typed text plain */
+		int c = 0;
+		if (off < ll) {
+			size_t take = ll - off < ql[k] ? ll - off : ql[k];
+			snprintf(line, sizeof line, "%.*s", (int)take, qs[k]);
+			c = term_text(&a->term, r, 0, line, cols, TS_HEADER);
+			snprintf(line, sizeof line, "%.*s", (int)(ql[k] - take),
+			         qs[k] + take);
+		} else {
+			snprintf(line, sizeof line, "%.*s", (int)ql[k], qs[k]);
+		}
+		c += term_text(&a->term, r, c, line, cols - c, TS_NORMAL);
+		crow = r;
+		ccol = c;
+	}
+	if (cursor_line && r <= row) {
+		term_fill(&a->term, r, 0, cols, TS_NORMAL);
+		crow = r;
+		ccol = 0;
+	}
+	term_cursor(&a->term, crow, ccol < cols ? ccol : cols - 1);
 }
 
 /* Open the prompt. */
@@ -71,6 +165,9 @@ void pane_prompt_open(struct app *a, enum prompt_kind kind, const char *initial)
 	         initial != NULL ? initial : "");
 	a->prompt.len = strlen(a->prompt.text);
 	a->prompt.error[0] = '\0';
+	if (kind != PROMPT_OVERWRITE)
+		a->prompt.pending[0] = '\0';
+	a->prompt.when[0] = '\0';
 }
 
 /* Close the prompt. */
@@ -134,14 +231,21 @@ static unsigned pane_prompt_target(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Answer the restore question: Y restores, otherwise the file goes. */
+/* Answer the restore question: Y restores, otherwise the file is set aside. */
 static unsigned pane_prompt_restore(struct app *a, bool yes)
 {
 	pane_prompt_close(a);
 	char err[1024];
 	if (!yes) {
-		recovery_remove(a->path, err, sizeof err);
-		app_message(a, false, "recovery file discarded");
+		char aside[RECOVERY_PATH_MAX];
+		if (recovery_set_aside(a->path, aside, sizeof aside, err,
+		                       sizeof err) != 0) {
+			app_message(a, true, "%s", err);
+			return APP_HANDLED | APP_REDRAW;
+		}
+		const char *base = strrchr(aside, '/');
+		app_message(a, false, "recovery file set aside as %s",
+		            base != NULL ? base + 1 : aside);
 		return APP_HANDLED | APP_REDRAW;
 	}
 	struct session tmp;
@@ -164,31 +268,116 @@ static unsigned pane_prompt_restore(struct app *a, bool yes)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Save to the name PATH the user confirmed; failures keep the prompt open. */
+static unsigned pane_prompt_save_to(struct app *a, const char *path)
+{
+	char name[sizeof a->prompt.pending];
+	snprintf(name, sizeof name, "%s", path);
+	if (app_save(a, name) != 0) {
+		/* back to the name, with the reason, to type another place */
+		char typed[sizeof a->prompt.text], why[sizeof a->prompt.error];
+		/* TEXT holds the typed name in both prompts (see save_as) */
+		snprintf(typed, sizeof typed, "%s", a->prompt.text);
+		snprintf(why, sizeof why, "%s", a->status);
+		pane_prompt_open(a, PROMPT_SAVE_AS, typed);
+		snprintf(a->prompt.error, sizeof a->prompt.error, "%s", why);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	pane_prompt_close(a);
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/*
+ * Take the typed file name: expand ~, refuse a folder, and ask before
+ * replacing a file other than the session's own.
+ */
+static unsigned pane_prompt_save_as(struct app *a)
+{
+	if (a->prompt.len == 0) {
+		snprintf(a->prompt.error, sizeof a->prompt.error,
+		         "type a file name, or Esc");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	char path[sizeof a->prompt.pending];
+	if (app_expand_path(a->prompt.text, path, sizeof path) != 0) {
+		snprintf(a->prompt.error, sizeof a->prompt.error, "%s", path);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	struct stat st;
+	if (stat(path, &st) == 0) {
+		if (S_ISDIR(st.st_mode)) {
+			if (snprintf(a->prompt.error, sizeof a->prompt.error,
+			             "%s is a folder: type a file name in it", path) < 0)
+				a->prompt.error[0] = '\0';
+			return APP_HANDLED | APP_REDRAW;
+		}
+		if (!app_is_own_file(a, path)) {
+			char typed[sizeof a->prompt.text];
+			snprintf(typed, sizeof typed, "%s", a->prompt.text);
+			pane_prompt_open(a, PROMPT_OVERWRITE, typed);
+			snprintf(a->prompt.pending, sizeof a->prompt.pending, "%s", path);
+			/* the typed name waits in TEXT, shown only if the answer is no */
+			a->prompt.len = 0;
+			return APP_HANDLED | APP_REDRAW;
+		}
+	}
+	return pane_prompt_save_to(a, path);
+}
+
+/* Answer a yes/no question: quit, restore, or replace a file. */
+static unsigned pane_prompt_answer(struct app *a, int key)
+{
+	enum prompt_kind kind = a->prompt.kind;
+	bool yes = key == 'y' || key == 'Y';
+	bool no = key == 'n' || key == 'N' || key == TK_ESC;
+	/* replacing a file: anything but y is no (Enter takes the default) */
+	if (kind == PROMPT_OVERWRITE && key == TK_ENTER)
+		no = true;
+	if (!yes && !no) {
+		snprintf(a->prompt.error, sizeof a->prompt.error, "press y or n");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	if (kind == PROMPT_RESTORE)
+		return pane_prompt_restore(a, yes);
+	if (kind == PROMPT_OVERWRITE) {
+		if (yes)
+			return pane_prompt_save_to(a, a->prompt.pending);
+		char typed[sizeof a->prompt.text];
+		snprintf(typed, sizeof typed, "%s", a->prompt.text);
+		pane_prompt_open(a, PROMPT_SAVE_AS, typed);
+		snprintf(a->prompt.error, sizeof a->prompt.error,
+		         "not replaced: type another name, or Esc");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	pane_prompt_close(a);
+	if (yes) {
+		char err[512];
+		recovery_remove(a->path, err, sizeof err);
+		return APP_HANDLED | APP_QUIT;
+	}
+	app_message(a, false, "not quitting");
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Handle a key while the prompt is open (0 when it is closed). */
 static unsigned pane_prompt_key(struct app *a, int key)
 {
 	enum prompt_kind kind = a->prompt.kind;
 	if (kind == PROMPT_NONE || key == TK_RESIZE)
 		return 0;
-	if (kind == PROMPT_QUIT || kind == PROMPT_RESTORE) {
-		bool yes = key == 'y' || key == 'Y';
-		bool no = key == 'n' || key == 'N' || key == TK_ESC;
-		if (!yes && !no)
-			return APP_HANDLED;
-		if (kind == PROMPT_RESTORE)
-			return pane_prompt_restore(a, yes);
-		pane_prompt_close(a);
-		if (yes) {
-			char err[512];
-			recovery_remove(a->path, err, sizeof err);
-			return APP_HANDLED | APP_QUIT;
-		}
-		app_message(a, false, "not quitting");
-		return APP_HANDLED | APP_REDRAW;
-	}
+	if (kind == PROMPT_QUIT || kind == PROMPT_RESTORE ||
+	    kind == PROMPT_OVERWRITE)
+		return pane_prompt_answer(a, key);
 	if (key == TK_ESC) {
 		pane_prompt_close(a);
 		app_message(a, false, "cancelled");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	if (key == 21) {
+		/* Ctrl-U clears the line, as in a shell */
+		a->prompt.len = 0;
+		a->prompt.text[0] = '\0';
+		a->prompt.error[0] = '\0';
 		return APP_HANDLED | APP_REDRAW;
 	}
 	if (key == TK_BACKSPACE) {
@@ -206,21 +395,8 @@ static unsigned pane_prompt_key(struct app *a, int key)
 			return pane_prompt_value(a);
 		if (kind == PROMPT_TARGET)
 			return pane_prompt_target(a);
-		if (kind == PROMPT_SAVE_AS) {
-			if (a->prompt.len == 0) {
-				snprintf(a->prompt.error, sizeof a->prompt.error,
-				         "type a file name, or Esc");
-				return APP_HANDLED | APP_REDRAW;
-			}
-			char name[256];
-			snprintf(name, sizeof name, "%s", a->prompt.text);
-			if (app_save(a, name) != 0) {
-				snprintf(a->prompt.error, sizeof a->prompt.error, "%s", a->status);
-				return APP_HANDLED | APP_REDRAW;
-			}
-			pane_prompt_close(a);
-			return APP_HANDLED | APP_REDRAW;
-		}
+		if (kind == PROMPT_SAVE_AS)
+			return pane_prompt_save_as(a);
 	}
 	if (key >= 0x20 && key < TK_BASE && key != 0x7F) {
 		char enc[8];

@@ -23,6 +23,8 @@
 
 /* The signal that asked to stop (0 = none). */
 static volatile sig_atomic_t term_stop_flag;
+/* Ctrl-C (SIGINT) was pressed and not yet read as TK_INTERRUPT. */
+static volatile sig_atomic_t term_interrupt_flag;
 
 /* What a fatal-signal handler needs to give the terminal back. */
 static struct {
@@ -39,10 +41,17 @@ enum term_pair {
 	PAIR_ERROR, PAIR_GOOD, PAIR_AXIS,
 };
 
-/* Ask the main loop to stop: the handler for SIGHUP, SIGTERM, SIGINT. */
+/* Ask the main loop to stop: the handler for SIGHUP, SIGTERM, SIGQUIT. */
 static void term_on_stop(int sig)
 {
 	term_stop_flag = sig;
+}
+
+/* Turn Ctrl-C into a key: the handler for SIGINT. */
+static void term_on_interrupt(int sig)
+{
+	(void)sig;
+	term_interrupt_flag = 1;
 }
 
 /* Give the terminal back and re-raise: the handler for fatal signals. */
@@ -68,6 +77,8 @@ static void term_install_signals(void)
 	sa.sa_flags = 0; /* no SA_RESTART: a blocking read returns at once */
 	sigaction(SIGHUP, &sa, NULL);
 	sigaction(SIGTERM, &sa, NULL);
+	sigaction(SIGQUIT, &sa, NULL);
+	sa.sa_handler = term_on_interrupt;
 	sigaction(SIGINT, &sa, NULL);
 	sa.sa_handler = term_on_fatal;
 	sa.sa_flags = SA_RESETHAND;
@@ -178,9 +189,17 @@ void term_size(const struct term_ctx *t, int *rows, int *cols)
 int term_read_key(struct term_ctx *t, int timeout_ms)
 {
 	(void)t;
+	if (term_interrupt_flag) {
+		term_interrupt_flag = 0;
+		return TK_INTERRUPT;
+	}
 	wtimeout(stdscr, timeout_ms);
 	wint_t wc;
 	int rc = wget_wch(stdscr, &wc);
+	if (rc == ERR && term_interrupt_flag) {
+		term_interrupt_flag = 0;
+		return TK_INTERRUPT;
+	}
 	if (rc == ERR)
 		return timeout_ms >= 0 && term_stop_flag == 0 ? TK_NONE : TK_ERROR;
 	if (rc == KEY_CODE_YES) {

@@ -4,8 +4,10 @@
  * next frame, which term_end sends with one doupdate (curses sends only
  * the cells that changed).
  *
- * Signals: term_open installs handlers.  SIGHUP, SIGTERM and SIGINT only
- * set a flag (term_stop_signal reads it); the loop saves and exits.  Fatal
+ * Signals: term_open installs handlers.  SIGHUP, SIGTERM and SIGQUIT only
+ * set a flag (term_stop_signal reads it); the loop saves and exits.  SIGINT
+ * (Ctrl-C) only sets a flag too, and the next read returns it as the key
+ * TK_INTERRUPT, so Ctrl-C acts like a key (the loop treats it as q).  Fatal
  * signals (SIGSEGV, SIGBUS, SIGFPE, SIGILL, SIGABRT) write the terminal's
  * saved reset strings, restore its modes and re-raise.
  */
@@ -25,6 +27,7 @@ enum term_key {
 	TK_BASE = 0x110000,
 	TK_UP, TK_DOWN, TK_LEFT, TK_RIGHT, TK_PGUP, TK_PGDN, TK_HOME, TK_END,
 	TK_BACKSPACE, TK_ENTER, TK_ESC, TK_RESIZE, TK_DELETE, TK_F1,
+	TK_INTERRUPT,      /* Ctrl-C (SIGINT) */
 };
 
 /* Styles of text and cells; the plot roles follow TS_ROLE. */
@@ -67,7 +70,7 @@ void term_size(const struct term_ctx *t, int *rows, int *cols);
  */
 int term_read_key(struct term_ctx *t, int timeout_ms);
 
-/* The signal (SIGHUP, SIGTERM, SIGINT) that asked the program to stop, or 0. */
+/* The signal (SIGHUP, SIGTERM, SIGQUIT) that asked the program to stop, or 0. */
 int term_stop_signal(void);
 
 /* Start a frame: blank the next screen image. */

@@ -571,11 +571,197 @@ hangup)
 	grep -qE 'rs: *(2200|2\.2 ?k)' "$rec" || { cat "$rec"; fail "the recovery file lacks rs = 2.2k"; }
 	# Reopening offers it back; y restores the edit.
 	start 100 30 "$work/order.yaml"
-	wait_for "restore it? (y/n)"
+	wait_for "restore them?"
 	keys y
 	wait_for "RS       2.2 kohm"
 	wait_for "[modified]"
 	echo "ok: recovery file $(basename "$rec") holds rs = 2.2k and restores"
+	;;
+saveas)
+	# Save-as onto an existing file asks first and no is the default: the
+	# file is untouched; y replaces it.  "~/" is the home folder.
+	cp "$samples/indicator-led-24v.yaml" "$work/led.yaml"
+	echo "someone else's file" >"$HOME/other.yaml"
+	before=$(cksum <"$HOME/other.yaml")
+	start 80 24 "$work/led.yaml"
+	wait_for "Convergence"
+	keys Down '}'
+	wait_for "[modified]"
+	keys A
+	wait_for "save as: $work/led.yaml"
+	keys C-u
+	keys "~/other.yaml" Enter
+	wait_for "$HOME/other.yaml exists: replace it? (y/N)"
+	keys Enter
+	wait_for "not replaced: type another name"
+	wait_for "save as: ~/other.yaml"
+	[ "$(cksum <"$HOME/other.yaml")" = "$before" ] || fail "Enter (no) changed the file"
+	screen | grep -qF "[modified]" || fail "no longer marked modified after no"
+	keys Enter
+	wait_for "exists: replace it?"
+	keys n
+	wait_for "not replaced"
+	[ "$(cksum <"$HOME/other.yaml")" = "$before" ] || fail "n changed the file"
+	keys Enter
+	wait_for "exists: replace it?"
+	keys y
+	wait_for "saved $HOME/other.yaml"
+	wait_gone "[modified]"
+	"$bin" check "$HOME/other.yaml" >/dev/null || fail "the replaced file is not a valid session"
+	# The session's own file is saved without a question.
+	keys '}' A
+	wait_for "save as: $HOME/other.yaml"
+	keys Enter
+	wait_for "saved $HOME/other.yaml"
+	keys q
+	wait_exit
+	echo "ok: save-as onto an existing file asked; Enter and n kept it, y replaced it"
+	;;
+readonly)
+	# A save into a folder the user cannot write fails, the session stays
+	# open and unsaved, and save-as to another folder then works.  Root
+	# may write anywhere, so as root the program runs as nobody.
+	run=()
+	if [ "$(id -u)" = 0 ]; then
+		run=(setpriv --reuid=65534 --regid=65534 --clear-groups --)
+		chmod 755 "$work"
+		"${run[@]}" test -x "$bin" ||
+			{ echo "nobody cannot run $bin: skipped"; exit 77; }
+	fi
+	mkdir -p "$work/user/ro" "$work/user/rw" "$work/user/state"
+	cp "$samples/indicator-led-24v.yaml" "$work/user/ro/led.yaml"
+	[ "$(id -u)" = 0 ] && chown -R 65534:65534 "$work/user"
+	chmod 555 "$work/user/ro"
+	before=$(cksum <"$work/user/ro/led.yaml")
+	tmx new-session -d -x 80 -y 24 \
+		"exec env HOME=$(printf '%q' "$work/user") XDG_STATE_HOME=$(printf '%q' "$work/user/state") ${run[*]} $(printf '%q ' "$bin" "$work/user/ro/led.yaml") 2>>$(printf '%q' "$work/stderr")" ||
+		fail "tmux could not start"
+	wait_for "Convergence"
+	keys Down '}'
+	wait_for "[modified]"
+	keys s
+	wait_for "not saved"
+	wait_for "save as: $work/user/ro/led.yaml"
+	screen | grep -qF "[modified]" || fail "not marked modified after the failed save"
+	[ "$(cksum <"$work/user/ro/led.yaml")" = "$before" ] || fail "the read-only copy changed"
+	ls -A "$work/user/ro" | grep -q '^\.' && fail "a temporary file was left in the folder"
+	keys C-u
+	keys "~/rw/led.yaml" Enter
+	wait_for "saved $work/user/rw/led.yaml"
+	wait_gone "[modified]"
+	"$bin" check "$work/user/rw/led.yaml" >/dev/null || fail "the saved copy is not valid"
+	grep -qE 'rs: *(3600|3\.6 ?k)' "$work/user/rw/led.yaml" || fail "the saved copy lacks rs 3.6k"
+	keys q
+	wait_exit
+	echo "ok: save into a read-only folder refused and kept unsaved; saved elsewhere"
+	;;
+recovery)
+	# A recovery file newer than the file is offered at start, the question
+	# whole at 80x24 and at 60x15 (where the notice asks for a bigger
+	# screen); n sets it aside (kept, no longer offered); one older than
+	# the file is set aside without a question.
+	cp "$samples/projection-order-matters.yaml" "$work/order.yaml"
+	start 100 30 "$work/order.yaml"
+	wait_for "Convergence"
+	keys Down e 2.2k Enter
+	wait_for "RS       2.2 kohm"
+	tmx kill-server
+	for ((k = 0; k < 50; k++)); do
+		rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
+		[ -n "$rec" ] && break
+		sleep 0.1
+	done
+	[ -n "$rec" ] || fail "no recovery file"
+	for size in 80x24 60x15 40x12; do
+		start "${size%x*}" "${size#*x}" "$work/order.yaml"
+		wait_for "restore them?"
+		text=$(screen | tr '\n' ' ' | tr -s ' ')
+		for part in "a recovery file holds unsaved changes from" "newer than the file" \
+			"(y restores, n sets the recovery file aside)"; do
+			grep -qF "$part" <<<"$text" || fail "at $size the question lacks '$part'"
+		done
+		screen | awk -v w="${size%x*}" 'length($0) > w { exit 1 }' || fail "a line wider than the screen"
+		# q and other keys do not answer it; they say what does.
+		keys q
+		wait_for "press y or n"
+		tmx kill-server
+		sleep 0.2
+	done
+	start 60 15 "$work/order.yaml"
+	wait_for "restore them?"
+	keys n
+	wait_for "recovery file set aside as"
+	[ -f "$rec" ] && fail "the recovery file is still offered"
+	ls "$XDG_STATE_HOME"/biasline/*.aside-*.yaml >/dev/null 2>&1 || fail "no set-aside copy"
+	"$bin" check "$XDG_STATE_HOME"/biasline/*.aside-*.yaml >/dev/null || fail "the set-aside copy is not valid"
+	keys q
+	wait_exit
+	# An older recovery file: the file was saved after it.
+	cp "$XDG_STATE_HOME"/biasline/*.aside-*.yaml "$rec"
+	touch -d '1 hour ago' "$rec"
+	start 80 24 "$work/order.yaml"
+	wait_for "the file is newer than its recovery file"
+	screen | grep -qF "restore them?" && fail "an older recovery file was offered"
+	[ "$(ls "$XDG_STATE_HOME"/biasline/*.aside-*.yaml | wc -l)" -eq 2 ] || fail "the older file was not set aside"
+	keys q
+	wait_exit
+	echo "ok: recovery offered whole at 80x24, 60x15, 40x12; n and an older file set it aside"
+	;;
+sigquit)
+	# Ctrl-\ (SIGQUIT) is handled like SIGTERM: terminal restored, the
+	# recovery file written and valid, status 131.
+	esc=$(printf '\033')
+	cp "$samples/indicator-led-24v.yaml" "$work/led.yaml"
+	out=$work/quit.bytes
+	tmx new-session -d -x 80 -y 24 \
+		"read _; $(printf '%q ' "$bin" "$work/led.yaml") 2>/dev/null; echo \"status=\$?\"; stty -a | tr ' ;' '\n\n' | grep -x -e echo -e -echo -e icanon -e -icanon; read _" ||
+		fail "tmux could not start"
+	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
+	keys Enter
+	wait_for "Convergence"
+	keys Down e 1.8k Enter
+	wait_for "RS       1.8 kohm"
+	t0=$(date +%s%N)
+	keys 'C-\'
+	wait_for "status=131"
+	t1=$(date +%s%N)
+	echo "Ctrl-\\ to the shell's prompt: $(( (t1 - t0) / 1000000 )) ms (polled every 100 ms)"
+	grep -q "$esc\[?1049l" "$out" || fail "the terminal was not restored after SIGQUIT"
+	screen | grep -qx echo || fail "echo is off after SIGQUIT"
+	screen | grep -qx icanon || fail "the terminal is left in cbreak mode"
+	rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
+	[ -n "$rec" ] || fail "no recovery file after SIGQUIT"
+	"$bin" check "$rec" >/dev/null || fail "the recovery file is not a valid session"
+	grep -qE 'rs: *1800' "$rec" || fail "the recovery file lacks rs = 1.8k"
+	keys Enter
+	wait_exit
+	echo "ok: SIGQUIT restored the terminal, wrote a valid recovery file, status 131"
+	;;
+interrupt)
+	# Ctrl-C is q: with no changes it quits at once; with changes it asks;
+	# at the question it answers no, like Esc; in a view it closes the view.
+	start 80 24 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	keys S
+	wait_for "Sensitivities at the first"
+	keys C-c
+	wait_gone "Sensitivities at the first"
+	keys Down '}'
+	wait_for "[modified]"
+	keys C-c
+	wait_for "unsaved changes: quit without saving? (y/n)"
+	keys C-c
+	wait_for "not quitting"
+	keys q
+	wait_for "quit without saving?"
+	keys y
+	wait_exit
+	start 80 24 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	keys C-c
+	wait_exit
+	ls "$XDG_STATE_HOME"/biasline/*.yaml >/dev/null 2>&1 && fail "a recovery file after a clean quit"
+	echo "ok: Ctrl-C quits like q, asks when unsaved, cancels the question, closes a view"
 	;;
 bytes)
 	# Bytes written for the first full draw and for each Space step.
@@ -646,7 +832,7 @@ signals)
 	wait_exit
 	out=$work/segv.bytes
 	start_piped 100 30 "$out" "" "$work/led.yaml"
-	wait_for "restore it?"
+	wait_for "restore them?"
 	pid=$(pane_pid)
 	kill -SEGV "$pid"
 	wait_exit
