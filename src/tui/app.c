@@ -1,10 +1,6 @@
 /*
- * app.c - the front end's state, its changes, and the event loop.
- *
- * One turn of the loop: act on a stop signal (save the recovery file and
- * leave), draw when something asked for it, then block on the next key.
- * Nothing polls while idle: the read blocks until a key, a resize or a
- * signal arrives.
+ * app.c - the state every pane shares and the services that change it
+ * (see app.h).  The event loop is in tui.c.
  */
 /* getpwnam() for "~user" in typed file names */
 #define _POSIX_C_SOURCE 200809L
@@ -13,7 +9,6 @@
 
 #include <math.h>
 #include <pwd.h>
-#include <signal.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -22,17 +17,6 @@
 #include <time.h>
 
 #include "session/recovery.h"
-#include "session/section_network.h"
-
-/* Consecutive failed reads that mean the terminal is gone. */
-#define APP_READ_FAILURES 8
-
-/* The panes, bottom to top: keys go to the top-most that takes them. */
-static const struct pane *const app_panes[] = {
-	&pane_plot, &pane_sweep, &pane_side, &pane_design, &pane_tol, &pane_sens,
-	&pane_help,
-	&pane_prompt,
-};
 
 /* Copy the string S into new memory (NULL when S is NULL or no memory). */
 static char *app_strdup(const char *s)
@@ -56,34 +40,14 @@ void app_message(struct app *a, bool error, const char *fmt, ...)
 	a->status_error = error;
 }
 
-/* Take the session's stored view: fixed ranges and zoom. */
-static void app_view_from_session(struct render_view *v, const struct session *s)
-{
-	const struct session_view *sv = &s->view;
-	if (!sv->autoscale) {
-		v->frame = FRAME_FIXED;
-		v->fixed = (struct render_window){ sv->v_min, sv->v_max,
-		                                   sv->i_min, sv->i_max };
-	}
-	if (isfinite(sv->zoom) && sv->zoom > 0.0)
-		v->zoom = sv->zoom;
-}
-
 /* Fill A from the options. */
 int app_init(struct app *a, const struct tui_options *opt, char *err,
              size_t errlen)
 {
 	memset(a, 0, sizeof *a);
 	a->opt = *opt;
-	render_view_init(&a->view);
-	a->view.unicode = opt->unicode;
-	if (grid_init(&a->grid, 0, 0) != 0) {
-		snprintf(err, errlen, "out of memory");
-		return -1;
-	}
 	a->st = stepper_create();
 	if (a->st == NULL) {
-		grid_fini(&a->grid);
 		snprintf(err, errlen, "out of memory");
 		return -1;
 	}
@@ -93,18 +57,14 @@ int app_init(struct app *a, const struct tui_options *opt, char *err,
 		if (ss != SESSION_OK) {
 			session_error_format(&serr, err, errlen);
 			stepper_destroy(a->st);
-			grid_fini(&a->grid);
 			return ss == SESSION_NO_INPUT ? 66 : 65;
 		}
 		a->path = app_strdup(opt->path);
 	} else {
 		session_demo(&a->s);
 	}
-	app_view_from_session(&a->view, &a->s);
-	for (size_t k = 0; k < sizeof app_panes / sizeof app_panes[0]; k++)
-		if (app_panes[k]->init != NULL)
-			app_panes[k]->init(a);
 	app_resolve(a);
+	a->qlen = 0;   /* nobody listens yet: the panes start from the state */
 	app_message(a, false, "Space steps, g runs, ? lists every key");
 	return 0;
 }
@@ -114,66 +74,45 @@ void app_fini(struct app *a)
 {
 	stepper_destroy(a->st);
 	a->st = NULL;
-	grid_fini(&a->grid);
 	session_fini(&a->s);
 	free(a->path);
 	a->path = NULL;
 }
 
-/* Build the parameter rows of A's session. */
-size_t app_params(struct app *a, struct param *out, size_t max)
+/* Whether marks are Unicode. */
+bool app_unicode(const struct app *a)
 {
-	size_t n = 0;
-	struct source_spec *sp = &a->s.source;
-#define ADD(...) do { if (n < max) { out[n] = (struct param){ __VA_ARGS__ }; \
-	out[n].part = -1; if (out[n].value != NULL) out[n].cur = *out[n].value; \
-	n++; } } while (0)
-	/* A network source: its parts are edited; VS and RS are its reduction. */
-	const struct network *nw = a->s.network;
-	bool net = nw != NULL;
-	size_t nparts = net ? network_part_count(nw) : 0;
-	for (size_t k = 0; k < nparts && k < APP_MAX_NET_PARTS && n < max; k++) {
-		const struct network_part *pt = network_part(nw, k);
-		ADD(.id = PARAM_NET + (int)k, .label = pt->name,
-		    .kind = session_network_kind_unit(pt->kind), .cur = pt->value,
-		    .log_step = pt->kind == NETWORK_RESISTOR);
-		out[n - 1].part = (long)k;
-		snprintf(out[n - 1].path, sizeof out[n - 1].path, "%s%s",
-		         SESSION_NETWORK_PREFIX, pt->name);
+	return a->opt.unicode;
+}
+
+/* Mark the plot's content as changed. */
+void app_touch(struct app *a)
+{
+	a->gen++;
+}
+
+/* Queue an action. */
+void app_post(struct app *a, const struct action *act)
+{
+	if (a->qlen >= APP_QUEUE) {
+		app_message(a, true, "too many requests at once: one was dropped");
+		return;
 	}
-	if (sp->form == SOURCE_THEVENIN) {
-		ADD(.id = PARAM_SOURCE_A, .label = net ? "VS (net)" : "VS",
-		    .kind = QTY_VOLTAGE, .value = &sp->vs, .readonly = net);
-		ADD(.id = PARAM_SOURCE_B, .label = net ? "RS (net)" : "RS",
-		    .kind = QTY_RESISTANCE, .value = &sp->rs, .log_step = true,
-		    .readonly = net);
-	} else {
-		ADD(.id = PARAM_SOURCE_A, .label = net ? "IS (net)" : "IS",
-		    .kind = QTY_CURRENT, .value = &sp->is, .readonly = net);
-		ADD(.id = PARAM_SOURCE_B, .label = net ? "RP (net)" : "RP",
-		    .kind = QTY_RESISTANCE, .value = &sp->rp, .log_step = true,
-		    .readonly = net);
-	}
-	const struct model_type *mt = a->s.device.type;
-	for (size_t k = 0; mt != NULL && k < mt->nparams; k++) {
-		const struct model_param *mp = &mt->params[k];
-		double fine = 0.0, coarse = 0.0;
-		if (mp->kind == QTY_TEMPERATURE) {
-			fine = 1.0;
-			coarse = 10.0;
-		}
-		ADD(.id = PARAM_DEVICE + (int)k, .label = mp->label, .kind = mp->kind,
-		    .value = &a->s.device.p[k], .log_step = mp->log_step,
-		    .fine = fine, .coarse = coarse);
-	}
-	ADD(.id = PARAM_METHOD, .label = "method", .kind = QTY_NUMBER, .choice = true);
-	ADD(.id = PARAM_ORDER, .label = "order", .kind = QTY_NUMBER, .choice = true);
-	ADD(.id = PARAM_START, .label = "start V", .kind = QTY_VOLTAGE,
-	    .value = &a->s.solver.start_v, .fine = 0.0, .coarse = 0.0);
-	ADD(.id = PARAM_OMEGA, .label = "omega", .kind = QTY_NUMBER,
-	    .value = &a->s.solver.omega, .fine = 0.01, .coarse = 0.1);
-#undef ADD
-	return n;
+	a->queue[(a->qhead + a->qlen) % APP_QUEUE] = *act;
+	a->qlen++;
+}
+
+/* Ask a question on the bottom line. */
+void app_ask(struct app *a, const struct pane *from, int tag, bool yesno,
+             const char *question, const char *initial, const char *error)
+{
+	struct action act = { .kind = ACT_ASK, .to = NULL, .from = from,
+	                      .tag = tag, .yesno = yesno,
+	                      .default_no = from == NULL && tag == APP_ASK_OVERWRITE };
+	snprintf(act.text, sizeof act.text, "%s", question);
+	snprintf(act.initial, sizeof act.initial, "%s", initial ? initial : "");
+	snprintf(act.error, sizeof act.error, "%s", error ? error : "");
+	app_post(a, &act);
 }
 
 /* The stepper options for the path: the session's, "auto" drawn as projections. */
@@ -185,99 +124,73 @@ static struct solve_options app_path_options(const struct app *a)
 	return o;
 }
 
-/* Re-solve and restart the path. */
+/* Solve again and restart the path. */
 void app_resolve(struct app *a)
 {
-	a->grid_ok = false;
+	app_touch(a);
+	a->running = false;
 	a->res.n = 0;
 	a->res.status = SOLVE_BAD_INPUT;
 	a->res.message[0] = '\0';
 	a->pb_ok = session_problem(&a->s, &a->pb, a->pb_err, sizeof a->pb_err) == 0;
-	if (!a->pb_ok)
-		return;
-	struct solve_options so = a->s.solver;
-	so.method = METHOD_AUTO;
-	if (solve_problem(&a->pb, &so, &a->res) != SOLVE_OK)
-		a->res.n = 0;
-	struct solve_options po = app_path_options(a);
-	stepper_init(a->st, &a->pb, &po);
-	if (a->sweep.open)
-		pane_sweep_refresh(a);
+	if (a->pb_ok) {
+		struct solve_options so = a->s.solver;
+		so.method = METHOD_AUTO;
+		if (solve_problem(&a->pb, &so, &a->res) != SOLVE_OK)
+			a->res.n = 0;
+		struct solve_options po = app_path_options(a);
+		stepper_init(a->st, &a->pb, &po);
+	}
+	struct action changed = { .kind = ACT_CHANGED };
+	app_post(a, &changed);
 }
 
-/* The parts of a session a parameter change can touch. */
-struct app_backup {
-	struct source_spec source;
-	struct device device;
-	struct solve_options solver;
-};
-
-/* Check the changed session: source, device, solver and the problem. */
-static int app_check(struct app *a, char *err, size_t errlen)
+/* Set KEY to VALUE, remembering the old value. */
+int app_param_set(struct app *a, const char *key, double value, char *err,
+                  size_t errlen)
 {
-	struct source src;
-	if (source_from_spec(&a->s.source, &src, err, errlen) != 0)
-		return -1;
-	if (device_validate(&a->s.device, err, errlen) != 0)
-		return -1;
-	double w = a->s.solver.omega;
-	if (!(w >= 0.0 && w < 2.0)) {
-		snprintf(err, errlen, "omega: must be 0 (optimal) or in (0, 2)");
+	struct param p;
+	if (params_find(&a->s, key, &p) != 0) {
+		snprintf(err, errlen, "%s: this session has no such value", key);
 		return -1;
 	}
-	double v0 = a->s.solver.start_v;
-	if (!isnan(v0) && !isfinite(v0)) {
-		snprintf(err, errlen, "start: must be a finite voltage");
+	double old = params_get(&a->s, &p);
+	if (params_set(&a->s, &p, value, err, errlen) != 0)
 		return -1;
+	if (a->nundo == APP_UNDO) {
+		memmove(a->undo, a->undo + 1, (APP_UNDO - 1) * sizeof a->undo[0]);
+		a->nundo--;
 	}
-	struct problem pb;
-	return session_problem(&a->s, &pb, err, errlen);
-}
-
-/* Set a network part's value: reduce again, check, or put the old back. */
-static int app_part_set(struct app *a, const struct param *p, double value,
-                        char *err, size_t errlen)
-{
-	if (session_network_set_value(&a->s, p->path, value, err, errlen) != 0)
-		return -1;
-	if (app_check(a, err, errlen) != 0) {
-		char ignored[256];
-		session_network_set_value(&a->s, p->path, p->cur, ignored,
-		                          sizeof ignored);
-		return -1;
-	}
+	struct app_change *c = &a->undo[a->nundo++];
+	snprintf(c->key, sizeof c->key, "%s", key);
+	c->old = old;
 	a->dirty = true;
 	app_resolve(a);
 	return 0;
 }
 
-/* Set a parameter after checking it. */
-int app_param_set(struct app *a, const struct param *p, double value,
-                  char *err, size_t errlen)
+/* Undo the last change. */
+int app_undo(struct app *a)
 {
-	if (p->readonly) {
-		snprintf(err, errlen, "%s is the equivalent of the session's source "
-		         "network: change one of the network's parts (listed first)",
-		         p->label);
-		return -1;
+	while (a->nundo > 0) {
+		struct app_change c = a->undo[--a->nundo];
+		struct param p;
+		char err[256];
+		/* A row the session no longer has (a model changed) is skipped. */
+		if (params_find(&a->s, c.key, &p) != 0 ||
+		    params_set(&a->s, &p, c.old, err, sizeof err) != 0)
+			continue;
+		char buf[64];
+		params_format(&a->s, &p, !app_unicode(a), buf, sizeof buf);
+		a->dirty = true;
+		app_resolve(a);
+		struct action sel = { .kind = ACT_SELECT };
+		snprintf(sel.text, sizeof sel.text, "%s", c.key);
+		app_post(a, &sel);
+		app_message(a, false, "undone: %s = %s", p.label, buf);
+		return 0;
 	}
-	if (p->part >= 0)
-		return app_part_set(a, p, value, err, errlen);
-	if (p->value == NULL) {
-		snprintf(err, errlen, "%s: choose with + and -", p->label);
-		return -1;
-	}
-	struct app_backup b = { a->s.source, a->s.device, a->s.solver };
-	*p->value = value;
-	if (app_check(a, err, errlen) != 0) {
-		a->s.source = b.source;
-		a->s.device = b.device;
-		a->s.solver = b.solver;
-		return -1;
-	}
-	a->dirty = true;
-	app_resolve(a);
-	return 0;
+	return -1;
 }
 
 /* Expand "~" and "~user" at the start of a typed file name. */
@@ -330,15 +243,20 @@ bool app_is_own_file(const struct app *a, const char *path)
 	return x.st_dev == y.st_dev && x.st_ino == y.st_ino;
 }
 
+/* Ask for a file name to save to. */
+void app_ask_save_as(struct app *a, const char *initial, const char *error)
+{
+	app_ask(a, NULL, APP_ASK_SAVE_AS, false, "save as: ", initial, error);
+}
+
 /* Save to PATH or the session's own file. */
 int app_save(struct app *a, const char *path)
 {
 	const char *target = path != NULL ? path : a->path;
 	if (target == NULL) {
-		pane_prompt_open(a, PROMPT_SAVE_AS, "");
+		app_ask_save_as(a, "", NULL);
 		return -1;
 	}
-	a->s.view.zoom = a->view.zoom;
 	struct session_error serr;
 	enum session_status ss = session_save_file(&a->s, target, &serr);
 	if (ss != SESSION_OK) {
@@ -363,152 +281,157 @@ int app_save(struct app *a, const char *path)
 	return 0;
 }
 
-/* Draw the "terminal too small" screen for ROWS x COLS. */
-static void app_draw_small(struct app *a, int rows, int cols)
+/* Step the path once. */
+void app_step(struct app *a)
 {
-	char msg[128];
-	snprintf(msg, sizeof msg, "terminal too small: %dx%d, needs at least %dx%d",
-	         cols, rows, APP_MIN_COLS, APP_MIN_ROWS);
-	int w = render_text_width(msg);
-	int r = rows / 2, c = w < cols ? (cols - w) / 2 : 0;
-	term_text(&a->term, r > 0 ? r - 1 : 0, c, msg, cols, TS_ERROR);
-	const char *hint = "resize the window, or press q to quit";
-	int hw = render_text_width(hint);
-	term_text(&a->term, r + 1 < rows ? r + 1 : 0, hw < cols ? (cols - hw) / 2 : 0,
-	          hint, cols, TS_NORMAL);
-}
-
-/* Width of the side pane on a screen COLS wide (0 when hidden). */
-static int app_side_width(const struct app *a, int cols)
-{
-	if (a->side_hidden)
-		return 0;
-	return cols >= 140 ? 52 : cols >= 100 ? 44 : 32;
-}
-
-/* Draw the title bar on row 0, COLS wide. */
-static void app_draw_title(struct app *a, int cols)
-{
-	term_fill(&a->term, 0, 0, cols, TS_TITLE);
-	char right[160] = "";
-	int ascii = a->view.unicode ? 0 : 1;
-	if (a->res.n > 0) {
-		char v[48], i[48];
-		qty_format(v, sizeof v, a->res.pts[0].v, QTY_VOLTAGE, 5, ascii);
-		qty_format(i, sizeof i, a->res.pts[0].i, QTY_CURRENT, 5, ascii);
-		snprintf(right, sizeof right, "point %s, %s%s  ? help ", v, i,
-		         a->res.n > 1 ? " (+more)" : "");
+	enum step_status st = stepper_status(a->st);
+	if (!a->pb_ok) {
+		app_message(a, true, "%s", a->pb_err);
+	} else if (st != STEP_CONTINUE) {
+		app_message(a, st != STEP_CONVERGED, "the path has stopped: %s "
+		            "(r restarts it)", step_status_name(st));
 	} else {
-		snprintf(right, sizeof right, "no operating point  ? help ");
+		stepper_step(a->st);
+		a->status[0] = '\0';
 	}
-	int rw = render_text_width(right);
-	/* The name loses its start, never the modified mark, when short of room. */
-	char head[64];
-	snprintf(head, sizeof head, " biasline %s ", a->dirty ? "[modified]" : "");
-	const char *name = a->path != NULL ? a->path : "demo (not saved to a file)";
-	int room = cols - rw - 2 - render_text_width(head);
-	int nw = render_text_width(name);
-	char shown[512];
-	if (room > 3 && nw > room) {
-		const char *p = name;
-		for (int skip = nw - (room - 3); skip > 0 && *p != '\0'; skip--)
-			render_utf8_next(&p);
-		snprintf(shown, sizeof shown, "...%s", p);
-	} else {
-		snprintf(shown, sizeof shown, "%s", name);
-	}
-	int c = term_text(&a->term, 0, 0, head, cols - rw - 1, TS_TITLE);
-	term_text(&a->term, 0, c, shown, cols - rw - 1 - c, TS_TITLE);
-	term_text(&a->term, 0, cols - rw, right, rw, TS_TITLE);
+	app_touch(a);
 }
 
-/* Draw the whole screen. */
-void app_draw(struct app *a)
+/* Take one chunk of a run. */
+void app_run_chunk(struct app *a)
 {
-	int rows, cols;
-	term_size(&a->term, &rows, &cols);
-	term_begin(&a->term);
-	term_cursor(&a->term, -1, 0);
-	if (rows < APP_MIN_ROWS || cols < APP_MIN_COLS) {
-		a->grid_ok = false;
-		app_draw_small(a, rows, cols);
-		/* a question is never hidden: it wraps above the bottom line;
-		 * the last message (what an answer did) shows there too */
-		if (a->prompt.kind != PROMPT_NONE || a->status[0] != '\0') {
-			struct rect bottom = { rows - 1, 0, 1, cols };
-			pane_prompt.draw(a, &bottom);
-		}
-		term_end(&a->term);
+	if (!a->pb_ok) {
+		a->running = false;
+		app_message(a, true, "%s", a->pb_err);
 		return;
 	}
-	app_draw_title(a, cols);
-	int side = app_side_width(a, cols);
-	struct rect plot = { 1, 0, rows - 2, cols - side };
-	struct rect pane = { 1, cols - side, rows - 2, side };
-	struct rect all = { 0, 0, rows, cols };
-	struct rect bottom = { rows - 1, 0, 1, cols };
-	if (a->sweep.open)
-		pane_sweep.draw(a, &plot);
-	else
-		pane_plot.draw(a, &plot);
-	if (side > 0)
-		pane_side.draw(a, &pane);
-	struct rect body = { 1, 0, rows - 2, cols };
-	if (a->design.open)
-		pane_design.draw(a, &body);
-	if (a->tol.open)
-		pane_tol.draw(a, &body);
-	if (a->sens.open)
-		pane_sens.draw(a, &body);
-	if (a->help)
-		pane_help.draw(a, &all);
-	pane_prompt.draw(a, &bottom);
-	term_end(&a->term);
+	for (int k = 0; k < APP_RUN_CHUNK; k++)
+		if (stepper_status(a->st) != STEP_CONTINUE ||
+		    stepper_step(a->st) != STEP_CONTINUE)
+			break;
+	app_touch(a);
+	enum step_status st = stepper_status(a->st);
+	if (st == STEP_CONTINUE)
+		return;
+	a->running = false;
+	size_t n;
+	stepper_trace(a->st, &n);
+	app_message(a, st != STEP_CONVERGED, "%s after %zu projections",
+	            step_status_name(st), n - 1);
 }
 
-/* Handle a key. */
-unsigned app_key(struct app *a, int key)
+/* Answer the restore question: Y restores, otherwise the file is set aside. */
+static unsigned app_restore(struct app *a, bool yes)
 {
-	if (key == TK_RESIZE) {
-		a->grid_ok = false;
+	char err[1024];
+	if (!yes) {
+		char aside[RECOVERY_PATH_MAX];
+		if (recovery_set_aside(a->path, aside, sizeof aside, err,
+		                       sizeof err) != 0) {
+			app_message(a, true, "%s", err);
+			return APP_HANDLED | APP_REDRAW;
+		}
+		const char *base = strrchr(aside, '/');
+		app_message(a, false, "recovery file set aside as %s",
+		            base != NULL ? base + 1 : aside);
 		return APP_HANDLED | APP_REDRAW;
 	}
-	/* Ctrl-C is q: it quits (asking when unsaved) or closes a view; in a
-	 * prompt or question it cancels, as Esc does. */
-	if (key == TK_INTERRUPT)
-		key = a->prompt.kind != PROMPT_NONE ? TK_ESC : 'q';
-	for (size_t k = sizeof app_panes / sizeof app_panes[0]; k-- > 0;) {
-		if (app_panes[k]->key == NULL)
-			continue;
-		unsigned f = app_panes[k]->key(a, key);
-		if (f & APP_HANDLED)
-			return f;
+	struct session tmp;
+	char p[RECOVERY_PATH_MAX];
+	struct session_error serr;
+	if (recovery_find(a->path, p, sizeof p) != 1) {
+		app_message(a, true, "cannot restore: the recovery file is gone");
+		return APP_HANDLED | APP_REDRAW;
 	}
-	int rows, cols;
-	term_size(&a->term, &rows, &cols);
-	if (rows < APP_MIN_ROWS || cols < APP_MIN_COLS) {
-		/* Only quitting makes sense on the too-small screen. */
-		if (key != 'q' && key != 12)
-			return APP_HANDLED;
+	if (session_load_file(&tmp, p, &serr) != SESSION_OK) {
+		session_error_format(&serr, err, sizeof err);
+		app_message(a, true, "cannot restore: %s", err);
+		return APP_HANDLED | APP_REDRAW;
 	}
-	unsigned f = keys_dispatch(a, key);
-	if (!(f & APP_HANDLED)) {
-		app_message(a, true, "no action on that key: ? lists the keys");
-		f |= APP_REDRAW;
-	}
-	return f;
+	session_fini(&a->s);
+	a->s = tmp;
+	a->dirty = true;
+	a->nundo = 0;
+	app_resolve(a);
+	app_message(a, false, "restored the unsaved changes (s saves them)");
+	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Write the recovery file when there is something to recover. */
-static void app_write_recovery(struct app *a)
+/* Save to the name PATH the user confirmed (TYPED as typed); a failure
+ * asks for the name again with the reason. */
+static unsigned app_save_to(struct app *a, const char *path, const char *typed)
 {
-	if (!a->dirty)
-		return;
-	struct session_error serr;
-	if (recovery_save(&a->s, a->path, &serr) != SESSION_OK) {
-		char msg[1024];
-		session_error_format(&serr, msg, sizeof msg);
-		fprintf(stderr, "biasline: recovery file not written: %s\n", msg);
+	char name[sizeof a->pending];
+	snprintf(name, sizeof name, "%s", path);
+	if (app_save(a, name) != 0) {
+		char why[sizeof a->status];
+		snprintf(why, sizeof why, "%s", a->status);
+		app_ask_save_as(a, typed, why);
+	}
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/*
+ * Take a typed file name: expand ~, refuse a folder, and ask before
+ * replacing a file other than the session's own.
+ */
+static unsigned app_save_as(struct app *a, const char *typed)
+{
+	if (typed[0] == '\0') {
+		app_ask_save_as(a, "", "type a file name, or Esc");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	char path[sizeof a->pending];
+	if (app_expand_path(typed, path, sizeof path) != 0) {
+		app_ask_save_as(a, typed, path);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	struct stat st;
+	if (stat(path, &st) == 0) {
+		if (S_ISDIR(st.st_mode)) {
+			char why[1100];
+			snprintf(why, sizeof why, "%.1000s is a folder: type a file name "
+			         "in it", path);
+			app_ask_save_as(a, typed, why);
+			return APP_HANDLED | APP_REDRAW;
+		}
+		if (!app_is_own_file(a, path)) {
+			snprintf(a->pending, sizeof a->pending, "%s", path);
+			snprintf(a->pending_typed, sizeof a->pending_typed, "%.255s", typed);
+			char q[1100];
+			snprintf(q, sizeof q, "%.1000s exists: replace it? (y/N) ", path);
+			app_ask(a, NULL, APP_ASK_OVERWRITE, true, q, NULL, NULL);
+			return APP_HANDLED | APP_REDRAW;
+		}
+	}
+	return app_save_to(a, path, typed);
+}
+
+/* Take the answer to one of the app's own questions. */
+unsigned app_answer(struct app *a, const struct action *act)
+{
+	bool yes = strcmp(act->text, "y") == 0;
+	switch (act->tag) {
+	case APP_ASK_SAVE_AS:
+		return app_save_as(a, act->text);
+	case APP_ASK_OVERWRITE:
+		if (yes)
+			return app_save_to(a, a->pending, a->pending_typed);
+		app_ask_save_as(a, a->pending_typed,
+		                "not replaced: type another name, or Esc");
+		return APP_HANDLED | APP_REDRAW;
+	case APP_ASK_QUIT:
+		if (yes) {
+			char err[512];
+			recovery_remove(a->path, err, sizeof err);
+			return APP_HANDLED | APP_QUIT;
+		}
+		app_message(a, false, "not quitting");
+		return APP_HANDLED | APP_REDRAW;
+	case APP_ASK_RESTORE:
+		return app_restore(a, yes);
+	default:
+		return APP_HANDLED | APP_REDRAW;
 	}
 }
 
@@ -516,18 +439,23 @@ static void app_write_recovery(struct app *a)
  * Offer the recovery file before anything else when it is newer than the
  * file (work the file lacks); an older one is set aside, not deleted.
  */
-static void app_offer_recovery(struct app *a)
+void app_offer_recovery(struct app *a)
 {
 	char p[RECOVERY_PATH_MAX], err[512];
 	time_t when = 0;
 	enum recovery_state rs = recovery_check(a->path, p, sizeof p, &when);
 	if (rs == RECOVERY_NEWER) {
-		pane_prompt_open(a, PROMPT_RESTORE, NULL);
+		char stamp[64];
 		struct tm tm;
 		if (localtime_r(&when, &tm) == NULL ||
-		    strftime(a->prompt.when, sizeof a->prompt.when,
-		             "%Y-%m-%d %H:%M", &tm) == 0)
-			snprintf(a->prompt.when, sizeof a->prompt.when, "earlier");
+		    strftime(stamp, sizeof stamp, "%Y-%m-%d %H:%M", &tm) == 0)
+			snprintf(stamp, sizeof stamp, "earlier");
+		char q[512];
+		snprintf(q, sizeof q, "a recovery file holds unsaved changes from %s, "
+		         "newer than the %s: restore them? (y restores, n sets "
+		         "the recovery file aside) ", stamp,
+		         a->path != NULL ? "file" : "demo");
+		app_ask(a, NULL, APP_ASK_RESTORE, true, q, NULL, NULL);
 	} else if (rs == RECOVERY_OLDER) {
 		char aside[RECOVERY_PATH_MAX];
 		if (recovery_set_aside(a->path, aside, sizeof aside, err,
@@ -542,51 +470,15 @@ static void app_offer_recovery(struct app *a)
 	}
 }
 
-/* Run the front end until quit. */
-int app_run(struct app *a)
+/* Write the recovery file when there is something to recover. */
+void app_write_recovery(struct app *a)
 {
-	char err[512];
-	if (term_open(&a->term, a->opt.color, err, sizeof err) != 0) {
-		fprintf(stderr, "biasline: %s\n", err);
-		return APP_EXIT_UNAVAILABLE;
+	if (!a->dirty)
+		return;
+	struct session_error serr;
+	if (recovery_save(&a->s, a->path, &serr) != SESSION_OK) {
+		char msg[1024];
+		session_error_format(&serr, msg, sizeof msg);
+		fprintf(stderr, "biasline: recovery file not written: %s\n", msg);
 	}
-	app_offer_recovery(a);
-	int status = 0, failures = 0;
-	bool redraw = true;
-	for (;;) {
-		int sig = term_stop_signal();
-		if (sig != 0) {
-			term_close(&a->term);
-			app_write_recovery(a);
-			status = 128 + sig;
-			break;
-		}
-		if (redraw) {
-			app_draw(a);
-			redraw = false;
-		}
-		int key = term_read_key(&a->term, -1);
-		if (key == TK_ERROR) {
-			if (term_stop_signal() != 0)
-				continue;
-			if (++failures >= APP_READ_FAILURES) {
-				/* The terminal is gone (hangup without a signal). */
-				term_close(&a->term);
-				app_write_recovery(a);
-				status = 74;
-				break;
-			}
-			continue;
-		}
-		failures = 0;
-		if (key == TK_NONE)
-			continue;
-		unsigned f = app_key(a, key);
-		if (f & APP_QUIT)
-			break;
-		if (f & (APP_REDRAW | APP_REPLOT))
-			redraw = true;
-	}
-	term_close(&a->term);
-	return status;
 }

@@ -12,12 +12,25 @@
 #include <string.h>
 
 #include "core/safety.h"
+#include "core/design.h"
 #include "tui/app.h"
+#include "tui/panes.h"
+
+/* The question the design view asks: a target device current. */
+#define DESIGN_ASK_TARGET 1
+
+/* The design view's own state: a target, the rows the core designed. */
+struct design_state {
+	bool open;
+	bool ok;                        /* RES holds rows (else RES.message) */
+	struct design_request rq;
+	struct design_result res;
+	int sel;
+};
 
 /* Run the design for A's request and open the view with the result. */
-static void pane_design_run(struct app *a)
+static void pane_design_run(struct app *a, struct design_state *d)
 {
-	struct design_view *d = &a->design;
 	d->open = true;
 	d->sel = 0;
 	d->ok = false;
@@ -34,24 +47,39 @@ static void pane_design_run(struct app *a)
 }
 
 /* Open the view for the session's target, or ask for one. */
-void pane_design_open(struct app *a)
+static void pane_design_open(struct app *a, struct design_state *d)
 {
-	if (session_design_request(&a->s, &a->design.rq) == 0) {
-		pane_design_run(a);
+	if (session_design_request(&a->s, &d->rq) == 0) {
+		pane_design_run(a, d);
 		return;
 	}
-	pane_prompt_open(a, PROMPT_TARGET, NULL);
+	app_ask(a, &pane_design, DESIGN_ASK_TARGET, false,
+	        "design: target device current = ", NULL, NULL);
 }
 
-/* Design for a target device current and open the view. */
-void pane_design_target(struct app *a, double current)
+/* Design for a typed target device current and open the view. */
+static void pane_design_target(struct app *a, struct design_state *d,
+                               const char *text)
 {
-	struct design_request *rq = &a->design.rq;
+	double v;
+	char err[256];
+	if (qty_parse(text, QTY_CURRENT, &v, err, sizeof err) != QTY_OK) {
+		app_ask(a, &pane_design, DESIGN_ASK_TARGET, false,
+		        "design: target device current = ", text, err);
+		return;
+	}
+	if (!(v > 0.0) || !isfinite(v)) {
+		app_ask(a, &pane_design, DESIGN_ASK_TARGET, false,
+		        "design: target device current = ", text,
+		        "the target current must be above zero");
+		return;
+	}
+	struct design_request *rq = &d->rq;
 	rq->target = DESIGN_CURRENT;
-	rq->value = current;
+	rq->value = v;
 	rq->unknown = DESIGN_FOR_RS;
 	rq->series = a->s.analysis.target.series;
-	pane_design_run(a);
+	pane_design_run(a, d);
 }
 
 /* The unit of the request's target. */
@@ -62,10 +90,10 @@ static enum qty_kind pane_design_unit(enum design_target t)
 }
 
 /* Draw the design view centred in BOX. */
-static void pane_design_draw(struct app *a, const struct rect *box)
+static void pane_design_draw(struct app *a, void *self, const struct rect *box)
 {
-	const struct design_view *d = &a->design;
-	int ascii = a->view.unicode ? 0 : 1;
+	const struct design_state *d = self;
+	int ascii = app_unicode(a) ? 0 : 1;
 	bool for_rs = d->rq.unknown == DESIGN_FOR_RS;
 	int w = box->cols - 4 < 74 ? box->cols - 4 : 74;
 	/* The usual caution for any row's point (mains voltage, dissipation). */
@@ -162,9 +190,8 @@ static void pane_design_draw(struct app *a, const struct rect *box)
 }
 
 /* Apply the chosen row to the session: RS (or VS) takes its value. */
-static unsigned pane_design_apply(struct app *a)
+static unsigned pane_design_apply(struct app *a, struct design_state *d)
 {
-	struct design_view *d = &a->design;
 	if (!d->ok || d->sel < 0 || (size_t)d->sel >= d->res.nrows)
 		return APP_HANDLED | APP_REDRAW;
 	const struct design_row *r = &d->res.rows[d->sel];
@@ -174,34 +201,30 @@ static unsigned pane_design_apply(struct app *a)
 		            "this session's source is a Norton one");
 		return APP_HANDLED | APP_REDRAW;
 	}
-	struct param ps[APP_MAX_PARAMS];
-	size_t n = app_params(a, ps, APP_MAX_PARAMS);
-	int want = for_rs ? PARAM_SOURCE_B : PARAM_SOURCE_A;
-	for (size_t k = 0; k < n; k++) {
-		if (ps[k].id != want)
-			continue;
-		char err[256];
-		if (app_param_set(a, &ps[k], r->value, err, sizeof err) != 0) {
-			app_message(a, true, "%s", err);
-			return APP_HANDLED | APP_REDRAW;
-		}
-		char b[64];
-		app_params(a, ps, APP_MAX_PARAMS);
-		pane_side_value(a, &ps[k], b, sizeof b);
-		app_message(a, false, "%s = %s (the %s row of the design)", ps[k].label,
-		            b, design_row_name(r->kind));
-		a->sel = (int)k;
-		d->open = false;
+	const char *key = for_rs ? "rs" : "vs";
+	char err[256];
+	if (app_param_set(a, key, r->value, err, sizeof err) != 0) {
+		app_message(a, true, "%s", err);
 		return APP_HANDLED | APP_REDRAW;
 	}
+	struct param p;
+	char b[64] = "";
+	if (params_find(&a->s, key, &p) == 0)
+		params_format(&a->s, &p, !app_unicode(a), b, sizeof b);
+	app_message(a, false, "%s = %s (the %s row of the design)", p.label, b,
+	            design_row_name(r->kind));
+	struct action sel = { .kind = ACT_SELECT };
+	snprintf(sel.text, sizeof sel.text, "%s", key);
+	app_post(a, &sel);
+	d->open = false;
 	return APP_HANDLED | APP_REDRAW;
 }
 
 /* Keys while the view is open: choose, apply, new target, close. */
-static unsigned pane_design_key(struct app *a, int key)
+static unsigned pane_design_key(struct app *a, void *self, int key)
 {
-	struct design_view *d = &a->design;
-	if (!d->open || key == TK_RESIZE)
+	struct design_state *d = self;
+	if (key == TK_RESIZE)
 		return 0;
 	switch (key) {
 	case TK_UP:
@@ -213,10 +236,11 @@ static unsigned pane_design_key(struct app *a, int key)
 			d->sel++;
 		break;
 	case TK_ENTER:
-		return pane_design_apply(a);
+		return pane_design_apply(a, d);
 	case 't':
 		d->open = false;
-		pane_prompt_open(a, PROMPT_TARGET, NULL);
+		app_ask(a, &pane_design, DESIGN_ASK_TARGET, false,
+		        "design: target device current = ", NULL, NULL);
 		break;
 	case TK_ESC:
 	case 'q':
@@ -231,16 +255,34 @@ static unsigned pane_design_key(struct app *a, int key)
 	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Start closed. */
-static void pane_design_init(struct app *a)
+/* Open on D; take a typed target. */
+static unsigned pane_design_act(struct app *a, void *self,
+                                const struct action *act)
 {
-	memset(&a->design, 0, sizeof a->design);
+	struct design_state *d = self;
+	if (act->kind == ACT_OPEN)
+		pane_design_open(a, d);
+	else if (act->kind == ACT_ANSWER && act->tag == DESIGN_ASK_TARGET)
+		pane_design_target(a, d, act->text);
+	else
+		return 0;
+	return APP_REDRAW;
+}
+
+/* Visible while open. */
+static bool pane_design_visible(const struct app *a, const void *self)
+{
+	(void)a;
+	return ((const struct design_state *)self)->open;
 }
 
 /* The design overlay. */
 const struct pane pane_design = {
 	.name = "design",
-	.init = pane_design_init,
+	.slot = SLOT_BODY,
+	.size = sizeof(struct design_state),
+	.visible = pane_design_visible,
 	.key = pane_design_key,
 	.draw = pane_design_draw,
+	.act = pane_design_act,
 };

@@ -1,20 +1,23 @@
 /*
- * pane_help.c - the help overlay, generated from the key table.
+ * pane_help.c - the help overlay, generated from the key table's lines.
  */
-#include <math.h>
 #include <stdbool.h>
 #include <stdio.h>
-#include <stdlib.h>
-#include <string.h>
 
 #include "tui/app.h"
+#include "tui/panes.h"
 
-/* Draw the help overlay centred in R (two columns when one does not fit). */
-static void pane_help_draw(struct app *a, const struct rect *box)
+/* The overlay's own state. */
+struct help_state {
+	bool shown;
+};
+
+/* Draw the help overlay centred in BOX (two columns when one does not fit). */
+static void pane_help_draw(struct app *a, void *self, const struct rect *box)
 {
+	(void)self;
 	int rows = box->rows, cols = box->cols;
-	struct key_help help[64];
-	int n = (int)keys_help(help, 64);
+	int n = (int)a->nhelp;
 	int ncol = n + 3 <= rows - 2 ? 1 : 2;
 	int per = (n + ncol - 1) / ncol;
 	int w = ncol == 1 ? 52 : cols - 2;
@@ -33,32 +36,50 @@ static void pane_help_draw(struct app *a, const struct rect *box)
 		if (r >= h - 2)
 			continue;
 		char line[160];
-		snprintf(line, sizeof line, "%-11s %s", help[k].keys, help[k].help);
+		snprintf(line, sizeof line, "%-11s %s", a->help[k].keys,
+		         a->help[k].help);
 		term_text(&a->term, top + 1 + r, left + 1 + c * cw, line, cw - 1,
 		          TS_NORMAL);
 	}
 	term_fill(&a->term, top + h - 1, left, w, TS_TITLE);
 }
 
-/* Start hidden. */
-static void pane_help_init(struct app *a)
+/* While shown, any key closes the overlay. */
+static unsigned pane_help_key(struct app *a, void *self, int key)
 {
-	a->help = false;
+	(void)a;
+	struct help_state *h = self;
+	if (key == TK_RESIZE)
+		return 0;
+	h->shown = false;
+	return APP_HANDLED | APP_REDRAW;
 }
 
-/* While shown, any key closes the overlay; otherwise keys pass on. */
-static unsigned pane_help_key(struct app *a, int key)
+/* Show on its key. */
+static unsigned pane_help_act(struct app *a, void *self, const struct action *act)
 {
-	if (!a->help || key == TK_RESIZE)
+	(void)a;
+	struct help_state *h = self;
+	if (act->kind != ACT_OPEN)
 		return 0;
-	a->help = false;
-	return APP_HANDLED | APP_REDRAW;
+	h->shown = true;
+	return APP_REDRAW;
+}
+
+/* Visible while shown. */
+static bool pane_help_visible(const struct app *a, const void *self)
+{
+	(void)a;
+	return ((const struct help_state *)self)->shown;
 }
 
 /* The help overlay. */
 const struct pane pane_help = {
 	.name = "help",
-	.init = pane_help_init,
+	.slot = SLOT_SCREEN,
+	.size = sizeof(struct help_state),
+	.visible = pane_help_visible,
 	.key = pane_help_key,
 	.draw = pane_help_draw,
+	.act = pane_help_act,
 };

@@ -1,44 +1,143 @@
 /*
- * pane_plot.c - the plot pane: the renderer's grid copied to the screen.
- * The grid is rendered again only when the state or the size changed.
+ * pane_plot.c - the plot pane: the renderer's grid copied to the screen,
+ * and the view (frame, zoom, pan) it is drawn with.  The grid is rendered
+ * again only when what it shows or its size changed.
  */
 #include <math.h>
 #include <stdbool.h>
 #include <stdio.h>
-#include <stdlib.h>
 #include <string.h>
 
 #include "tui/app.h"
+#include "tui/panes.h"
 
-/* Draw the plot into R, rendering again only when something changed. */
-static void pane_plot_draw(struct app *a, const struct rect *box)
+/* Zoom factor of one zoom key press, and pan step in spans. */
+#define ZOOM_STEP 1.5
+#define PAN_STEP 0.2
+
+/* The plot's own state. */
+struct plot_state {
+	struct render_view view;
+	struct grid grid;
+	unsigned gen;      /* the app's change count the grid shows */
+	bool valid;        /* the grid shows GEN with VIEW */
+};
+
+/* Take the session's stored view: fixed ranges and zoom. */
+static void pane_plot_init(struct app *a, void *self)
 {
+	struct plot_state *p = self;
+	render_view_init(&p->view);
+	p->view.unicode = app_unicode(a);
+	grid_init(&p->grid, 0, 0);
+	const struct session_view *sv = &a->s.view;
+	if (!sv->autoscale) {
+		p->view.frame = FRAME_FIXED;
+		p->view.fixed = (struct render_window){ sv->v_min, sv->v_max,
+		                                        sv->i_min, sv->i_max };
+	}
+	if (isfinite(sv->zoom) && sv->zoom > 0.0)
+		p->view.zoom = sv->zoom;
+}
+
+/* Free the grid. */
+static void pane_plot_fini(void *self)
+{
+	struct plot_state *p = self;
+	grid_fini(&p->grid);
+}
+
+/* Draw the plot into BOX, rendering again only when something changed. */
+static void pane_plot_draw(struct app *a, void *self, const struct rect *box)
+{
+	struct plot_state *p = self;
 	int row = box->row, col = box->col, rows = box->rows, cols = box->cols;
 	if (!a->pb_ok) {
 		term_text(&a->term, row + 1, col + 1, a->pb_err, cols - 2, TS_ERROR);
 		return;
 	}
-	if (a->grid.rows != rows || a->grid.cols != cols) {
-		if (grid_resize(&a->grid, rows, cols) != 0) {
+	if (p->grid.rows != rows || p->grid.cols != cols) {
+		if (grid_resize(&p->grid, rows, cols) != 0) {
 			term_text(&a->term, row, col, "out of memory", cols, TS_ERROR);
 			return;
 		}
-		a->grid_ok = false;
+		p->valid = false;
 	}
-	if (!a->grid_ok) {
+	if (!p->valid || p->gen != a->gen) {
 		struct render_input in = { &a->pb, a->res.pts, a->res.n, NULL, 0 };
 		in.rows = stepper_trace(a->st, &in.nrows);
-		render_plot(&in, &a->view, &a->grid, NULL);
-		a->grid_ok = true;
+		render_plot(&in, &p->view, &p->grid, NULL);
+		p->valid = true;
+		p->gen = a->gen;
 	}
-	term_blit(&a->term, &a->grid, row, col);
+	term_blit(&a->term, &p->grid, row, col);
 }
 
+/* Cycle the frame: whole load line, operating point, the session's ranges. */
+static void pane_plot_frame(struct app *a, struct plot_state *p)
+{
+	bool has_fixed = !a->s.view.autoscale;
+	switch (p->view.frame) {
+	case FRAME_LINE: p->view.frame = FRAME_POINT; break;
+	case FRAME_POINT: p->view.frame = has_fixed ? FRAME_FIXED : FRAME_LINE; break;
+	default: p->view.frame = FRAME_LINE; break;
+	}
+	p->view.zoom = 1.0;
+	p->view.pan_v = p->view.pan_i = 0.0;
+	app_message(a, false, "frame: %s", p->view.frame == FRAME_LINE
+	            ? "whole load line" : p->view.frame == FRAME_POINT
+	            ? "operating point" : "the session's ranges");
+}
 
-/* The plot pane: no keys of its own (the key table moves the view). */
+/* The view keys (the key table hands them here). */
+static unsigned pane_plot_key(struct app *a, void *self, int key)
+{
+	struct plot_state *p = self;
+	struct render_view *v = &p->view;
+	switch (key) {
+	case 'z':
+		pane_plot_frame(a, p);
+		break;
+	case '>':
+		if (v->zoom < 1e6)
+			v->zoom *= ZOOM_STEP;
+		break;
+	case '<':
+		if (v->zoom > 1e-3)
+			v->zoom /= ZOOM_STEP;
+		break;
+	case TK_LEFT:
+		v->pan_v -= PAN_STEP / v->zoom;
+		break;
+	case TK_RIGHT:
+		v->pan_v += PAN_STEP / v->zoom;
+		break;
+	case TK_PGUP:
+		v->pan_i += PAN_STEP / v->zoom;
+		break;
+	case TK_PGDN:
+		v->pan_i -= PAN_STEP / v->zoom;
+		break;
+	case 'w':
+		v->zoom = 1.0;
+		v->pan_v = v->pan_i = 0.0;
+		break;
+	default:
+		return 0;
+	}
+	/* The session keeps the zoom: a save writes it. */
+	a->s.view.zoom = v->zoom;
+	p->valid = false;
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* The plot: always there, under the views that take its place. */
 const struct pane pane_plot = {
 	.name = "plot",
-	.init = NULL,
-	.key = NULL,
+	.slot = SLOT_MAIN,
+	.size = sizeof(struct plot_state),
+	.init = pane_plot_init,
+	.fini = pane_plot_fini,
+	.key = pane_plot_key,
 	.draw = pane_plot_draw,
 };

@@ -11,7 +11,20 @@
 #include <string.h>
 
 #include "core/paramref.h"
+#include "core/sensitivity.h"
 #include "tui/app.h"
+#include "tui/panes.h"
+
+/* Parameters the view lists at most. */
+#define SENS_MAX 48
+
+/* The sensitivity view's own state. */
+struct sens_state {
+	bool open;
+	size_t n;
+	struct sensitivity s[SENS_MAX];
+	char msg[256];          /* why nothing can be shown, or "" */
+};
 
 /* Order by |% of I per %|, largest first. */
 static int pane_sens_cmp(const void *x, const void *y)
@@ -26,9 +39,8 @@ static int pane_sens_cmp(const void *x, const void *y)
 }
 
 /* Open the view: the sensitivities at the first operating point. */
-void pane_sens_open(struct app *a)
+static void pane_sens_open(struct app *a, struct sens_state *v)
 {
-	struct sens_view *v = &a->sens;
 	v->open = true;
 	v->n = 0;
 	v->msg[0] = '\0';
@@ -42,7 +54,7 @@ void pane_sens_open(struct app *a)
 		return;
 	}
 	v->n = sensitivity_all(&a->pb, a->res.pts[0].v, a->res.pts[0].i, v->s,
-	                       APP_SENS_MAX);
+	                       SENS_MAX);
 	if (v->n == 0)
 		snprintf(v->msg, sizeof v->msg, "the point does not move smoothly "
 		         "with the parameters here (a fold, or a curve given as V(I))");
@@ -50,10 +62,10 @@ void pane_sens_open(struct app *a)
 }
 
 /* Draw the sensitivity view centred in BOX. */
-static void pane_sens_draw(struct app *a, const struct rect *box)
+static void pane_sens_draw(struct app *a, void *self, const struct rect *box)
 {
-	const struct sens_view *v = &a->sens;
-	int ascii = a->view.unicode ? 0 : 1;
+	const struct sens_state *v = self;
+	int ascii = app_unicode(a) ? 0 : 1;
 	int w = box->cols - 4 < 74 ? box->cols - 4 : 74;
 	int top = box->row, left = box->col + (box->cols - w) / 2;
 	int end = top + box->rows - 1;
@@ -89,27 +101,40 @@ static void pane_sens_draw(struct app *a, const struct rect *box)
 }
 
 /* Keys while the view is open: Esc (or S again) closes; others are held. */
-static unsigned pane_sens_key(struct app *a, int key)
+static unsigned pane_sens_key(struct app *a, void *self, int key)
 {
-	if (!a->sens.open || key == TK_RESIZE || key == 12)
+	(void)a;
+	struct sens_state *v = self;
+	if (key == TK_RESIZE || key == 12)
 		return 0;
 	if (key == TK_ESC || key == 'q' || key == 'S')
-		a->sens.open = false;
+		v->open = false;
 	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Start closed. */
-static void pane_sens_init(struct app *a)
+/* Open on S. */
+static unsigned pane_sens_act(struct app *a, void *self, const struct action *act)
 {
-	a->sens.open = false;
-	a->sens.n = 0;
-	a->sens.msg[0] = '\0';
+	if (act->kind != ACT_OPEN)
+		return 0;
+	pane_sens_open(a, self);
+	return APP_REDRAW;
+}
+
+/* Visible while open. */
+static bool pane_sens_visible(const struct app *a, const void *self)
+{
+	(void)a;
+	return ((const struct sens_state *)self)->open;
 }
 
 /* The sensitivity overlay. */
 const struct pane pane_sens = {
 	.name = "sensitivity",
-	.init = pane_sens_init,
+	.slot = SLOT_BODY,
+	.size = sizeof(struct sens_state),
+	.visible = pane_sens_visible,
 	.key = pane_sens_key,
 	.draw = pane_sens_draw,
+	.act = pane_sens_act,
 };

@@ -11,7 +11,25 @@
 #include <string.h>
 
 #include "core/safety.h"
+#include "core/diagnose.h"
+#include "core/eseries.h"
 #include "tui/app.h"
+#include "tui/panes.h"
+
+/* Multipliers of the fine and coarse nudges of log-step parameters. */
+#define LOG_FINE 1.01
+#define LOG_COARSE 1.1
+/* Relative fine and coarse nudges of linear parameters. */
+#define LIN_FINE 0.01
+#define LIN_COARSE 0.1
+/* The question the side pane asks: a value for the selected row. */
+#define SIDE_ASK_VALUE 1
+
+/* The side pane's own state. */
+struct side_state {
+	int sel;            /* the selected parameter row */
+	bool hidden;        /* Tab hid the pane */
+};
 
 /* Format VALUE compactly in engineering notation without a unit ("-4.31m"). */
 static char *pane_side_eng(char *buf, size_t n, double value, int sig)
@@ -69,30 +87,10 @@ static char *pane_side_eng(char *buf, size_t n, double value, int sig)
 static void pane_header(struct app *a, int row, int col, int w, const char *title)
 {
 	char buf[128];
-	snprintf(buf, sizeof buf, "%s %s ", a->view.unicode ? "\xE2\x94\x80" : "-", title);
+	snprintf(buf, sizeof buf, "%s %s ", app_unicode(a) ? "\xE2\x94\x80" : "-", title);
 	int n = term_text(&a->term, row, col, buf, w, TS_HEADER);
 	for (int k = n; k < w; k++)
-		term_put(&a->term, row, col + k, a->view.unicode ? 0x2500 : '-', TS_HEADER);
-}
-
-/* The shown value of parameter P into BUF. */
-void pane_side_value(struct app *a, const struct param *p, char *buf,
-                             size_t n)
-{
-	int ascii = a->view.unicode ? 0 : 1;
-	if (p->id == PARAM_METHOD) {
-		snprintf(buf, n, "%s", solve_method_name(a->s.solver.method));
-	} else if (p->id == PARAM_ORDER) {
-		snprintf(buf, n, "V from %s", a->s.solver.order == ORDER_VOLTAGE_FROM_LINE
-		         ? "line" : "device");
-	} else if (p->id == PARAM_START && isnan(p->cur)) {
-		snprintf(buf, n, "auto (0 V)");
-	} else if (p->id == PARAM_OMEGA && p->cur == 0.0) {
-		snprintf(buf, n, "0 (optimal)");
-	} else {
-		/* Values a person typed: no padding zeros ("12 fA", "110e-21 A"). */
-		qty_format_short(buf, n, p->cur, p->kind, 5, ascii);
-	}
+		term_put(&a->term, row, col + k, app_unicode(a) ? 0x2500 : '-', TS_HEADER);
 }
 
 /* Write at most LINES lines of TEXT word-wrapped to W cells from ROW. */
@@ -123,7 +121,7 @@ static int pane_wrap_lines(const char *text, int w)
 /* Draw the operating-point lines; returns the rows used. */
 static int pane_points(struct app *a, int row, int col, int w, int max)
 {
-	int ascii = a->view.unicode ? 0 : 1;
+	int ascii = app_unicode(a) ? 0 : 1;
 	int used = 0;
 	if (!a->pb_ok)
 		return pane_wrap(a, row, col, w, max, a->pb_err, TS_ERROR);
@@ -163,7 +161,7 @@ static int pane_extra(struct app *a, int row, int col, int w, int max)
 	    device_secondary(&a->pb.dev, &a->pb.src, a->res.pts[0].v,
 	                     a->res.pts[0].i, &ex) != 0)
 		return 0;
-	int ascii = a->view.unicode ? 0 : 1;
+	int ascii = app_unicode(a) ? 0 : 1;
 	int used = 0;
 	/* Items take up to 4 lines, 2 when there is a note (which gets the
 	 * rest: a warning says the values are approximate). */
@@ -228,24 +226,25 @@ static int pane_caution(struct app *a, int row, int col, int w, int max)
 }
 
 /* Draw the parameter list (scrolled to keep the selection); rows used. */
-static int pane_params(struct app *a, int row, int col, int w, int max)
+static int pane_params(struct app *a, struct side_state *sd, int row, int col,
+                       int w, int max)
 {
-	struct param ps[APP_MAX_PARAMS];
-	int n = (int)app_params(a, ps, APP_MAX_PARAMS);
-	if (a->sel >= n)
-		a->sel = n - 1;
-	if (a->sel < 0)
-		a->sel = 0;
+	struct param ps[PARAMS_MAX];
+	int n = (int)params_list(&a->s, ps, PARAMS_MAX);
+	if (sd->sel >= n)
+		sd->sel = n - 1;
+	if (sd->sel < 0)
+		sd->sel = 0;
 	int first = 0;
-	if (a->sel >= max)
-		first = a->sel - max + 1;
+	if (sd->sel >= max)
+		first = sd->sel - max + 1;
 	int used = 0;
 	for (int k = first; k < n && used < max; k++) {
 		char val[64], line[160];
-		pane_side_value(a, &ps[k], val, sizeof val);
+		params_format(&a->s, &ps[k], !app_unicode(a), val, sizeof val);
 		snprintf(line, sizeof line, "%-8s %s", ps[k].label, val);
-		enum term_style st = k == a->sel ? TS_SELECTED : TS_NORMAL;
-		if (k == a->sel)
+		enum term_style st = k == sd->sel ? TS_SELECTED : TS_NORMAL;
+		if (k == sd->sel)
 			term_fill(&a->term, row + used, col, w, st);
 		term_text(&a->term, row + used, col, line, w, st);
 		used++;
@@ -332,7 +331,7 @@ static int pane_diagnosis(struct app *a, const struct pane_diag *d, int row,
 }
 
 /* Draw the convergence table with the newest row at the bottom. */
-static void pane_table(struct app *a, int row, int col, int w, int max)
+static void pane_conv_table(struct app *a, int row, int col, int w, int max)
 {
 	if (max < 2)
 		return;
@@ -376,15 +375,16 @@ static void pane_table(struct app *a, int row, int col, int w, int max)
 }
 
 /* Draw the side pane into R. */
-static void pane_side_draw(struct app *a, const struct rect *box)
+static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 {
+	struct side_state *sd = self;
 	int row = box->row, col = box->col, rows = box->rows, cols = box->cols;
-	uint32_t bar = a->view.unicode ? 0x2502 : '|';
+	uint32_t bar = app_unicode(a) ? 0x2502 : '|';
 	for (int r = 0; r < rows; r++)
 		term_put(&a->term, row + r, col, bar, TS_DIM);
 	int x = col + 2, w = cols - 2, y = row, end = row + rows;
-	struct param ps[APP_MAX_PARAMS];
-	int nparams = (int)app_params(a, ps, APP_MAX_PARAMS);
+	struct param ps[PARAMS_MAX];
+	int nparams = (int)params_list(&a->s, ps, PARAMS_MAX);
 
 	pane_header(a, y++, x, w, a->res.n > 1 ? "Operating points" : "Operating point");
 	y += pane_points(a, y, x, w, 2);
@@ -422,7 +422,7 @@ static void pane_side_draw(struct app *a, const struct rect *box)
 	snprintf(title, sizeof title, "Parameters (%s)", a->s.device.type != NULL
 	         ? a->s.device.type->name : "no device");
 	pane_header(a, y++, x, w, title);
-	y += pane_params(a, y, x, w, plines);
+	y += pane_params(a, sd, y, x, w, plines);
 	if (y < end) {
 		char dtitle[64];
 		snprintf(dtitle, sizeof dtitle, "Diagnosis (V from %s)",
@@ -435,20 +435,220 @@ static void pane_side_draw(struct app *a, const struct rect *box)
 	}
 	if (y < end - 1) {
 		pane_header(a, y++, x, w, "Convergence");
-		pane_table(a, y, x, w, end - y);
+		pane_conv_table(a, y, x, w, end - y);
 	}
 }
 
-/* Start with the first parameter selected. */
-static void pane_side_init(struct app *a)
+/* The selected row of S's rows into *P; returns false when there is none. */
+static bool pane_side_selected(struct app *a, struct side_state *sd,
+                               struct param *p)
 {
-	a->sel = 0;
+	struct param ps[PARAMS_MAX];
+	size_t n = params_list(&a->s, ps, PARAMS_MAX);
+	if (sd->sel < 0 || (size_t)sd->sel >= n)
+		return false;
+	*p = ps[sd->sel];
+	return true;
 }
 
-/* The side pane: its keys (select, nudge, edit) live in the key table. */
+/* Nudge the selected row: DIR = +1/-1, COARSE for the big step. */
+static void pane_side_nudge(struct app *a, struct side_state *sd, int dir,
+                            bool coarse)
+{
+	struct param p;
+	if (!pane_side_selected(a, sd, &p))
+		return;
+	double v = params_get(&a->s, &p), nv;
+	if (p.choice) {
+		int n = params_choices(&p);
+		if (strcmp(p.key, PARAMS_ORDER) == 0)
+			dir = 1;   /* two orders: either key flips */
+		nv = (double)((((int)v + dir) % n + n) % n);
+		if (strcmp(p.key, PARAMS_ORDER) == 0) {
+			char err[256];
+			if (app_param_set(a, p.key, nv, err, sizeof err) != 0)
+				app_message(a, true, "%s", err);
+			else
+				app_message(a, false, "order: voltage from the %s",
+				            a->s.solver.order == ORDER_VOLTAGE_FROM_LINE
+				            ? "line" : "device");
+			return;
+		}
+		char err[256];
+		if (app_param_set(a, p.key, nv, err, sizeof err) != 0)
+			app_message(a, true, "%s", err);
+		else
+			app_message(a, false, "method: %s",
+			            solve_method_name(a->s.solver.method));
+		return;
+	}
+	if (strcmp(p.key, PARAMS_START) == 0 && isnan(v))
+		v = 0.0;
+	if (p.log_step && v > 0.0) {
+		double m = coarse ? LOG_COARSE : LOG_FINE;
+		nv = dir > 0 ? v * m : v / m;
+	} else if (p.fine > 0.0) {
+		nv = v + dir * (coarse ? p.coarse : p.fine);
+	} else {
+		double step = fabs(v) * (coarse ? LIN_COARSE : LIN_FINE);
+		if (!(step > 0.0))
+			step = coarse ? 0.1 : 0.01;
+		nv = v + dir * step;
+	}
+	char err[256];
+	if (app_param_set(a, p.key, nv, err, sizeof err) != 0) {
+		app_message(a, true, "%s", err);
+	} else {
+		char buf[64];
+		qty_format(buf, sizeof buf, nv, p.unit, 5, app_unicode(a) ? 0 : 1);
+		app_message(a, false, "%s = %s", p.label, buf);
+	}
+}
+
+/*
+ * Step the selected RS, RP or network resistor to the next standard value
+ * along the session's series (E24 unless its target section names another).
+ */
+static void pane_side_eseries(struct app *a, struct side_state *sd, int dir)
+{
+	struct param p;
+	if (!pane_side_selected(a, sd, &p))
+		return;
+	if (!p.resistor) {
+		app_message(a, true, "select RS, RP or a network resistor to step "
+		            "along the standard values");
+		return;
+	}
+	enum eseries es = a->s.analysis.target.series;
+	double nv;
+	char err[256];
+	if (eseries_step(es, params_get(&a->s, &p), dir, &nv) != 0) {
+		app_message(a, true, "%s: no %s value %s this one", p.label,
+		            eseries_name(es), dir > 0 ? "above" : "below");
+	} else if (app_param_set(a, p.key, nv, err, sizeof err) != 0) {
+		app_message(a, true, "%s", err);
+	} else {
+		char buf[64];
+		qty_format_short(buf, sizeof buf, nv, p.unit, 5, app_unicode(a) ? 0 : 1);
+		app_message(a, false, "%s = %s (%s)", p.label, buf, eseries_name(es));
+	}
+}
+
+/* Ask for an exact value of the selected row. */
+static void pane_side_edit(struct app *a, struct side_state *sd)
+{
+	struct param p;
+	if (!pane_side_selected(a, sd, &p))
+		return;
+	if (p.choice) {
+		pane_side_nudge(a, sd, 1, false);
+		return;
+	}
+	char err[256];
+	if (p.readonly) {
+		params_set(&a->s, &p, 0.0, err, sizeof err);
+		app_message(a, true, "%s", err);
+		return;
+	}
+	char q[128];
+	snprintf(q, sizeof q, "%s = ", p.label);
+	app_ask(a, &pane_side, SIDE_ASK_VALUE, false, q, NULL, NULL);
+}
+
+/* The side pane's keys, handed over by the key table. */
+static unsigned pane_side_key(struct app *a, void *self, int key)
+{
+	struct side_state *sd = self;
+	switch (key) {
+	case TK_UP:
+		if (sd->sel > 0)
+			sd->sel--;
+		break;
+	case TK_DOWN: {
+		struct param ps[PARAMS_MAX];
+		size_t n = params_list(&a->s, ps, PARAMS_MAX);
+		if ((size_t)sd->sel + 1 < n)
+			sd->sel++;
+		break;
+	}
+	case '+': case '=': pane_side_nudge(a, sd, 1, false); break;
+	case '-': pane_side_nudge(a, sd, -1, false); break;
+	case ']': pane_side_nudge(a, sd, 1, true); break;
+	case '[': pane_side_nudge(a, sd, -1, true); break;
+	case '}': pane_side_eseries(a, sd, 1); break;
+	case '{': pane_side_eseries(a, sd, -1); break;
+	case 'e': case TK_ENTER: pane_side_edit(a, sd); break;
+	case '\t':
+		sd->hidden = !sd->hidden;
+		app_touch(a);
+		break;
+	default:
+		return 0;
+	}
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* Take a typed value for the selected row. */
+static unsigned pane_side_answer(struct app *a, struct side_state *sd,
+                                 const char *text)
+{
+	struct param p;
+	if (!pane_side_selected(a, sd, &p) || p.choice)
+		return APP_HANDLED | APP_REDRAW;
+	double v;
+	char err[256];
+	char q[128];
+	snprintf(q, sizeof q, "%s = ", p.label);
+	if (strcmp(p.key, PARAMS_START) == 0 && strcmp(text, "auto") == 0) {
+		v = NAN;
+	} else if (strcmp(p.key, PARAMS_RELAXATION) == 0 &&
+	           strcmp(text, "auto") == 0) {
+		v = 0.0;
+	} else if (qty_parse(text, p.unit, &v, err, sizeof err) != QTY_OK) {
+		app_ask(a, &pane_side, SIDE_ASK_VALUE, false, q, text, err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	if (app_param_set(a, p.key, v, err, sizeof err) != 0) {
+		app_ask(a, &pane_side, SIDE_ASK_VALUE, false, q, text, err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	char buf[64];
+	params_format(&a->s, &p, !app_unicode(a), buf, sizeof buf);
+	app_message(a, false, "%s = %s", p.label, buf);
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* Select a row by key; take an answer. */
+static unsigned pane_side_act(struct app *a, void *self, const struct action *act)
+{
+	struct side_state *sd = self;
+	if (act->kind == ACT_ANSWER && act->tag == SIDE_ASK_VALUE)
+		return pane_side_answer(a, sd, act->text);
+	if (act->kind != ACT_SELECT)
+		return 0;
+	struct param ps[PARAMS_MAX];
+	size_t n = params_list(&a->s, ps, PARAMS_MAX);
+	for (size_t k = 0; k < n; k++)
+		if (strcmp(ps[k].key, act->text) == 0)
+			sd->sel = (int)k;
+	return APP_REDRAW;
+}
+
+/* Shown unless Tab hid it. */
+static bool pane_side_visible(const struct app *a, const void *self)
+{
+	(void)a;
+	const struct side_state *sd = self;
+	return !sd->hidden;
+}
+
+/* The side pane. */
 const struct pane pane_side = {
 	.name = "side",
-	.init = pane_side_init,
-	.key = NULL,
+	.slot = SLOT_SIDE,
+	.size = sizeof(struct side_state),
+	.visible = pane_side_visible,
+	.key = pane_side_key,
 	.draw = pane_side_draw,
+	.act = pane_side_act,
 };

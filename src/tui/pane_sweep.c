@@ -13,22 +13,39 @@
 
 #include "core/sweep.h"
 #include "tui/app.h"
+#include "tui/panes.h"
+
+/* Points of the sweep, RS/10 to RS*10 on a log scale. */
+#define SWEEP_POINTS 61
+
+/* The sweep view's own state. */
+struct sweep_state {
+	bool open;
+	bool ok;                /* X, Y hold the sweep (else MSG says why) */
+	double r;               /* the present RS or RP (the mark) */
+	size_t n;
+	double x[SWEEP_POINTS], y[SWEEP_POINTS];
+	size_t multi;           /* steps with several operating points */
+	size_t folds;
+	char msg[256];
+	struct grid grid;
+	bool valid;             /* the grid shows the sweep */
+};
 
 /* Run the sweep again for the present session. */
-void pane_sweep_refresh(struct app *a)
+static void pane_sweep_refresh(struct app *a, struct sweep_state *v)
 {
-	struct sweep_view *v = &a->sweep;
 	v->ok = false;
 	v->n = 0;
 	v->multi = v->folds = 0;
 	v->msg[0] = '\0';
-	a->grid_ok = false;
+	v->valid = false;
 	if (!a->pb_ok) {
 		snprintf(v->msg, sizeof v->msg, "%.200s", a->pb_err);
 		return;
 	}
 	bool norton = a->s.source.form != SOURCE_THEVENIN;
-	struct sweep_spec sp = { .points = APP_SWEEP_POINTS, .scale = SWEEP_LOG };
+	struct sweep_spec sp = { .points = SWEEP_POINTS, .scale = SWEEP_LOG };
 	char err[256];
 	if (paramref_find(&a->pb, norton ? "rp" : "rs", &sp.param, err,
 	                  sizeof err) != 0 || !(a->pb.src.r > 0.0) ||
@@ -47,7 +64,7 @@ void pane_sweep_refresh(struct app *a)
 		return;
 	}
 	/* One value per step: the lowest-voltage point; NaN where none. */
-	v->n = APP_SWEEP_POINTS;
+	v->n = SWEEP_POINTS;
 	for (size_t k = 0; k < v->n; k++) {
 		v->x[k] = sweep_value(&sp, k);
 		v->y[k] = NAN;
@@ -67,12 +84,12 @@ void pane_sweep_refresh(struct app *a)
 }
 
 /* Show or hide the sweep view. */
-void pane_sweep_toggle(struct app *a)
+static void pane_sweep_toggle(struct app *a, struct sweep_state *v)
 {
-	a->sweep.open = !a->sweep.open;
-	a->grid_ok = false;
-	if (a->sweep.open) {
-		pane_sweep_refresh(a);
+	v->open = !v->open;
+	v->valid = false;
+	if (v->open) {
+		pane_sweep_refresh(a, v);
 		app_message(a, false, "sweep of the device current: W or Esc closes; "
 		            "keys still change the session");
 	} else {
@@ -81,9 +98,9 @@ void pane_sweep_toggle(struct app *a)
 }
 
 /* Draw the sweep plot into BOX. */
-static void pane_sweep_draw(struct app *a, const struct rect *box)
+static void pane_sweep_draw(struct app *a, void *self, const struct rect *box)
 {
-	const struct sweep_view *v = &a->sweep;
+	struct sweep_state *v = self;
 	if (!v->ok) {
 		term_text(&a->term, box->row + 1, box->col + 1, v->msg, box->cols - 2,
 		          TS_ERROR);
@@ -91,55 +108,88 @@ static void pane_sweep_draw(struct app *a, const struct rect *box)
 		          "sweep", box->cols - 2, TS_DIM);
 		return;
 	}
-	if (a->grid.rows != box->rows || a->grid.cols != box->cols) {
-		if (grid_resize(&a->grid, box->rows, box->cols) != 0) {
+	if (v->grid.rows != box->rows || v->grid.cols != box->cols) {
+		if (grid_resize(&v->grid, box->rows, box->cols) != 0) {
 			term_text(&a->term, box->row, box->col, "out of memory", box->cols,
 			          TS_ERROR);
 			return;
 		}
-		a->grid_ok = false;
+		v->valid = false;
 	}
-	if (!a->grid_ok) {
+	if (!v->valid) {
 		bool norton = a->s.source.form != SOURCE_THEVENIN;
 		char title[256], now[48];
 		qty_format_short(now, sizeof now, v->r, QTY_RESISTANCE, 5,
-		                 a->view.unicode ? 0 : 1);
+		                 app_unicode(a) ? 0 : 1);
 		snprintf(title, sizeof title, "I vs %s (log) @ %s%s", norton ? "RP" : "RS",
 		         now, v->multi || v->folds ? ", folds: lowest V drawn" : "");
 		struct render_xy in = {
 			.x = v->x, .y = v->y, .n = v->n, .log_x = true,
 			.x_kind = QTY_RESISTANCE, .y_kind = QTY_CURRENT,
 			.title = title,
-			.names = a->view.unicode ? (norton ? "I\xE2\x86\x91 RP\xE2\x86\x92"
+			.names = app_unicode(a) ? (norton ? "I\xE2\x86\x91 RP\xE2\x86\x92"
 			                                   : "I\xE2\x86\x91 RS\xE2\x86\x92")
 			                         : (norton ? "I^ RP>" : "I^ RS>"),
-			.x_mark = v->r, .unicode = a->view.unicode,
+			.x_mark = v->r, .unicode = app_unicode(a),
 		};
-		render_xy_plot(&in, &a->grid, NULL);
-		a->grid_ok = true;
+		render_xy_plot(&in, &v->grid, NULL);
+		v->valid = true;
 	}
-	term_blit(&a->term, &a->grid, box->row, box->col);
+	term_blit(&a->term, &v->grid, box->row, box->col);
 }
 
-/* While shown, Esc (or W through the key table) closes; other keys pass. */
-static unsigned pane_sweep_key(struct app *a, int key)
+/* Open or close on W; close on Esc; sweep again when the session changes. */
+static unsigned pane_sweep_act(struct app *a, void *self, const struct action *act)
 {
-	if (!a->sweep.open || key != TK_ESC)
+	struct sweep_state *v = self;
+	switch (act->kind) {
+	case ACT_OPEN:
+		pane_sweep_toggle(a, v);
+		return APP_REDRAW;
+	case ACT_CLOSE:
+		if (!v->open)
+			return 0;
+		pane_sweep_toggle(a, v);
+		return APP_REDRAW;
+	case ACT_CHANGED:
+		if (v->open)
+			pane_sweep_refresh(a, v);
+		return v->open ? APP_REDRAW : 0;
+	default:
 		return 0;
-	pane_sweep_toggle(a);
-	return APP_HANDLED | APP_REDRAW;
+	}
 }
 
-/* Start hidden. */
-static void pane_sweep_init(struct app *a)
+/* Set up the grid. */
+static void pane_sweep_init(struct app *a, void *self)
 {
-	memset(&a->sweep, 0, sizeof a->sweep);
+	(void)a;
+	struct sweep_state *v = self;
+	grid_init(&v->grid, 0, 0);
 }
 
-/* The sweep view. */
+/* Free the grid. */
+static void pane_sweep_fini(void *self)
+{
+	struct sweep_state *v = self;
+	grid_fini(&v->grid);
+}
+
+/* Visible while open. */
+static bool pane_sweep_visible(const struct app *a, const void *self)
+{
+	(void)a;
+	return ((const struct sweep_state *)self)->open;
+}
+
+/* The sweep view: in the plot's place while open. */
 const struct pane pane_sweep = {
 	.name = "sweep",
+	.slot = SLOT_MAIN,
+	.size = sizeof(struct sweep_state),
 	.init = pane_sweep_init,
-	.key = pane_sweep_key,
+	.fini = pane_sweep_fini,
+	.visible = pane_sweep_visible,
 	.draw = pane_sweep_draw,
+	.act = pane_sweep_act,
 };

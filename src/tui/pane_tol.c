@@ -12,7 +12,25 @@
 
 #include "core/safety.h"
 #include "session/analysis.h"
+#include "core/tolerance.h"
 #include "tui/app.h"
+#include "tui/panes.h"
+
+/* Monte Carlo trials the view runs when asked, and its bins. */
+#define TOL_TRIALS 10000
+#define TOL_BINS 8
+#define TOL_SEED 1
+
+/* The tolerance view's own state. */
+struct tol_state {
+	bool open;
+	bool have_case;         /* C was built (else MSG says why) */
+	bool have_wc, have_mc;
+	char msg[600];          /* why nothing can be shown, or "" */
+	struct tol_case c;
+	struct tol_worst w;
+	struct tol_mc mc;
+};
 
 /* The unit of output O. */
 static enum qty_kind pane_tol_unit(enum tol_output o)
@@ -22,9 +40,8 @@ static enum qty_kind pane_tol_unit(enum tol_output o)
 }
 
 /* Open the view: build the case from the session and run the worst case. */
-void pane_tol_open(struct app *a)
+static void pane_tol_open(struct app *a, struct tol_state *t)
 {
-	struct tol_view *t = &a->tol;
 	t->open = true;
 	t->have_case = t->have_wc = t->have_mc = false;
 	t->msg[0] = '\0';
@@ -56,16 +73,15 @@ void pane_tol_open(struct app *a)
 }
 
 /* Run the Monte Carlo trials (on the m key). */
-static void pane_tol_run(struct app *a)
+static void pane_tol_run(struct app *a, struct tol_state *t)
 {
-	struct tol_view *t = &a->tol;
 	if (!t->have_case)
 		return;
 	struct tol_window win[2];
 	size_t nwin = session_target_windows(&a->s, win);
 	char err[600];
-	t->have_mc = tol_monte_carlo(&t->c, APP_TOL_TRIALS, APP_TOL_SEED,
-	                             APP_TOL_BINS, win, nwin, &t->mc, err,
+	t->have_mc = tol_monte_carlo(&t->c, TOL_TRIALS, TOL_SEED,
+	                             TOL_BINS, win, nwin, &t->mc, err,
 	                             sizeof err) == 0;
 	if (!t->have_mc)
 		snprintf(t->msg, sizeof t->msg, "%s", err);
@@ -89,10 +105,10 @@ static int pane_tol_wrap(struct app *a, int row, int col, int w, int max,
 }
 
 /* Draw the tolerance view centred in BOX. */
-static void pane_tol_draw(struct app *a, const struct rect *box)
+static void pane_tol_draw(struct app *a, void *self, const struct rect *box)
 {
-	const struct tol_view *t = &a->tol;
-	int ascii = a->view.unicode ? 0 : 1;
+	const struct tol_state *t = self;
+	int ascii = app_unicode(a) ? 0 : 1;
 	int w = box->cols - 4 < 74 ? box->cols - 4 : 74;
 	int h = box->rows;
 	int top = box->row, left = box->col + (box->cols - w) / 2;
@@ -129,7 +145,7 @@ static void pane_tol_draw(struct app *a, const struct rect *box)
 		qty_format(b0, sizeof b0, s->mean, QTY_CURRENT, 4, ascii);
 		qty_format(b1, sizeof b1, s->sd, QTY_CURRENT, 3, ascii);
 		snprintf(line, sizeof line, "Monte Carlo, %zu trials (seed %d): "
-		         "I mean %s, sd %s", t->mc.trials, APP_TOL_SEED, b0, b1);
+		         "I mean %s, sd %s", t->mc.trials, TOL_SEED, b0, b1);
 		row++;
 		row += pane_tol_wrap(a, row, x, cw, 2, line, TS_HEADER);
 		const struct tol_hist *hg = &t->mc.hist[TOL_CURRENT];
@@ -173,14 +189,14 @@ static void pane_tol_draw(struct app *a, const struct rect *box)
 }
 
 /* Keys while the view is open: m runs the trials, Esc closes. */
-static unsigned pane_tol_key(struct app *a, int key)
+static unsigned pane_tol_key(struct app *a, void *self, int key)
 {
-	struct tol_view *t = &a->tol;
-	if (!t->open || key == TK_RESIZE || key == 12)
+	struct tol_state *t = self;
+	if (key == TK_RESIZE || key == 12)
 		return 0;
 	if (key == 'm') {
-		app_message(a, false, "running %d Monte Carlo trials", APP_TOL_TRIALS);
-		pane_tol_run(a);
+		app_message(a, false, "running %d Monte Carlo trials", TOL_TRIALS);
+		pane_tol_run(a, t);
 		if (t->have_mc)
 			app_message(a, false, "%zu Monte Carlo trials done", t->mc.trials);
 	} else if (key == TK_ESC || key == 'q' || key == 'T') {
@@ -189,18 +205,29 @@ static unsigned pane_tol_key(struct app *a, int key)
 	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Start closed. */
-static void pane_tol_init(struct app *a)
+/* Open on T. */
+static unsigned pane_tol_act(struct app *a, void *self, const struct action *act)
 {
-	a->tol.open = false;
-	a->tol.have_case = a->tol.have_wc = a->tol.have_mc = false;
-	a->tol.msg[0] = '\0';
+	if (act->kind != ACT_OPEN)
+		return 0;
+	pane_tol_open(a, self);
+	return APP_REDRAW;
+}
+
+/* Visible while open. */
+static bool pane_tol_visible(const struct app *a, const void *self)
+{
+	(void)a;
+	return ((const struct tol_state *)self)->open;
 }
 
 /* The tolerance overlay. */
 const struct pane pane_tol = {
 	.name = "tolerance",
-	.init = pane_tol_init,
+	.slot = SLOT_BODY,
+	.size = sizeof(struct tol_state),
+	.visible = pane_tol_visible,
 	.key = pane_tol_key,
 	.draw = pane_tol_draw,
+	.act = pane_tol_act,
 };
