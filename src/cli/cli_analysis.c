@@ -5,6 +5,7 @@
 #include "cli_analysis.h"
 
 #include <errno.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -22,7 +23,7 @@ int cli_load_problem(const char *cmd, const char *file, struct session *se,
 		char msg[1024];
 		session_error_format(&err, msg, sizeof msg);
 		fprintf(stderr, "biasline %s: %s\n", cmd, msg);
-		return ls == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+		return cli_exit_from_session(ls);
 	}
 	char emsg[512];
 	if (session_problem(se, pb, emsg, sizeof emsg) != 0) {
@@ -79,26 +80,50 @@ int cli_parse_count(const char *cmd, const char *opt, const char *text,
 	return 0;
 }
 
+/* The words for a value that is not finite; NULL when it is. */
+static const char *cli_nonfinite(double value)
+{
+	if (isnan(value))
+		return CLI_UNDEFINED;
+	if (isinf(value))
+		return value < 0 ? "-infinite" : "infinite";
+	return NULL;
+}
+
 /* Engineering notation, ASCII units. */
 const char *cli_fmt(char *buf, size_t n, double value, enum qty_kind kind,
                     int sig)
 {
+	const char *w = cli_nonfinite(value);
+	if (w != NULL) {
+		snprintf(buf, n, "%s", w);
+		return buf;
+	}
 	return qty_format_short(buf, n, value, kind, sig, 1);
 }
 
-/* A CSV column name. */
-const char *cli_column(char *buf, size_t n, const char *key,
-                       enum qty_kind kind)
+/* Engineering notation with trailing zeros. */
+const char *cli_fmt_full(char *buf, size_t n, double value,
+                         enum qty_kind kind, int sig)
 {
-	const char *u = qty_unit_ascii(kind);
-	if (u[0] == '\0')
-		snprintf(buf, n, "%s", key);
-	else if (strcmp(u, "%") == 0)
-		snprintf(buf, n, "%s_percent", key);
-	else if (strcmp(u, "W/K") == 0)
-		snprintf(buf, n, "%s_W_per_K", key);
+	const char *w = cli_nonfinite(value);
+	if (w != NULL) {
+		snprintf(buf, n, "%s", w);
+		return buf;
+	}
+	return qty_format(buf, n, value, kind, sig, 1);
+}
+
+/* A plain number. */
+const char *cli_fmt_number(char *buf, size_t n, double value, int sig,
+                           bool sign)
+{
+	const char *w = cli_nonfinite(value);
+	if (w != NULL)
+		snprintf(buf, n, "%s", w);
 	else
-		snprintf(buf, n, "%s_%s", key, u);
+		/* + 0.0 turns a negative zero into a plain one */
+		snprintf(buf, n, sign ? "%+.*g" : "%.*g", sig, value + 0.0);
 	return buf;
 }
 

@@ -37,13 +37,25 @@ int cli_parse_count(const char *cmd, const char *opt, const char *text,
                     unsigned long long min, unsigned long long max,
                     unsigned long long *out);
 
-/* Format VALUE of KIND with SIG digits in engineering notation (ASCII). */
+/*
+ * Format VALUE of KIND with SIG digits in engineering notation (ASCII),
+ * trailing zeros dropped.  A value that is not defined (NaN) reads "not
+ * defined here", an infinite one "infinite" (or "-infinite"): text output
+ * never shows nan or inf.
+ */
 const char *cli_fmt(char *buf, size_t n, double value, enum qty_kind kind,
                     int sig);
 
-/* A CSV column name for KEY in unit KIND: "rs_ohm", "ideality". */
-const char *cli_column(char *buf, size_t n, const char *key,
-                       enum qty_kind kind);
+/* cli_fmt keeping trailing zeros (fixed-width tables). */
+const char *cli_fmt_full(char *buf, size_t n, double value,
+                         enum qty_kind kind, int sig);
+
+/* A plain number with printf's %+.*g, or the words of cli_fmt. */
+const char *cli_fmt_number(char *buf, size_t n, double value, int sig,
+                           bool sign);
+
+/* The text every front end prints for a value that is not defined. */
+#define CLI_UNDEFINED "not defined here"
 
 /*
  * When SE's source is a network, print a note that vs and rs (and is, rp)

@@ -19,14 +19,16 @@ static void check_usage(FILE *out)
 	        "each valid one and the error of each other one as\n"
 	        "FILE:LINE:COL: KEY: MESSAGE.\n"
 	        "\n"
-	        "Exit status (the worst file's): 0 all valid, 65 a file is not a\n"
-	        "valid session, 66 a file cannot be read (wins over 65), 64 bad\n"
-	        "command line.\n"
+	        "The exit status is the worst file's (66 wins over 65).\n"
 	        "\n"
 	        "Options:\n"
 	        "  -q, --quiet    print errors only\n"
 	        "  -h, --help     show this help and exit\n"
 	        "  -V, --version  show the version and exit\n");
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
+	                                        EXIT_DATA, EXIT_NO_INPUT,
+	                                        EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Validate each FILE argument. */

@@ -12,6 +12,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
+#include "csv.h"
 #include "core/design.h"
 #include "core/safety.h"
 
@@ -47,10 +48,11 @@ static void design_usage(FILE *out)
 	        "                       the part to design: source.network.NAME\n"
 	        "  -f, --format FMT     text (default) or csv\n"
 	        "  -h, --help           show this help and exit\n"
-	        "  -V, --version        show the version and exit\n"
-	        "\n"
-	        "Exit status: 0 designed; 3 no value meets the target; 64 bad\n"
-	        "usage; 65 bad data in FILE; 66 FILE cannot be read.\n");
+	        "  -V, --version        show the version and exit\n");
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
+	                                        EXIT_USAGE, EXIT_DATA,
+	                                        EXIT_NO_INPUT, EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Set the target kind K from option text ARG; -1 when bad or repeated. */
@@ -165,10 +167,10 @@ static enum qty_kind design_target_unit(enum design_target t)
 	       : t == DESIGN_VOLTAGE ? QTY_VOLTAGE : QTY_POWER;
 }
 
-/* Print the result as CSV. */
-static void design_print_csv(const struct problem *pb,
-                             const struct design_request *rq,
-                             const struct design_result *res)
+/* Print the result as CSV; returns the table's exit status. */
+static int design_print_csv(const struct problem *pb,
+                            const struct design_request *rq,
+                            const struct design_result *res)
 {
 	const char *col = rq->unknown == DESIGN_FOR_RS   ? "rs_ohm"
 	                  : rq->unknown == DESIGN_FOR_VS ? "vs_V"
@@ -176,18 +178,37 @@ static void design_print_csv(const struct problem *pb,
 	                      ? "part_ohm"
 	                  : design_unknown_unit(pb, rq) == QTY_VOLTAGE ? "part_V"
 	                                                               : "part_A";
-	printf("row,%s,voltage_V,current_A,power_W,resistor_power_W,"
-	       "source_power_W,error_percent,points,suggested_resistor_W\n", col);
+	static const char *const cols[] = {
+		"voltage_V", "current_A", "power_W", "resistor_power_W",
+		"source_power_W", "error_percent", "points", "suggested_resistor_W"
+	};
+	struct csv w;
+	csv_init(&w, stdout);
+	csv_column(&w, "row");
+	csv_column(&w, col);
+	for (size_t k = 0; k < sizeof cols / sizeof cols[0]; k++)
+		csv_column(&w, cols[k]);
+	csv_end_row(&w);
+	/* A network's equivalent resistor is no part: no power for it. */
+	bool part = rq->unknown == DESIGN_FOR_PART;
 	for (size_t k = 0; k < res->nrows; k++) {
 		const struct design_row *r = &res->rows[k];
-		/* A network's equivalent resistor is no part: no power for it. */
-		bool part = rq->unknown == DESIGN_FOR_PART;
-		printf("%s,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%zu,%.17g\n",
-		       design_row_name(r->kind), r->value, r->pt.v, r->pt.i,
-		       r->pt.power, part ? NAN : r->power.p_resistor,
-		       part ? NAN : r->power.p_source, r->error_percent, r->npoints,
-		       part ? NAN : r->power.suggested_resistor_power);
+		/* A value without an operating point has only its value. */
+		double nan = NAN;
+		bool ok = r->solved;
+		csv_text(&w, design_row_name(r->kind));
+		csv_number(&w, r->value);
+		csv_number(&w, ok ? r->pt.v : nan);
+		csv_number(&w, ok ? r->pt.i : nan);
+		csv_number(&w, ok ? r->pt.power : nan);
+		csv_number(&w, ok && !part ? r->power.p_resistor : nan);
+		csv_number(&w, ok && !part ? r->power.p_source : nan);
+		csv_number(&w, ok ? r->error_percent : nan);
+		csv_count(&w, r->npoints);
+		csv_number(&w, ok && !part ? r->power.suggested_resistor_power : nan);
+		csv_end_row(&w);
 	}
+	return csv_finish(&w, "design");
 }
 
 /* Print the result as text; returns the safety flags of all rows. */
@@ -231,14 +252,16 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
 			       design_row_name(r->kind), a);
 			continue;
 		}
-		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %+.3g %%%s\n",
+		char g[32];
+		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %s %%%s\n",
 		       design_row_name(r->kind), a,
 		       cli_fmt(b, sizeof b, r->pt.v, QTY_VOLTAGE, 5),
 		       cli_fmt(c, sizeof c, r->pt.i, QTY_CURRENT, 5),
 		       cli_fmt(d, sizeof d, r->pt.power, QTY_POWER, 4),
 		       for_part ? ""
 		                : cli_fmt(e, sizeof e, r->power.p_resistor, QTY_POWER, 4),
-		       r->error_percent, r->npoints > 1 ? "  (several points)" : "");
+		       cli_fmt_number(g, sizeof g, r->error_percent, 3, true),
+		       r->npoints > 1 ? "  (several points)" : "");
 		struct problem q;
 		if (design_apply_request(pb, rq, r->value, &q) == 0)
 			flags |= safety_check(&q, r->pt.v, r->pt.i);
@@ -315,7 +338,7 @@ int cmd_design(int argc, char **argv)
 		fprintf(stderr, "biasline design: %s: %s\n", a.file, res.message);
 		code = EXIT_NO_POINT;
 	} else if (a.csv) {
-		design_print_csv(&pb, &rq, &res);
+		code = design_print_csv(&pb, &rq, &res);
 	} else {
 		unsigned flags = design_print_text(a.file, &pb, &rq,
 		                                   &se.analysis.ratings, &res);

@@ -46,11 +46,12 @@ static void plot_usage(FILE *out)
 	        "  -p, --zoom-point    frame the first operating point instead of\n"
 	        "                      the whole load line\n"
 	        "  -h, --help          show this help and exit\n"
-	        "  -V, --version       show the version and exit\n"
-	        "\n"
-	        "Exit status: 0 plotted, 64 bad usage, 65 bad session data,\n"
-	        "66 FILE unreadable.\n",
+	        "  -V, --version       show the version and exit\n",
 	        RENDER_MIN_COLS, RENDER_MIN_ROWS);
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
+	                                        EXIT_DATA, EXIT_NO_INPUT,
+	                                        EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Parse a whole decimal integer in [LO, HI] from TEXT into *OUT. */
@@ -104,7 +105,10 @@ static void plot_cautions(const struct problem *pb, const struct solve_result *r
 	}
 }
 
-/* Print G to stdout, one line per row. */
+/*
+ * Print G to stdout, one line per row (a failed write is reported by
+ * cli_finish_output).  Returns -1 when out of memory.
+ */
 static int plot_print(const struct grid *g)
 {
 	size_t n = (size_t)g->cols * 4 + 1;
@@ -116,7 +120,7 @@ static int plot_print(const struct grid *g)
 		puts(buf);
 	}
 	free(buf);
-	return fflush(stdout) == 0 && !ferror(stdout) ? 0 : -1;
+	return 0;
 }
 
 /* Take the session's stored view: fixed ranges and zoom. */
@@ -241,8 +245,8 @@ int cmd_plot(int argc, char **argv)
 			fprintf(stderr, "biasline: plot: %s: nothing to plot\n", argv[optind]);
 			rc = EXIT_DATA;
 		} else if (plot_print(&g) != 0) {
-			fprintf(stderr, "biasline: plot: cannot write the plot\n");
-			rc = EXIT_IO;
+			fprintf(stderr, "biasline: plot: out of memory\n");
+			rc = EXIT_SOFTWARE;
 		}
 		grid_fini(&g);
 	}

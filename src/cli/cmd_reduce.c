@@ -5,9 +5,11 @@
  * voltage, current and power there.
  *
  * A network source is reduced by core/network.c; a plain Thevenin or
- * Norton source is shown in the same terms.  CSV follows RFC 4180; with
- * --nodes it holds three tables (equivalent, nodes, parts), each with a
- * header row, separated by one empty line.
+ * Norton source is shown in the same terms.  CSV (csv.h) holds one table:
+ * without --nodes one row vth_V,rth_ohm,isc_A; with --nodes one long
+ * table of rows of four kinds (the equivalent, each operating point, each
+ * node and each part at that point), every column empty where a kind has
+ * no value.
  */
 #include <getopt.h>
 #include <math.h>
@@ -19,6 +21,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
+#include "csv.h"
 #include "core/network.h"
 #include "core/quantity.h"
 #include "core/solve.h"
@@ -52,62 +55,93 @@ static void reduce_usage(FILE *out)
 	        "With --nodes, also solve the device's operating point(s) and show\n"
 	        "every node voltage and each part's voltage, current and power.\n"
 	        "\n"
-	        "Exit status: 0 done, 3 no operating point (--nodes), 64 bad\n"
-	        "command line, 65 the file is not a valid session or the network\n"
-	        "cannot be reduced, 66 the file cannot be read, 74 output error.\n"
-	        "\n"
 	        "Options:\n"
-	        "  -f, --format FMT      text (default) or csv; csv columns vth_V,\n"
-	        "                        rth_ohm, isc_A\n"
+	        "  -f, --format FMT      text (default) or csv: one table, the\n"
+	        "                        columns vth_V, rth_ohm, isc_A; with\n"
+	        "                        --nodes the long table of biasline(1)\n"
 	        "  -n, --nodes           solve the device and show the network there\n"
 	        "  -r, --reference NODE  node voltages relative to NODE (default:\n"
 	        "                        the device's negative terminal)\n"
 	        "  -h, --help            show this help and exit\n"
 	        "  -V, --version         show the version and exit\n");
-}
-
-/* Write TEXT as one CSV field (quoted when it needs to be) to OUT. */
-static void reduce_csv_text(FILE *out, const char *text)
-{
-	if (strpbrk(text, ",\"\r\n") == NULL) {
-		fputs(text, out);
-		return;
-	}
-	fputc('"', out);
-	for (const char *p = text; *p != '\0'; p++) {
-		if (*p == '"')
-			fputc('"', out);
-		fputc(*p, out);
-	}
-	fputc('"', out);
-}
-
-/* Write V as an exact CSV number ("inf", "nan" when not finite). */
-static void reduce_csv_number(FILE *out, double v)
-{
-	char buf[48];
-	fputs(qty_format_exact(buf, sizeof buf, v), out);
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
+	                                        EXIT_USAGE, EXIT_DATA,
+	                                        EXIT_NO_INPUT, EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Format V of KIND for text output into BUF (6 significant digits). */
 static const char *reduce_fmt(char *buf, size_t n, double v, enum qty_kind k)
 {
-	return qty_format(buf, n, v, k, 6, 1);
+	return cli_fmt_full(buf, n, v, k, 6);
 }
 
-/* Print the equivalent source SRC (load-line form) between POS and NEG. */
-static void reduce_print_equivalent(FILE *out, enum reduce_format fmt,
+/* The columns of the --nodes CSV table, in order. */
+static const char *const reduce_long_columns[] = {
+	"row", "point", "name", "part_kind", "from", "to", "voltage_V",
+	"current_A", "power_W", "resistance_ohm",
+};
+
+/* Start the --nodes CSV table on W. */
+static void reduce_long_header(struct csv *w)
+{
+	for (size_t k = 0;
+	     k < sizeof reduce_long_columns / sizeof reduce_long_columns[0]; k++)
+		csv_column(w, reduce_long_columns[k]);
+	csv_end_row(w);
+}
+
+/*
+ * One row of the --nodes table: ROW kind, POINT (0: none), NAME, the part's
+ * KIND, FROM, TO (NULL: empty), and the numbers (NaN: empty).
+ */
+static void reduce_long_row(struct csv *w, const char *row, size_t point,
+                            const char *name, const char *kind,
+                            const char *from, const char *to, double v,
+                            double i, double p, double r)
+{
+	csv_text(w, row);
+	if (point > 0)
+		csv_count(w, point);
+	else
+		csv_empty(w);
+	csv_text(w, name);
+	csv_text(w, kind);
+	csv_text(w, from);
+	csv_text(w, to);
+	csv_number(w, v);
+	csv_number(w, i);
+	csv_number(w, p);
+	csv_number(w, r);
+	csv_end_row(w);
+}
+
+/*
+ * Print the equivalent source SRC (load-line form) between POS and NEG: as
+ * text, or as CSV into W (its own table, or with LONG one row of the
+ * --nodes table).  A value that does not exist (the open-circuit voltage
+ * of an ideal current source) is an empty field.
+ */
+static void reduce_print_equivalent(FILE *out, struct csv *w, bool long_form,
                                     const struct source *src, const char *pos,
                                     const char *neg)
 {
-	if (fmt == FORMAT_CSV) {
-		fputs("vth_V,rth_ohm,isc_A\n", out);
-		reduce_csv_number(out, src->voc);
-		fputc(',', out);
-		reduce_csv_number(out, src->r);
-		fputc(',', out);
-		reduce_csv_number(out, src->isc);
-		fputc('\n', out);
+	double voc = source_is_ideal_current(src) ? NAN : src->voc;
+	double isc = source_is_ideal_voltage(src) ? INFINITY : src->isc;
+	if (w != NULL && long_form) {
+		reduce_long_row(w, "equivalent", 0, "", "", pos ? pos : "",
+		                neg ? neg : "", voc, isc, NAN, src->r);
+		return;
+	}
+	if (w != NULL) {
+		csv_column(w, "vth_V");
+		csv_column(w, "rth_ohm");
+		csv_column(w, "isc_A");
+		csv_end_row(w);
+		csv_number(w, voc);
+		csv_number(w, src->r);
+		csv_number(w, isc);
+		csv_end_row(w);
 		return;
 	}
 	char a[48];
@@ -163,50 +197,38 @@ static int reduce_node_width(const struct network *net, int min)
 
 /*
  * Print the node voltages NV (relative to node REF) and part states PS of
- * NET, at operating point K of N, as text or CSV.
+ * NET, at operating point K of N, as text, or as rows of the --nodes CSV
+ * table into W.
  */
-static void reduce_print_network(FILE *out, enum reduce_format fmt,
+static void reduce_print_network(FILE *out, struct csv *w,
                                  const struct network *net, size_t ref,
                                  const double *nv,
                                  const struct network_part_state *ps,
                                  size_t k, size_t n)
 {
 	size_t nn = network_node_count(net), np = network_part_count(net);
-	if (fmt == FORMAT_CSV) {
-		fputs("\npoint,node,voltage_V\n", out);
-		for (size_t j = 0; j < nn; j++) {
-			fprintf(out, "%zu,", k + 1);
-			reduce_csv_text(out, network_node_name(net, j));
-			fputc(',', out);
-			reduce_csv_number(out, nv[j]);
-			fputc('\n', out);
-		}
-		fputs("\npoint,part,kind,from,to,voltage_V,current_A,power_W\n", out);
+	if (w != NULL) {
+		for (size_t j = 0; j < nn; j++)
+			reduce_long_row(w, "node", k + 1, network_node_name(net, j), "",
+			                "", "", nv[j], NAN, NAN, NAN);
 		for (size_t j = 0; j < np; j++) {
 			const struct network_part *p = network_part(net, j);
-			fprintf(out, "%zu,", k + 1);
-			reduce_csv_text(out, p->name);
-			fprintf(out, ",%s,", session_network_kind_key(p->kind));
-			reduce_csv_text(out, network_node_name(net, p->from));
-			fputc(',', out);
-			reduce_csv_text(out, network_node_name(net, p->to));
-			fputc(',', out);
-			reduce_csv_number(out, ps[j].voltage);
-			fputc(',', out);
-			reduce_csv_number(out, ps[j].current);
-			fputc(',', out);
-			reduce_csv_number(out, ps[j].power);
-			fputc('\n', out);
+			reduce_long_row(w, "part", k + 1, p->name,
+			                session_network_kind_key(p->kind),
+			                network_node_name(net, p->from),
+			                network_node_name(net, p->to), ps[j].voltage,
+			                ps[j].current, ps[j].power,
+			                p->kind == NETWORK_RESISTOR ? p->value : NAN);
 		}
 		return;
 	}
 	(void)n;
 	char a[48], b[48], c[48];
-	int w = reduce_node_width(net, 4);
+	int nw = reduce_node_width(net, 4);
 	fprintf(out, "\nNode voltages (relative to %s):\n",
 	        network_node_name(net, ref));
 	for (size_t j = 0; j < nn; j++)
-		fprintf(out, "  %-*s  %12s\n", w, network_node_name(net, j),
+		fprintf(out, "  %-*s  %12s\n", nw, network_node_name(net, j),
 		        reduce_fmt(a, sizeof a, nv[j], QTY_VOLTAGE));
 	int pw = 4;
 	for (size_t j = 0; j < np; j++) {
@@ -273,55 +295,56 @@ static void reduce_cautions(FILE *err, const struct network *net,
 }
 
 /*
- * Solve S's problem PB and print each operating point with the network
- * around it.  Returns an exit code.
+ * Check --reference NAME against S's network before anything is printed:
+ * the index of the reference node into *REF (the device's negative
+ * terminal without NAME).  Returns 0, or an exit status after a message.
  */
-static int reduce_nodes(const struct session *s, const struct problem *pb,
-                        enum reduce_format fmt, const char *refname)
+static int reduce_find_reference(const struct session *s, const char *name,
+                                 size_t *ref)
 {
-	struct solve_result res;
-	solve_problem(pb, &s->solver, &res);
-	if (res.status != SOLVE_OK || res.n == 0) {
-		fprintf(stderr, "biasline reduce: no operating point: %s\n",
-		        res.message[0] ? res.message : "none found");
-		return EXIT_NO_POINT;
-	}
-	const struct network *net = s->network;
-	if (net == NULL && refname != NULL) {
-		fprintf(stderr, "biasline reduce: --reference: the source is not a "
-		        "network, so it has no nodes\n");
-		return EXIT_USAGE;
-	}
-	if (net == NULL) {
-		for (size_t k = 0; k < res.n; k++) {
-			if (fmt == FORMAT_TEXT) {
-				reduce_print_point(stdout, &res.pts[k], k, res.n);
-				continue;
-			}
-			if (k == 0)
-				fputs("\npoint,voltage_V,current_A,power_W\n", stdout);
-			fprintf(stdout, "%zu,", k + 1);
-			reduce_csv_number(stdout, res.pts[k].v);
-			fputc(',', stdout);
-			reduce_csv_number(stdout, res.pts[k].i);
-			fputc(',', stdout);
-			reduce_csv_number(stdout, res.pts[k].power);
-			fputc('\n', stdout);
-		}
-		if (fmt == FORMAT_TEXT)
-			printf("\n(the source is not a network: no nodes to show)\n");
-		return EXIT_OK_CODE;
-	}
-	size_t pos, ref;
-	network_terminals(net, &pos, &ref);
-	if (refname != NULL) {
-		long r = network_find_node(net, refname);
-		if (r < 0) {
-			fprintf(stderr, "biasline reduce: --reference: no node '%s' in "
-			        "the network\n", refname);
+	if (s->network == NULL) {
+		if (name != NULL) {
+			fprintf(stderr, "biasline reduce: --reference: the source is "
+			        "not a network, so it has no nodes\n");
 			return EXIT_USAGE;
 		}
-		ref = (size_t)r;
+		return 0;
+	}
+	size_t pos;
+	network_terminals(s->network, &pos, ref);
+	if (name == NULL)
+		return 0;
+	long r = network_find_node(s->network, name);
+	if (r < 0) {
+		fprintf(stderr, "biasline reduce: --reference: no node '%s' in the "
+		        "network\n", name);
+		return EXIT_USAGE;
+	}
+	*ref = (size_t)r;
+	return 0;
+}
+
+/*
+ * Print each operating point RES of S's problem PB with the network around
+ * it (node voltages relative to node REF), as text or, when W is not NULL,
+ * as rows of the --nodes CSV table.  Returns an exit code.
+ */
+static int reduce_nodes(const struct session *s, const struct solve_result *res,
+                        struct csv *w, size_t ref)
+{
+	const struct network *net = s->network;
+	for (size_t k = 0; k < res->n && net == NULL; k++) {
+		const struct op_point *pt = &res->pts[k];
+		if (w != NULL)
+			reduce_long_row(w, "point", k + 1, "", "", "", "", pt->v, pt->i,
+			                pt->power, NAN);
+		else
+			reduce_print_point(stdout, pt, k, res->n);
+	}
+	if (net == NULL) {
+		if (w == NULL)
+			printf("\n(the source is not a network: no nodes to show)\n");
+		return EXIT_OK_CODE;
 	}
 	size_t nn = network_node_count(net), np = network_part_count(net);
 	double *nv = malloc(nn * sizeof *nv);
@@ -333,30 +356,22 @@ static int reduce_nodes(const struct session *s, const struct problem *pb,
 		return EXIT_SOFTWARE;
 	}
 	int rc = EXIT_OK_CODE;
-	if (fmt == FORMAT_CSV) {
-		fputs("\npoint,voltage_V,current_A,power_W\n", stdout);
-		for (size_t k = 0; k < res.n; k++) {
-			fprintf(stdout, "%zu,", k + 1);
-			reduce_csv_number(stdout, res.pts[k].v);
-			fputc(',', stdout);
-			reduce_csv_number(stdout, res.pts[k].i);
-			fputc(',', stdout);
-			reduce_csv_number(stdout, res.pts[k].power);
-			fputc('\n', stdout);
-		}
-	}
-	for (size_t k = 0; k < res.n && rc == EXIT_OK_CODE; k++) {
+	for (size_t k = 0; k < res->n && rc == EXIT_OK_CODE; k++) {
+		const struct op_point *pt = &res->pts[k];
 		struct network_diag d;
-		if (network_solve_at(net, res.pts[k].v, res.pts[k].i, ref, nv, ps,
-		                     &d) != NETWORK_OK) {
+		if (network_solve_at(net, pt->v, pt->i, ref, nv, ps, &d) !=
+		    NETWORK_OK) {
 			fprintf(stderr, "biasline reduce: source.network: %s\n",
 			        d.message);
 			rc = EXIT_DATA;
 			break;
 		}
-		if (fmt == FORMAT_TEXT)
-			reduce_print_point(stdout, &res.pts[k], k, res.n);
-		reduce_print_network(stdout, fmt, net, ref, nv, ps, k, res.n);
+		if (w != NULL)
+			reduce_long_row(w, "point", k + 1, "", "", "", "", pt->v, pt->i,
+			                pt->power, NAN);
+		else
+			reduce_print_point(stdout, pt, k, res->n);
+		reduce_print_network(stdout, w, net, ref, nv, ps, k, res->n);
 		reduce_cautions(stderr, net, nv, ps);
 	}
 	free(nv);
@@ -431,22 +446,42 @@ int cmd_reduce(int argc, char **argv)
 	int code = cli_load_problem("reduce", argv[optind], &s, &pb);
 	if (code != 0)
 		return code;
+	/* Everything that can refuse the request runs before any output. */
+	size_t ref = 0;
+	if ((code = reduce_find_reference(&s, refname, &ref)) != 0) {
+		session_fini(&s);
+		return code;
+	}
+	struct solve_result res;
+	if (nodes) {
+		solve_problem(&pb, &s.solver, &res);
+		if (res.status != SOLVE_OK || res.n == 0) {
+			fprintf(stderr, "biasline reduce: no operating point: %s\n",
+			        res.message[0] ? res.message : "none found");
+			session_fini(&s);
+			return res.status == SOLVE_OK ? EXIT_NO_POINT
+			                              : cli_exit_from_solve(res.status);
+		}
+	}
 	const char *pos = NULL, *neg = NULL;
 	size_t p, n;
 	if (s.network != NULL && network_terminals(s.network, &p, &n) == 0) {
 		pos = network_node_name(s.network, p);
 		neg = network_node_name(s.network, n);
 	}
-	reduce_print_equivalent(stdout, fmt, &pb.src, pos, neg);
+	struct csv w;
+	csv_init(&w, stdout);
+	struct csv *wp = fmt == FORMAT_CSV ? &w : NULL;
+	if (wp != NULL && nodes)
+		reduce_long_header(wp);
+	reduce_print_equivalent(stdout, wp, nodes, &pb.src, pos, neg);
 	int rc = EXIT_OK_CODE;
 	if (nodes)
-		rc = reduce_nodes(&s, &pb, fmt, refname);
+		rc = reduce_nodes(&s, &res, wp, ref);
 	else if (s.network != NULL)
 		reduce_cautions(stderr, s.network, NULL, NULL);
 	session_fini(&s);
-	if (fflush(stdout) != 0 || ferror(stdout)) {
-		perror("biasline reduce: writing the output");
-		return EXIT_IO;
-	}
+	if (rc == EXIT_OK_CODE && wp != NULL)
+		rc = csv_finish(wp, "reduce");
 	return rc;
 }

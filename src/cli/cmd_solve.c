@@ -10,6 +10,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
+#include "csv.h"
 #include "core/diagnose.h"
 #include "core/models/models.h"
 #include "core/safety.h"
@@ -52,10 +53,11 @@ static void solve_usage(FILE *out)
 	        "                     dV/dp, dI/dp and the normalised %% per %% (with\n"
 	        "                     --format csv, the table replaces the points)\n"
 	        "  -h, --help         show this help and exit\n"
-	        "  -V, --version      show the version and exit\n"
-	        "\n"
-	        "Exit status: 0 a verified point was found; 3 none was found;\n"
-	        "64 bad usage; 65 bad data in FILE; 66 FILE cannot be read.\n");
+	        "  -V, --version      show the version and exit\n");
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
+	                                        EXIT_USAGE, EXIT_DATA,
+	                                        EXIT_NO_INPUT, EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Parse the command line into A; returns -1 to exit with *CODE. */
@@ -79,13 +81,7 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 	while ((c = getopt_long(argc, argv, ":f:m:o:tshV", opts, NULL)) != -1) {
 		switch (c) {
 		case 'f':
-			if (strcmp(optarg, "csv") == 0) {
-				a->csv = true;
-			} else if (strcmp(optarg, "text") == 0) {
-				a->csv = false;
-			} else {
-				fprintf(stderr, "biasline solve: --format: '%s' is not text or csv\n",
-				        optarg);
+			if (cli_parse_format("solve", optarg, &a->csv) != 0) {
 				*code = EXIT_USAGE;
 				return -1;
 			}
@@ -153,70 +149,109 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 
 /*
  * Print the sensitivities of every point of RES to every parameter, by
- * implicit differentiation (core/sensitivity.h), as text or CSV.
+ * implicit differentiation (core/sensitivity.h), as text or CSV; returns
+ * the exit status of the CSV table (0 for text).
  */
-static void solve_print_sensitivity(const struct problem *pb,
-                                    const struct solve_result *res, bool csv)
+static int solve_print_sensitivity(const struct problem *pb,
+                                   const struct solve_result *res, bool csv)
 {
-	if (csv)
-		printf("point,parameter,value,dV_dp,dI_dp,dP_dp,sens_V,sens_I,"
-		       "sens_P\n");
-	else
+	struct csv w;
+	csv_init(&w, stdout);
+	if (csv) {
+		static const char *const cols[] = { "point", "parameter", "value",
+		                                    "unit", "dV_dp", "dI_dp",
+		                                    "dP_dp", "sens_V", "sens_I",
+		                                    "sens_P" };
+		for (size_t k = 0; k < sizeof cols / sizeof cols[0]; k++)
+			csv_column(&w, cols[k]);
+		csv_end_row(&w);
+	} else {
 		printf("\n  sensitivities (implicit differentiation; %% change per "
 		       "%% change of the parameter)\n");
+	}
 	for (size_t k = 0; k < res->n; k++) {
 		struct sensitivity sv[PARAMREF_MAX];
 		size_t n = sensitivity_all(pb, res->pts[k].v, res->pts[k].i, sv,
 		                           sizeof sv / sizeof sv[0]);
-		int w = 22; /* wide enough for the longest key (network parts) */
+		int w_key = 22; /* wide enough for the longest key (network parts) */
 		for (size_t j = 0; j < n; j++) {
 			size_t len = strlen(paramref_key(pb, &sv[j].param));
-			if (len > (size_t)w)
-				w = (int)len;
+			if (len > (size_t)w_key)
+				w_key = (int)len;
 		}
 		if (!csv)
-			printf("  point %zu\n  %-*s %-12s %-11s %-11s %s\n", k + 1, w,
-			       "parameter", "value", "S(V)", "S(I)", "S(P)");
+			printf("  point %zu\n  %-*s %-12s %-11s %-11s %s\n", k + 1,
+			       w_key, "parameter", "value", "S(V)", "S(I)", "S(P)");
 		for (size_t j = 0; j < n; j++) {
 			const struct sensitivity *s = &sv[j];
 			const char *key = paramref_key(pb, &s->param);
+			enum qty_kind unit = paramref_unit(pb, &s->param);
 			if (csv) {
-				printf("%zu,%s,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g,%.17g\n",
-				       k + 1, key, s->value, s->dv, s->di, s->dp, s->sv,
-				       s->si, s->sp);
+				csv_count(&w, k + 1);
+				csv_text(&w, key);
+				csv_number(&w, s->value);
+				csv_text(&w, qty_unit_ascii(unit));
+				csv_number(&w, s->dv);
+				csv_number(&w, s->di);
+				csv_number(&w, s->dp);
+				csv_number(&w, s->sv);
+				csv_number(&w, s->si);
+				csv_number(&w, s->sp);
+				csv_end_row(&w);
 				continue;
 			}
-			char v[48];
-			qty_format_short(v, sizeof v, s->value,
-			                 paramref_unit(pb, &s->param), 5, 1);
-			/* + 0.0 turns a negative zero into a plain one */
-			printf("  %-*s %-12s %-+11.4g %-+11.4g %+.4g\n", w, key, v,
-			       s->sv + 0.0, s->si + 0.0, s->sp + 0.0);
+			char v[48], a[32], b[32], c[32];
+			printf("  %-*s %-12s %-11s %-11s %s\n", w_key, key,
+			       cli_fmt(v, sizeof v, s->value, unit, 5),
+			       cli_fmt_number(a, sizeof a, s->sv, 4, true),
+			       cli_fmt_number(b, sizeof b, s->si, 4, true),
+			       cli_fmt_number(c, sizeof c, s->sp, 4, true));
 		}
 	}
+	return csv ? csv_finish(&w, "solve") : EXIT_OK_CODE;
 }
 
-/* Print the trace of the session's stepper, as text or CSV. */
-static void solve_print_trace(const struct problem *pb,
-                              const struct solve_options *o, bool csv)
+/*
+ * Print the trace of the session's stepper, as text or CSV; returns the
+ * exit status of the CSV table (0 for text).
+ */
+static int solve_print_trace(const struct problem *pb,
+                             const struct solve_options *o, bool csv)
 {
 	struct solve_options to = *o;
 	if (to.method == METHOD_AUTO)
 		to.method = METHOD_NEWTON;
 	struct stepper *st = stepper_create();
-	if (st == NULL)
-		return;
+	if (st == NULL) {
+		fprintf(stderr, "biasline solve: out of memory\n");
+		return EXIT_SOFTWARE;
+	}
 	if (stepper_init(st, pb, &to) == 0)
 		stepper_run(st);
 	size_t n;
 	const struct trace_row *rows = stepper_trace(st, &n);
 	enum qty_kind rk = problem_residual_kind(pb);
+	int code = EXIT_OK_CODE;
 	if (csv) {
-		printf("k,voltage_V,current_A,residual_%s,step,ratio\n",
-		       rk == QTY_VOLTAGE ? "V" : "A");
-		for (size_t k = 0; k < n; k++)
-			printf("%u,%.17g,%.17g,%.17g,%.17g,%.17g\n", rows[k].k, rows[k].v,
-			       rows[k].i, rows[k].residual, rows[k].step, rows[k].ratio);
+		struct csv w;
+		csv_init(&w, stdout);
+		csv_column(&w, "k");
+		csv_column(&w, "voltage_V");
+		csv_column(&w, "current_A");
+		csv_column_unit(&w, "residual", rk);
+		csv_column(&w, "step");
+		csv_column(&w, "ratio");
+		csv_end_row(&w);
+		for (size_t k = 0; k < n; k++) {
+			csv_count(&w, rows[k].k);
+			csv_number(&w, rows[k].v);
+			csv_number(&w, rows[k].i);
+			csv_number(&w, rows[k].residual);
+			csv_number(&w, rows[k].step);
+			csv_number(&w, rows[k].ratio);
+			csv_end_row(&w);
+		}
+		code = csv_finish(&w, "solve");
 	} else {
 		printf("\niteration (%s", solve_method_name(to.method));
 		if (to.method == METHOD_PROJECTION || to.method == METHOD_RELAXED)
@@ -225,22 +260,24 @@ static void solve_print_trace(const struct problem *pb,
 		printf("  %4s  %-12s %-12s %-12s %-12s %s\n", "k", "voltage",
 		       "current", "residual", "step", "ratio");
 		for (size_t k = 0; k < n; k++) {
-			char v[32], i[32], r[32], s[32];
-			qty_format(v, sizeof v, rows[k].v, QTY_VOLTAGE, 6, 1);
-			qty_format(i, sizeof i, rows[k].i, QTY_CURRENT, 6, 1);
-			qty_format(r, sizeof r, rows[k].residual, rk, 3, 1);
+			char v[32], i[32], r[32], s[32], q[32];
+			cli_fmt_full(v, sizeof v, rows[k].v, QTY_VOLTAGE, 6);
+			cli_fmt_full(i, sizeof i, rows[k].i, QTY_CURRENT, 6);
+			cli_fmt_full(r, sizeof r, rows[k].residual, rk, 3);
 			if (isnan(rows[k].step))
 				snprintf(s, sizeof s, "-");
 			else
-				snprintf(s, sizeof s, "%.3g", rows[k].step);
-			printf("  %4u  %-12s %-12s %-12s %-12s ", rows[k].k, v, i, r, s);
+				cli_fmt_number(s, sizeof s, rows[k].step, 3, false);
 			if (isnan(rows[k].ratio))
-				printf("-\n");
+				snprintf(q, sizeof q, "-");
 			else
-				printf("%.4g\n", rows[k].ratio);
+				cli_fmt_number(q, sizeof q, rows[k].ratio, 4, false);
+			printf("  %4u  %-12s %-12s %-12s %-12s %s\n", rows[k].k, v, i,
+			       r, s, q);
 		}
 	}
 	stepper_destroy(st);
+	return code;
 }
 
 /* Print what the model reports beyond V and I at P (IC, VCE, region...). */
@@ -252,7 +289,7 @@ static void solve_print_extra(const struct problem *pb, const struct op_point *p
 	printf("      ");
 	for (size_t k = 0; k < ex.n; k++) {
 		char b[48];
-		qty_format(b, sizeof b, ex.v[k].value, ex.v[k].kind, 5, 1);
+		cli_fmt_full(b, sizeof b, ex.v[k].value, ex.v[k].kind, 5);
 		printf("%s%s = %s", k ? ", " : "", ex.v[k].label, b);
 	}
 	if (ex.region != NULL)
@@ -271,18 +308,18 @@ static void solve_print_text(const char *file, const struct session *se,
 	char a[48], b[48];
 	printf("%s\n", file);
 	if (isinf(pb->src.r)) {
-		qty_format_short(a, sizeof a, pb->src.isc, QTY_CURRENT, 6, 1);
+		cli_fmt(a, sizeof a, pb->src.isc, QTY_CURRENT, 6);
 		printf("  source   ideal current source %s\n", a);
 	} else {
-		qty_format_short(a, sizeof a, pb->src.voc, QTY_VOLTAGE, 6, 1);
-		qty_format_short(b, sizeof b, pb->src.r, QTY_RESISTANCE, 6, 1);
+		cli_fmt(a, sizeof a, pb->src.voc, QTY_VOLTAGE, 6);
+		cli_fmt(b, sizeof b, pb->src.r, QTY_RESISTANCE, 6);
 		printf("  source   %s behind %s%s\n", a, b,
 		       se->source.form == SOURCE_NORTON ? " (from the Norton form)" : "");
 	}
 	printf("  device   %s:", pb->dev.type->name);
 	for (size_t k = 0; k < pb->dev.type->nparams; k++) {
 		const struct model_param *mp = &pb->dev.type->params[k];
-		qty_format_short(a, sizeof a, pb->dev.p[k], mp->kind, 6, 1);
+		cli_fmt(a, sizeof a, pb->dev.p[k], mp->kind, 6);
 		printf("%s %s = %s", k ? "," : "", mp->label, a);
 	}
 	if (pb->dev.curve != NULL)
@@ -294,10 +331,10 @@ static void solve_print_text(const char *file, const struct session *se,
 	for (size_t k = 0; k < res->n; k++) {
 		const struct op_point *p = &res->pts[k];
 		char v[32], i[32], w[32], r[32];
-		qty_format(v, sizeof v, p->v, QTY_VOLTAGE, 6, 1);
-		qty_format(i, sizeof i, p->i, QTY_CURRENT, 6, 1);
-		qty_format(w, sizeof w, p->power, QTY_POWER, 4, 1);
-		qty_format(r, sizeof r, p->rd, QTY_RESISTANCE, 4, 1);
+		cli_fmt_full(v, sizeof v, p->v, QTY_VOLTAGE, 6);
+		cli_fmt_full(i, sizeof i, p->i, QTY_CURRENT, 6);
+		cli_fmt_full(w, sizeof w, p->power, QTY_POWER, 4);
+		cli_fmt_full(r, sizeof r, p->rd, QTY_RESISTANCE, 4);
 		printf("  %-3zu %-13s %-13s %-13s %-13s %u%s\n", k + 1, v, i, w, r,
 		       p->steps, p->tangent ? "  (touching point)" : "");
 		solve_print_extra(pb, p);
@@ -323,38 +360,66 @@ static void solve_print_text(const char *file, const struct session *se,
 	}
 }
 
-/* Print RES as CSV. */
-static void solve_print_csv(const struct problem *pb,
-                            const struct solve_result *res)
+/*
+ * The model's extra results at the points of RES, for the CSV header: the
+ * first point's, or those at (0, 0) when there is none (a model reports
+ * the same keys at every point).  False when the model has none.
+ */
+static bool solve_extra_keys(const struct problem *pb,
+                             const struct solve_result *res,
+                             struct model_extra *ex)
 {
-	/* The model's extra results (same for every row) follow as columns. */
+	double v = res->n > 0 ? res->pts[0].v : 0.0;
+	double i = res->n > 0 ? res->pts[0].i : 0.0;
+	return device_secondary(&pb->dev, &pb->src, v, i, ex) == 0;
+}
+
+/* Print RES as CSV; returns the table's exit status. */
+static int solve_print_csv(const struct problem *pb,
+                           const struct solve_result *res)
+{
+	/* The model's extra results follow as columns. */
 	struct model_extra ex;
-	bool extra = res->n > 0 && device_secondary(&pb->dev, &pb->src, res->pts[0].v,
-	                                            res->pts[0].i, &ex) == 0;
-	printf("point,voltage_V,current_A,power_W,rd_ohm,steps,method,tangent");
+	bool extra = solve_extra_keys(pb, res, &ex);
+	struct csv w;
+	csv_init(&w, stdout);
+	static const char *const cols[] = { "point", "voltage_V", "current_A",
+	                                    "power_W", "rd_ohm", "steps",
+	                                    "method", "tangent" };
+	for (size_t k = 0; k < sizeof cols / sizeof cols[0]; k++)
+		csv_column(&w, cols[k]);
 	if (extra) {
-		for (size_t k = 0; k < ex.n; k++) {
-			const char *u = qty_unit_ascii(ex.v[k].kind);
-			printf(",%s%s%s", ex.v[k].key, u[0] ? "_" : "", u);
-		}
-		printf(",region");
+		for (size_t k = 0; k < ex.n; k++)
+			csv_column_unit(&w, ex.v[k].key, ex.v[k].kind);
+		csv_column(&w, "region");
+		csv_column(&w, "flagged");
 	}
-	printf("\n");
+	csv_end_row(&w);
 	for (size_t k = 0; k < res->n; k++) {
 		const struct op_point *p = &res->pts[k];
-		printf("%zu,%.17g,%.17g,%.17g,%.17g,%u,%s,%s", k + 1, p->v, p->i,
-		       p->power, p->rd, p->steps, solve_method_name(p->method),
-		       p->tangent ? "yes" : "no");
+		csv_count(&w, k + 1);
+		csv_number(&w, p->v);
+		csv_number(&w, p->i);
+		csv_number(&w, p->power);
+		csv_number(&w, p->rd);
+		csv_count(&w, p->steps);
+		csv_text(&w, solve_method_name(p->method));
+		csv_text(&w, p->tangent ? "yes" : "no");
 		if (extra) {
 			struct model_extra e;
 			if (device_secondary(&pb->dev, &pb->src, p->v, p->i, &e) == 0) {
 				for (size_t j = 0; j < e.n; j++)
-					printf(",%.17g", e.v[j].value);
-				printf(",%s", e.region ? e.region : "");
+					csv_number(&w, e.v[j].value);
+				csv_text(&w, e.region != NULL ? e.region : "");
+				csv_text(&w, e.warn ? "yes" : "no");
+			} else {
+				for (size_t j = 0; j < ex.n + 2; j++)
+					csv_empty(&w);
 			}
 		}
-		printf("\n");
+		csv_end_row(&w);
 	}
+	return csv_finish(&w, "solve");
 }
 
 /* Entry point of `biasline solve`. */
@@ -378,23 +443,26 @@ int cmd_solve(int argc, char **argv)
 	struct solve_result res;
 	solve_problem(&pb, &o, &res);
 	/* CSV carries one table: the trace when asked for, else the points. */
+	int out = EXIT_OK_CODE;
 	if (a.csv && a.trace)
-		solve_print_trace(&pb, &o, true);
+		out = solve_print_trace(&pb, &o, true);
 	else if (a.csv && a.sensitivity)
-		solve_print_sensitivity(&pb, &res, true);
+		out = solve_print_sensitivity(&pb, &res, true);
 	else if (a.csv)
-		solve_print_csv(&pb, &res);
+		out = solve_print_csv(&pb, &res);
 	else
 		solve_print_text(a.file, &se, &pb, &o, &res);
-	if (a.trace && !a.csv)
-		solve_print_trace(&pb, &o, false);
-	if (a.sensitivity && !a.csv)
-		solve_print_sensitivity(&pb, &res, false);
+	if (a.trace && !a.csv && out == EXIT_OK_CODE)
+		out = solve_print_trace(&pb, &o, false);
+	if (a.sensitivity && !a.csv && out == EXIT_OK_CODE)
+		out = solve_print_sensitivity(&pb, &res, false);
 	if (res.status != SOLVE_OK) {
 		fprintf(stderr, "biasline solve: %s: no operating point: %s\n", a.file,
 		        res.message);
-		code = res.status == SOLVE_BAD_INPUT ? EXIT_DATA : EXIT_NO_POINT;
+		code = cli_exit_from_solve(res.status);
 	}
+	if (out != EXIT_OK_CODE)
+		code = out;
 	session_fini(&se);
 	return code;
 }

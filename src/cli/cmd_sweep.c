@@ -11,6 +11,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
+#include "csv.h"
 #include "core/safety.h"
 #include "core/sweep.h"
 
@@ -48,9 +49,13 @@ static void sweep_usage(FILE *out)
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
-	        "Exit status: 0 done (steps without a point are reported); 64 bad\n"
-	        "usage; 65 bad data in FILE; 66 FILE cannot be read.\n",
+	        "Steps without an operating point are reported and are no "
+	        "failure.\n",
 	        SWEEP_MAX_POINTS);
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
+	                                        EXIT_DATA, EXIT_NO_INPUT,
+	                                        EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Parse the command line into A; returns -1 to exit with *CODE. */
@@ -177,14 +182,28 @@ int cmd_sweep(int argc, char **argv)
 	const char *key = paramref_key(&pb, &sp.param);
 	unsigned flags = 0;
 	if (a.csv) {
-		char col[96];
-		printf("step,%s,point,count,voltage_V,current_A,power_W\n",
-		       cli_column(col, sizeof col, key, unit));
+		struct csv w;
+		csv_init(&w, stdout);
+		csv_column(&w, "step");
+		csv_column_unit(&w, key, unit);
+		csv_column(&w, "point");
+		csv_column(&w, "count");
+		csv_column(&w, "voltage_V");
+		csv_column(&w, "current_A");
+		csv_column(&w, "power_W");
+		csv_end_row(&w);
 		for (size_t k = 0; k < res.nrows; k++) {
 			const struct sweep_row *r = &res.rows[k];
-			printf("%zu,%.17g,%zu,%zu,%.17g,%.17g,%.17g\n", r->step, r->value,
-			       r->index + 1, r->count, r->v, r->i, r->p);
+			csv_count(&w, r->step);
+			csv_number(&w, r->value);
+			csv_count(&w, r->index + 1);
+			csv_count(&w, r->count);
+			csv_number(&w, r->v);
+			csv_number(&w, r->i);
+			csv_number(&w, r->p);
+			csv_end_row(&w);
 		}
+		code = csv_finish(&w, "sweep");
 		sweep_print_folds(stderr, "biasline sweep: ", key, unit, &res);
 	} else {
 		char a1[48], a2[48], v[48], i[48], p[48];
@@ -225,5 +244,5 @@ int cmd_sweep(int argc, char **argv)
 	}
 	sweep_result_fini(&res);
 	session_fini(&se);
-	return EXIT_OK_CODE;
+	return code;
 }

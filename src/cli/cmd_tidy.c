@@ -22,13 +22,15 @@ static void tidy_usage(FILE *out)
 	        "standard order, defaults written out, numbers exact.  The comment\n"
 	        "block at the top of the file is kept; other comments are not.\n"
 	        "\n"
-	        "Exit status: 0 done, 65 FILE is not a valid session, 66 FILE\n"
-	        "cannot be read, 73 FILE cannot be rewritten, 64 bad command line.\n"
-	        "\n"
 	        "Options:\n"
 	        "  -i, --in-place  rewrite FILE (atomically) instead of printing\n"
 	        "  -h, --help      show this help and exit\n"
 	        "  -V, --version   show the version and exit\n");
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
+	                                        EXIT_DATA, EXIT_NO_INPUT,
+	                                        EXIT_SOFTWARE, EXIT_CANT_CREATE,
+	                                        EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Print or rewrite one file in canonical form. */
@@ -73,7 +75,7 @@ int cmd_tidy(int argc, char **argv)
 	if (st != SESSION_OK) {
 		session_error_format(&err, line, sizeof line);
 		fprintf(stderr, "%s\n", line);
-		return st == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+		return cli_exit_from_session(st);
 	}
 	char *comments = session_file_comments(path);
 	char *buf;
@@ -96,11 +98,8 @@ int cmd_tidy(int argc, char **argv)
 		}
 		return EXIT_OK_CODE;
 	}
-	size_t w = fwrite(buf, 1, len, stdout);
+	/* A failed write is reported by cli_finish_output (main.c). */
+	fwrite(buf, 1, len, stdout);
 	free(buf);
-	if (w != len || fflush(stdout) != 0) {
-		perror("biasline tidy: writing the output");
-		return EXIT_IO;
-	}
 	return EXIT_OK_CODE;
 }

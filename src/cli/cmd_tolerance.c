@@ -12,6 +12,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
+#include "csv.h"
 #include "core/safety.h"
 #include "core/tolerance.h"
 
@@ -47,10 +48,13 @@ static void tolerance_usage(FILE *out)
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
-	        "Exit status: 0 done; 3 no operating point at the nominal values;\n"
-	        "64 bad usage; 65 bad data in FILE (or no tolerances); 66 FILE\n"
-	        "cannot be read.\n",
+	        "A session without a tolerances: section is bad data (65); no\n"
+	        "operating point at the nominal values is exit 3.\n",
 	        TOL_MAX_TRIALS, TOL_MAX_BINS);
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
+	                                        EXIT_USAGE, EXIT_DATA,
+	                                        EXIT_NO_INPUT, EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Parse the command line into A; returns -1 to exit with *CODE. */
@@ -132,7 +136,7 @@ static enum qty_kind tolerance_unit(enum tol_output o)
 /* The CSV name of output O ("current_A"). */
 static const char *tolerance_column(char *buf, size_t n, enum tol_output o)
 {
-	return cli_column(buf, n, tol_output_name(o), tolerance_unit(o));
+	return csv_column_name(buf, n, tol_output_name(o), tolerance_unit(o));
 }
 
 /* The ratings at the worst case: each use from its own extreme. */
@@ -244,15 +248,18 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 		       rep.derating < 1.0 ? ", derated for the ambient" : "");
 	}
 	if (isfinite(rep.resistor_use))
-		printf("  resistor uses %.3g %% of its %s rating at worst\n",
-		       100.0 * rep.resistor_use,
+		printf("  resistor uses %s %% of its %s rating at worst\n",
+		       cli_fmt_number(d, sizeof d, 100.0 * rep.resistor_use, 3,
+		                      false),
 		       cli_fmt(a, sizeof a, rt->resistor_power, QTY_POWER, 3));
 	if (isfinite(rep.device_power_use))
-		printf("  device uses %.3g %% of its maximum power at worst\n",
-		       100.0 * rep.device_power_use);
+		printf("  device uses %s %% of its maximum power at worst\n",
+		       cli_fmt_number(d, sizeof d, 100.0 * rep.device_power_use, 3,
+		                      false));
 	if (isfinite(rep.device_current_use))
-		printf("  device uses %.3g %% of its maximum current at worst\n",
-		       100.0 * rep.device_current_use);
+		printf("  device uses %s %% of its maximum current at worst\n",
+		       cli_fmt_number(d, sizeof d, 100.0 * rep.device_current_use, 3,
+		                      false));
 	char warn[1024];
 	if (ratings_describe(&rep, rt, warn, sizeof warn) > 0)
 		for (char *line = strtok(warn, "\n"); line != NULL;
@@ -292,65 +299,108 @@ monte_carlo:
 		       bar, "########################################", h->counts[k]);
 	}
 	if (nwin > 0) {
-		printf("\n  yield %.4g %% (%zu of %zu trials) inside", 100.0 * mc->yield,
+		char y[32];
+		printf("\n  yield %s %% (%zu of %zu trials) inside",
+		       cli_fmt_number(y, sizeof y, 100.0 * mc->yield, 4, false),
 		       mc->inside, mc->trials);
 		for (size_t k = 0; k < nwin; k++) {
 			enum qty_kind u = tolerance_unit(win[k].output);
-			printf("%s %s %s ... %s", k ? " and" : "",
-			       tol_output_name(win[k].output),
-			       isnan(win[k].lo) ? "-inf" : cli_fmt(a, sizeof a, win[k].lo, u, 5),
-			       isnan(win[k].hi) ? "+inf" : cli_fmt(b, sizeof b, win[k].hi, u, 5));
+			const char *name = tol_output_name(win[k].output);
+			cli_fmt(a, sizeof a, win[k].lo, u, 5);
+			cli_fmt(b, sizeof b, win[k].hi, u, 5);
+			printf("%s ", k ? " and" : "");
+			/* A window open on one side has no bound there. */
+			if (isnan(win[k].lo))
+				printf("%s at most %s", name, b);
+			else if (isnan(win[k].hi))
+				printf("%s at least %s", name, a);
+			else
+				printf("%s %s ... %s", name, a, b);
 		}
 		printf("\n");
 	}
 }
 
-/* Print everything as CSV rows section,output,name,value. */
-static void tolerance_print_csv(const struct tol_case *c,
-                                const struct tol_worst *w,
-                                const struct tol_mc *mc)
+/* One CSV row SECTION,OUTPUT,NAME,VALUE. */
+static void tolerance_csv_row(struct csv *w, const char *section,
+                              const char *output, const char *name,
+                              double value)
 {
-	char col[64], nm[96];
-	printf("section,output,name,value\n");
+	csv_text(w, section);
+	csv_text(w, output);
+	csv_text(w, name);
+	csv_number(w, value);
+	csv_end_row(w);
+}
+
+/*
+ * Print everything as CSV rows section,output,name,value; returns the
+ * table's exit status.
+ */
+static int tolerance_print_csv(const struct tol_case *c,
+                               const struct tol_worst *w,
+                               const struct tol_mc *mc)
+{
+	char col[64], nm[PARAMREF_KEY_MAX + 32];
+	struct csv t;
+	csv_init(&t, stdout);
+	csv_column(&t, "section");
+	csv_column(&t, "output");
+	csv_column(&t, "name");
+	csv_column(&t, "value");
+	csv_end_row(&t);
 	for (int o = 0; o < TOL_NOUT && w != NULL; o++) {
 		tolerance_column(col, sizeof col, (enum tol_output)o);
-		printf("nominal,%s,value,%.17g\n", col, w->nominal[o]);
+		tolerance_csv_row(&t, "nominal", col, "value", w->nominal[o]);
 		const struct tol_extreme *ex[2] = { &w->min[o], &w->max[o] };
 		for (int m = 0; m < 2; m++) {
 			const char *mm = m ? "max" : "min";
-			printf("worst_case,%s,%s,%.17g\n", col, mm, ex[m]->value);
-			printf("worst_case,%s,%s_inside,%d\n", col, mm, ex[m]->interior);
-			for (size_t k = 0; k < c->nitems; k++)
-				printf("worst_case,%s,%s_at_%s,%.17g\n", col, mm,
-				       paramref_key(&c->pb, &c->items[k].param),
-				       ex[m]->params[k]);
+			tolerance_csv_row(&t, "worst_case", col, mm, ex[m]->value);
+			snprintf(nm, sizeof nm, "%s_inside", mm);
+			tolerance_csv_row(&t, "worst_case", col, nm,
+			                  ex[m]->interior ? 1.0 : 0.0);
+			for (size_t k = 0; k < c->nitems; k++) {
+				snprintf(nm, sizeof nm, "%s_at_%s", mm,
+				         paramref_key(&c->pb, &c->items[k].param));
+				tolerance_csv_row(&t, "worst_case", col, nm,
+				                  ex[m]->params[k]);
+			}
 		}
 	}
-	if (mc == NULL)
-		return;
-	printf("monte_carlo,all,trials,%zu\nmonte_carlo,all,failed,%zu\n",
-	       mc->trials, mc->failed);
-	for (int o = 0; o < TOL_NOUT; o++) {
-		const struct tol_stats *s = &mc->stats[o];
-		tolerance_column(col, sizeof col, (enum tol_output)o);
-		printf("monte_carlo,%s,mean,%.17g\n", col, s->mean);
-		printf("monte_carlo,%s,sd,%.17g\n", col, s->sd);
-		printf("monte_carlo,%s,min,%.17g\n", col, s->min);
-		printf("monte_carlo,%s,max,%.17g\n", col, s->max);
-		for (int p = 0; p < TOL_NPCT; p++) {
-			snprintf(nm, sizeof nm, "p%g", tol_percentiles[p]);
-			printf("monte_carlo,%s,%s,%.17g\n", col, nm, s->pct[p]);
+	if (mc != NULL) {
+		tolerance_csv_row(&t, "monte_carlo", "all", "trials",
+		                  (double)mc->trials);
+		tolerance_csv_row(&t, "monte_carlo", "all", "failed",
+		                  (double)mc->failed);
+		for (int o = 0; o < TOL_NOUT; o++) {
+			const struct tol_stats *s = &mc->stats[o];
+			tolerance_column(col, sizeof col, (enum tol_output)o);
+			tolerance_csv_row(&t, "monte_carlo", col, "mean", s->mean);
+			tolerance_csv_row(&t, "monte_carlo", col, "sd", s->sd);
+			tolerance_csv_row(&t, "monte_carlo", col, "min", s->min);
+			tolerance_csv_row(&t, "monte_carlo", col, "max", s->max);
+			for (int p = 0; p < TOL_NPCT; p++) {
+				snprintf(nm, sizeof nm, "p%g", tol_percentiles[p]);
+				tolerance_csv_row(&t, "monte_carlo", col, nm, s->pct[p]);
+			}
+			const struct tol_hist *h = &mc->hist[o];
+			char edge[48];
+			for (size_t k = 0; k < h->nbins; k++) {
+				double lo = h->lo + (h->hi - h->lo) * (double)k /
+				                    (double)h->nbins;
+				csv_format_number(edge, sizeof edge, lo);
+				tolerance_csv_row(&t, "histogram", col, edge,
+				                  (double)h->counts[k]);
+			}
+			tolerance_csv_row(&t, "histogram", col, "upper_edge", h->hi);
 		}
-		const struct tol_hist *h = &mc->hist[o];
-		for (size_t k = 0; k < h->nbins; k++)
-			printf("histogram,%s,%.17g,%zu\n", col,
-			       h->lo + (h->hi - h->lo) * (double)k / (double)h->nbins,
-			       h->counts[k]);
-		printf("histogram,%s,upper_edge,%.17g\n", col, h->hi);
+		if (mc->has_window) {
+			tolerance_csv_row(&t, "yield", "all", "inside",
+			                  (double)mc->inside);
+			tolerance_csv_row(&t, "yield", "all", "fraction", mc->yield);
+		}
 	}
-	if (mc->has_window)
-		printf("yield,all,inside,%zu\nyield,all,fraction,%.17g\n", mc->inside,
-		       mc->yield);
+	return csv_finish(&t, "tolerance");
 }
 
 /* Entry point of `biasline tolerance`. */
@@ -404,7 +454,7 @@ int cmd_tolerance(int argc, char **argv)
 	const struct tol_mc *mp = have_mc ? &mc : NULL;
 	unsigned flags = tol_safety(&c, wp, mp);
 	if (a.csv) {
-		tolerance_print_csv(&c, wp, mp);
+		code = tolerance_print_csv(&c, wp, mp);
 		if (flags != 0) {
 			char msg[512];
 			safety_message(flags, msg, sizeof msg);
@@ -416,5 +466,5 @@ int cmd_tolerance(int argc, char **argv)
 		cli_print_caution(flags, "  ");
 	}
 	session_fini(&se);
-	return EXIT_OK_CODE;
+	return code;
 }

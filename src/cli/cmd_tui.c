@@ -22,11 +22,13 @@ static void tui_usage(FILE *out)
 	        "  -C, --no-color  no colour (also when NO_COLOR is set)\n"
 	        "  -u, --unicode   line-drawing and symbol characters in the plot\n"
 	        "  -h, --help      show this help and exit\n"
-	        "  -V, --version   show the version and exit\n"
-	        "\n"
-	        "Exit status: 0 done, 64 bad usage, 65 bad session data, 66 FILE\n"
-	        "unreadable, 69 unusable terminal, 128+N stopped by signal N\n"
-	        "(unsaved changes then go to the recovery file).\n");
+	        "  -V, --version   show the version and exit\n");
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
+	                                        EXIT_DATA, EXIT_NO_INPUT,
+	                                        EXIT_NO_TERMINAL };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
+	fprintf(out, "  128+N stopped by signal N (unsaved changes then go to the\n"
+	        "        recovery file)\n");
 }
 
 /* Entry point of the front end. */

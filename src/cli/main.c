@@ -52,6 +52,12 @@ static void main_usage(FILE *out)
 	        "Options:\n"
 	        "  -h, --help     show this help and exit\n"
 	        "  -V, --version  show the version and exit\n");
+	size_t n;
+	const struct exit_status_info *t = exit_status_table(&n);
+	enum exit_code codes[16];
+	for (size_t k = 0; k < n && k < 16; k++)
+		codes[k] = t[k].code;
+	exit_status_usage(out, codes, n < 16 ? n : 16);
 }
 
 /* Dispatch to a subcommand, or the front end. */
@@ -61,15 +67,17 @@ int main(int argc, char **argv)
 		const char *a = argv[1];
 		if (strcmp(a, "-h") == 0 || strcmp(a, "--help") == 0) {
 			main_usage(stdout);
-			return EXIT_OK_CODE;
+			return cli_finish_output(NULL, EXIT_OK_CODE);
 		}
 		if (strcmp(a, "-V") == 0 || strcmp(a, "--version") == 0) {
 			printf("biasline %s\n", BIASLINE_VERSION);
-			return EXIT_OK_CODE;
+			return cli_finish_output(NULL, EXIT_OK_CODE);
 		}
+		/* A failed write to standard output is exit 74 in every command. */
 		for (size_t k = 0; k < sizeof commands / sizeof commands[0]; k++)
 			if (strcmp(a, commands[k].name) == 0)
-				return commands[k].run(argc - 1, argv + 1);
+				return cli_finish_output(commands[k].name,
+				                         commands[k].run(argc - 1, argv + 1));
 		if (a[0] != '-' && access(a, F_OK) != 0 && strchr(a, '.') == NULL &&
 		    strchr(a, '/') == NULL) {
 			fprintf(stderr,

@@ -168,8 +168,8 @@ expect_text "$tmp/out" "CAUTION"
 expect_exit 0 "$bl" solve --sensitivity "$tmp/plain.yaml"
 expect_text "$tmp/out" "sensitivities"
 expect_exit 0 "$bl" solve --sensitivity --format csv "$tmp/plain.yaml"
-expect_text "$tmp/out" "point,parameter,value,dV_dp,dI_dp,dP_dp,sens_V,sens_I,sens_P"
-expect_text "$tmp/out" "1,vs,5,"
+expect_text "$tmp/out" "point,parameter,value,unit,dV_dp,dI_dp,dP_dp,sens_V,sens_I,sens_P"
+expect_text "$tmp/out" "1,vs,5,V,"
 expect_exit 64 "$bl" solve --sensitivity --trace --format csv "$tmp/plain.yaml"
 
 tap_finish

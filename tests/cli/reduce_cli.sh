@@ -3,7 +3,7 @@
 # against closed-form Thevenin values, the power balance at the operating
 # point, ideal sources, errors that name the file, line and part, and the
 # safety caution.
-# Usage: reduce_cli.sh BIASLINE
+# Usage: reduce_cli.sh BIASLINE (CSV_STRICT names tests/cli/csv_strict)
 set -u
 bl=$1
 . "$(dirname "$0")/tap.sh"
@@ -54,14 +54,25 @@ expect_awk "$tmp/out" 'NR==2 { p=56e3*18e3/(56e3+18e3);
 	a=($1-vth)/vth; b=($2-rth)/rth; if (a<0) a=-a; if (b<0) b=-b;
 	exit !(a < 1e-12 && b < 1e-12) }' "Vth and Rth match the closed form"
 expect_exit 0 "$bl" reduce --nodes --format csv "$tmp/net.yaml"
-expect_text "$tmp/out" "point,part,kind,from,to,voltage_V,current_A,power_W"
-expect_text "$tmp/out" '1,"upper, divider",resistor,top,base,'
+expect_text "$tmp/out" \
+	"row,point,name,part_kind,from,to,voltage_V,current_A,power_W,resistance_ohm"
+expect_text "$tmp/out" 'part,1,"upper, divider",resistor,top,base,'
+# One table: the strict reader decodes it (fields joined by tabs).
+cp "$tmp/out" "$tmp/nodes.csv"
+expect_exit 0 "$CSV_STRICT" -t "$tmp/nodes.csv"
+cp "$tmp/out" "$tmp/nodes.tsv"
 # Tellegen's theorem (Tellegen, Philips Res. Rep. 7, 1952): the parts'
 # absorbed powers and the device's sum to zero.
-expect_awk "$tmp/out" '/^point,voltage_V/ { s=1; next } s==1 && NF==4 { dev=$4; s=2; next }
-	/^point,part/ { s=3; next } s==3 && NF>=8 { sum+=$NF; mag+=($NF<0?-$NF:$NF) }
-	END { t=sum+dev; if (t<0) t=-t; exit !(mag > 0 && t < 1e-12*mag) }' \
-	"part powers and the device's sum to zero"
+n=$((n + 1))
+if awk -F'\t' '$1 == "point" { dev = $9 } $1 == "part" { sum += $9;
+	mag += ($9 < 0 ? -$9 : $9) }
+	END { t = sum + dev; if (t < 0) t = -t;
+	      exit !(mag > 0 && t < 1e-12 * mag) }' "$tmp/nodes.tsv"; then
+	echo "ok $n - part powers and the device's sum to zero"
+else
+	echo "not ok $n - part powers and the device's do not sum to zero"
+	cat "$tmp/nodes.tsv"; fails=$((fails + 1))
+fi
 expect_exit 0 "$bl" reduce --nodes --reference ground "$tmp/net.yaml"
 expect_text "$tmp/out" "Node voltages (relative to ground):"
 expect_text "$tmp/out" "13.7000 V"
@@ -85,7 +96,8 @@ device:
   ideality: 1.04
 YAML
 expect_exit 0 "$bl" reduce --format csv "$tmp/current.yaml"
-expect_text "$tmp/out" "nan,inf,0.0025"
+# No open-circuit voltage: an empty field; the resistance is infinite.
+expect_text "$tmp/out" ",inf,0.0025"
 
 cat >"$tmp/high.yaml" <<'YAML'
 source:
@@ -139,6 +151,7 @@ expect_exit 64 "$bl" reduce
 expect_exit 64 "$bl" reduce --format xml "$tmp/net.yaml"
 expect_exit 64 "$bl" reduce --reference ground "$tmp/net.yaml"
 expect_exit 64 "$bl" reduce --nodes --reference nowhere "$tmp/net.yaml"
+expect_empty "$tmp/out" "a bad --reference is refused before any output"
 expect_exit 64 "$bl" reduce --bogus "$tmp/net.yaml"
 expect_exit 0 "$bl" reduce --help
 expect_text "$tmp/out" "--nodes"

@@ -47,3 +47,26 @@ tap_finish() {
 	echo "1..$n"
 	[ "$fails" -eq 0 ]
 }
+
+# Check that FILE is empty; WHAT names it.
+expect_empty() {
+	n=$((n + 1))
+	if [ ! -s "$1" ]; then
+		echo "ok $n - $2"
+	else
+		echo "not ok $n - $2"; cat "$1"
+		fails=$((fails + 1))
+	fi
+}
+
+# Check that FILE is strict RFC 4180 CSV with unique header names
+# (CSV_STRICT names tests/cli/csv_strict); WHAT names the output.
+expect_strict_csv() {
+	n=$((n + 1))
+	if "$CSV_STRICT" "$1" >"$tmp/strict" 2>&1; then
+		echo "ok $n - $2 is strict RFC 4180 ($(cat "$tmp/strict"))"
+	else
+		echo "not ok $n - $2 is not strict RFC 4180: $(cat "$tmp/strict")"
+		fails=$((fails + 1))
+	fi
+}

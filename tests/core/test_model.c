@@ -15,6 +15,7 @@
 #include "core_check.h"
 
 #include "core/model.h"
+#include "core/source.h"
 #include "core/models/models.h"
 
 /*
@@ -373,6 +374,82 @@ static void test_required_keys(void **state)
 	assert_null(model_find("no-such-model"));
 }
 
+/*
+ * A model's extra results are the columns of solve's CSV after the point's
+ * own (point, voltage, current, power, rd, steps, method, tangent) and
+ * before region and flagged: every model reports the same keys in the
+ * same order at every point and for every source, none twice and none
+ * that repeats a point column (common practice for a table: RFC 4180
+ * tables are read by column name).
+ */
+static void test_extra_keys(void **state)
+{
+	(void)state;
+	static const char *const taken[] = { "point", "voltage", "current",
+	                                     "power", "rd", "steps", "method",
+	                                     "tangent", "region", "flagged" };
+	for (size_t m = 0; model_registry[m] != NULL; m++) {
+		const struct model_type *t = model_registry[m];
+		const struct model_cases *mc = model_cases_find(t->name);
+		if (t->secondary == NULL || mc == NULL)
+			continue;
+		for (size_t c = 0; c < mc->nsets; c++) {
+			struct device dev;
+			device_init(&dev, t);
+			for (size_t k = 0; k < t->nparams; k++)
+				dev.p[k] = mc->sets[c][k];
+			double lo, hi;
+			device_range(&dev, &lo, &hi);
+			/* a Thevenin source, a stiff one and an ideal current one */
+			const struct source srcs[] = {
+				{ 7.31, 7.31 / 2.7e3, 2.7e3 },
+				{ 1.93, INFINITY, 0.0 },
+				{ NAN, 3.7e-3, INFINITY },
+			};
+			struct model_extra first;
+			bool have = false;
+			for (size_t s = 0; s < 3; s++) {
+				for (int q = 0; q <= 4; q++) {
+					double v = lo + (hi - lo) * (0.05 + 0.2 * q);
+					double i = t->current != NULL ? device_current(&dev, v)
+					                              : 1e-4 * (q + 1);
+					struct model_extra ex;
+					if (device_secondary(&dev, &srcs[s], v, i, &ex) != 0)
+						continue;
+					for (size_t a = 0; a < ex.n; a++) {
+						for (size_t b = 0; b < a; b++)
+							if (strcmp(ex.v[a].key, ex.v[b].key) == 0)
+								fail_msg("%s reports %s twice", t->name,
+								         ex.v[a].key);
+						for (size_t b = 0;
+						     b < sizeof taken / sizeof taken[0]; b++)
+							if (strcmp(ex.v[a].key, taken[b]) == 0)
+								fail_msg("%s reports %s, a point column",
+								         t->name, ex.v[a].key);
+					}
+					if (!have) {
+						first = ex;
+						have = true;
+						continue;
+					}
+					if (ex.n != first.n)
+						fail_msg("%s reports %zu results here, %zu there",
+						         t->name, ex.n, first.n);
+					for (size_t a = 0; a < ex.n; a++)
+						if (strcmp(ex.v[a].key, first.v[a].key) != 0 ||
+						    ex.v[a].kind != first.v[a].kind)
+							fail_msg("%s: result %zu is %s here, %s there",
+							         t->name, a, ex.v[a].key,
+							         first.v[a].key);
+				}
+			}
+			if (!have)
+				fail_msg("%s set %zu: no extra results at any point",
+				         t->name, c);
+		}
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -380,6 +457,7 @@ int main(void)
 		cmocka_unit_test(test_derivatives),
 		cmocka_unit_test(test_validate),
 		cmocka_unit_test(test_required_keys),
+		cmocka_unit_test(test_extra_keys),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -398,7 +398,9 @@ sensitivity)
 	# of RS is the one 'biasline solve --sensitivity' prints.
 	out=$("$bin" solve --sensitivity --format csv "$samples/indicator-led-24v.yaml") ||
 		fail "'biasline solve --sensitivity' exited $?"
-	cli_si=$(awk -F, '$2 == "rs" { print $8; exit }' <<<"$out")
+	# Columns by their header names; records end in CR LF (RFC 4180).
+	cli_si=$(tr -d '\r' <<<"$out" | awk -F, 'NR == 1 { for (k = 1; k <= NF; k++) c[$k] = k }
+		$2 == "rs" { print $c["sens_I"]; exit }')
 	[ -n "$cli_si" ] || { echo "$out"; fail "no rs row in the CLI's sensitivities"; }
 	start 100 30 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"

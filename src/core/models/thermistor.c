@@ -196,7 +196,7 @@ static void therm_put(struct model_extra *out, const char *key,
 		out->v[out->n++] = (struct model_extra_value){ key, label, kind, value };
 }
 
-/* Body temperature, resistance, power, the peak and the domain at (V, I). */
+/* Body temperature, resistance, rise, the peak and the domain at (V, I). */
 static int therm_secondary(const double *p, bool sh, double v, double i,
                            struct model_extra *out)
 {
@@ -207,8 +207,9 @@ static int therm_secondary(const double *p, bool sh, double v, double i,
 	double tc = t - ZERO_C;
 	therm_put(out, "body_temperature", "T", QTY_TEMPERATURE, tc);
 	therm_put(out, "resistance", "R", QTY_RESISTANCE, r);
-	therm_put(out, "power", "P", QTY_POWER, v * i);
-	therm_put(out, "temperature_rise", "dT", QTY_NUMBER, tc - p[THERM_TAMB]);
+	/* The power is the point's own (V I): not repeated here. */
+	therm_put(out, "temperature_rise", "dT", QTY_TEMPERATURE,
+	          tc - p[THERM_TAMB]);
 	double tp, ip, vp;
 	bool peak = therm_peak(p, sh, &tp, &ip, &vp) == 0;
 	therm_put(out, "peak_voltage", "Vpeak", QTY_VOLTAGE, peak ? vp : NAN);
