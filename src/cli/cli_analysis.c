@@ -12,10 +12,38 @@
 
 #include "commands.h"
 #include "core/safety.h"
+#include "session/session_set.h"
 
 /* Load FILE and build its problem. */
 int cli_load_problem(const char *cmd, const char *file, struct session *se,
                      struct problem *pb)
+{
+	return cli_load_with(cmd, file, NULL, se, pb);
+}
+
+/* Check and keep one --set. */
+int cli_add_set(const char *cmd, struct cli_sets *sets, const char *arg)
+{
+	char key[SESSION_SET_KEY_MAX], err[300];
+	const char *value;
+	if (session_set_split(arg, key, sizeof key, &value, err, sizeof err) !=
+	    SESSION_SET_OK) {
+		fprintf(stderr, "biasline %s: --set: %s\n", cmd, err);
+		return -1;
+	}
+	if (sets->n >= CLI_MAX_SETS) {
+		fprintf(stderr, "biasline %s: --set: at most %d of them\n", cmd,
+		        CLI_MAX_SETS);
+		return -1;
+	}
+	sets->text[sets->n++] = arg;
+	return 0;
+}
+
+/* Load FILE, apply the --set options and build its problem. */
+int cli_load_with(const char *cmd, const char *file,
+                  const struct cli_sets *sets, struct session *se,
+                  struct problem *pb)
 {
 	struct session_error err;
 	enum session_status ls = session_load_file(se, file, &err);
@@ -24,6 +52,17 @@ int cli_load_problem(const char *cmd, const char *file, struct session *se,
 		session_error_format(&err, msg, sizeof msg);
 		fprintf(stderr, "biasline %s: %s\n", cmd, msg);
 		return cli_exit_from_session(ls);
+	}
+	for (size_t k = 0; sets != NULL && k < sets->n; k++) {
+		char why[1024];
+		enum session_set_status st = session_set_assignment(
+		        se, sets->text[k], why, sizeof why);
+		if (st != SESSION_SET_OK) {
+			fprintf(stderr, "biasline %s: %s: --set %s: %s\n", cmd, file,
+			        sets->text[k], why);
+			session_fini(se);
+			return st == SESSION_SET_BAD_VALUE ? EXIT_DATA : EXIT_USAGE;
+		}
 	}
 	char emsg[512];
 	if (session_problem(se, pb, emsg, sizeof emsg) != 0) {

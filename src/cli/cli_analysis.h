@@ -22,6 +22,42 @@
 int cli_load_problem(const char *cmd, const char *file, struct session *se,
                      struct problem *pb);
 
+/* Most --set options one command takes. */
+#define CLI_MAX_SETS 64
+
+/* The getopt_long value of --set (it has no short form). */
+#define CLI_OPT_SET 0x5e7
+
+/* The --set KEY=VALUE options of a command line, in order. */
+struct cli_sets {
+	size_t n;
+	const char *text[CLI_MAX_SETS];
+};
+
+/* The line of --help that describes --set. */
+#define CLI_SET_HELP \
+	"      --set KEY=VALUE  change one value after loading FILE (repeat it\n" \
+	"                       for more): vs, rs, is, rp, a device key,\n" \
+	"                       source.network.PART, target.KEY, ratings.KEY,\n" \
+	"                       solver.KEY; the value may carry an SI prefix\n" \
+	"                       and unit (rs=4.7k, vs=\"27 V\")\n"
+
+/*
+ * Add --set ARG to SETS after checking its form (KEY=VALUE); prints and
+ * returns -1 (exit 64) when it is malformed or there are too many.
+ */
+int cli_add_set(const char *cmd, struct cli_sets *sets, const char *arg);
+
+/*
+ * As cli_load_problem, applying SETS (may be NULL) to the session after
+ * loading, each checked like the file (session/session_set.h): a key the
+ * session does not have exits 64, a bad value 65, each message naming
+ * the key.
+ */
+int cli_load_with(const char *cmd, const char *file,
+                  const struct cli_sets *sets, struct session *se,
+                  struct problem *pb);
+
 /* Parse a --format value into *CSV; prints and returns -1 when bad. */
 int cli_parse_format(const char *cmd, const char *arg, bool *csv);
 

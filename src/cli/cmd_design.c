@@ -2,7 +2,8 @@
  * cmd_design.c - `biasline design FILE`: the series resistance (or source
  * voltage) that puts the device at a target current, voltage or power,
  * the standard values either side, what each gives, and the power in the
- * parts against their ratings.
+ * parts against their ratings (core/verdict.h's words); with --worst-case
+ * each row's worst case over the session's tolerances.
  */
 #include <getopt.h>
 #include <math.h>
@@ -15,11 +16,13 @@
 #include "csv.h"
 #include "core/design.h"
 #include "core/safety.h"
+#include "core/verdict.h"
 
 /* What the command line asked for. */
 struct design_args {
-	bool csv;
+	bool csv, worst;
 	bool have_target, have_series, have_unknown;
+	struct cli_sets sets;   /* --set KEY=VALUE */
 	struct design_request rq;
 	const char *part;       /* --solve-for source.network.NAME, or NULL */
 	const char *file;
@@ -35,10 +38,12 @@ static void design_usage(FILE *out)
 	        "the device at a target current, voltage or power; show the nearest\n"
 	        "standard resistors below and above the exact value with the point,\n"
 	        "the error from the target and the power each gives, checked against\n"
-	        "the session's ratings.\n"
+	        "the session's ratings; the standard value nearer the target is\n"
+	        "marked.  A target below zero is a point in the third quadrant: a\n"
+	        "Zener shunt's reverse current on a negative source (-5m).\n"
 	        "\n"
 	        "Options:\n"
-	        "  -c, --current I      target device current (12m, 12 mA)\n"
+	        "  -c, --current I      target device current (12m, 12 mA; -5m reverse)\n"
 	        "  -v, --voltage V      target device voltage\n"
 	        "  -p, --power P        target device power\n"
 	        "                       (one of the three; default: the session's\n"
@@ -46,9 +51,17 @@ static void design_usage(FILE *out)
 	        "  -s, --series E       E6, E12, E24, E48, E96 or E192 (default E24)\n"
 	        "  -S, --solve-for X    rs (default), vs, or for a network source\n"
 	        "                       the part to design: source.network.NAME\n"
+	        "  -w, --worst-case     also each row's worst case over the session's\n"
+	        "                       tolerances: the current (nominal, min, max),\n"
+	        "                       the largest resistor power, its verdict\n"
+	        "                       against the ratings and the standard power\n"
+	        "                       rating that fits\n"
 	        "  -f, --format FMT     text (default) or csv\n"
+	        CLI_SET_HELP
 	        "  -h, --help           show this help and exit\n"
-	        "  -V, --version        show the version and exit\n");
+	        "  -V, --version        show the version and exit\n"
+	        "\n"
+	        "With --worst-case, a session without tolerances is bad data (65).\n");
 	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
 	                                        EXIT_USAGE, EXIT_DATA,
 	                                        EXIT_NO_INPUT, EXIT_IO };
@@ -84,6 +97,8 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 		{ "series", required_argument, NULL, 's' },
 		{ "solve-for", required_argument, NULL, 'S' },
 		{ "format", required_argument, NULL, 'f' },
+		{ "worst-case", no_argument, NULL, 'w' },
+		{ "set", required_argument, NULL, CLI_OPT_SET },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -95,7 +110,7 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 	opterr = 0;
 	*code = EXIT_USAGE;
 	int c;
-	while ((c = getopt_long(argc, argv, ":c:v:p:s:S:f:hV", opts, NULL)) != -1) {
+	while ((c = getopt_long(argc, argv, ":c:v:p:s:S:f:whV", opts, NULL)) != -1) {
 		switch (c) {
 		case 'c':
 		case 'v':
@@ -133,6 +148,13 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 			if (cli_parse_format("design", optarg, &a->csv) != 0)
 				return -1;
 			break;
+		case 'w':
+			a->worst = true;
+			break;
+		case CLI_OPT_SET:
+			if (cli_add_set("design", &a->sets, optarg) != 0)
+				return -1;
+			break;
 		case 'h':
 			design_usage(stdout);
 			*code = EXIT_OK_CODE;
@@ -160,17 +182,23 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 	return 0;
 }
 
-/* The unit of the target. */
-static enum qty_kind design_target_unit(enum design_target t)
+/* The verdict at one row's point, for the session's form and target. */
+static void design_row_verdict(const struct problem *pb,
+                               const struct design_request *rq,
+                               const struct ratings *rt,
+                               const struct design_row *r, struct verdict *vd)
 {
-	return t == DESIGN_CURRENT ? QTY_CURRENT
-	       : t == DESIGN_VOLTAGE ? QTY_VOLTAGE : QTY_POWER;
+	struct problem q;
+	if (design_apply_request(pb, rq, r->value, &q) != 0)
+		q = *pb;
+	verdict_at(&q, SOURCE_THEVENIN, r->pt.v, r->pt.i, rt, rq, vd);
 }
 
 /* Print the result as CSV; returns the table's exit status. */
 static int design_print_csv(const struct problem *pb,
                             const struct design_request *rq,
-                            const struct design_result *res)
+                            const struct ratings *rt,
+                            const struct design_result *res, bool worst)
 {
 	const char *col = rq->unknown == DESIGN_FOR_RS   ? "rs_ohm"
 	                  : rq->unknown == DESIGN_FOR_VS ? "vs_V"
@@ -180,7 +208,13 @@ static int design_print_csv(const struct problem *pb,
 	                                                               : "part_A";
 	static const char *const cols[] = {
 		"voltage_V", "current_A", "power_W", "resistor_power_W",
-		"source_power_W", "error_percent", "points", "suggested_resistor_W"
+		"source_power_W", "error_percent", "points", "suggested_resistor_W",
+		"nearest", "verdict"
+	};
+	static const char *const wcols[] = {
+		"current_min_A", "current_max_A", "voltage_min_V", "voltage_max_V",
+		"device_power_max_W", "resistor_power_max_W", "worst_verdict",
+		"worst_suggested_resistor_W"
 	};
 	struct csv w;
 	csv_init(&w, stdout);
@@ -188,6 +222,8 @@ static int design_print_csv(const struct problem *pb,
 	csv_column(&w, col);
 	for (size_t k = 0; k < sizeof cols / sizeof cols[0]; k++)
 		csv_column(&w, cols[k]);
+	for (size_t k = 0; worst && k < sizeof wcols / sizeof wcols[0]; k++)
+		csv_column(&w, wcols[k]);
 	csv_end_row(&w);
 	/* A network's equivalent resistor is no part: no power for it. */
 	bool part = rq->unknown == DESIGN_FOR_PART;
@@ -196,6 +232,8 @@ static int design_print_csv(const struct problem *pb,
 		/* A value without an operating point has only its value. */
 		double nan = NAN;
 		bool ok = r->solved;
+		struct verdict vd;
+		design_row_verdict(pb, rq, rt, r, &vd);
 		csv_text(&w, design_row_name(r->kind));
 		csv_number(&w, r->value);
 		csv_number(&w, ok ? r->pt.v : nan);
@@ -206,18 +244,87 @@ static int design_print_csv(const struct problem *pb,
 		csv_number(&w, ok ? r->error_percent : nan);
 		csv_count(&w, r->npoints);
 		csv_number(&w, ok && !part ? r->power.suggested_resistor_power : nan);
+		csv_text(&w, r->nearest ? "yes" : "no");
+		if (ok)
+			csv_text(&w, ratings_verdict_name(vd.worst));
+		else
+			csv_empty(&w);
+		if (worst) {
+			const struct design_worst *x = &r->worst;
+			csv_number(&w, x->i_min);
+			csv_number(&w, x->i_max);
+			csv_number(&w, x->v_min);
+			csv_number(&w, x->v_max);
+			csv_number(&w, x->p_device_max);
+			csv_number(&w, x->p_resistor_max);
+			if (x->done)
+				csv_text(&w, ratings_verdict_name(x->verdict));
+			else
+				csv_empty(&w);
+			csv_number(&w, x->suggested_resistor_power);
+		}
 		csv_end_row(&w);
 	}
 	return csv_finish(&w, "design");
+}
+
+/* Print each row's worst case as text. */
+static void design_print_worst(const struct problem *pb,
+                               const struct design_request *rq,
+                               const struct design_result *res, bool for_rs)
+{
+	char a[48], b[48], c[48], d[48], e[48], f[48];
+	enum qty_kind uk = design_unknown_unit(pb, rq);
+	bool part = rq->unknown == DESIGN_FOR_PART;
+	printf("\n  worst case over the tolerances (every corner of the box)\n");
+	printf("  %-7s %-13s %-12s %-12s %-12s %-12s %-14s %s\n", "",
+	       part ? "value" : for_rs ? "RS" : "VS", "I nominal", "I min",
+	       "I max", part ? "" : "P(RS) max", "verdict", "fits");
+	for (size_t k = 0; k < res->nrows; k++) {
+		const struct design_row *r = &res->rows[k];
+		const struct design_worst *w = &r->worst;
+		/* The exact value is no part to buy when standard ones follow. */
+		if (for_rs && r->kind == DESIGN_ROW_EXACT && res->nrows > 1)
+			continue;
+		cli_fmt(a, sizeof a, r->value, uk, for_rs ? 3 : 6);
+		if (!w->done) {
+			printf("  %-7s %-13s (%s)\n", design_row_name(r->kind), a,
+			       w->message[0] ? w->message : "no operating point");
+			continue;
+		}
+		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %-14s %s\n",
+		       design_row_name(r->kind), a,
+		       cli_fmt(b, sizeof b, r->pt.i, QTY_CURRENT, 5),
+		       cli_fmt(c, sizeof c, w->i_min, QTY_CURRENT, 5),
+		       cli_fmt(d, sizeof d, w->i_max, QTY_CURRENT, 5),
+		       part ? "" : cli_fmt(e, sizeof e, w->p_resistor_max, QTY_POWER, 4),
+		       ratings_verdict_name(w->verdict),
+		       part || isnan(w->suggested_resistor_power)
+		           ? (part ? "" : "-")
+		           : cli_fmt(f, sizeof f, w->suggested_resistor_power,
+		                     QTY_POWER, 3));
+	}
+	for (size_t k = 0; k < res->nrows; k++) {
+		const struct design_row *r = &res->rows[k];
+		if (!r->worst.done || r->worst.words[0] == '\0' ||
+		    (for_rs && r->kind == DESIGN_ROW_EXACT && res->nrows > 1))
+			continue;
+		printf("  %s %s: %s\n", design_row_name(r->kind),
+		       cli_fmt(a, sizeof a, r->value, uk, for_rs ? 3 : 6),
+		       r->worst.words);
+	}
+	if (part)
+		printf("  (the source is a network: check each resistor with "
+		       "'biasline reduce --nodes')\n");
 }
 
 /* Print the result as text; returns the safety flags of all rows. */
 static unsigned design_print_text(const char *file, const struct problem *pb,
                                   const struct design_request *rq,
                                   const struct ratings *rt,
-                                  const struct design_result *res)
+                                  const struct design_result *res, bool worst)
 {
-	char a[48], b[48], c[48], d[48], e[48], f[48];
+	char a[48], b[48], c[48], d[48], e[48];
 	enum qty_kind tk = design_target_unit(rq->target);
 	bool for_part = rq->unknown == DESIGN_FOR_PART;
 	bool for_rs = rq->unknown == DESIGN_FOR_RS ||
@@ -253,7 +360,7 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
 			continue;
 		}
 		char g[32];
-		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %s %%%s\n",
+		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %s %%%s%s\n",
 		       design_row_name(r->kind), a,
 		       cli_fmt(b, sizeof b, r->pt.v, QTY_VOLTAGE, 5),
 		       cli_fmt(c, sizeof c, r->pt.i, QTY_CURRENT, 5),
@@ -261,36 +368,58 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
 		       for_part ? ""
 		                : cli_fmt(e, sizeof e, r->power.p_resistor, QTY_POWER, 4),
 		       cli_fmt_number(g, sizeof g, r->error_percent, 3, true),
+		       r->nearest ? "  (nearest)" : "",
 		       r->npoints > 1 ? "  (several points)" : "");
 		struct problem q;
 		if (design_apply_request(pb, rq, r->value, &q) == 0)
 			flags |= safety_check(&q, r->pt.v, r->pt.i);
 	}
-	/* Power and ratings at each standard value. */
+	/* Power and ratings at each value a part can have. */
 	for (size_t k = 0; k < res->nrows; k++) {
 		const struct design_row *r = &res->rows[k];
-		if (!r->solved || (for_rs && r->kind == DESIGN_ROW_EXACT) || for_part)
+		if (!r->solved || (for_rs && r->kind == DESIGN_ROW_EXACT))
 			continue;
-		printf("\n  %s %s: source delivers %s; RS needs a %s rating",
-		       design_row_name(r->kind),
-		       cli_fmt(a, sizeof a, r->value,
-		               for_rs ? QTY_RESISTANCE : QTY_VOLTAGE, 3),
-		       cli_fmt(b, sizeof b, r->power.p_source, QTY_POWER, 4),
-		       isnan(r->power.suggested_resistor_power)
-		           ? "(none in the table)"
-		           : cli_fmt(f, sizeof f, r->power.suggested_resistor_power,
-		                     QTY_POWER, 3));
-		printf("\n    (at most %.0f %% of the rating%s: common practice)\n",
-		       100.0 * RATINGS_USE_FRACTION,
-		       r->power.derating < 1.0 ? ", derated for the ambient" : "");
-		char warn[1024];
-		if (ratings_describe(&r->power, rt, warn, sizeof warn) > 0) {
-			for (char *line = strtok(warn, "\n"); line != NULL;
-			     line = strtok(NULL, "\n"))
-				printf("    warning: %s\n", line);
-		}
+		struct verdict vd;
+		design_row_verdict(pb, rq, rt, r, &vd);
+		printf("\n  %s %s%s\n", design_row_name(r->kind),
+		       cli_fmt(a, sizeof a, r->value, uk, for_rs ? 3 : 6),
+		       r->nearest ? " (nearest)" : "");
+		for (size_t j = 0; j < vd.nlines; j++)
+			printf("    %s\n", vd.lines[j].words);
+		if (vd.message[0] != '\0')
+			printf("    (%s)\n", vd.message);
 	}
+	if (worst)
+		design_print_worst(pb, rq, res, for_rs);
 	return flags;
+}
+
+/* Each row's worst case over SE's tolerances; returns 0 or an exit code. */
+static int design_worst_rows(const char *file, const struct session *se,
+                             const struct problem *pb,
+                             const struct design_request *rq,
+                             struct design_result *res)
+{
+	char err[600];
+	if (se->analysis.ntol == 0) {
+		fprintf(stderr, "biasline design: %s: --worst-case: no tolerances: "
+		        "section (e.g. tolerances: {rs: 5%%, vs: 10%%})\n", file);
+		return EXIT_DATA;
+	}
+	for (size_t k = 0; k < res->nrows; k++) {
+		struct design_row *r = &res->rows[k];
+		struct problem q;
+		struct tol_case c;
+		if (!r->solved || design_apply_request(pb, rq, r->value, &q) != 0)
+			continue;
+		/* The tolerances around the row's own value. */
+		if (session_tolerance_case(se, &q, &c, err, sizeof err) != 0) {
+			fprintf(stderr, "biasline design: %s: %s\n", file, err);
+			return EXIT_DATA;
+		}
+		design_row_worst(&c, &se->analysis.ratings, &r->worst);
+	}
+	return 0;
 }
 
 /* Entry point of `biasline design`. */
@@ -302,7 +431,7 @@ int cmd_design(int argc, char **argv)
 		return code;
 	struct session se;
 	struct problem pb;
-	if ((code = cli_load_problem("design", a.file, &se, &pb)) != 0)
+	if ((code = cli_load_with("design", a.file, &a.sets, &se, &pb)) != 0)
 		return code;
 	struct design_request rq = a.rq;
 	if (!a.have_target) {
@@ -337,11 +466,17 @@ int cmd_design(int argc, char **argv)
 	if (design_solve(&pb, &se.solver, &rq, &se.analysis.ratings, &res) != 0) {
 		fprintf(stderr, "biasline design: %s: %s\n", a.file, res.message);
 		code = EXIT_NO_POINT;
+	} else if (a.worst &&
+	           (code = design_worst_rows(a.file, &se, &pb, &rq, &res)) != 0) {
+		/* reported */
 	} else if (a.csv) {
-		code = design_print_csv(&pb, &rq, &res);
+		code = design_print_csv(&pb, &rq, &se.analysis.ratings, &res, a.worst);
 	} else {
 		unsigned flags = design_print_text(a.file, &pb, &rq,
-		                                   &se.analysis.ratings, &res);
+		                                   &se.analysis.ratings, &res,
+		                                   a.worst);
+		for (size_t k = 0; a.worst && k < res.nrows; k++)
+			flags |= res.rows[k].worst.safety;
 		cli_print_network_note(&se, "  ");
 		cli_print_caution(flags, "  ");
 	}

@@ -45,6 +45,7 @@ static void plot_usage(FILE *out)
 	        "  -u, --unicode       use line-drawing and symbol characters\n"
 	        "  -p, --zoom-point    frame the first operating point instead of\n"
 	        "                      the whole load line\n"
+	        CLI_SET_HELP
 	        "  -h, --help          show this help and exit\n"
 	        "  -V, --version       show the version and exit\n",
 	        RENDER_MIN_COLS, RENDER_MIN_ROWS);
@@ -145,12 +146,14 @@ int cmd_plot(int argc, char **argv)
 		{ "steps", required_argument, NULL, 'n' },
 		{ "unicode", no_argument, NULL, 'u' },
 		{ "zoom-point", no_argument, NULL, 'p' },
+		{ "set", required_argument, NULL, CLI_OPT_SET },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
 	};
 	long cols = 80, rows = 24, nsteps = 0;
 	bool zoom_point = false;
+	struct cli_sets sets = { 0 };
 	struct render_view view;
 	render_view_init(&view);
 	optind = 1;
@@ -187,6 +190,10 @@ int cmd_plot(int argc, char **argv)
 		case 'p':
 			zoom_point = true;
 			break;
+		case CLI_OPT_SET:
+			if (cli_add_set("plot", &sets, optarg) != 0)
+				return EXIT_USAGE;
+			break;
 		case 'h':
 			plot_usage(stdout);
 			return EXIT_OK_CODE;
@@ -211,7 +218,7 @@ int cmd_plot(int argc, char **argv)
 
 	struct session s;
 	struct problem pb;
-	int code = cli_load_problem("plot", argv[optind], &s, &pb);
+	int code = cli_load_with("plot", argv[optind], &sets, &s, &pb);
 	if (code != 0)
 		return code;
 

@@ -62,6 +62,7 @@ static void reduce_usage(FILE *out)
 	        "  -n, --nodes           solve the device and show the network there\n"
 	        "  -r, --reference NODE  node voltages relative to NODE (default:\n"
 	        "                        the device's negative terminal)\n"
+	        CLI_SET_HELP
 	        "  -h, --help            show this help and exit\n"
 	        "  -V, --version         show the version and exit\n");
 	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
@@ -386,6 +387,7 @@ int cmd_reduce(int argc, char **argv)
 		{ "format", required_argument, NULL, 'f' },
 		{ "nodes", no_argument, NULL, 'n' },
 		{ "reference", required_argument, NULL, 'r' },
+		{ "set", required_argument, NULL, CLI_OPT_SET },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -393,6 +395,7 @@ int cmd_reduce(int argc, char **argv)
 	enum reduce_format fmt = FORMAT_TEXT;
 	bool nodes = false;
 	const char *refname = NULL;
+	struct cli_sets sets = { 0 };
 	int c;
 	optind = 1;
 	opterr = 0;
@@ -414,6 +417,10 @@ int cmd_reduce(int argc, char **argv)
 			break;
 		case 'r':
 			refname = optarg;
+			break;
+		case CLI_OPT_SET:
+			if (cli_add_set("reduce", &sets, optarg) != 0)
+				return EXIT_USAGE;
 			break;
 		case 'h':
 			reduce_usage(stdout);
@@ -443,7 +450,7 @@ int cmd_reduce(int argc, char **argv)
 	}
 	struct session s;
 	struct problem pb;
-	int code = cli_load_problem("reduce", argv[optind], &s, &pb);
+	int code = cli_load_with("reduce", argv[optind], &sets, &s, &pb);
 	if (code != 0)
 		return code;
 	/* Everything that can refuse the request runs before any output. */

@@ -17,6 +17,7 @@
 #include "core/sensitivity.h"
 #include "core/solve.h"
 #include "core/stepper.h"
+#include "core/verdict.h"
 #include "session/session.h"
 
 /* What the command line asked for. */
@@ -27,6 +28,7 @@ struct solve_args {
 	bool have_method, have_order;
 	enum solve_method method;
 	enum projection_order order;
+	struct cli_sets sets;   /* --set KEY=VALUE */
 	const char *file;
 };
 
@@ -52,6 +54,7 @@ static void solve_usage(FILE *out)
 	        "  -s, --sensitivity  print how each point moves with every parameter:\n"
 	        "                     dV/dp, dI/dp and the normalised %% per %% (with\n"
 	        "                     --format csv, the table replaces the points)\n"
+	        CLI_SET_HELP
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n");
 	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
@@ -70,6 +73,7 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 		{ "order", required_argument, NULL, 'o' },
 		{ "trace", no_argument, NULL, 't' },
 		{ "sensitivity", no_argument, NULL, 's' },
+		{ "set", required_argument, NULL, CLI_OPT_SET },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -111,6 +115,12 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 			break;
 		case 's':
 			a->sensitivity = true;
+			break;
+		case CLI_OPT_SET:
+			if (cli_add_set("solve", &a->sets, optarg) != 0) {
+				*code = EXIT_USAGE;
+				return -1;
+			}
 			break;
 		case 'h':
 			solve_usage(stdout);
@@ -299,6 +309,33 @@ static void solve_print_extra(const struct problem *pb, const struct op_point *p
 		printf("      %s%s\n", ex.warn ? "warning: " : "", ex.note);
 }
 
+/*
+ * Print the power in each part at every point of RES against SE's ratings,
+ * and the error to SE's target (core/verdict.h's words).
+ */
+static void solve_print_verdict(const struct session *se,
+                                const struct problem *pb,
+                                const struct solve_result *res)
+{
+	struct design_request rq;
+	bool target = session_design_request(se, &rq) == 0;
+	for (size_t k = 0; k < res->n; k++) {
+		struct verdict vd;
+		verdict_at(pb, se->source.form, res->pts[k].v, res->pts[k].i,
+		           &se->analysis.ratings, target ? &rq : NULL, &vd);
+		if (res->n > 1)
+			printf("\n  power and ratings at point %zu\n", k + 1);
+		else
+			printf("\n  power and ratings\n");
+		for (size_t j = 0; j < vd.nlines; j++)
+			printf("    %s\n", vd.lines[j].words);
+		if (vd.message[0] != '\0')
+			printf("    (%s)\n", vd.message);
+		if (vd.target.given)
+			printf("    %s\n", vd.target.words);
+	}
+}
+
 /* Print the text report of RES. */
 static void solve_print_text(const char *file, const struct session *se,
                              const struct problem *pb,
@@ -339,6 +376,7 @@ static void solve_print_text(const char *file, const struct session *se,
 		       p->steps, p->tangent ? "  (touching point)" : "");
 		solve_print_extra(pb, p);
 	}
+	solve_print_verdict(se, pb, res);
 	/* How the projections would behave at the (first) point. */
 	if (res->n > 0) {
 		struct diagnosis d;
@@ -432,7 +470,7 @@ int cmd_solve(int argc, char **argv)
 
 	struct session se;
 	struct problem pb;
-	if ((code = cli_load_problem("solve", a.file, &se, &pb)) != 0)
+	if ((code = cli_load_with("solve", a.file, &a.sets, &se, &pb)) != 0)
 		return code;
 	struct solve_options o = se.solver;
 	if (a.have_method)

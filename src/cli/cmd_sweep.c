@@ -20,6 +20,7 @@ struct sweep_args {
 	bool csv, log;
 	const char *param, *from, *to, *file;
 	unsigned long long points;
+	struct cli_sets sets;   /* --set KEY=VALUE */
 };
 
 /* Print the usage of `sweep` to OUT. */
@@ -46,6 +47,7 @@ static void sweep_usage(FILE *out)
 	        "  -f, --format FMT   text (default) or csv; CSV rows are\n"
 	        "                     step,KEY_UNIT,point,count,voltage_V,current_A,\n"
 	        "                     power_W and folds go to standard error\n"
+	        CLI_SET_HELP
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
@@ -69,6 +71,7 @@ static int sweep_parse_args(int argc, char **argv, struct sweep_args *a,
 		{ "points", required_argument, NULL, 'n' },
 		{ "log", no_argument, NULL, 'l' },
 		{ "format", required_argument, NULL, 'f' },
+		{ "set", required_argument, NULL, CLI_OPT_SET },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -100,6 +103,10 @@ static int sweep_parse_args(int argc, char **argv, struct sweep_args *a,
 			break;
 		case 'f':
 			if (cli_parse_format("sweep", optarg, &a->csv) != 0)
+				return -1;
+			break;
+		case CLI_OPT_SET:
+			if (cli_add_set("sweep", &a->sets, optarg) != 0)
 				return -1;
 			break;
 		case 'h':
@@ -157,7 +164,7 @@ int cmd_sweep(int argc, char **argv)
 		return code;
 	struct session se;
 	struct problem pb;
-	if ((code = cli_load_problem("sweep", a.file, &se, &pb)) != 0)
+	if ((code = cli_load_with("sweep", a.file, &a.sets, &se, &pb)) != 0)
 		return code;
 	struct sweep_spec sp = { .points = (size_t)a.points,
 	                         .scale = a.log ? SWEEP_LOG : SWEEP_LINEAR };

@@ -15,11 +15,13 @@
 #include "csv.h"
 #include "core/safety.h"
 #include "core/tolerance.h"
+#include "core/verdict.h"
 
 /* What the command line asked for. */
 struct tolerance_args {
 	bool csv;
 	unsigned long long trials, seed, bins;
+	struct cli_sets sets;   /* --set KEY=VALUE */
 	const char *file;
 };
 
@@ -45,6 +47,7 @@ static void tolerance_usage(FILE *out)
 	        "  -b, --bins B       histogram bins, 1 to %d (default 20)\n"
 	        "  -f, --format FMT   text (default) or csv (rows: section,output,\n"
 	        "                     name,value)\n"
+	        CLI_SET_HELP
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
@@ -66,6 +69,7 @@ static int tolerance_parse_args(int argc, char **argv, struct tolerance_args *a,
 		{ "seed", required_argument, NULL, 's' },
 		{ "bins", required_argument, NULL, 'b' },
 		{ "format", required_argument, NULL, 'f' },
+		{ "set", required_argument, NULL, CLI_OPT_SET },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -97,6 +101,10 @@ static int tolerance_parse_args(int argc, char **argv, struct tolerance_args *a,
 			break;
 		case 'f':
 			if (cli_parse_format("tolerance", optarg, &a->csv) != 0)
+				return -1;
+			break;
+		case CLI_OPT_SET:
+			if (cli_add_set("tolerance", &a->sets, optarg) != 0)
 				return -1;
 			break;
 		case 'h':
@@ -139,42 +147,6 @@ static const char *tolerance_column(char *buf, size_t n, enum tol_output o)
 	return csv_column_name(buf, n, tol_output_name(o), tolerance_unit(o));
 }
 
-/* The ratings at the worst case: each use from its own extreme. */
-static void tolerance_ratings(const struct tol_worst *w, const struct ratings *r,
-                              struct ratings_report *rep)
-{
-	memset(rep, 0, sizeof *rep);
-	double pd = fmax(fabs(w->min[TOL_DEVICE_POWER].value),
-	                 fabs(w->max[TOL_DEVICE_POWER].value));
-	double im = fmax(fabs(w->min[TOL_CURRENT].value),
-	                 fabs(w->max[TOL_CURRENT].value));
-	rep->p_device = pd;
-	rep->p_resistor = w->max[TOL_RESISTOR_POWER].value;
-	rep->derating = ratings_derating(r->ambient_temperature);
-	rep->device_power_use = pd / r->device_max_power;
-	rep->device_current_use = im / r->device_max_current;
-	rep->resistor_use = NAN;
-	if (rep->device_power_use > 1.0)
-		rep->flags |= RATINGS_DEVICE_POWER;
-	if (rep->device_current_use > 1.0)
-		rep->flags |= RATINGS_DEVICE_CURRENT;
-	if (rep->derating <= 0.0)
-		rep->flags |= RATINGS_NO_RESISTOR;
-	if (isfinite(r->resistor_power) && rep->p_resistor > 0.0) {
-		double avail = r->resistor_power * rep->derating;
-		rep->resistor_use = avail > 0.0 ? rep->p_resistor / avail : INFINITY;
-		if (rep->resistor_use > 1.0)
-			rep->flags |= RATINGS_RESISTOR_POWER;
-		else if (rep->resistor_use > RATINGS_USE_FRACTION)
-			rep->flags |= RATINGS_RESISTOR_USE;
-	}
-	rep->suggested_resistor_power =
-		rep->derating > 0.0
-			? ratings_standard_power(rep->p_resistor /
-			                         (RATINGS_USE_FRACTION * rep->derating))
-			: NAN;
-}
-
 /* Print the parameters of extreme E ("vs = 21.3 V, rs = 2.31 kohm"). */
 static void tolerance_print_at(const struct tol_case *c,
                                const struct tol_extreme *e)
@@ -196,11 +168,20 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
                                  const struct session *se)
 {
 	char a[48], b[48], d[48];
-	printf("%s\n  tolerances\n", file);
+	int kw = 20; /* wide enough for most keys; network parts may be longer */
+	for (size_t k = 0; k < c->nitems; k++) {
+		int len = (int)strlen(paramref_key(&c->pb, &c->items[k].param));
+		if (len > kw)
+			kw = len;
+	}
+	printf("%s\n  tolerances\n    %-*s %-13s %-13s %-13s %s\n", file, kw, "",
+	       "nominal", "minimum", "maximum", "distribution");
 	for (size_t k = 0; k < c->nitems; k++) {
 		const struct tol_item *it = &c->items[k];
 		enum qty_kind u = paramref_unit(&c->pb, &it->param);
-		printf("    %-20s %s ... %s (%s)\n", paramref_key(&c->pb, &it->param),
+		printf("    %-*s %-13s %-13s %-13s %s\n", kw,
+		       paramref_key(&c->pb, &it->param),
+		       cli_fmt(d, sizeof d, paramref_get(&c->pb, &it->param), u, 5),
 		       cli_fmt(a, sizeof a, it->lo, u, 5),
 		       cli_fmt(b, sizeof b, it->hi, u, 5), tol_dist_name(it->dist));
 	}
@@ -227,44 +208,23 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 		printf("  %s max at: ", tol_output_name((enum tol_output)o));
 		tolerance_print_at(c, &w->max[o]);
 	}
-	/* The ratings at the worst case. */
+	/* The ratings at the worst case: each part at its own extreme. */
 	const struct ratings *rt = &se->analysis.ratings;
-	struct ratings_report rep;
-	tolerance_ratings(w, rt, &rep);
-	if (se->network != NULL) {
-		/* The equivalent resistance is no physical part: rate none. */
-		printf("\n  the source is a network: its resistors' powers are not the "
-		       "equivalent's;\n  check each one with 'biasline reduce --nodes'\n");
-		rep.resistor_use = NAN;
-	} else {
-		printf("\n  resistor at worst %s: needs a %s rating (at most %.0f %% of "
-		       "the rating%s: common practice)\n",
-		       cli_fmt(a, sizeof a, rep.p_resistor, QTY_POWER, 4),
-		       isnan(rep.suggested_resistor_power)
-		           ? "(beyond the table)"
-		           : cli_fmt(b, sizeof b, rep.suggested_resistor_power,
-		                     QTY_POWER, 3),
-		       100.0 * RATINGS_USE_FRACTION,
-		       rep.derating < 1.0 ? ", derated for the ambient" : "");
-	}
-	if (isfinite(rep.resistor_use))
-		printf("  resistor uses %s %% of its %s rating at worst\n",
-		       cli_fmt_number(d, sizeof d, 100.0 * rep.resistor_use, 3,
-		                      false),
-		       cli_fmt(a, sizeof a, rt->resistor_power, QTY_POWER, 3));
-	if (isfinite(rep.device_power_use))
-		printf("  device uses %s %% of its maximum power at worst\n",
-		       cli_fmt_number(d, sizeof d, 100.0 * rep.device_power_use, 3,
-		                      false));
-	if (isfinite(rep.device_current_use))
-		printf("  device uses %s %% of its maximum current at worst\n",
-		       cli_fmt_number(d, sizeof d, 100.0 * rep.device_current_use, 3,
-		                      false));
-	char warn[1024];
-	if (ratings_describe(&rep, rt, warn, sizeof warn) > 0)
-		for (char *line = strtok(warn, "\n"); line != NULL;
-		     line = strtok(NULL, "\n"))
-			printf("  warning: %s\n", line);
+	struct verdict vd;
+	double im = fmax(fabs(w->min[TOL_CURRENT].value),
+	                 fabs(w->max[TOL_CURRENT].value));
+	double pd = fmax(fabs(w->min[TOL_DEVICE_POWER].value),
+	                 fabs(w->max[TOL_DEVICE_POWER].value));
+	/* A network's equivalent resistance is no physical part: rate none. */
+	double pr = se->network != NULL ? NAN : w->max[TOL_RESISTOR_POWER].value;
+	verdict_worst(pd, im, pr, c->form == SOURCE_NORTON ? "RP" : "RS", rt, &vd);
+	printf("\n  ratings at worst (each part at its own extreme)\n");
+	for (size_t k = 0; k < vd.nlines; k++)
+		printf("    %s\n", vd.lines[k].words);
+	if (se->network != NULL)
+		printf("    the source is a network: its resistors' powers are not "
+		       "the equivalent's;\n    check each one with 'biasline reduce "
+		       "--nodes'\n");
 monte_carlo:
 	if (mc == NULL)
 		return;
@@ -412,7 +372,7 @@ int cmd_tolerance(int argc, char **argv)
 		return code;
 	struct session se;
 	struct problem pb;
-	if ((code = cli_load_problem("tolerance", a.file, &se, &pb)) != 0)
+	if ((code = cli_load_with("tolerance", a.file, &a.sets, &se, &pb)) != 0)
 		return code;
 	struct tol_case c;
 	struct tol_worst w;

@@ -8,6 +8,8 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "verdict.h"
+
 /* Row kind name. */
 const char *design_row_name(enum design_row_kind k)
 {
@@ -36,35 +38,50 @@ const char *design_target_name(enum design_target t)
 	return "?";
 }
 
-/* P - I V(I) on the device, in I; NaN where V(I) is undefined. */
-static double design_power_gap_i(const struct device *d, double i, double p)
+/* The unit of a target. */
+enum qty_kind design_target_unit(enum design_target t)
 {
-	double v;
+	return t == DESIGN_CURRENT ? QTY_CURRENT
+	       : t == DESIGN_VOLTAGE ? QTY_VOLTAGE : QTY_POWER;
+}
+
+/*
+ * P - I V(I) on the device at I = SIDE X (SIDE is +1 forward, -1 reverse);
+ * NaN where V(I) is undefined.
+ */
+static double design_power_gap_i(const struct device *d, double x, int side,
+                                 double p)
+{
+	double v, i = side * x;
 	if (device_voltage(d, i, &v) != 0)
 		return NAN;
 	return i * v - p;
 }
 
-/* V I(V) - P on the device, in V. */
-static double design_power_gap_v(const struct device *d, double v, double p)
+/* V I(V) - P on the device at V = SIDE X. */
+static double design_power_gap_v(const struct device *d, double x, int side,
+                                 double p)
 {
+	double v = side * x;
 	return v * device_current(d, v) - p;
 }
 
 /*
  * Solve gap(x) = 0 for x > 0 where gap increases from -P at 0: double an
- * upper end until gap > 0, then bisect to the last bit.  Returns 0 or -1.
+ * upper end until gap > 0, then bisect to the last bit.  SIDE picks the
+ * forward (+1) or reverse (-1) region; *X is the magnitude.  Returns 0 or
+ * -1.
  */
 static int design_power_root(const struct device *d, double p, int in_current,
-                             double *x)
+                             int side, double *x)
 {
-	double (*gap)(const struct device *, double, double) =
+	double (*gap)(const struct device *, double, int, double) =
 		in_current ? design_power_gap_i : design_power_gap_v;
 	double hi = in_current ? 1e-12 : 1e-3;
 	double lo = 0.0;
 	int k = 0;
 	for (;; k++) {
-		double g = gap(d, hi, p);
+		double g = gap(d, hi, side, p);
 		if (g > 0.0)
 			break;
 		if (!(g <= 0.0) || k > 200)
@@ -76,7 +93,7 @@ static int design_power_root(const struct device *d, double p, int in_current,
 		double mid = 0.5 * (lo + hi);
 		if (!(mid > lo && mid < hi))
 			break;
-		double g = gap(d, mid, p);
+		double g = gap(d, mid, side, p);
 		if (!isfinite(g))
 			return -1;
 		if (g > 0.0)
@@ -85,7 +102,7 @@ static int design_power_root(const struct device *d, double p, int in_current,
 			lo = mid;
 	}
 	/* The end whose gap is smaller in size. */
-	*x = fabs(gap(d, lo, p)) < fabs(gap(d, hi, p)) ? lo : hi;
+	*x = fabs(gap(d, lo, side, p)) < fabs(gap(d, hi, side, p)) ? lo : hi;
 	return lo > 0.0 || hi > 0.0 ? 0 : -1;
 }
 
@@ -96,6 +113,7 @@ int design_device_point(const struct problem *pb,
 {
 	const struct device *d = &pb->dev;
 	const struct model_type *t = d->type;
+	int side = 1;
 	if (!isfinite(rq->value)) {
 		snprintf(err, errlen, "the target %s is not a finite number",
 		         design_target_name(rq->target));
@@ -135,17 +153,22 @@ int design_device_point(const struct problem *pb,
 	case DESIGN_POWER:
 		if (!(rq->value > 0.0)) {
 			snprintf(err, errlen,
-			         "a power target must be above 0 W (the device absorbs "
-			         "power in its forward region)");
+			         "a power target must be above 0 W (a passive device "
+			         "absorbs power on either side)");
 			return -1;
 		}
+		/* The side the source drives the device to. */
+		side = isfinite(pb->src.voc) && pb->src.voc < 0.0 ? -1 : 1;
 		if (t->voltage != NULL) {
-			if (design_power_root(d, rq->value, 1, i) != 0 ||
-			    device_voltage(d, *i, v) != 0)
+			if (design_power_root(d, rq->value, 1, side, i) != 0)
+				goto no_power;
+			*i *= side;
+			if (device_voltage(d, *i, v) != 0)
 				goto no_power;
 		} else if (t->current != NULL) {
-			if (design_power_root(d, rq->value, 0, v) != 0)
+			if (design_power_root(d, rq->value, 0, side, v) != 0)
 				goto no_power;
+			*v *= side;
 			*i = device_current(d, *v);
 		} else {
 			goto no_power;
@@ -156,7 +179,8 @@ int design_device_point(const struct problem *pb,
 	return -1;
 no_power:
 	snprintf(err, errlen,
-	         "no forward point of the device dissipates %.6g W", rq->value);
+	         "no %s point of the device dissipates %.6g W",
+	         side < 0 ? "reverse" : "forward", rq->value);
 	return -1;
 }
 
@@ -331,6 +355,96 @@ static void design_row_solve(const struct problem *pb,
 	ratings_check(&q, SOURCE_THEVENIN, row->pt.v, row->pt.i, r, &row->power);
 }
 
+/*
+ * The message for a target current I of the wrong sign for a source of
+ * VOC: the current flows the way the source drives it, so a reverse
+ * current (a Zener shunt's) is a target below zero on a source below zero.
+ */
+static void design_wrong_sign(struct design_result *out, double i, double voc)
+{
+	snprintf(out->message, sizeof out->message,
+	         "the target current %.6g A has the wrong sign for a %.6g V "
+	         "source: it would need a negative series resistance; the "
+	         "current flows the way the source drives it, so %s is %.6g A",
+	         i, voc,
+	         voc < 0.0 ? "a reverse current (a Zener shunt's) of that size"
+	                   : "a forward current of that size",
+	         -i);
+}
+
+/*
+ * Mark the standard row whose point is nearer the target (the smaller
+ * error; an exact tie goes to the higher value, as eseries_nearest does).
+ */
+static void design_mark_nearest(struct design_result *out)
+{
+	out->nearest = -1;
+	double best = INFINITY;
+	for (size_t k = 0; k < out->nrows; k++) {
+		const struct design_row *r = &out->rows[k];
+		if (r->kind == DESIGN_ROW_EXACT || !r->solved ||
+		    !isfinite(r->error_percent))
+			continue;
+		double e = fabs(r->error_percent);
+		if (e < best || (e == best && r->kind == DESIGN_ROW_HIGHER)) {
+			best = e;
+			out->nearest = (int)k;
+		}
+	}
+	if (out->nearest >= 0)
+		out->rows[out->nearest].nearest = true;
+}
+
+/* The worst case of one row. */
+int design_row_worst(const struct tol_case *c, const struct ratings *r,
+                     struct design_worst *out)
+{
+	memset(out, 0, sizeof *out);
+	out->i_min = out->i_max = out->v_min = out->v_max = NAN;
+	out->p_device_max = out->p_resistor_max = NAN;
+	out->suggested_resistor_power = NAN;
+	if (c->nitems == 0) {
+		snprintf(out->message, sizeof out->message, "no tolerances");
+		return -1;
+	}
+	if (c->nitems > TOL_MAX_CORNER_ITEMS) {
+		snprintf(out->message, sizeof out->message, "more than %d "
+		         "tolerances: the worst case cannot run",
+		         TOL_MAX_CORNER_ITEMS);
+		return -1;
+	}
+	struct tol_worst w;
+	if (tol_worst_case(c, &w, out->message, sizeof out->message) != 0)
+		return -1;
+	out->i_min = w.min[TOL_CURRENT].value;
+	out->i_max = w.max[TOL_CURRENT].value;
+	out->v_min = w.min[TOL_VOLTAGE].value;
+	out->v_max = w.max[TOL_VOLTAGE].value;
+	out->p_device_max = fmax(fabs(w.min[TOL_DEVICE_POWER].value),
+	                         fabs(w.max[TOL_DEVICE_POWER].value));
+	/* A network's equivalent resistance is no part: nothing to rate. */
+	if (c->pb.net == NULL)
+		out->p_resistor_max = w.max[TOL_RESISTOR_POWER].value;
+	struct verdict vd;
+	verdict_worst(out->p_device_max, fmax(fabs(out->i_min), fabs(out->i_max)),
+	              out->p_resistor_max,
+	              c->form == SOURCE_NORTON ? "RP" : "RS", r, &vd);
+	out->verdict = vd.worst;
+	out->resistor_verdict = RATINGS_NO_RATING;
+	const struct verdict_line *shown = vd.nlines > 0 ? &vd.lines[0] : NULL;
+	for (size_t k = 0; k < vd.nlines; k++)
+		if (vd.lines[k].part == VERDICT_RESISTOR) {
+			shown = &vd.lines[k];
+			out->resistor_verdict = shown->verdict;
+			out->suggested_resistor_power = shown->suggested;
+		}
+	if (shown != NULL)
+		snprintf(out->words, sizeof out->words, "%s", shown->words);
+	out->safety = tol_safety(c, &w, NULL);
+	out->done = true;
+	return 0;
+}
+
 /* Design for RQ on PB. */
 int design_solve(const struct problem *pb, const struct solve_options *o,
                  const struct design_request *rq, const struct ratings *r,
@@ -338,6 +452,7 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 {
 	memset(out, 0, sizeof *out);
 	out->v_target = out->i_target = NAN;
+	out->nearest = -1;
 	const struct source *s = &pb->src;
 	if (isinf(s->r) || !isfinite(s->voc)) {
 		snprintf(out->message, sizeof out->message,
@@ -348,10 +463,7 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 	if (rq->unknown == DESIGN_FOR_RS && rq->target == DESIGN_CURRENT &&
 	    rq->value * s->voc < 0.0) {
 		/* A passive device takes current in the direction of the source. */
-		snprintf(out->message, sizeof out->message,
-		         "the target current %.6g A has the wrong sign for a %.6g V "
-		         "source: it would need a negative series resistance",
-		         rq->value, s->voc);
+		design_wrong_sign(out, rq->value, s->voc);
 		return -1;
 	}
 	double v, i;
@@ -383,10 +495,7 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 				         "reaches %.6g A; raise VS above %.6g V",
 				         s->voc, v, i, v);
 			else
-				snprintf(out->message, sizeof out->message,
-				         "the target current %.6g A has the wrong sign for "
-				         "a %.6g V source: it would need a negative series "
-				         "resistance", i, s->voc);
+				design_wrong_sign(out, i, s->voc);
 			return -1;
 		}
 	}
@@ -410,5 +519,6 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 	}
 	for (size_t k = 0; k < out->nrows; k++)
 		design_row_solve(pb, o, rq, r, v, &out->rows[k]);
+	design_mark_nearest(out);
 	return 0;
 }

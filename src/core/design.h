@@ -14,6 +14,18 @@
  *   RS = (VS - V_t) / I_t        or        VS = V_t + RS I_t.
  * Each reported value is checked by a full solve (solve_problem) of the
  * problem with that value, and its error from the target is reported.
+ *
+ * Either sign: a target current (or voltage) below zero is a point in the
+ * third quadrant, where a Zener shunt or a reverse-biased junction works
+ * from a negative source; a power target is looked for on the side of the
+ * source's sign (the reverse region when its open-circuit voltage is
+ * below zero).
+ *
+ * Of the standard values either side, the one whose point lands nearer
+ * the target (the smaller error) is marked nearest.  With tolerances
+ * (tolerance.h), design_row_worst gives each row's worst case: the range
+ * of the current, the largest resistor power held to the ratings with its
+ * verdict (verdict.h) and the standard rating that fits.
  */
 #ifndef BIASLINE_DESIGN_H
 #define BIASLINE_DESIGN_H
@@ -26,6 +38,7 @@
 #include "problem.h"
 #include "ratings.h"
 #include "solve.h"
+#include "tolerance.h"
 
 /* What the target fixes. */
 enum design_target {
@@ -57,6 +70,24 @@ struct design_request {
 	struct paramref part;      /* DESIGN_FOR_PART: which part (paramref.h) */
 };
 
+/* One row's worst case over the tolerance box (design_row_worst). */
+struct design_worst {
+	bool done;                 /* the worst case ran */
+	double i_min, i_max;       /* device current, A */
+	double v_min, v_max;       /* device voltage, V */
+	double p_device_max;       /* largest device power, W */
+	double p_resistor_max;     /* largest power in RS (RP), W; NaN for a
+	                              network source (no single resistor) */
+	double suggested_resistor_power; /* the standard rating that fits the
+	                              rule of thumb at worst (NaN: none) */
+	enum ratings_verdict resistor_verdict; /* RS against its rating */
+	enum ratings_verdict verdict;  /* the worst of every part's verdict */
+	char words[224];           /* the resistor's line ("RS dissipates ...
+	                              at worst, ..."), or the device's */
+	unsigned safety;           /* safety.h cautions over the box */
+	char message[200];         /* why the worst case did not run, or "" */
+};
+
 /* One candidate value and what it gives. */
 struct design_row {
 	enum design_row_kind kind;
@@ -67,6 +98,8 @@ struct design_row {
 	double achieved;           /* the targeted quantity at PT */
 	double error_percent;      /* 100 (achieved - target) / target */
 	struct ratings_report power; /* power and ratings at PT */
+	bool nearest;              /* the standard value nearest the target */
+	struct design_worst worst; /* filled by design_row_worst, else !done */
 };
 
 #define DESIGN_MAX_ROWS 3
@@ -76,6 +109,8 @@ struct design_result {
 	double v_target, i_target; /* the device point that meets the target */
 	size_t nrows;
 	struct design_row rows[DESIGN_MAX_ROWS];
+	int nearest;               /* index of the nearest standard row, or -1
+	                              (no standard rows, or none solved) */
 	char message[256];         /* why the design failed, or "" */
 };
 
@@ -102,12 +137,6 @@ int design_apply(const struct problem *pb, enum design_unknown u, double value,
                  struct problem *out);
 
 /*
- * Design for RQ on PB (its source in Thevenin form: VS = voc, RS = r),
- * solving each row with O; R (may be NULL) gives the ratings checked at
- * each row's point.  Returns 0 with the rows (exact, then lower and higher
- * for RS), or -1 with a plain-language reason in OUT->message.
- */
-/*
  * As design_apply, for any unknown of RQ (a network part too): OUT is PB
  * with the unknown set to VALUE.  Returns 0, or -1 when VALUE is not valid.
  */
@@ -119,8 +148,29 @@ int design_apply_request(const struct problem *pb,
 enum qty_kind design_unknown_unit(const struct problem *pb,
                                   const struct design_request *rq);
 
+/*
+ * Design for RQ on PB (its source in Thevenin form: VS = voc, RS = r),
+ * solving each row with O; R (may be NULL) gives the ratings checked at
+ * each row's point.  Returns 0 with the rows (exact, then lower and higher
+ * for a resistance) and the nearest marked, or -1 with a plain-language
+ * reason in OUT->message.  The rows' worst cases are left for
+ * design_row_worst.
+ */
 int design_solve(const struct problem *pb, const struct solve_options *o,
                  const struct design_request *rq, const struct ratings *r,
                  struct design_result *out);
+
+/*
+ * The worst case of one row: C is the tolerance case built on the row's
+ * problem (design_apply_request with the row's value, so a tolerance on
+ * the designed part follows its new value), R (may be NULL) the ratings.
+ * Fills OUT and returns 0, or -1 with the reason in OUT->message (no
+ * tolerances, too many for the corners, no point at a corner).
+ */
+int design_row_worst(const struct tol_case *c, const struct ratings *r,
+                     struct design_worst *out);
+
+/* The unit of a target of kind T: a current, a voltage or a power. */
+enum qty_kind design_target_unit(enum design_target t);
 
 #endif

@@ -12,6 +12,35 @@ static const double ratings_table[] = {
 	0.0625, 0.1, 0.125, 0.25, 0.5, 1.0, 2.0, 3.0, 5.0, 10.0, 25.0, 50.0, 100.0,
 };
 
+/* Verdict names. */
+const char *ratings_verdict_name(enum ratings_verdict v)
+{
+	switch (v) {
+	case RATINGS_NO_RATING:
+		return "no rating";
+	case RATINGS_WITHIN:
+		return "within rating";
+	case RATINGS_CAUTION:
+		return "caution";
+	case RATINGS_OVER:
+		return "over rating";
+	}
+	return "?";
+}
+
+/* The verdict of VALUE against RATING, with a caution above CAUTION_AT. */
+enum ratings_verdict ratings_compare(double value, double rating,
+                                     double caution_at)
+{
+	if (isnan(rating))
+		return RATINGS_NO_RATING;
+	if (!(value <= rating))
+		return RATINGS_OVER;
+	if (!isnan(caution_at) && value > caution_at)
+		return RATINGS_CAUTION;
+	return RATINGS_WITHIN;
+}
+
 /* Fill R with "nothing given". */
 void ratings_init(struct ratings *r)
 {
@@ -90,65 +119,4 @@ void ratings_check(const struct problem *pb, enum source_form form, double v,
 			? ratings_standard_power(out->p_resistor /
 			                         (RATINGS_USE_FRACTION * out->derating))
 			: NAN;
-}
-
-/* Append LINE to BUF at *AT (truncating at N) and count it. */
-static void ratings_append(char *buf, size_t n, size_t *at, size_t *lines,
-                           const char *line)
-{
-	size_t len = strlen(line);
-	if (*at + 1 < n) {
-		size_t room = n - *at - 1;
-		size_t w = len < room ? len : room;
-		memcpy(buf + *at, line, w);
-		*at += w;
-		buf[*at] = '\0';
-	}
-	(*lines)++;
-}
-
-/* Plain-language warnings for REP. */
-size_t ratings_describe(const struct ratings_report *rep,
-                        const struct ratings *r, char *buf, size_t n)
-{
-	size_t at = 0, lines = 0;
-	char line[256];
-	if (n == 0)
-		return 0;
-	buf[0] = '\0';
-	if (rep->flags & RATINGS_DEVICE_POWER) {
-		snprintf(line, sizeof line,
-		         "device dissipates %.4g W, above its %.4g W maximum\n",
-		         fabs(rep->p_device), r->device_max_power);
-		ratings_append(buf, n, &at, &lines, line);
-	}
-	if (rep->flags & RATINGS_DEVICE_CURRENT) {
-		snprintf(line, sizeof line,
-		         "device current is %.4g times its %.4g A maximum\n",
-		         rep->device_current_use, r->device_max_current);
-		ratings_append(buf, n, &at, &lines, line);
-	}
-	if (rep->flags & RATINGS_NO_RESISTOR) {
-		snprintf(line, sizeof line,
-		         "at %.4g degC ambient a film resistor has no power rating "
-		         "left (derated to zero at %.4g degC, common practice)\n",
-		         r != NULL ? r->ambient_temperature : NAN,
-		         RATINGS_ZERO_LOAD_TEMP);
-		ratings_append(buf, n, &at, &lines, line);
-	}
-	if (rep->flags & RATINGS_RESISTOR_POWER) {
-		snprintf(line, sizeof line,
-		         "resistor dissipates %.4g W, above its %.4g W rating at "
-		         "this ambient\n",
-		         rep->p_resistor, r->resistor_power * rep->derating);
-		ratings_append(buf, n, &at, &lines, line);
-	}
-	if (rep->flags & RATINGS_RESISTOR_USE) {
-		snprintf(line, sizeof line,
-		         "resistor runs at %.3g %% of its rating; common practice "
-		         "keeps it at or below %.3g %%\n",
-		         100.0 * rep->resistor_use, 100.0 * RATINGS_USE_FRACTION);
-		ratings_append(buf, n, &at, &lines, line);
-	}
-	return lines;
 }

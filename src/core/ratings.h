@@ -9,6 +9,9 @@
  *  - film resistors carry their full rating up to RATINGS_FULL_LOAD_TEMP
  *    ambient and derate linearly to zero at RATINGS_ZERO_LOAD_TEMP.
  * A part's own datasheet overrides both.
+ *
+ * The words a person reads about these numbers (the verdicts and their
+ * sentences) come from one place: verdict.h.
  */
 #ifndef BIASLINE_RATINGS_H
 #define BIASLINE_RATINGS_H
@@ -57,6 +60,25 @@ struct ratings_report {
 	unsigned flags;      /* ratings_flags */
 };
 
+/* A plain verdict on one part against its rating, from best to worst. */
+enum ratings_verdict {
+	RATINGS_NO_RATING,  /* no rating given: the power alone */
+	RATINGS_WITHIN,     /* within rating */
+	RATINGS_CAUTION,    /* within rating, above the common-practice fraction */
+	RATINGS_OVER,       /* over rating */
+};
+
+/* "no rating", "within rating", "caution", "over rating". */
+const char *ratings_verdict_name(enum ratings_verdict v);
+
+/*
+ * The verdict of VALUE held to RATING (NaN: none), compared as values (at
+ * the rating is within it, one ulp above is over).  CAUTION_AT (NaN: none)
+ * is the level above which a part within its rating gets a caution.
+ */
+enum ratings_verdict ratings_compare(double value, double rating,
+                                     double caution_at);
+
 /* Fill R with "nothing given". */
 void ratings_init(struct ratings *r);
 
@@ -83,12 +105,5 @@ double ratings_standard_power(double p);
 void ratings_check(const struct problem *pb, enum source_form form, double v,
                    double i, const struct ratings *r,
                    struct ratings_report *out);
-
-/*
- * Plain-language warnings for REP, one per line ("" when none), into BUF.
- * Returns the number of lines written.
- */
-size_t ratings_describe(const struct ratings_report *rep,
-                        const struct ratings *r, char *buf, size_t n);
 
 #endif

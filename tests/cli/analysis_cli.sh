@@ -135,7 +135,7 @@ expect_exit 64 "$bl" sweep --param rs --from 1 --to 2 --points 0 "$tmp/plain.yam
 expect_exit 0 "$bl" tolerance "$tmp/led.yaml"
 expect_text "$tmp/out" "worst case (4 corners)"
 expect_text "$tmp/out" "yield"
-expect_text "$tmp/out" "above its 0.25 W rating"
+expect_text "$tmp/out" "of its 250 mW rating: over rating"
 expect_exit 0 "$bl" tolerance --format csv --trials 0 "$tmp/divider.yaml"
 expect_value "$tmp/out" "worst_case,current_A,max," 0.0056410256410256410
 expect_value "$tmp/out" "worst_case,current_A,min," 0.0043902439024390244

@@ -22,6 +22,7 @@
 #include <cmocka.h>
 
 #include "core/design.h"
+#include "core/verdict.h"
 #include "core/models/models.h"
 #include "core/network.h"
 
@@ -298,9 +299,17 @@ static void test_design_ratings(void **state)
 	/* The junction takes more than 15.7 mW at about 2.1 V. */
 	assert_true(ex->pt.power > r.device_max_power);
 	assert_true(ex->power.flags & RATINGS_DEVICE_POWER);
-	char buf[512];
-	assert_int_equal(ratings_describe(&ex->power, &r, buf, sizeof buf), 2);
-	assert_non_null(strstr(buf, "common practice"));
+	/* The same point in words: the device over, RS a caution. */
+	struct verdict vd;
+	struct problem q;
+	assert_int_equal(design_apply_request(&pb, &rq, ex->value, &q), 0);
+	verdict_at(&q, SOURCE_THEVENIN, ex->pt.v, ex->pt.i, &r, &rq, &vd);
+	assert_int_equal(vd.nlines, 3);
+	assert_int_equal(vd.lines[0].verdict, RATINGS_OVER);
+	assert_int_equal(vd.lines[1].verdict, RATINGS_CAUTION);
+	assert_non_null(strstr(vd.lines[1].words, "common practice"));
+	assert_int_equal(vd.worst, RATINGS_OVER);
+	assert_true(vd.target.given && fabs(vd.target.error_percent) < 1e-9);
 }
 
 /*

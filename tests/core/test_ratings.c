@@ -131,14 +131,6 @@ static void test_flags(void **state)
 	balance_case(&sp, &rep, &r);
 	assert_true(rep.flags & RATINGS_NO_RESISTOR);
 	assert_true(isnan(rep.suggested_resistor_power));
-	char buf[1024];
-	size_t lines = ratings_describe(&rep, &r, buf, sizeof buf);
-	assert_int_equal(lines, 3);
-	assert_non_null(strstr(buf, "no power rating"));
-	/* A tiny buffer is truncated, never overrun. */
-	char tiny[9];
-	assert_int_equal(ratings_describe(&rep, &r, tiny, sizeof tiny), 3);
-	assert_int_equal(strlen(tiny), 8);
 	/* The current limit. */
 	r.device_max_current = 1e-3;
 	balance_case(&sp, &rep, &r);
