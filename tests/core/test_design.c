@@ -10,6 +10,17 @@
  * so RS = (VS - V(I_t)) / I_t and VS = V(I_t) + RS I_t, to 1e-12.
  * Every reported row is also solved independently, and impossible targets
  * must fail with a reason.
+ *
+ * A Zener shunt: the zener model is documented (zener.c, from the data
+ * sheet's breakdown voltage Vz at the test current Izt) to pass exactly
+ * through V(-Izt) = -Vz, so a shunt from a source VS < 0 designed for
+ * the reverse current Izt has, in closed form, RS = (VS + Vz) / (-Izt),
+ * and a power target Vz Izt lands on the same point.
+ *
+ * Each standard row's worst case is checked against brute force over a
+ * grid of the tolerance box (the method of test_tolerance.c: for outputs
+ * monotone in each parameter the grid's corners hold the extremes) for
+ * three device kinds.
  */
 #include <math.h>
 #include <setjmp.h>
@@ -73,6 +84,7 @@ static void case_problem(const struct design_case *c, struct problem *pb)
 {
 	struct source_spec sp;
 	char err[200];
+	memset(pb, 0, sizeof *pb); /* no network */
 	source_spec_thevenin(&sp, c->vs, c->rs);
 	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
 	const struct model_type *t = model_find(c->model);
@@ -381,6 +393,240 @@ static void test_design_network_part(void **state)
 	network_destroy(net);
 }
 
+/* A Zener shunt from VS < 0 designed for a reverse current. */
+static void zener_problem(struct problem *pb, double vs, double vz, double iz,
+                          double rz)
+{
+	struct source_spec sp;
+	char err[200];
+	memset(pb, 0, sizeof *pb);
+	source_spec_thevenin(&sp, vs, 1000.0);
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	device_init(&pb->dev, &model_zener);
+	pb->dev.p[ZENER_VZ] = vz;
+	pb->dev.p[ZENER_IZT] = iz;
+	pb->dev.p[ZENER_RZ] = rz;
+	assert_int_equal(device_validate(&pb->dev, err, sizeof err), 0);
+}
+
+/* The shunt's series resistor against the breakdown law's closed form. */
+static void test_design_zener_shunt(void **state)
+{
+	(void)state;
+	struct solve_options o;
+	solve_options_init(&o);
+	static const struct { double vs, vz, iz, rz; } tab[] = {
+		{ -12.37, 5.13, 5e-3, 17.3 },  /* 5 mA reverse current */
+		{ -23.9, 8.21, 5e-3, 6.17 },
+		{ -9.13, 3.37, 20.3e-3, 27.1 },
+	};
+	for (size_t k = 0; k < sizeof tab / sizeof tab[0]; k++) {
+		struct problem pb;
+		zener_problem(&pb, tab[k].vs, tab[k].vz, tab[k].iz, tab[k].rz);
+		double want = (tab[k].vs + tab[k].vz) / -tab[k].iz;
+		struct design_request rq = { .target = DESIGN_CURRENT,
+			                         .value = -tab[k].iz,
+			                         .unknown = DESIGN_FOR_RS,
+			                         .series = ESERIES_E24 };
+		struct design_result res;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("case %zu: %s", k, res.message);
+		if (rel(res.rows[0].value, want) > 1e-12)
+			fail_msg("case %zu: RS %.17g, closed form %.17g", k,
+			         res.rows[0].value, want);
+		assert_true(rel(res.v_target, -tab[k].vz) < 1e-12);
+		assert_true(res.rows[0].solved);
+		assert_true(rel(res.rows[0].pt.i, -tab[k].iz) < 1e-9);
+		/* Both standard rows sit in the third quadrant. */
+		for (size_t r = 1; r < res.nrows; r++)
+			assert_true(res.rows[r].pt.v < 0.0 && res.rows[r].pt.i < 0.0);
+		/* The same point as a power target, found on the reverse side. */
+		rq.target = DESIGN_POWER;
+		rq.value = tab[k].vz * tab[k].iz;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("case %zu power: %s", k, res.message);
+		if (rel(res.rows[0].value, want) > 1e-9)
+			fail_msg("case %zu power: RS %.17g, closed form %.17g", k,
+			         res.rows[0].value, want);
+		/* A forward current on the negative source is refused, and the
+		 * message names the reverse target that works. */
+		rq.target = DESIGN_CURRENT;
+		rq.value = tab[k].iz;
+		assert_int_equal(design_solve(&pb, &o, &rq, NULL, &res), -1);
+		assert_non_null(strstr(res.message, "wrong sign"));
+		assert_non_null(strstr(res.message, "reverse current"));
+	}
+}
+
+/* The nearer standard value is marked, whichever side it is on. */
+static void test_design_nearest(void **state)
+{
+	(void)state;
+	struct solve_options o;
+	solve_options_init(&o);
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		struct problem pb;
+		case_problem(&cases[k], &pb);
+		struct design_request rq = { .target = cases[k].target,
+			                         .value = cases[k].value,
+			                         .unknown = cases[k].unknown,
+			                         .series = cases[k].series };
+		struct design_result res;
+		assert_int_equal(design_solve(&pb, &o, &rq, NULL, &res), 0);
+		if (res.nrows < 3) {
+			assert_int_equal(res.nearest, -1);
+			continue;
+		}
+		int want = fabs(res.rows[2].error_percent) <=
+		                   fabs(res.rows[1].error_percent) ? 2 : 1;
+		assert_int_equal(res.nearest, want);
+		assert_true(res.rows[want].nearest && !res.rows[3 - want].nearest);
+		assert_false(res.rows[0].nearest);
+	}
+	/* 10 mA from 24 V: 2.185 kohm exact; 2.2 k gives -0.66 %, 2 k +9.2 %:
+	 * the higher value is the nearer one. */
+	struct design_case c = { "diode", { 6.3e-21, 1.93, 6.8, 25.0 }, 24.0,
+		                     2200.0, DESIGN_CURRENT, 10e-3, DESIGN_FOR_RS,
+		                     ESERIES_E24 };
+	struct problem pb;
+	case_problem(&c, &pb);
+	struct design_request rq = { .target = DESIGN_CURRENT, .value = 10e-3,
+		                         .unknown = DESIGN_FOR_RS,
+		                         .series = ESERIES_E24 };
+	struct design_result res;
+	assert_int_equal(design_solve(&pb, &o, &rq, NULL, &res), 0);
+	assert_int_equal(res.nearest, 2);
+	assert_true(res.rows[2].value == 2200.0);
+}
+
+/* Brute force: min and max of each output over a G^n grid of the box. */
+static void grid_extremes(const struct tol_case *c, int g, double *mn,
+                          double *mx)
+{
+	size_t n = c->nitems, total = 1;
+	for (size_t k = 0; k < n; k++)
+		total *= (size_t)g;
+	for (int o = 0; o < TOL_NOUT; o++) {
+		mn[o] = INFINITY;
+		mx[o] = -INFINITY;
+	}
+	for (size_t m = 0; m < total; m++) {
+		double x[TOL_MAX_ITEMS], y[TOL_NOUT];
+		size_t rest = m;
+		for (size_t k = 0; k < n; k++) {
+			int j = (int)(rest % (size_t)g);
+			rest /= (size_t)g;
+			x[k] = c->items[k].lo +
+			       (c->items[k].hi - c->items[k].lo) * j / (g - 1);
+		}
+		assert_int_equal(tol_eval(c, x, NAN, y), 0);
+		for (int o = 0; o < TOL_NOUT; o++) {
+			mn[o] = fmin(mn[o], y[o]);
+			mx[o] = fmax(mx[o], y[o]);
+		}
+	}
+}
+
+/* Add +-FRAC of its present value on KEY to C. */
+static void add_rel(struct tol_case *c, const char *key, double frac)
+{
+	struct paramref r;
+	char err[300];
+	assert_int_equal(paramref_find(&c->pb, key, &r, err, sizeof err), 0);
+	double x = paramref_get(&c->pb, &r);
+	double a = x * (1.0 - frac), b = x * (1.0 + frac);
+	if (tol_case_add(c, key, fmin(a, b), fmax(a, b), TOL_UNIFORM, err,
+	                 sizeof err) != 0)
+		fail_msg("%s", err);
+}
+
+/* Each standard row's worst case against the grid, three device kinds. */
+static void test_design_worst_brute(void **state)
+{
+	(void)state;
+	struct solve_options o;
+	solve_options_init(&o);
+	struct {
+		struct problem pb;
+		double target;
+		const char *key;    /* a device parameter with a tolerance */
+		double frac;
+	} kinds[3];
+	/* An indicator junction from 24 V. */
+	case_problem(&(struct design_case){ "diode", { 6.3e-21, 1.93, 6.8, 25.0 },
+	                                    24.0, 2200.0, DESIGN_CURRENT, 0.0,
+	                                    DESIGN_FOR_RS, ESERIES_E24 },
+	             &kinds[0].pb);
+	kinds[0].target = 9.73e-3;
+	kinds[0].key = "saturation_current";
+	kinds[0].frac = 0.37;
+	/* A Zener shunt from -12.37 V for 5 mA reverse current. */
+	zener_problem(&kinds[1].pb, -12.37, 5.13, 5e-3, 17.3);
+	kinds[1].target = -5e-3;
+	kinds[1].key = "breakdown_voltage";
+	kinds[1].frac = 0.021;
+	/* A lamp-like power law from 26.1 V. */
+	case_problem(&cases[8], &kinds[2].pb);
+	kinds[2].target = 0.173;
+	kinds[2].key = "exponent";
+	kinds[2].frac = 0.031;
+	struct ratings r;
+	ratings_init(&r);
+	for (size_t k = 0; k < 3; k++) {
+		struct design_request rq = { .target = DESIGN_CURRENT,
+			                         .value = kinds[k].target,
+			                         .unknown = DESIGN_FOR_RS,
+			                         .series = ESERIES_E12 };
+		struct design_result res;
+		if (design_solve(&kinds[k].pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("kind %zu: %s", k, res.message);
+		for (size_t j = 1; j < res.nrows; j++) {
+			struct problem q;
+			struct tol_case c;
+			assert_int_equal(design_apply_request(&kinds[k].pb, &rq,
+			                                      res.rows[j].value, &q), 0);
+			tol_case_init(&c, &q, SOURCE_THEVENIN, &o);
+			add_rel(&c, "rs", 0.05);
+			add_rel(&c, "vs", 0.10);
+			add_rel(&c, kinds[k].key, kinds[k].frac);
+			double mn[TOL_NOUT], mx[TOL_NOUT];
+			grid_extremes(&c, 7, mn, mx);
+			/* A rating between the nominal and the worst resistor power. */
+			r.resistor_power = 0.5 * (res.rows[j].power.p_resistor +
+			                          mx[TOL_RESISTOR_POWER]);
+			struct design_worst w;
+			if (design_row_worst(&c, &r, &w) != 0)
+				fail_msg("kind %zu row %zu: %s", k, j, w.message);
+			assert_true(w.done);
+			double got[4] = { w.i_min, w.i_max, w.p_resistor_max,
+				              w.p_device_max };
+			double want[4] = { mn[TOL_CURRENT], mx[TOL_CURRENT],
+				               mx[TOL_RESISTOR_POWER],
+				               fmax(fabs(mn[TOL_DEVICE_POWER]),
+				                    fabs(mx[TOL_DEVICE_POWER])) };
+			for (int m = 0; m < 4; m++)
+				if (rel(got[m], want[m]) > 1e-9)
+					fail_msg("kind %zu row %zu column %d: %.15g, grid %.15g",
+					         k, j, m, got[m], want[m]);
+			/* Over its rating at worst though within it at nominal. */
+			assert_int_equal(w.resistor_verdict,
+			                 ratings_compare(want[2], r.resistor_power,
+			                                 0.5 * r.resistor_power));
+			assert_int_equal(w.resistor_verdict, RATINGS_OVER);
+			assert_true(w.suggested_resistor_power ==
+			            ratings_standard_power(want[2] / RATINGS_USE_FRACTION));
+			assert_non_null(strstr(w.words, "at worst"));
+		}
+	}
+	/* No tolerances: the worst case says so. */
+	struct tol_case c;
+	struct design_worst w;
+	tol_case_init(&c, &kinds[0].pb, SOURCE_THEVENIN, &o);
+	assert_int_equal(design_row_worst(&c, NULL, &w), -1);
+	assert_false(w.done);
+	assert_non_null(strstr(w.message, "no tolerances"));
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -388,6 +634,9 @@ int main(void)
 		cmocka_unit_test(test_design_impossible),
 		cmocka_unit_test(test_design_ratings),
 		cmocka_unit_test(test_design_network_part),
+		cmocka_unit_test(test_design_zener_shunt),
+		cmocka_unit_test(test_design_nearest),
+		cmocka_unit_test(test_design_worst_brute),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
