@@ -4,6 +4,7 @@
 #include "paramref.h"
 
 #include <math.h>
+#include <stdbool.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -11,15 +12,41 @@
 
 static const char *const paramref_source_keys[] = { "vs", "rs", "is", "rp" };
 
-/* True when PB's source can take a change of R (never for a network). */
+/*
+ * True when PB's source has the key of R, as the user stated it: vs and rs
+ * for a Thevenin source, is and rp for a Norton one (rp only when finite:
+ * an ideal current source has none); never for a network.
+ */
 static int paramref_source_ok(const struct problem *pb, enum paramref_kind k)
 {
-	double r = pb->src.r;
 	if (pb->net != NULL)
 		return 0;
-	if (k == PARAMREF_VS || k == PARAMREF_RS)
-		return !isinf(r) && isfinite(pb->src.voc);
-	return r > 0.0 && isfinite(pb->src.isc);
+	if (pb->src.form == SOURCE_NORTON)
+		return k == PARAMREF_IS ||
+		       (k == PARAMREF_RP && isfinite(pb->src.r));
+	return (k == PARAMREF_VS || k == PARAMREF_RS) && isfinite(pb->src.r);
+}
+
+/*
+ * Append the source keys PB has ("vs, rs", "is, rp" or "is") at AT in ERR,
+ * then ", " and every device key; returns the new end.
+ */
+static size_t paramref_list_keys(const struct problem *pb, char *err,
+                                 size_t errlen, size_t at)
+{
+	const char *sep = "";
+	for (int k = 0; k < 4 && at < errlen; k++)
+		if (paramref_source_ok(pb, (enum paramref_kind)k)) {
+			at += (size_t)snprintf(err + at, errlen - at, "%s%s", sep,
+			                       paramref_source_keys[k]);
+			sep = ", ";
+		}
+	for (size_t k = 0; k < pb->dev.type->nparams && at < errlen; k++) {
+		at += (size_t)snprintf(err + at, errlen - at, "%s%s", sep,
+		                       pb->dev.type->params[k].key);
+		sep = ", ";
+	}
+	return at;
 }
 
 /* Append ", source.network.<name>" for every part of PB's network. */
@@ -95,10 +122,19 @@ int paramref_find(const struct problem *pb, const char *key,
 			return -1;
 		}
 		if (!paramref_source_ok(pb, out->kind)) {
-			if (err != NULL)
-				snprintf(err, errlen, "%s cannot vary: the source is an "
-				         "ideal %s source", key,
-				         k < 2 ? "current" : "voltage");
+			if (err != NULL) {
+				bool norton = pb->src.form == SOURCE_NORTON;
+				size_t at = (size_t)snprintf(
+				        err, errlen, "%s is not a key of this source: it is "
+				        "%s (its keys: ", key,
+				        !norton ? "a Thevenin source, vs behind rs"
+				        : isfinite(pb->src.r)
+				            ? "a Norton source, is beside rp"
+				            : "an ideal current source, is alone");
+				at = paramref_list_keys(pb, err, errlen, at);
+				if (at < errlen)
+					snprintf(err + at, errlen - at, ")");
+			}
 			return -1;
 		}
 		return 0;
@@ -120,11 +156,8 @@ int paramref_find(const struct problem *pb, const char *key,
 			snprintf(err + at, errlen - at, ")");
 	} else if (err != NULL) {
 		size_t at = (size_t)snprintf(err, errlen,
-		                             "unknown parameter '%s' (valid: vs, rs, "
-		                             "is, rp", key);
-		for (size_t k = 0; k < pb->dev.type->nparams && at < errlen; k++)
-			at += (size_t)snprintf(err + at, errlen - at, ", %s",
-			                       pb->dev.type->params[k].key);
+		                             "unknown parameter '%s' (valid: ", key);
+		at = paramref_list_keys(pb, err, errlen, at);
 		if (at < errlen)
 			snprintf(err + at, errlen - at, ")");
 	}
@@ -343,14 +376,9 @@ size_t paramref_all(const struct problem *pb, struct paramref *out,
 		    out[n].index == (int)k)
 			n++;
 	}
-	if (paramref_source_ok(pb, PARAMREF_VS)) {
-		if (n < max)
-			out[n++] = (struct paramref){ PARAMREF_VS, -1, "" };
-		if (n < max)
-			out[n++] = (struct paramref){ PARAMREF_RS, -1, "" };
-	} else if (paramref_source_ok(pb, PARAMREF_IS) && n < max) {
-		out[n++] = (struct paramref){ PARAMREF_IS, -1, "" };
-	}
+	for (int k = 0; k < 4 && n < max; k++)
+		if (paramref_source_ok(pb, (enum paramref_kind)k))
+			out[n++] = (struct paramref){ (enum paramref_kind)k, -1, "" };
 	for (size_t k = 0; k < pb->dev.type->nparams && n < max; k++)
 		out[n++] = (struct paramref){ PARAMREF_DEVICE, (int)k, "" };
 	return n;

@@ -11,13 +11,14 @@
  *       network (problem.h: pb->net); the network is reduced again with
  *       the new value
  *
- * For a network source vs, rs, is and rp are refused: they stand for the
- * network's equivalent, and what an engineer varies is one of its parts.
- *
- * vs and rs need a source with a finite resistance; is and rp one with a
- * non-zero resistance.  Either pair works whatever form the user wrote the
- * source in: the problem holds the load line, and each pair is one way of
- * moving it.
+ * A source has the keys of the form the user wrote it in (source.h:
+ * src.form): vs and rs for a Thevenin source, is and rp for a Norton one
+ * (only is for an ideal current source, whose rp is infinite), so that
+ * every sensitivity, sweep and tolerance speaks of the values in the
+ * user's file: the sensitivity to rp holds is fixed, not vs.  A key of the
+ * other form is refused with the keys the source has.  For a network
+ * source vs, rs, is and rp are all refused: they stand for the network's
+ * equivalent, and what an engineer varies is one of its parts.
  */
 #ifndef BIASLINE_PARAMREF_H
 #define BIASLINE_PARAMREF_H

@@ -39,6 +39,7 @@ int source_from_spec(const struct source_spec *spec, struct source *out,
 			snprintf(err, errlen, "rs: the source resistance must be finite and >= 0");
 			return -1;
 		}
+		out->form = SOURCE_THEVENIN;
 		out->voc = spec->vs;
 		out->r = spec->rs;
 		out->isc = spec->rs > 0.0 ? spec->vs / spec->rs : NAN;
@@ -53,6 +54,7 @@ int source_from_spec(const struct source_spec *spec, struct source *out,
 		         "rp: the parallel resistance must be > 0 (omit it for an ideal current source)");
 		return -1;
 	}
+	out->form = SOURCE_NORTON;
 	out->isc = spec->is;
 	out->r = spec->rp;
 	out->voc = isinf(spec->rp) ? NAN : spec->is * spec->rp;

@@ -31,11 +31,17 @@ struct source_spec {
 	double rp;   /* Norton parallel resistance, ohm, > 0 or INFINITY */
 };
 
-/* The internal load-line form; see the top of this file. */
+/*
+ * The internal load-line form; see the top of this file.  FORM records how
+ * the user stated the source, which decides the keys it has for sweeps,
+ * sensitivities and tolerances (vs, rs or is, rp: paramref.h); a source
+ * built by hand and zeroed is Thevenin.
+ */
 struct source {
 	double voc;  /* open-circuit voltage (finite unless r is infinite) */
 	double isc;  /* short-circuit current (finite unless r == 0) */
 	double r;    /* source resistance, 0 <= r <= INFINITY */
+	enum source_form form;
 };
 
 /* Fill SPEC with a Thevenin source. */

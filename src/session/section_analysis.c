@@ -290,6 +290,21 @@ static const enum qty_kind tol_source_units[] = { QTY_VOLTAGE, QTY_RESISTANCE,
 #define TOL_MAX_NETWORK_KEYS 24
 
 /*
+ * Whether source key K (an index of tol_source_keys) is one of the keys
+ * S's source has: vs and rs for a Thevenin source, is and rp for a Norton
+ * one (is alone for an ideal current source), none for a network
+ * (core/paramref.h).
+ */
+static bool tol_source_has(const struct session *s, int k)
+{
+	if (s->network != NULL)
+		return false;
+	if (s->source.form == SOURCE_NORTON)
+		return k == 2 || (k == 3 && isfinite(s->source.rp));
+	return k < 2;
+}
+
+/*
  * The unit of tolerance key KEY for the session's source and device; -1 if
  * unknown.  A network source takes its parts' key paths
  * ("source.network.<part name>") instead of vs, rs, is and rp.
@@ -303,8 +318,8 @@ static int tol_key_unit(const struct session *s, const char *key,
 		        network_part(s->network, (size_t)part)->kind);
 		return 0;
 	}
-	for (int k = 0; k < 4 && s->network == NULL; k++)
-		if (strcmp(key, tol_source_keys[k]) == 0) {
+	for (int k = 0; k < 4; k++)
+		if (tol_source_has(s, k) && strcmp(key, tol_source_keys[k]) == 0) {
 			*kind = tol_source_units[k];
 			return 0;
 		}
@@ -328,8 +343,9 @@ static void tol_unknown_key(struct load_ctx *c, const struct ynode *k,
 		         network_part(c->s->network, j)->name);
 		cands[n++] = netkeys[j];
 	}
-	for (int j = 0; j < 4 && c->s->network == NULL; j++)
-		cands[n++] = tol_source_keys[j];
+	for (int j = 0; j < 4; j++)
+		if (tol_source_has(c->s, j))
+			cands[n++] = tol_source_keys[j];
 	const struct model_type *t = c->s->device.type;
 	for (size_t j = 0; t != NULL && j < t->nparams; j++)
 		cands[n++] = t->params[j].key;
@@ -340,7 +356,20 @@ static void tol_unknown_key(struct load_ctx *c, const struct ynode *k,
 		                      cands[j]);
 	ytree_describe(k, found, sizeof found);
 	const char *near = section_suggest(k->text, cands, n);
-	if (near != NULL)
+	bool source_key = false;
+	for (int j = 0; j < 4; j++)
+		source_key |= strcmp(k->text, tol_source_keys[j]) == 0;
+	if (source_key && c->s->network == NULL)
+		/* A key of the other form: say which keys this source has. */
+		ytree_error(c->err, c->name, k, path,
+		            "%s is not a key of this %s source; its keys: %s", found,
+		            c->s->source.form == SOURCE_NORTON ? "Norton" : "Thevenin",
+		            keys);
+	else if (source_key)
+		ytree_error(c->err, c->name, k, path,
+		            "%s stands for the network's equivalent and cannot vary; "
+		            "expected one of: %s", found, keys);
+	else if (near != NULL)
 		ytree_error(c->err, c->name, k, path,
 		            "unknown parameter %s; did you mean '%s'?", found, near);
 	else

@@ -3,7 +3,7 @@
 # them: exit statuses, CSV shape, reproducible seeds, the caution, and the
 # worst case of a resistive divider against its closed form
 # I = VS / (RS + RL) (Ohm's law; extremes at the corners).
-# Usage: analysis_cli.sh BIASLINE
+# Usage: analysis_cli.sh BIASLINE (CSV_STRICT names tests/cli/csv_strict)
 set -u
 bl=$1
 . "$(dirname "$0")/tap.sh"
@@ -171,5 +171,35 @@ expect_exit 0 "$bl" solve --sensitivity --format csv "$tmp/plain.yaml"
 expect_text "$tmp/out" "point,parameter,value,unit,dV_dp,dI_dp,dP_dp,sens_V,sens_I,sens_P"
 expect_text "$tmp/out" "1,vs,5,V,"
 expect_exit 64 "$bl" solve --sensitivity --trace --format csv "$tmp/plain.yaml"
+
+# A Norton source keeps its own keys: is and rp, never vs and rs.
+cat >"$tmp/norton.yaml" <<'YAML'
+source:
+  is: 30 mA
+  rp: 330
+device:
+  model: diode
+  saturation_current: 2.7e-12
+  ideality: 1.83
+YAML
+expect_exit 0 "$bl" solve --sensitivity --format csv "$tmp/norton.yaml"
+cp "$tmp/out" "$tmp/norton.csv"
+"$CSV_STRICT" -c parameter "$tmp/norton.csv" | head -2 | tr '\n' ' ' \
+	>"$tmp/keys"
+expect_text "$tmp/keys" "is rp "
+# dI/d(rp) = (is - I)/(rp + r_d) > 0 (circuit theory): the normalised
+# sensitivity of I to rp is positive (it was printed as -0.99 when the row
+# held vs fixed instead of is).
+expect_awk "$tmp/norton.csv" '$2 == "rp" { found = 1; if (!($9 > 0)) exit 1 }
+	END { exit !found }' "Norton S(I) to rp is positive"
+expect_exit 64 "$bl" sweep --param vs --from 1 --to 2 "$tmp/norton.yaml"
+expect_text "$tmp/err" "its keys: is, rp"
+expect_exit 0 "$bl" sweep --param rp --from 100 --to 1k --points 3 \
+	"$tmp/norton.yaml"
+expect_exit 64 "$bl" sweep --param rp --from 1 --to 2 "$tmp/plain.yaml"
+expect_text "$tmp/err" "its keys: vs, rs"
+printf 'tolerances:\n  rs: 5%%\n' >>"$tmp/norton.yaml"
+expect_exit 65 "$bl" check "$tmp/norton.yaml"
+expect_text "$tmp/err" 'tolerances.rs: "rs" is not a key of this Norton source; its keys: is, rp,'
 
 tap_finish

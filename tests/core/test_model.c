@@ -402,9 +402,10 @@ static void test_extra_keys(void **state)
 			device_range(&dev, &lo, &hi);
 			/* a Thevenin source, a stiff one and an ideal current one */
 			const struct source srcs[] = {
-				{ 7.31, 7.31 / 2.7e3, 2.7e3 },
-				{ 1.93, INFINITY, 0.0 },
-				{ NAN, 3.7e-3, INFINITY },
+				{ .voc = 7.31, .isc = 7.31 / 2.7e3, .r = 2.7e3 },
+				{ .voc = 1.93, .isc = INFINITY, .r = 0.0 },
+				{ .voc = NAN, .isc = 3.7e-3, .r = INFINITY,
+				  .form = SOURCE_NORTON },
 			};
 			struct model_extra first;
 			bool have = false;

@@ -186,6 +186,82 @@ static void test_linear_closed_form(void **state)
 	assert_non_null(strstr(err, "exponent"));
 }
 
+/*
+ * A Norton source keeps its own keys: the sensitivities are to is (rp
+ * held) and to rp (is held), against the hand derivatives of the load
+ * line I = is - V/rp with the device's r_d = dV/dI at the point (circuit
+ * theory: the point moves along the device curve, dV = r_d dI):
+ *
+ *     dI/d(is) = rp / (rp + r_d),    dI/d(rp) = (is - I) / (rp + r_d).
+ *
+ * Thevenin keys on it, and Norton keys on a Thevenin source, are refused
+ * with the keys the source has.
+ */
+static void test_norton_keys(void **state)
+{
+	(void)state;
+	static const struct sens_case norton[] = {
+		{ "diode", { 2.7e-12, 1.83, 0.0, 25.0 }, 4, SOURCE_NORTON, 0.03,
+		  330.0 },
+		{ "diode", { 4.13e-14, 1.37, 0.83, 61.3 }, 4, SOURCE_NORTON,
+		  0.0173, 1.27e3 },
+		{ "power-law", { 1.83, 0.417, 0.61 }, 3, SOURCE_NORTON, 0.0417,
+		  213.0 },
+	};
+	for (size_t k = 0; k < sizeof norton / sizeof norton[0]; k++) {
+		const struct sens_case *c = &norton[k];
+		struct problem pb;
+		case_problem(c, &pb);
+		struct paramref all[PARAMREF_MAX];
+		size_t n = paramref_all(&pb, all, PARAMREF_MAX);
+		assert_true(n >= 2);
+		assert_string_equal(paramref_key(&pb, &all[0]), "is");
+		assert_string_equal(paramref_key(&pb, &all[1]), "rp");
+		for (size_t j = 2; j < n; j++)
+			assert_int_equal(all[j].kind, PARAMREF_DEVICE);
+		double v, i;
+		solve_with(&pb, &all[0], c->a, &v, &i);
+		double rd = 1.0 / device_conductance(&pb.dev, v);
+		double is = c->a, rp = c->b;
+		struct sensitivity sv;
+		assert_int_equal(sensitivity_at(&pb, v, i, &all[0], &sv), 0);
+		double want = rp / (rp + rd);
+		if (!(fabs(sv.di - want) <= 1e-12 * fabs(want)))
+			fail_msg("case %zu: dI/d(is) = %.15g, rp/(rp + r_d) = %.15g", k,
+			         sv.di, want);
+		assert_true(fabs(sv.value - is) <= 1e-15 * is);
+		assert_int_equal(sensitivity_at(&pb, v, i, &all[1], &sv), 0);
+		want = (is - i) / (rp + rd);
+		if (!(fabs(sv.di - want) <= 1e-10 * fabs(want)))
+			fail_msg("case %zu: dI/d(rp) = %.15g, (is - I)/(rp + r_d) = "
+			         "%.15g", k, sv.di, want);
+		assert_true(sv.di > 0.0); /* more rp, less current lost in it */
+		assert_true(fabs(sv.value - rp) <= 1e-15 * rp);
+		struct paramref r;
+		char err[400];
+		assert_int_equal(paramref_find(&pb, "vs", &r, err, sizeof err), -1);
+		assert_non_null(strstr(err, "is, rp"));
+		assert_int_equal(paramref_find(&pb, "rs", &r, err, sizeof err), -1);
+		assert_non_null(strstr(err, "Norton"));
+	}
+	/* An ideal current source has is alone; a Thevenin one vs and rs. */
+	struct sens_case ideal = { "diode", { 6.1e-12, 1.11, 1.9, 36.6 }, 4,
+	                           SOURCE_NORTON, 0.0273, INFINITY };
+	struct problem pb;
+	case_problem(&ideal, &pb);
+	struct paramref r;
+	char err[400];
+	assert_int_equal(paramref_find(&pb, "is", &r, err, sizeof err), 0);
+	assert_int_equal(paramref_find(&pb, "rp", &r, err, sizeof err), -1);
+	assert_non_null(strstr(err, "ideal current source"));
+	struct sens_case thev = { "diode", { 6.1e-12, 1.11, 1.9, 36.6 }, 4,
+	                          SOURCE_THEVENIN, 5.3, 470.0 };
+	case_problem(&thev, &pb);
+	assert_int_equal(paramref_find(&pb, "rp", &r, err, sizeof err), -1);
+	assert_non_null(strstr(err, "vs, rs"));
+	assert_int_equal(paramref_find(&pb, "is", &r, err, sizeof err), -1);
+}
+
 /* A fold (dF/dV = 0) is refused, not divided by. */
 static void test_singular(void **state)
 {
@@ -206,6 +282,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_against_finite_differences),
 		cmocka_unit_test(test_linear_closed_form),
+		cmocka_unit_test(test_norton_keys),
 		cmocka_unit_test(test_singular),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
