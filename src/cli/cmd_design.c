@@ -23,6 +23,7 @@ struct design_args {
 	bool csv, worst;
 	bool have_target, have_series, have_unknown;
 	struct cli_sets sets;   /* --set KEY=VALUE */
+	int stage;              /* a transistor stage's target (design_stage) */
 	struct design_request rq;
 	const char *part;       /* --solve-for source.network.NAME, or NULL */
 	const char *file;
@@ -46,11 +47,17 @@ static void design_usage(FILE *out)
 	        "  -c, --current I      target device current (12m, 12 mA; -5m reverse)\n"
 	        "  -v, --voltage V      target device voltage\n"
 	        "  -p, --power P        target device power\n"
-	        "                       (one of the three; default: the session's\n"
-	        "                       target section)\n"
+	        "      --collector-current I  a transistor stage's (npn, pnp)\n"
+	        "                       collector current\n"
+	        "      --vce V          its collector-emitter voltage (VEC for a pnp)\n"
+	        "      --drain-current I  a FET stage's (jfet, nmos) drain current\n"
+	        "                       (one target; default: the session's target\n"
+	        "                       section)\n"
 	        "  -s, --series E       E6, E12, E24, E48, E96 or E192 (default E24)\n"
-	        "  -S, --solve-for X    rs (default), vs, or for a network source\n"
-	        "                       the part to design: source.network.NAME\n"
+	        "  -S, --solve-for X    rs (default), vs, for a network source the\n"
+	        "                       part to design (source.network.NAME, such\n"
+	        "                       as a base divider's upper resistor), or a\n"
+	        "                       device parameter (emitter_resistance)\n"
 	        "  -w, --worst-case     also each row's worst case over the session's\n"
 	        "                       tolerances: the current (nominal, min, max),\n"
 	        "                       the largest resistor power, its verdict\n"
@@ -68,21 +75,61 @@ static void design_usage(FILE *out)
 	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
+/* The targets of a transistor stage (long options only). */
+enum design_stage {
+	STAGE_NONE,
+	STAGE_COLLECTOR = 0x600, /* --collector-current */
+	STAGE_VCE,               /* --vce */
+	STAGE_DRAIN,             /* --drain-current */
+};
+
 /* Set the target kind K from option text ARG; -1 when bad or repeated. */
 static int design_set_target(struct design_args *a, enum design_target k,
-                             const char *opt, const char *arg)
+                             enum qty_kind unit, const char *opt,
+                             const char *arg)
 {
-	static const enum qty_kind kinds[] = { QTY_CURRENT, QTY_VOLTAGE,
-	                                       QTY_POWER };
 	if (a->have_target) {
-		fprintf(stderr, "biasline design: give one of --current, --voltage "
-		        "or --power\n");
+		fprintf(stderr, "biasline design: give one of --current, --voltage, "
+		        "--power, --collector-current, --vce or --drain-current\n");
 		return -1;
 	}
-	if (cli_parse_qty("design", opt, arg, kinds[k], &a->rq.value) != 0)
+	if (cli_parse_qty("design", opt, arg, unit, &a->rq.value) != 0)
 		return -1;
 	a->rq.target = k;
 	a->have_target = true;
+	return 0;
+}
+
+/*
+ * Turn a transistor stage's target into RQ for PB's model: the collector
+ * current and VCE (VEC for a pnp) are the model's own results; a FET's
+ * drain current is its device current.  Prints and returns -1 when the
+ * model has no such side.
+ */
+static int design_stage_target(int stage, const struct problem *pb,
+                               struct design_request *rq, const char *file)
+{
+	const char *m = pb->dev.type->name;
+	bool bjt = strcmp(m, "npn") == 0 || strcmp(m, "pnp") == 0;
+	bool fet = strcmp(m, "jfet") == 0 || strcmp(m, "nmos") == 0;
+	const char *opt = stage == STAGE_COLLECTOR ? "--collector-current"
+	                  : stage == STAGE_VCE     ? "--vce"
+	                                           : "--drain-current";
+	if ((stage == STAGE_DRAIN && !fet) || (stage != STAGE_DRAIN && !bjt)) {
+		fprintf(stderr, "biasline design: %s: %s needs %s device, not %s\n",
+		        file, opt, stage == STAGE_DRAIN ? "a jfet or nmos"
+		                                        : "an npn or pnp", m);
+		return -1;
+	}
+	if (stage == STAGE_DRAIN) {
+		rq->target = DESIGN_CURRENT; /* the gate loop carries ID */
+		return 0;
+	}
+	rq->target = DESIGN_RESULT;
+	snprintf(rq->result, sizeof rq->result, "%s",
+	         stage == STAGE_COLLECTOR ? "collector_current"
+	         : strcmp(m, "pnp") == 0  ? "emitter_collector_voltage"
+	                                  : "collector_emitter_voltage");
 	return 0;
 }
 
@@ -94,6 +141,9 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 		{ "current", required_argument, NULL, 'c' },
 		{ "voltage", required_argument, NULL, 'v' },
 		{ "power", required_argument, NULL, 'p' },
+		{ "collector-current", required_argument, NULL, STAGE_COLLECTOR },
+		{ "vce", required_argument, NULL, STAGE_VCE },
+		{ "drain-current", required_argument, NULL, STAGE_DRAIN },
 		{ "series", required_argument, NULL, 's' },
 		{ "solve-for", required_argument, NULL, 'S' },
 		{ "format", required_argument, NULL, 'f' },
@@ -118,8 +168,19 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 			if (design_set_target(a, c == 'c' ? DESIGN_CURRENT
 			                         : c == 'v' ? DESIGN_VOLTAGE
 			                                    : DESIGN_POWER,
+			                      c == 'c' ? QTY_CURRENT
+			                      : c == 'v' ? QTY_VOLTAGE : QTY_POWER,
 			                      argv[optind - 1], optarg) != 0)
 				return -1;
+			break;
+		case STAGE_COLLECTOR:
+		case STAGE_VCE:
+		case STAGE_DRAIN:
+			if (design_set_target(a, DESIGN_CURRENT,
+			                      c == STAGE_VCE ? QTY_VOLTAGE : QTY_CURRENT,
+			                      argv[optind - 1], optarg) != 0)
+				return -1;
+			a->stage = c;
 			break;
 		case 's':
 			if (eseries_from_name(optarg, &a->rq.series) != 0) {
@@ -134,13 +195,11 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 				a->rq.unknown = DESIGN_FOR_RS;
 			} else if (strcmp(optarg, "vs") == 0) {
 				a->rq.unknown = DESIGN_FOR_VS;
-			} else if (strncmp(optarg, "source.network.", 15) == 0) {
+			} else {
+				/* A network part or a device parameter, looked up
+				 * once the session is loaded. */
 				a->rq.unknown = DESIGN_FOR_PART;
 				a->part = optarg;
-			} else {
-				fprintf(stderr, "biasline design: --solve-for: '%s' is not "
-				        "rs, vs or source.network.PART\n", optarg);
-				return -1;
 			}
 			a->have_unknown = true;
 			break;
@@ -325,7 +384,7 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
                                   const struct design_result *res, bool worst)
 {
 	char a[48], b[48], c[48], d[48], e[48];
-	enum qty_kind tk = design_target_unit(rq->target);
+	enum qty_kind tk = design_request_unit(pb, rq);
 	bool for_part = rq->unknown == DESIGN_FOR_PART;
 	bool for_rs = rq->unknown == DESIGN_FOR_RS ||
 	              (for_part && design_unknown_unit(pb, rq) == QTY_RESISTANCE);
@@ -333,7 +392,9 @@ static unsigned design_print_text(const char *file, const struct problem *pb,
 	const char *uname = for_part ? paramref_key(pb, &rq->part)
 	                    : rq->unknown == DESIGN_FOR_RS ? "RS" : "VS";
 	printf("%s\n", file);
-	printf("  target   device %s %s, solving for %s", design_target_name(rq->target),
+	printf("  target   %s %s %s, solving for %s",
+	       rq->target == DESIGN_RESULT ? "stage" : "device",
+	       design_request_name(rq),
 	       cli_fmt(a, sizeof a, rq->value, tk, 6), uname);
 	if (for_part)
 		printf(" (%s)\n", eseries_name(rq->series));
@@ -446,10 +507,22 @@ int cmd_design(int argc, char **argv)
 		if (a.have_unknown)
 			rq.unknown = a.rq.unknown;
 	}
+	if (a.stage != STAGE_NONE &&
+	    design_stage_target(a.stage, &pb, &rq, a.file) != 0) {
+		session_fini(&se);
+		return EXIT_USAGE;
+	}
 	if (rq.unknown == DESIGN_FOR_PART) {
 		char err[512];
-		if (paramref_find(&pb, a.part, &rq.part, err, sizeof err) != 0) {
-			fprintf(stderr, "biasline design: %s: --solve-for: %s\n", a.file, err);
+		if (paramref_find(&pb, a.part, &rq.part, err, sizeof err) != 0 ||
+		    (rq.part.kind != PARAMREF_NETWORK &&
+		     rq.part.kind != PARAMREF_DEVICE)) {
+			if (rq.part.kind != PARAMREF_NETWORK &&
+			    rq.part.kind != PARAMREF_DEVICE && err[0] == '\0')
+				snprintf(err, sizeof err, "'%s' is not rs, vs, a network "
+				         "part or a device parameter", a.part);
+			fprintf(stderr, "biasline design: %s: --solve-for: %s\n", a.file,
+			        err);
 			session_fini(&se);
 			return EXIT_USAGE;
 		}

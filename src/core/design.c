@@ -34,15 +34,56 @@ const char *design_target_name(enum design_target t)
 		return "voltage";
 	case DESIGN_POWER:
 		return "power";
+	case DESIGN_RESULT:
+		return "result";
 	}
 	return "?";
+}
+
+/* What RQ's target is called. */
+const char *design_request_name(const struct design_request *rq)
+{
+	return rq->target == DESIGN_RESULT ? rq->result
+	                                   : design_target_name(rq->target);
+}
+
+/* The value of result KEY at (V, I). */
+int design_result_value(const struct problem *pb, const char *key, double v,
+                        double i, double *out)
+{
+	struct model_extra ex;
+	if (device_secondary(&pb->dev, &pb->src, v, i, &ex) != 0)
+		return -1;
+	for (size_t k = 0; k < ex.n; k++)
+		if (strcmp(ex.v[k].key, key) == 0) {
+			*out = ex.v[k].value;
+			return 0;
+		}
+	return -1;
+}
+
+/* The unit of RQ's target on PB. */
+enum qty_kind design_request_unit(const struct problem *pb,
+                                  const struct design_request *rq)
+{
+	if (rq->target != DESIGN_RESULT)
+		return design_target_unit(rq->target);
+	struct model_extra ex;
+	/* The kinds do not depend on the point: any point will do. */
+	if (device_secondary(&pb->dev, &pb->src, 0.613, 1.37e-5, &ex) == 0)
+		for (size_t k = 0; k < ex.n; k++)
+			if (strcmp(ex.v[k].key, rq->result) == 0)
+				return ex.v[k].kind;
+	return QTY_NUMBER;
 }
 
 /* The unit of a target. */
 enum qty_kind design_target_unit(enum design_target t)
 {
-	return t == DESIGN_CURRENT ? QTY_CURRENT
-	       : t == DESIGN_VOLTAGE ? QTY_VOLTAGE : QTY_POWER;
+	return t == DESIGN_CURRENT   ? QTY_CURRENT
+	       : t == DESIGN_VOLTAGE ? QTY_VOLTAGE
+	       : t == DESIGN_POWER   ? QTY_POWER
+	                             : QTY_NUMBER;
 }
 
 /*
@@ -174,8 +215,10 @@ int design_device_point(const struct problem *pb,
 			goto no_power;
 		}
 		return 0;
+	case DESIGN_RESULT:
+		break;
 	}
-	snprintf(err, errlen, "unknown target");
+	snprintf(err, errlen, "a result target has no device point of its own");
 	return -1;
 no_power:
 	snprintf(err, errlen,
@@ -334,7 +377,7 @@ static void design_row_solve(const struct problem *pb,
 		return;
 	/* With several points (a non-monotone device) take the nearest. */
 	size_t best = 0;
-	for (size_t k = 1; k < sr.n; k++)
+	for (size_t k = 1; k < sr.n && !isnan(v_t); k++)
 		if (fabs(sr.pts[k].v - v_t) < fabs(sr.pts[best].v - v_t))
 			best = k;
 	row->solved = true;
@@ -350,9 +393,150 @@ static void design_row_solve(const struct problem *pb,
 	case DESIGN_POWER:
 		row->achieved = row->pt.power;
 		break;
+	case DESIGN_RESULT:
+		if (design_result_value(&q, rq->result, row->pt.v, row->pt.i,
+		                        &row->achieved) != 0)
+			row->achieved = NAN;
+		break;
 	}
 	row->error_percent = 100.0 * (row->achieved - rq->value) / rq->value;
 	ratings_check(&q, SOURCE_THEVENIN, row->pt.v, row->pt.i, r, &row->power);
+}
+
+/*
+ * The targeted quantity when RQ's unknown is X: solve PB with X and take
+ * the point nearest V_NEAR (NaN: the first); its (V, I) into *V, *I.  NaN
+ * when X is not valid or there is no point.
+ */
+static double design_achieved(const struct problem *pb,
+                              const struct solve_options *o,
+                              const struct design_request *rq, double x,
+                              double v_near, double *v, double *i)
+{
+	struct problem q;
+	struct solve_result sr;
+	if (design_apply_request(pb, rq, x, &q) != 0 ||
+	    solve_problem(&q, o, &sr) != SOLVE_OK || sr.n == 0)
+		return NAN;
+	size_t best = 0;
+	for (size_t k = 1; k < sr.n && !isnan(v_near); k++)
+		if (fabs(sr.pts[k].v - v_near) < fabs(sr.pts[best].v - v_near))
+			best = k;
+	*v = sr.pts[best].v;
+	*i = sr.pts[best].i;
+	double y;
+	switch (rq->target) {
+	case DESIGN_CURRENT:
+		return *i;
+	case DESIGN_VOLTAGE:
+		return *v;
+	case DESIGN_POWER:
+		return *v * *i;
+	case DESIGN_RESULT:
+		return design_result_value(&q, rq->result, *v, *i, &y) == 0 ? y
+		                                                            : NAN;
+	}
+	return NAN;
+}
+
+/* The present value of RQ's unknown in PB. */
+static double design_present(const struct problem *pb,
+                             const struct design_request *rq)
+{
+	switch (rq->unknown) {
+	case DESIGN_FOR_RS:
+		return pb->src.r;
+	case DESIGN_FOR_VS:
+		return pb->src.voc;
+	case DESIGN_FOR_PART:
+		break;
+	}
+	return paramref_get(pb, &rq->part);
+}
+
+/*
+ * The general design (see design.h): the root in the unknown of the
+ * targeted quantity at the solved point minus the target, bracketed on a
+ * grid around the present value and bisected.  Fills OUT's target point.
+ */
+static int design_general(const struct problem *pb,
+                          const struct solve_options *o,
+                          const struct design_request *rq, double *exact,
+                          struct design_result *out)
+{
+	enum { NGRID = 241 };
+	double x0 = design_present(pb, rq);
+	bool logscale = design_unknown_unit(pb, rq) == QTY_RESISTANCE;
+	double base = logscale ? (x0 > 0.0 && isfinite(x0) ? x0 : 1e3) : x0;
+	double span = 10.0 * (fabs(x0) + 1.0);
+	double v, i, best = INFINITY, lo = NAN, hi = NAN, flo = NAN;
+	double xp = NAN, fp = NAN;
+	for (int k = 0; k < NGRID; k++) {
+		double x = logscale
+		               ? base * pow(10.0, -6.0 + 12.0 * k / (NGRID - 1))
+		               : base - span + 2.0 * span * k / (NGRID - 1);
+		double f = design_achieved(pb, o, rq, x, NAN, &v, &i) - rq->value;
+		if (isfinite(f) && isfinite(fp) &&
+		    (f == 0.0 || (f < 0.0) != (fp < 0.0))) {
+			double d = logscale ? fabs(log(sqrt(x * xp) / base))
+			                    : fabs(0.5 * (x + xp) - x0);
+			if (d < best) {
+				best = d;
+				lo = xp;
+				hi = x;
+				flo = fp;
+			}
+		}
+		xp = x;
+		fp = f;
+	}
+	if (isnan(lo)) {
+		snprintf(out->message, sizeof out->message,
+		         "no value of %s from %s puts the %s at %.6g: the target is "
+		         "out of this stage's reach",
+		         rq->unknown == DESIGN_FOR_RS   ? "RS"
+		         : rq->unknown == DESIGN_FOR_VS ? "VS"
+		                                        : paramref_key(pb, &rq->part),
+		         logscale ? "1e-6 to 1e6 times its present value"
+		                  : "around its present value",
+		         design_request_name(rq), rq->value);
+		return -1;
+	}
+	for (int k = 0; k < 200; k++) {
+		double m = logscale ? sqrt(lo * hi) : 0.5 * (lo + hi);
+		if (!(m > fmin(lo, hi) && m < fmax(lo, hi)))
+			break;
+		double fm = design_achieved(pb, o, rq, m, NAN, &v, &i) - rq->value;
+		if (!isfinite(fm))
+			break;
+		if (fm == 0.0) {
+			lo = hi = m;
+			break;
+		}
+		if ((fm < 0.0) == (flo < 0.0)) {
+			lo = m;
+			flo = fm;
+		} else {
+			hi = m;
+		}
+	}
+	*exact = logscale ? sqrt(lo * hi) : 0.5 * (lo + hi);
+	if (isnan(design_achieved(pb, o, rq, *exact, NAN, &v, &i))) {
+		snprintf(out->message, sizeof out->message,
+		         "the value found leaves no operating point");
+		return -1;
+	}
+	out->v_target = v;
+	out->i_target = i;
+	return 0;
+}
+
+/* Whether RQ needs the general design (see design.h). */
+static bool design_is_general(const struct design_request *rq)
+{
+	return rq->target == DESIGN_RESULT ||
+	       (rq->unknown == DESIGN_FOR_PART &&
+	        rq->part.kind == PARAMREF_DEVICE);
 }
 
 /*
@@ -466,14 +650,40 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 		design_wrong_sign(out, rq->value, s->voc);
 		return -1;
 	}
-	double v, i;
-	if (design_device_point(pb, rq, &v, &i, out->message,
-	                        sizeof out->message) != 0)
+	double v, i, exact;
+	if (rq->target == DESIGN_RESULT) {
+		double y;
+		struct model_extra ex;
+		if (device_secondary(&pb->dev, &pb->src, 0.613, 1.37e-5, &ex) != 0 ||
+		    design_result_value(pb, rq->result, 0.613, 1.37e-5, &y) != 0) {
+			size_t at = (size_t)snprintf(out->message, sizeof out->message,
+			                             "the %s model has no result '%s'",
+			                             pb->dev.type->name, rq->result);
+			for (size_t k = 0; k < ex.n && at < sizeof out->message; k++)
+				at += (size_t)snprintf(out->message + at,
+				                       sizeof out->message - at, "%s%s",
+				                       k ? ", " : " (its results: ",
+				                       ex.v[k].key);
+			if (ex.n > 0 && at < sizeof out->message)
+				snprintf(out->message + at, sizeof out->message - at, ")");
+			return -1;
+		}
+	}
+	if (design_is_general(rq)) {
+		if (design_general(pb, o, rq, &exact, out) != 0)
+			return -1;
+		v = out->v_target;
+		i = out->i_target;
+	} else if (design_device_point(pb, rq, &v, &i, out->message,
+	                               sizeof out->message) != 0) {
 		return -1;
-	out->v_target = v;
-	out->i_target = i;
-	double exact;
-	if (rq->unknown == DESIGN_FOR_PART) {
+	} else {
+		out->v_target = v;
+		out->i_target = i;
+	}
+	if (design_is_general(rq)) {
+		/* found above */
+	} else if (rq->unknown == DESIGN_FOR_PART) {
 		if (design_part_value(pb, rq, v, i, &exact, out->message,
 		                      sizeof out->message) != 0)
 			return -1;

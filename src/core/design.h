@@ -15,6 +15,17 @@
  * Each reported value is checked by a full solve (solve_problem) of the
  * problem with that value, and its error from the target is reported.
  *
+ * A target on one of the model's own results (a transistor stage's
+ * collector current or VCE, DESIGN_RESULT), or an unknown that changes the
+ * device itself (a device parameter such as the emitter resistor), has no
+ * device point fixed in advance: the exact value is then the root of
+ * "the result at the solved point minus the target" in the unknown,
+ * bracketed on a grid around the present value (logarithmic for a
+ * resistance) and bisected, each evaluation a full solve.  Where the
+ * result does not depend on the source (a transistor's collector side
+ * depends only on IB), the device point is found first as for a current
+ * target and the load line gives the value directly.
+ *
  * Either sign: a target current (or voltage) below zero is a point in the
  * third quadrant, where a Zener shunt or a reverse-biased junction works
  * from a negative source; a power target is looked for on the side of the
@@ -45,13 +56,21 @@ enum design_target {
 	DESIGN_CURRENT,   /* device current, A */
 	DESIGN_VOLTAGE,   /* device voltage, V */
 	DESIGN_POWER,     /* device power, W */
+	DESIGN_RESULT,    /* one of the model's own results (model.h's
+	                     model_extra, by key): a transistor stage's
+	                     collector_current or collector_emitter_voltage */
 };
+
+/* Room for a result key ("emitter_collector_voltage"). */
+#define DESIGN_RESULT_MAX 32
 
 /* What the design changes. */
 enum design_unknown {
 	DESIGN_FOR_RS,    /* the series resistance; VS stays */
 	DESIGN_FOR_VS,    /* the source voltage; RS stays */
-	DESIGN_FOR_PART,  /* a part of a network source (design_request.part) */
+	DESIGN_FOR_PART,  /* a parameter by key (design_request.part): a part
+	                     of a network source, or a device parameter such
+	                     as a stage's emitter_resistance */
 };
 
 /* Which value a result row holds. */
@@ -68,6 +87,7 @@ struct design_request {
 	enum design_unknown unknown;
 	enum eseries series;       /* for the lower/higher rows (resistances) */
 	struct paramref part;      /* DESIGN_FOR_PART: which part (paramref.h) */
+	char result[DESIGN_RESULT_MAX]; /* DESIGN_RESULT: the result's key */
 };
 
 /* One row's worst case over the tolerance box (design_row_worst). */
@@ -117,7 +137,7 @@ struct design_result {
 /* Row kind name: "exact", "lower", "higher". */
 const char *design_row_name(enum design_row_kind k);
 
-/* Target name: "current", "voltage", "power". */
+/* Target name: "current", "voltage", "power", "result". */
 const char *design_target_name(enum design_target t);
 
 /*
@@ -170,7 +190,22 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 int design_row_worst(const struct tol_case *c, const struct ratings *r,
                      struct design_worst *out);
 
-/* The unit of a target of kind T: a current, a voltage or a power. */
+/* The unit of a target of kind T: a current, a voltage or a power
+ * (QTY_NUMBER for DESIGN_RESULT: see design_request_unit). */
 enum qty_kind design_target_unit(enum design_target t);
+
+/* The unit of RQ's target on PB (a result's own unit). */
+enum qty_kind design_request_unit(const struct problem *pb,
+                                  const struct design_request *rq);
+
+/* What RQ's target is called: "current", or the result's key. */
+const char *design_request_name(const struct design_request *rq);
+
+/*
+ * The value of PB's model result KEY at the point (V, I) into *OUT;
+ * returns 0, or -1 when the model has no such result.
+ */
+int design_result_value(const struct problem *pb, const char *key, double v,
+                        double i, double *out);
 
 #endif

@@ -178,16 +178,16 @@ static void verdict_source(struct verdict *out, const char *name, double p)
 }
 
 /* The target line. */
-void verdict_target(const struct design_request *target, double achieved,
+void verdict_target(const struct problem *pb,
+                    const struct design_request *target, double achieved,
                     struct verdict_target *out)
 {
 	memset(out, 0, sizeof *out);
 	out->value = out->achieved = out->error_percent = NAN;
 	if (target == NULL || !isfinite(target->value))
 		return;
-	static const enum qty_kind units[] = { QTY_CURRENT, QTY_VOLTAGE,
-	                                       QTY_POWER };
-	enum qty_kind u = units[target->target];
+	enum qty_kind u = pb != NULL ? design_request_unit(pb, target)
+	                             : design_target_unit(target->target);
 	out->given = true;
 	out->kind = target->target;
 	out->value = target->value;
@@ -202,11 +202,11 @@ void verdict_target(const struct design_request *target, double achieved,
 	verdict_fmt(b, sizeof b, achieved, u);
 	if (isfinite(out->error_percent))
 		snprintf(out->words, sizeof out->words, "target %s %s; the point has "
-		         "%s: error %+.3g %%", design_target_name(target->target), a, b,
+		         "%s: error %+.3g %%", design_request_name(target), a, b,
 		         out->error_percent + 0.0);
 	else
 		snprintf(out->words, sizeof out->words, "target %s %s; the point has "
-		         "%s", design_target_name(target->target), a, b);
+		         "%s", design_request_name(target), a, b);
 }
 
 /* Start OUT for ratings R. */
@@ -215,7 +215,7 @@ static void verdict_start(struct verdict *out, const struct ratings *r)
 	memset(out, 0, sizeof *out);
 	out->worst = RATINGS_NO_RATING;
 	out->derating = ratings_derating(r != NULL ? r->ambient_temperature : NAN);
-	verdict_target(NULL, NAN, &out->target);
+	verdict_target(NULL, NULL, NAN, &out->target);
 }
 
 /* A network's parts at (V, I), with PB's changed part values. */
@@ -276,8 +276,12 @@ void verdict_at(const struct problem *pb, enum source_form form, double v,
 	if (target != NULL) {
 		double got = target->target == DESIGN_CURRENT   ? i
 		             : target->target == DESIGN_VOLTAGE ? v
-		                                                : v * i;
-		verdict_target(target, got, &out->target);
+		             : target->target == DESIGN_POWER   ? v * i
+		                                                : NAN;
+		if (target->target == DESIGN_RESULT &&
+		    design_result_value(pb, target->result, v, i, &got) != 0)
+			got = NAN;
+		verdict_target(pb, target, got, &out->target);
 	}
 }
 

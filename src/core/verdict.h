@@ -69,7 +69,7 @@ struct verdict_line {
 struct verdict_target {
 	bool given;
 	enum design_target kind;
-	double value;           /* the target, A, V or W */
+	double value;           /* the target, A, V or W (or the result's unit) */
 	double achieved;        /* the same quantity at the point */
 	double error_percent;   /* 100 (achieved - value) / value, as design's
 	                           rows: above zero when the point is further
@@ -112,8 +112,12 @@ void verdict_worst(double p_device, double i_device, double p_resistor,
                    const char *resistor, const struct ratings *r,
                    struct verdict *out);
 
-/* The target line alone: TARGET met by ACHIEVED (see struct verdict). */
-void verdict_target(const struct design_request *target, double achieved,
+/*
+ * The target line alone: TARGET met by ACHIEVED (see struct verdict); PB
+ * (may be NULL) gives a model result's unit.
+ */
+void verdict_target(const struct problem *pb,
+                    const struct design_request *target, double achieved,
                     struct verdict_target *out);
 
 #endif

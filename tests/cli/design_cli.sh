@@ -173,4 +173,25 @@ expect_text "$tmp/err" "reverse current"
 expect_exit 0 "$bl" design --power 25.5m -f csv "$samples/zener-shunt-5v1.yaml"
 expect_field "$tmp/out" "exact," 2 1380
 
+# A transistor stage by its collector current: the upper divider resistor
+# or the emitter resistor (the core test checks both against the base-loop
+# equation); a FET by its drain current; the wrong kind of device refused.
+npn="$samples/npn-divider-bias.yaml"
+expect_exit 0 "$bl" design --collector-current 2m \
+	--solve-for "source.network.upper divider" -f csv "$npn"
+expect_text "$tmp/out" "exact,70298"
+expect_exit 0 "$bl" design --collector-current 2m --solve-for emitter_resistance \
+	"$npn"
+expect_text "$tmp/out" "collector_current 2 mA, solving for emitter_resistance"
+expect_text "$tmp/out" "(nearest)"
+expect_exit 0 "$bl" design --vce 6 --solve-for "source.network.upper divider" \
+	"$npn"
+expect_exit 64 "$bl" design --collector-current 2m "$samples/jfet-self-bias.yaml"
+expect_text "$tmp/err" "needs an npn or pnp device"
+expect_exit 64 "$bl" design --collector-current 2m --solve-for bogus "$npn"
+expect_text "$tmp/err" "bogus"
+expect_exit 0 "$bl" design --drain-current 3m -f csv "$samples/jfet-self-bias.yaml"
+expect_text "$tmp/out" "exact,334.35"
+expect_exit 64 "$bl" design --drain-current 3m "$tmp/led.yaml"
+
 tap_finish

@@ -627,6 +627,141 @@ static void test_design_worst_brute(void **state)
 	assert_non_null(strstr(w.message, "no tolerances"));
 }
 
+/*
+ * A transistor stage by its collector current (or VCE).  The base loop of
+ * a divider-biased npn stage, by Kirchhoff's voltage law around base,
+ * emitter and ground,
+ *     VBB = RB IB + VBE + (beta + 1) IB RE,   IE = (VBB - VBE) / (RE + RB/(beta+1))
+ * (the classical four-resistor bias: Sedra & Smith, Microelectronic
+ * Circuits, Oxford University Press, the section on biasing discrete BJT
+ * amplifiers; from memory), with the forward-active Ebers-Moll law
+ * IC = Is (exp(VBE / n Vt) - 1) (Ebers & Moll, Proc. IRE 42, 1954) for
+ * VBE, IB = IC / beta; and at the base node (KCL)
+ *     (VCC - VB) / R1 = VB / R2 + IB  gives  R1 = (VCC - VB) / (VB/R2 + IB).
+ * The collector side VCE = VCC - IC RC - IE RE gives IC for a VCE target.
+ * A JFET's self-bias by its drain current: the square law ID = IDSS
+ * (1 - VGS/VP)^2 (Shockley, Proc. IRE 40, 1952) with VGS = -ID RS (KVL
+ * round the gate loop) gives RS = -VP (1 - sqrt(ID/IDSS)) / ID.
+ */
+static void test_design_stage(void **state)
+{
+	(void)state;
+	const double vcc = 12.7, r1 = 43.7e3, r2 = 11.3e3, is = 7.3e-15;
+	const double beta = 163.0, re = 470.0, rc = 2.21e3, temp = 31.7;
+	struct network *net = network_create();
+	assert_non_null(net);
+	assert_true(network_add_part(net, "supply", NETWORK_VOLTAGE_SOURCE, vcc,
+	                             "gnd", "rail") >= 0);
+	assert_true(network_add_part(net, "upper", NETWORK_RESISTOR, r1, "rail",
+	                             "base") >= 0);
+	assert_true(network_add_part(net, "lower", NETWORK_RESISTOR, r2, "base",
+	                             "gnd") >= 0);
+	assert_int_equal(network_set_terminals(net, "base", "gnd"), 0);
+	struct problem pb;
+	memset(&pb, 0, sizeof pb);
+	struct source_spec spec;
+	char err[300];
+	assert_int_equal(network_reduce(net, NULL, &spec, NULL), NETWORK_OK);
+	assert_int_equal(source_from_spec(&spec, &pb.src, err, sizeof err), 0);
+	pb.net = net;
+	device_init(&pb.dev, &model_npn);
+	pb.dev.p[BJT_IS] = is;
+	pb.dev.p[BJT_BETA] = beta;
+	pb.dev.p[BJT_RE] = re;
+	pb.dev.p[BJT_RC] = rc;
+	pb.dev.p[BJT_VCC] = vcc;
+	pb.dev.p[BJT_TEMP] = temp;
+	assert_int_equal(device_validate(&pb.dev, err, sizeof err), 0);
+	struct solve_options o;
+	solve_options_init(&o);
+	double vt = K_BOLTZMANN * (temp + 273.15) / Q_ELECTRON;
+	static const double ics[] = { 2.13e-3, 0.731e-3, 3.87e-3 };
+	for (size_t k = 0; k < sizeof ics / sizeof ics[0]; k++) {
+		double ic = ics[k], ib = ic / beta, ie = ib * (beta + 1.0);
+		double vbe = vt * log1p(ic / is);
+		double vb = vbe + ie * re;
+		/* The upper divider resistor. */
+		struct design_request rq = { .target = DESIGN_RESULT, .value = ic,
+			                         .unknown = DESIGN_FOR_PART,
+			                         .series = ESERIES_E24,
+			                         .result = "collector_current" };
+		assert_int_equal(paramref_find(&pb, "source.network.upper", &rq.part,
+		                               err, sizeof err), 0);
+		struct design_result res;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("IC %g, upper: %s", ic, res.message);
+		double want = (vcc - vb) / (vb / r2 + ib);
+		if (rel(res.rows[0].value, want) > 1e-9)
+			fail_msg("IC %g: R1 %.15g, base loop %.15g", ic,
+			         res.rows[0].value, want);
+		assert_true(rel(res.rows[0].achieved, ic) < 1e-9);
+		assert_int_equal(res.nrows, 3);
+		/* The emitter resistor with the divider as it is. */
+		rq.unknown = DESIGN_FOR_PART;
+		assert_int_equal(paramref_find(&pb, "emitter_resistance", &rq.part,
+		                               err, sizeof err), 0);
+		double vbb = vcc * r2 / (r1 + r2), rb = r1 * r2 / (r1 + r2);
+		double want_re = (vbb - vbe) / ie - rb / (beta + 1.0);
+		if (want_re > 0.0) {
+			if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+				fail_msg("IC %g, RE: %s", ic, res.message);
+			if (rel(res.rows[0].value, want_re) > 1e-9)
+				fail_msg("IC %g: RE %.15g, base loop %.15g", ic,
+				         res.rows[0].value, want_re);
+		}
+		/* A VCE target: the IC it needs, then the upper resistor. */
+		double vce = vcc - ic * rc - ie * re;
+		struct design_request rv = { .target = DESIGN_RESULT, .value = vce,
+			                         .unknown = DESIGN_FOR_PART,
+			                         .series = ESERIES_E24,
+			                         .result = "collector_emitter_voltage" };
+		assert_int_equal(paramref_find(&pb, "source.network.upper", &rv.part,
+		                               err, sizeof err), 0);
+		if (design_solve(&pb, &o, &rv, NULL, &res) != 0)
+			fail_msg("VCE %g: %s", vce, res.message);
+		if (rel(res.rows[0].value, want) > 1e-8)
+			fail_msg("VCE %g: R1 %.15g, base loop %.15g", vce,
+			         res.rows[0].value, want);
+	}
+	/* A result the model does not have is refused by name. */
+	struct design_request none = { .target = DESIGN_RESULT, .value = 1e-3,
+		                          .unknown = DESIGN_FOR_PART,
+		                          .series = ESERIES_E24,
+		                          .result = "drain_current" };
+	assert_int_equal(paramref_find(&pb, "source.network.upper", &none.part,
+	                               err, sizeof err), 0);
+	struct design_result res;
+	assert_int_equal(design_solve(&pb, &o, &none, NULL, &res), -1);
+	assert_non_null(strstr(res.message, "collector_current"));
+	network_destroy(net);
+
+	/* A JFET's source resistor for a drain current. */
+	const double idss = 8.73e-3, vp = -2.37;
+	struct problem fp;
+	memset(&fp, 0, sizeof fp);
+	source_spec_thevenin(&spec, 0.0, 390.0);
+	assert_int_equal(source_from_spec(&spec, &fp.src, err, sizeof err), 0);
+	device_init(&fp.dev, &model_jfet);
+	fp.dev.p[FET_K] = idss;
+	fp.dev.p[FET_VTH] = vp;
+	fp.dev.p[FET_VDD] = 15.3;
+	fp.dev.p[FET_RD] = 1.37e3;
+	assert_int_equal(device_validate(&fp.dev, err, sizeof err), 0);
+	static const double ids[] = { 3.11e-3, 0.917e-3, 6.2e-3 };
+	for (size_t k = 0; k < sizeof ids / sizeof ids[0]; k++) {
+		struct design_request rq = { .target = DESIGN_CURRENT,
+			                         .value = ids[k],
+			                         .unknown = DESIGN_FOR_RS,
+			                         .series = ESERIES_E24 };
+		if (design_solve(&fp, &o, &rq, NULL, &res) != 0)
+			fail_msg("ID %g: %s", ids[k], res.message);
+		double want = -vp * (1.0 - sqrt(ids[k] / idss)) / ids[k];
+		if (rel(res.rows[0].value, want) > 1e-12)
+			fail_msg("ID %g: RS %.15g, square law %.15g", ids[k],
+			         res.rows[0].value, want);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -637,6 +772,7 @@ int main(void)
 		cmocka_unit_test(test_design_zener_shunt),
 		cmocka_unit_test(test_design_nearest),
 		cmocka_unit_test(test_design_worst_brute),
+		cmocka_unit_test(test_design_stage),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
