@@ -462,23 +462,9 @@ static int design_worst_rows(const char *file, const struct session *se,
                              struct design_result *res)
 {
 	char err[600];
-	if (se->analysis.ntol == 0) {
-		fprintf(stderr, "biasline design: %s: --worst-case: no tolerances: "
-		        "section (e.g. tolerances: {rs: 5%%, vs: 10%%})\n", file);
+	if (session_design_worst(se, pb, rq, res, err, sizeof err) != 0) {
+		fprintf(stderr, "biasline design: %s: --worst-case: %s\n", file, err);
 		return EXIT_DATA;
-	}
-	for (size_t k = 0; k < res->nrows; k++) {
-		struct design_row *r = &res->rows[k];
-		struct problem q;
-		struct tol_case c;
-		if (!r->solved || design_apply_request(pb, rq, r->value, &q) != 0)
-			continue;
-		/* The tolerances around the row's own value. */
-		if (session_tolerance_case(se, &q, &c, err, sizeof err) != 0) {
-			fprintf(stderr, "biasline design: %s: %s\n", file, err);
-			return EXIT_DATA;
-		}
-		design_row_worst(&c, &se->analysis.ratings, &r->worst);
 	}
 	return 0;
 }

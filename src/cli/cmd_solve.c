@@ -317,12 +317,9 @@ static void solve_print_verdict(const struct session *se,
                                 const struct problem *pb,
                                 const struct solve_result *res)
 {
-	struct design_request rq;
-	bool target = session_design_request(se, &rq) == 0;
 	for (size_t k = 0; k < res->n; k++) {
 		struct verdict vd;
-		verdict_at(pb, se->source.form, res->pts[k].v, res->pts[k].i,
-		           &se->analysis.ratings, target ? &rq : NULL, &vd);
+		session_verdict(se, pb, res->pts[k].v, res->pts[k].i, &vd);
 		if (res->n > 1)
 			printf("\n  power and ratings at point %zu\n", k + 1);
 		else

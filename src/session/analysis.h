@@ -32,6 +32,7 @@
 #include "core/eseries.h"
 #include "core/ratings.h"
 #include "core/tolerance.h"
+#include "core/verdict.h"
 
 /* Longest tolerance key in bytes ("source.network." and a part name fit). */
 #define SESSION_TOL_KEY_MAX 64
@@ -93,5 +94,22 @@ int session_tolerance_case(const struct session *s, const struct problem *pb,
 
 /* The spec windows of S's target into W (at most 2); returns how many. */
 size_t session_target_windows(const struct session *s, struct tol_window *w);
+
+/*
+ * The worst case of each solved row of RES (design_solve on S's problem
+ * PB for RQ) over S's tolerances, each built around the row's own value,
+ * held to S's ratings (design_row_worst fills rows[k].worst).  Returns 0,
+ * or -1 with a message when S has no tolerances or one cannot be built.
+ */
+int session_design_worst(const struct session *s, const struct problem *pb,
+                         const struct design_request *rq,
+                         struct design_result *res, char *err, size_t errlen);
+
+/*
+ * The ratings verdict at the point (V, I) of S's problem PB, with S's
+ * source form, ratings and target (core/verdict.h).
+ */
+void session_verdict(const struct session *s, const struct problem *pb,
+                     double v, double i, struct verdict *out);
 
 #endif

@@ -687,3 +687,37 @@ size_t session_target_windows(const struct session *s, struct tol_window *w)
 		                              t->voltage_max };
 	return n;
 }
+
+/* The worst case of each row of a design. */
+int session_design_worst(const struct session *s, const struct problem *pb,
+                         const struct design_request *rq,
+                         struct design_result *res, char *err, size_t errlen)
+{
+	if (s->analysis.ntol == 0) {
+		snprintf(err, errlen, "no tolerances: section (e.g. tolerances: "
+		         "{rs: 5%%, vs: 10%%})");
+		return -1;
+	}
+	for (size_t k = 0; k < res->nrows; k++) {
+		struct design_row *r = &res->rows[k];
+		struct problem q;
+		struct tol_case c;
+		if (!r->solved || design_apply_request(pb, rq, r->value, &q) != 0)
+			continue;
+		/* The tolerances around the row's own value. */
+		if (session_tolerance_case(s, &q, &c, err, errlen) != 0)
+			return -1;
+		design_row_worst(&c, &s->analysis.ratings, &r->worst);
+	}
+	return 0;
+}
+
+/* The verdict at (V, I) with S's form, ratings and target. */
+void session_verdict(const struct session *s, const struct problem *pb,
+                     double v, double i, struct verdict *out)
+{
+	struct design_request rq;
+	bool target = session_design_request(s, &rq) == 0;
+	verdict_at(pb, s->source.form, v, i, &s->analysis.ratings,
+	           target ? &rq : NULL, out);
+}

@@ -54,6 +54,7 @@ same4() {
 }
 
 count=0
+full=0
 for f in "$dir"/*.yaml; do
 	name=$(basename "$f")
 	count=$((count + 1))
@@ -87,9 +88,25 @@ for f in "$dir"/*.yaml; do
 	report $? "tidy of $name is idempotent"
 	grep -q -F -- "$line" "$tmp/t1.yaml"
 	report $? "tidy of $name keeps the top comment block"
+
+	# A sample with tolerances runs the worst case; with a target too, the
+	# design's worst case names a verdict for each standard value.
+	grep -q '^tolerances:' "$f" || continue
+	"$bl" tolerance --trials 200 "$f" >"$tmp/out" 2>"$tmp/err"
+	report $? "tolerance runs on $name"
+	grep -q 'ratings at worst' "$tmp/out"
+	report $? "tolerance of $name checks the ratings at worst"
+	grep -q '^target:' "$f" && grep -q '^ratings:' "$f" || continue
+	full=$((full + 1))
+	"$bl" design --worst-case "$f" >"$tmp/out" 2>"$tmp/err"
+	report $? "design --worst-case runs on $name"
+	grep -q '(nearest)' "$tmp/out" && grep -q 'at worst' "$tmp/out"
+	report $? "design --worst-case of $name marks the nearest and its worst case"
 done
 [ "$count" -ge 6 ]
 report $? "at least six samples ($count)"
+[ "$full" -ge 2 ]
+report $? "at least two samples carry tolerances, ratings and a target ($full)"
 
 # The order sample: the session's own order diverges, the other converges.
 f="$dir/projection-order-matters.yaml"
