@@ -34,13 +34,15 @@ struct cli_sets {
 	const char *text[CLI_MAX_SETS];
 };
 
-/* The line of --help that describes --set. */
+/* The lines of --help that describe --set (a printf format: % is %%). */
 #define CLI_SET_HELP \
 	"      --set KEY=VALUE  change one value after loading FILE (repeat it\n" \
 	"                       for more): vs, rs, is, rp, a device key,\n" \
 	"                       source.network.PART, target.KEY, ratings.KEY,\n" \
-	"                       solver.KEY; the value may carry an SI prefix\n" \
-	"                       and unit (rs=4.7k, vs=\"27 V\")\n"
+	"                       solver.KEY or tolerances.PARAMETER; the value\n" \
+	"                       may carry an SI prefix and unit (rs=4.7k,\n" \
+	"                       vs=\"27 V\", tolerances.rs=5%%); none removes\n" \
+	"                       a target, rating or tolerance\n"
 
 /*
  * Add --set ARG to SETS after checking its form (KEY=VALUE); prints and

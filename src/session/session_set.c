@@ -11,11 +11,13 @@
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
+#include <strings.h>
 
 #include "core/paramref.h"
 #include "session/section.h"
 #include "session/section_analysis.h"
 #include "session/section_network.h"
+#include "session/ytree.h"
 
 /* Copy the N bytes at P into BUF (LEN bytes) without the spaces around. */
 static size_t set_trim(const char *p, size_t n, char *buf, size_t len)
@@ -126,6 +128,12 @@ static int set_check_target(const struct session *s, const char *key,
 	return 0;
 }
 
+/* True when TEXT says "no value": none (any case). */
+static bool set_is_none(const char *text)
+{
+	return strcasecmp(text, "none") == 0;
+}
+
 /* Set a field of a section (target, ratings, solver) from TEXT. */
 static enum session_set_status set_section_field(struct session *s,
                                                  const char *key,
@@ -143,6 +151,15 @@ static enum session_set_status set_section_field(struct session *s,
 			                       sec->fields[j].key);
 		snprintf(err, errlen, "%s: unknown key (valid: %s)", key, keys);
 		return SESSION_SET_BAD_KEY;
+	}
+	if (set_is_none(text)) {
+		/* Only an optional number can be taken away. */
+		if (f->load != field_load_qty || sec == &section_solver) {
+			snprintf(err, errlen, "%s: cannot be none; give a value", key);
+			return SESSION_SET_BAD_VALUE;
+		}
+		*field_double(s, f) = NAN;
+		return SESSION_SET_OK;
 	}
 	struct session_error e;
 	memset(&e, 0, sizeof e);
@@ -321,11 +338,110 @@ static enum session_set_status set_param(struct session *s, const char *key,
 	return SESSION_SET_OK;
 }
 
+/* The prefix of a tolerance's key. */
+#define SET_TOL_PREFIX "tolerances."
+
+/* Remove the tolerance on PARAM from S; returns whether there was one. */
+static bool set_tol_remove(struct session *s, const char *param)
+{
+	struct session_analysis *a = &s->analysis;
+	for (size_t k = 0; k < a->ntol; k++)
+		if (strcmp(a->tol[k].key, param) == 0) {
+			memmove(&a->tol[k], &a->tol[k + 1],
+			        (a->ntol - k - 1) * sizeof a->tol[0]);
+			a->ntol--;
+			return true;
+		}
+	return false;
+}
+
+/*
+ * Set the tolerance on the parameter of KEY ("tolerances.rs") from TEXT,
+ * written as in the file ("5%", "0.5", "{min: 22, max: 26}",
+ * "{plus_minus: 5%, distribution: normal}"), or remove it with "none".
+ * The text goes through the file's own parser as a one-line document.
+ */
+static enum session_set_status set_tolerance(struct session *s,
+                                             const char *key,
+                                             const char *text, char *err,
+                                             size_t errlen)
+{
+	const char *param = key + strlen(SET_TOL_PREFIX);
+	if (set_is_none(text)) {
+		set_tol_remove(s, param);
+		return SESSION_SET_OK;
+	}
+	/* "KEY": TEXT with the key quoted (a part's name may hold anything). */
+	char doc[512];
+	size_t at = 0;
+	doc[at++] = '"';
+	for (const char *p = param; *p != '\0' && at + 4 < sizeof doc; p++) {
+		if (*p == '"' || *p == '\\')
+			doc[at++] = '\\';
+		doc[at++] = *p;
+	}
+	int w = snprintf(doc + at, sizeof doc - at, "\": %s\n", text);
+	if (w < 0 || (size_t)w >= sizeof doc - at || strchr(text, '\n') != NULL) {
+		snprintf(err, errlen, "%s: the value is too long or spans lines", key);
+		return SESSION_SET_BAD_VALUE;
+	}
+	struct session_error e;
+	memset(&e, 0, sizeof e);
+	struct ytree *t = NULL;
+	if (ytree_parse("", doc, strlen(doc), &t, &e) != SESSION_OK) {
+		snprintf(err, errlen, "%s: '%s' is not a tolerance (5%%, an amount, "
+		         "or {min: A, max: B})", key, text);
+		return SESSION_SET_BAD_VALUE;
+	}
+	/* Load the one entry alone, then merge it into the session's list. */
+	struct session_analysis keep = s->analysis;
+	struct load_ctx c = { .name = "", .err = &e, .s = s };
+	int rc = section_tolerances.load(&c, &section_tolerances, NULL, t->root,
+	                                 "tolerances");
+	ytree_destroy(t);
+	struct session_tolerance got = s->analysis.tol[0];
+	s->analysis = keep;
+	if (rc != 0) {
+		set_message(&e, err, errlen);
+		return e.key[0] != '\0' && strcmp(e.key, key) == 0 &&
+		               strstr(e.message, "unknown parameter") != NULL
+		           ? SESSION_SET_BAD_KEY
+		           : SESSION_SET_BAD_VALUE;
+	}
+	bool had = false;
+	for (size_t k = 0; k < s->analysis.ntol; k++)
+		if (strcmp(s->analysis.tol[k].key, param) == 0) {
+			s->analysis.tol[k] = got;
+			had = true;
+		}
+	if (!had) {
+		if (s->analysis.ntol >= TOL_MAX_ITEMS) {
+			snprintf(err, errlen, "%s: at most %d tolerances", key,
+			         TOL_MAX_ITEMS);
+			return SESSION_SET_BAD_VALUE;
+		}
+		s->analysis.tol[s->analysis.ntol++] = got;
+	}
+	/* The range must fit the parameter's own (as the commands check). */
+	struct problem pb;
+	struct tol_case tc;
+	char why[600];
+	if (session_problem(s, &pb, why, sizeof why) == 0 &&
+	    session_tolerance_case(s, &pb, &tc, why, sizeof why) != 0) {
+		s->analysis = keep;
+		snprintf(err, errlen, "%s", why);
+		return SESSION_SET_BAD_VALUE;
+	}
+	return SESSION_SET_OK;
+}
+
 /* Set KEY from TEXT. */
 enum session_set_status session_set_text(struct session *s, const char *key,
                                          const char *value, char *err,
                                          size_t errlen)
 {
+	if (strncmp(key, SET_TOL_PREFIX, strlen(SET_TOL_PREFIX)) == 0)
+		return set_tolerance(s, key, value, err, errlen);
 	const struct session_section *sec;
 	const struct session_field *f = set_field(key, &sec);
 	if (sec != NULL)

@@ -13,7 +13,12 @@
  *                           (a new current, voltage or power target
  *                           replaces the old one)
  *   ratings.<key>           device_max_power, resistor_power, ...
- *   conditions.<key>, solver.<key>  their numeric keys
+ *   solver.<key>            method, order, tolerance, ...
+ *   tolerances.<parameter>  a tolerance written as in the file: "5%", an
+ *                           amount, "{min: 22, max: 26}",
+ *                           "{plus_minus: 5%, distribution: normal}"
+ * The value "none" takes an optional target or rating number away, or
+ * removes a tolerance.
  * These are the keys of `sweep --param` and of the tolerances section,
  * and the dotted paths of the session file's own sections.
  *

@@ -111,6 +111,32 @@ expect_exit 65 "$bl" solve --set target.current_min=20m --set \
 	target.current_max=10m "$tmp/led.yaml"
 expect_text "$tmp/err" "target.current_max"
 
+# Tolerances by key, written as in the file; none takes one away.
+expect_exit 0 "$bl" tolerance -n 0 --set tolerances.rs=1% "$tmp/led.yaml"
+expect_text "$tmp/out" "2.178 kohm"
+expect_exit 0 "$bl" tolerance -n 0 --set tolerances.rs=none "$tmp/led.yaml"
+expect_text "$tmp/out" "worst case (2 corners)"
+expect_exit 0 "$bl" tolerance -n 0 --set \
+	"tolerances.saturation_current={plus_minus: 30%, distribution: normal}" \
+	"$tmp/led.yaml"
+expect_text "$tmp/out" "worst case (8 corners)"
+expect_exit 0 "$bl" design --worst-case --set "tolerances.vs={min: 22, max: 26}" \
+	--set tolerances.rs=none "$tmp/notol.yaml"
+expect_text "$tmp/out" "at worst"
+expect_exit 64 "$bl" tolerance --set tolerances.gain=5% "$tmp/led.yaml"
+expect_text "$tmp/err" "tolerances.gain"
+expect_exit 65 "$bl" tolerance --set tolerances.rs=150% "$tmp/led.yaml"
+expect_text "$tmp/err" "tolerances.rs"
+expect_exit 65 "$bl" tolerance --set "tolerances.rs=5 V" "$tmp/led.yaml"
+expect_text "$tmp/err" "is a voltage, expected a resistance"
+expect_exit 65 "$bl" tolerance --set "tolerances.vs={min: 26, max: 22}" \
+	"$tmp/led.yaml"
+expect_text "$tmp/err" "tolerances.vs.max"
+expect_exit 0 "$bl" design --set target.current=none --current 9m "$tmp/led.yaml"
+expect_exit 64 "$bl" design --set target.current=none "$tmp/led.yaml"
+expect_text "$tmp/err" "no target"
+expect_exit 65 "$bl" solve --set solver.method=none "$tmp/led.yaml"
+
 # Every analysis command takes --set, and refuses a bad one the same way.
 expect_exit 0 "$bl" design --set rs=1k -f csv "$tmp/led.yaml"
 expect_exit 0 "$bl" sweep --set vs=27 --param rs --from 1k --to 2k \
