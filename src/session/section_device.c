@@ -5,24 +5,17 @@
  * A model with named presets also takes preset:, applied before the keys.
  * The measured model has no parameters but a table: points:, a list of
  * [V, I] pairs (see device_load_points), or points_file:, a two-column
- * V,I text file beside the session (see device_load_points_file).
+ * V,I text file beside the session (points_file.h).
  */
 #include <ctype.h>
-#include <errno.h>
-#include <fcntl.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
-#include <sys/stat.h>
-#include <unistd.h>
-
 #include "core/models/models.h"
+#include "session/points_file.h"
 #include "session/section.h"
-
-/* Largest points file read: 4096 rows of two long numbers fit easily. */
-#define POINTS_FILE_MAX_BYTES (1u << 20)
 
 /* True when TYPE is drawn from a table of points (device.curve). */
 static bool device_has_points(const struct model_type *type)
@@ -241,118 +234,10 @@ static int device_points_path(const char *name, const char *rel, char *buf,
 }
 
 /*
- * Read the regular file PATH (at most POINTS_FILE_MAX_BYTES) into a new
- * NUL-terminated buffer, or NULL with the reason (without the path) in WHY.
- */
-static char *device_read_points_file(const char *path, char *why, size_t n)
-{
-	/* non-blocking open: a FIFO without a writer must not hang us */
-	int fd = open(path, O_RDONLY | O_NOCTTY | O_NONBLOCK);
-	if (fd < 0) {
-		snprintf(why, n, "cannot open the file: %s", strerror(errno));
-		return NULL;
-	}
-	struct stat st;
-	if (fstat(fd, &st) != 0) {
-		snprintf(why, n, "cannot read the file: %s", strerror(errno));
-		close(fd);
-		return NULL;
-	}
-	if (!S_ISREG(st.st_mode) ||
-	    (unsigned long long)st.st_size > POINTS_FILE_MAX_BYTES) {
-		snprintf(why, n, "cannot read the file: %s",
-		         !S_ISREG(st.st_mode) ? "not a regular file"
-		                              : "larger than 1 MiB");
-		close(fd);
-		return NULL;
-	}
-	size_t cap = (size_t)st.st_size + 1;
-	char *buf = malloc(cap + 1);
-	if (buf == NULL) {
-		close(fd);
-		snprintf(why, n, "out of memory");
-		return NULL;
-	}
-	size_t len = 0;
-	for (;;) {
-		ssize_t r = read(fd, buf + len, cap - len);
-		if (r < 0 && errno == EINTR)
-			continue;
-		if (r < 0) {
-			snprintf(why, n, "cannot read the file: %s", strerror(errno));
-			close(fd);
-			free(buf);
-			return NULL;
-		}
-		if (r == 0)
-			break;
-		len += (size_t)r;
-		if (len == cap) {
-			snprintf(why, n, "cannot read the file: it changed size while "
-			         "being read");
-			close(fd);
-			free(buf);
-			return NULL;
-		}
-	}
-	close(fd);
-	if (memchr(buf, '\0', len) != NULL) {
-		snprintf(why, n, "cannot read the file: it holds a NUL byte, "
-		         "expected text");
-		free(buf);
-		return NULL;
-	}
-	buf[len] = '\0';
-	return buf;
-}
-
-/* Trim blanks from both ends of the N bytes at *P; returns the new length. */
-static size_t device_trim(const char **p, size_t n)
-{
-	while (n > 0 && isspace((unsigned char)**p)) {
-		(*p)++;
-		n--;
-	}
-	while (n > 0 && isspace((unsigned char)(*p)[n - 1]))
-		n--;
-	return n;
-}
-
-/*
- * Parse one field (N bytes at P) of a points file as a quantity of KIND
- * into *OUT; 0, or -1 with the reason in WHY.
- */
-static int device_points_field(const char *p, size_t n, enum qty_kind kind,
-                               double *out, char *why, size_t whylen)
-{
-	char field[64];
-	n = device_trim(&p, n);
-	if (n == 0 || n >= sizeof field) {
-		snprintf(why, whylen, "found %s, expected a %s",
-		         n == 0 ? "nothing" : "a field of over 63 characters",
-		         kind == QTY_VOLTAGE ? "voltage" : "current");
-		return -1;
-	}
-	memcpy(field, p, n);
-	field[n] = '\0';
-	char msg[160] = "";
-	if (qty_parse(field, kind, out, msg, sizeof msg) != QTY_OK ||
-	    !isfinite(*out)) {
-		if (msg[0] != '\0')
-			snprintf(why, whylen, "%s", msg);
-		else
-			snprintf(why, whylen, "found \"%s\", expected a finite %s", field,
-			         kind == QTY_VOLTAGE ? "voltage" : "current");
-		return -1;
-	}
-	return 0;
-}
-
-/*
- * Load points_file: V, a file of "V,I" lines beside the session (blank
- * lines and lines starting with '#' skipped, one header line allowed
- * before the first row), into the session's table.  Errors name the
- * points file, its line and the row.
+ * Load points_file: V, a table of V,I rows beside the session (the format
+ * of points_file.h: comma, semicolon or tab separated, '#' comments, a
+ * header with names and units), into the session's table.  Errors name
+ * the points file, its line and column, and the row.
  */
 static int device_load_points_file(struct load_ctx *c, const struct ynode *v,
                                    const char *path)
@@ -366,86 +251,37 @@ static int device_load_points_file(struct load_ctx *c, const struct ynode *v,
 		            sizeof file - 1);
 		return -1;
 	}
-	char *text = device_read_points_file(file, why, sizeof why);
-	if (text == NULL) {
-		ytree_error(c->err, c->name, v, path, "%s: %s", file, why);
+	static const struct points_spec spec = {
+		.ncols = 2,
+		.role = { POINTS_VOLTAGE, POINTS_CURRENT },
+		.max_rows = CURVE_MAX_POINTS,
+	};
+	struct points_table t;
+	enum session_status st = points_file_read(file, path, &spec, &t, c->err);
+	if (st == SESSION_NO_INPUT) {
+		/* a file that cannot be read is the session's error, at its key */
+		char msg[sizeof c->err->message];
+		memcpy(msg, c->err->message, sizeof msg);
+		ytree_error(c->err, c->name, v, path, "%s: %s", file, msg);
 		return -1;
 	}
-	double *vs = malloc(2 * CURVE_MAX_POINTS * sizeof *vs);
-	unsigned *lines = malloc(CURVE_MAX_POINTS * sizeof *lines);
-	if (vs == NULL || lines == NULL) {
-		free(vs);
-		free(lines);
-		free(text);
-		ytree_error(c->err, c->name, v, path, "out of memory");
+	if (st != SESSION_OK)
 		return -1;
-	}
-	double *is = vs + CURVE_MAX_POINTS;
-	size_t n = 0;
-	unsigned line = 0;
-	bool header_ok = true;
 	int rc = 0;
-	for (const char *p = text; *p != '\0' && rc == 0;) {
-		size_t len = strcspn(p, "\n");
-		const char *row = p;
-		p += len;
-		if (*p == '\n')
-			p++;
-		line++;
-		size_t rl = device_trim(&row, len);
-		if (rl == 0 || row[0] == '#')
-			continue;
-		const char *comma = memchr(row, ',', rl);
-		bool numeric = isdigit((unsigned char)row[0]) || row[0] == '-' ||
-		               row[0] == '+' || row[0] == '.';
-		if (header_ok && !numeric) {
-			header_ok = false; /* the header line: column names */
-			continue;
-		}
-		header_ok = false;
-		if (comma == NULL || memchr(comma + 1, ',', rl - (size_t)(comma - row) - 1)) {
-			ytree_error_at(c->err, file, line, 1, path,
-			               "row %zu: expected two columns V,I", n + 1);
-			rc = -1;
-			break;
-		}
-		if (n == CURVE_MAX_POINTS) {
-			ytree_error_at(c->err, file, line, 1, path,
-			               "found more than %d points, expected at most %d",
-			               CURVE_MAX_POINTS, CURVE_MAX_POINTS);
-			rc = -1;
-			break;
-		}
-		size_t vl = (size_t)(comma - row);
-		if (device_points_field(row, vl, QTY_VOLTAGE, &vs[n], why,
-		                        sizeof why) != 0) {
-			ytree_error_at(c->err, file, line, 1, path, "row %zu: %s", n + 1,
-			               why);
-			rc = -1;
-			break;
-		}
-		if (device_points_field(comma + 1, rl - vl - 1, QTY_CURRENT, &is[n],
-		                        why, sizeof why) != 0) {
-			ytree_error_at(c->err, file, line, (unsigned)(comma - row) + 2,
-			               path, "row %zu: %s", n + 1, why);
-			rc = -1;
-			break;
-		}
-		lines[n++] = line;
-	}
-	if (rc == 0 && n < 2) {
+	if (t.n < 2) {
 		ytree_error(c->err, c->name, v, path,
 		            "%s holds %zu point%s, expected at least 2 V,I rows", file,
-		            n, n == 1 ? "" : "s");
+		            t.n, t.n == 1 ? "" : "s");
 		rc = -1;
 	}
+	const double *vs = t.col[0], *is = t.col[1];
 	if (rc == 0 &&
-	    session_set_curve(c->s, vs, is, n, why, sizeof why) != 0) {
+	    session_set_curve(c->s, vs, is, t.n, why, sizeof why) != 0) {
 		/* the core names the row; find it again for its line */
 		unsigned at = 0;
-		for (size_t k = 1; k < n && at == 0; k++)
+		for (size_t k = 1; k < t.n && at == 0; k++)
 			if (!(vs[k] > vs[k - 1]) || !(is[k] > is[k - 1]))
-				at = lines[k];
+				at = t.line[k];
 		const char *msg = why;
 		if (strncmp(msg, "points: ", 8) == 0)
 			msg += 8;
@@ -455,9 +291,7 @@ static int device_load_points_file(struct load_ctx *c, const struct ynode *v,
 			ytree_error(c->err, c->name, v, path, "%s", msg);
 		rc = -1;
 	}
-	free(lines);
-	free(vs);
-	free(text);
+	points_table_fini(&t);
 	return rc;
 }
 
