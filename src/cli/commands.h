@@ -16,6 +16,7 @@ int cmd_reduce(int argc, char **argv);
 int cmd_design(int argc, char **argv);
 int cmd_sweep(int argc, char **argv);
 int cmd_tolerance(int argc, char **argv);
+int cmd_fit(int argc, char **argv);
 /* The terminal front end: biasline [options] [FILE]. */
 int cmd_tui(int argc, char **argv);
 

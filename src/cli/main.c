@@ -25,6 +25,7 @@ static const struct command commands[] = {
 	{ "design", cmd_design, "choose RS (or VS) for a target current, voltage or power" },
 	{ "sweep", cmd_sweep, "solve along a sweep of one parameter" },
 	{ "tolerance", cmd_tolerance, "worst case and Monte Carlo over the tolerances" },
+	{ "fit", cmd_fit, "fit a device model's parameters to measured points" },
 };
 
 /* Print the program's usage to OUT. */

@@ -1,0 +1,694 @@
+/*
+ * cmd_fit.c - `biasline fit --model MODEL --points FILE [SESSION]`: fit a
+ * device model's parameters to measured points and print them with their
+ * standard errors, correlations and every point's residual, as text, CSV
+ * or a device section ready to paste into a session.
+ *
+ * The points come from a points file (session/points_file.h: the same
+ * reader as the measured model's points_file:) or, without --points, from
+ * SESSION's own measured points.  SESSION also gives the values the fit
+ * holds (a transistor's current gain, a thermistor's dissipation
+ * constant) when its device is of the model fitted.
+ */
+#include <getopt.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "biasline_version.h"
+#include "cli_analysis.h"
+#include "commands.h"
+#include "core/fit.h"
+#include "core/models/models.h"
+#include "session/points_file.h"
+
+/* Output formats. */
+enum fit_format { FIT_TEXT, FIT_CSV, FIT_YAML };
+
+#define FIT_MAX_FIX 16
+
+/* What the command line asked for. */
+struct fit_args {
+	const char *model, *points, *session;
+	const char *fix[FIT_MAX_FIX];
+	size_t nfix;
+	enum fit_weight weight;
+	enum fit_format format;
+	bool residuals;
+};
+
+/* Print the usage of `fit` to OUT. */
+static void fit_usage(FILE *out)
+{
+	char models[200];
+	fit_model_list(models, sizeof models);
+	fprintf(out,
+	        "Usage: biasline fit --model MODEL --points FILE [OPTIONS] [SESSION]\n"
+	        "\n"
+	        "Fit a device model's parameters to measured points by least\n"
+	        "squares (Levenberg-Marquardt) and print each parameter with its\n"
+	        "standard error, their correlations, every point's residual, the\n"
+	        "RMS error and the degrees of freedom.  The points are (V, I) in\n"
+	        "the device's passive sign convention (a zener's breakdown points\n"
+	        "are negative), optionally with a third column T in degC (points\n"
+	        "at two or more temperatures also fit the diode's bandgap); for\n"
+	        "the thermistors they are (T, R).\n"
+	        "\n"
+	        "Models: %s.\n"
+	        "\n"
+	        "FILE: one point a line, separated by commas, semicolons or tabs;\n"
+	        "'#' starts a comment; an optional header names the columns and\n"
+	        "their units, e.g. \"V (V), I (mA)\".  SESSION, when given, holds\n"
+	        "the values the fit does not fit (its device's, when the model is\n"
+	        "the same); without --points its measured points are fitted.\n"
+	        "\n"
+	        "Options:\n"
+	        "  -m, --model MODEL     the model to fit (default: SESSION's)\n"
+	        "  -p, --points FILE     the points file\n"
+	        "  -x, --fix KEY=VALUE   hold parameter KEY at VALUE (repeatable),\n"
+	        "                        e.g. --fix series_resistance=0\n"
+	        "  -w, --weight W        relative (default: residuals in ln I, or\n"
+	        "                        ln R; each point by its relative error) or\n"
+	        "                        absolute (residuals in A, or ohm)\n"
+	        "  -f, --format FMT      text (default), csv (the parameters: key,\n"
+	        "                        value, standard error, unit, role and a\n"
+	        "                        correlation column per fitted key) or\n"
+	        "                        yaml (a device: section ready to use)\n"
+	        "  -r, --residuals       with --format csv: the points with their\n"
+	        "                        fitted values and residuals instead\n"
+	        "  -h, --help            show this help and exit\n"
+	        "  -V, --version         show the version and exit\n"
+	        "\n"
+	        "Exit status: 0 fitted; 64 bad usage; 65 bad points or session, or\n"
+	        "a fit the points cannot support (the message says which parameter\n"
+	        "to hold); 66 a file cannot be read; 74 output cannot be written.\n",
+	        models);
+}
+
+/* Parse the command line into A; returns -1 to exit with *CODE. */
+static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
+{
+	static const struct option opts[] = {
+		{ "model", required_argument, NULL, 'm' },
+		{ "points", required_argument, NULL, 'p' },
+		{ "fix", required_argument, NULL, 'x' },
+		{ "weight", required_argument, NULL, 'w' },
+		{ "format", required_argument, NULL, 'f' },
+		{ "residuals", no_argument, NULL, 'r' },
+		{ "help", no_argument, NULL, 'h' },
+		{ "version", no_argument, NULL, 'V' },
+		{ NULL, 0, NULL, 0 },
+	};
+	memset(a, 0, sizeof *a);
+	optind = 1;
+	opterr = 0;
+	*code = EXIT_USAGE;
+	int c;
+	while ((c = getopt_long(argc, argv, ":m:p:x:w:f:rhV", opts, NULL)) != -1) {
+		switch (c) {
+		case 'm':
+			a->model = optarg;
+			break;
+		case 'p':
+			a->points = optarg;
+			break;
+		case 'x':
+			if (a->nfix == FIT_MAX_FIX) {
+				fprintf(stderr, "biasline fit: at most %d --fix options\n",
+				        FIT_MAX_FIX);
+				return -1;
+			}
+			a->fix[a->nfix++] = optarg;
+			break;
+		case 'w':
+			if (strcmp(optarg, "relative") == 0) {
+				a->weight = FIT_WEIGHT_RELATIVE;
+			} else if (strcmp(optarg, "absolute") == 0) {
+				a->weight = FIT_WEIGHT_ABSOLUTE;
+			} else {
+				fprintf(stderr, "biasline fit: --weight: '%s' is not "
+				        "relative or absolute\n", optarg);
+				return -1;
+			}
+			break;
+		case 'f':
+			if (strcmp(optarg, "text") == 0) {
+				a->format = FIT_TEXT;
+			} else if (strcmp(optarg, "csv") == 0) {
+				a->format = FIT_CSV;
+			} else if (strcmp(optarg, "yaml") == 0) {
+				a->format = FIT_YAML;
+			} else {
+				fprintf(stderr, "biasline fit: --format: '%s' is not text, "
+				        "csv or yaml\n", optarg);
+				return -1;
+			}
+			break;
+		case 'r':
+			a->residuals = true;
+			break;
+		case 'h':
+			fit_usage(stdout);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case 'V':
+			printf("biasline %s\n", BIASLINE_VERSION);
+			*code = EXIT_OK_CODE;
+			return -1;
+		case ':':
+			fprintf(stderr, "biasline fit: option '%s' needs a value\n",
+			        argv[optind - 1]);
+			return -1;
+		default:
+			fprintf(stderr, "biasline fit: unknown option '%s' (try --help)\n",
+			        argv[optind - 1]);
+			return -1;
+		}
+	}
+	if (optind < argc - 1) {
+		fprintf(stderr, "biasline fit: expected at most one SESSION (try "
+		        "--help)\n");
+		return -1;
+	}
+	if (optind == argc - 1)
+		a->session = argv[optind];
+	if (a->model == NULL && a->session == NULL) {
+		fprintf(stderr, "biasline fit: --model is required without a "
+		        "SESSION (try --help)\n");
+		return -1;
+	}
+	if (a->points == NULL && a->session == NULL) {
+		fprintf(stderr, "biasline fit: --points is required without a "
+		        "SESSION (try --help)\n");
+		return -1;
+	}
+	if (a->residuals && a->format != FIT_CSV) {
+		fprintf(stderr, "biasline fit: --residuals goes with --format csv "
+		        "(text shows both)\n");
+		return -1;
+	}
+	*code = EXIT_OK_CODE;
+	return 0;
+}
+
+/* The points fitted, whichever source they came from. */
+struct fit_input {
+	const char *source;           /* file name for messages */
+	struct points_table table;    /* when read from a file */
+	size_t n;
+	const double *x, *y, *t;
+	const unsigned *line;         /* file line of each row, or NULL */
+};
+
+/* Read the points of FILE for TYPE's axes into IN; returns 0 or the exit
+ * status after printing why. */
+static int fit_read_points(const char *file, const struct model_type *type,
+                           struct fit_input *in)
+{
+	struct points_spec spec = { .ncols = 3, .max_rows = FIT_MAX_POINTS };
+	if (fit_model_axes(type) == FIT_AXES_TR) {
+		spec.ncols = 2;
+		spec.role[0] = POINTS_TEMPERATURE;
+		spec.role[1] = POINTS_RESISTANCE;
+	} else {
+		spec.role[0] = POINTS_VOLTAGE;
+		spec.role[1] = POINTS_CURRENT;
+		spec.role[2] = POINTS_TEMPERATURE;
+		spec.optional[2] = true;
+	}
+	struct session_error err;
+	enum session_status st = points_file_read(file, "", &spec, &in->table, &err);
+	if (st != SESSION_OK) {
+		char msg[1024];
+		session_error_format(&err, msg, sizeof msg);
+		fprintf(stderr, "biasline fit: %s\n", msg);
+		return st == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+	}
+	if (in->table.n == 0) {
+		fprintf(stderr, "biasline fit: %s: no points (only blank lines, "
+		        "comments or a header)\n", file);
+		points_table_fini(&in->table);
+		return EXIT_DATA;
+	}
+	in->source = file;
+	in->n = in->table.n;
+	in->x = in->table.col[0];
+	in->y = in->table.col[1];
+	in->t = spec.ncols == 3 && in->table.present[2] ? in->table.col[2] : NULL;
+	in->line = in->table.line;
+	return 0;
+}
+
+/* Apply one --fix KEY=VALUE to RQ; returns 0 or prints and returns -1. */
+static int fit_apply_fix(const char *arg, struct fit_request *rq)
+{
+	const char *eq = strchr(arg, '=');
+	char key[64];
+	if (eq == NULL || eq == arg || (size_t)(eq - arg) >= sizeof key) {
+		fprintf(stderr, "biasline fit: --fix: '%s' is not KEY=VALUE\n", arg);
+		return -1;
+	}
+	memcpy(key, arg, (size_t)(eq - arg));
+	key[eq - arg] = '\0';
+	int i = model_param_index(rq->type, key);
+	if (i < 0) {
+		fprintf(stderr, "biasline fit: --fix: the %s model has no key '%s'; "
+		        "its keys:", rq->type->name, key);
+		for (size_t k = 0; k < rq->type->nparams; k++)
+			fprintf(stderr, "%s %s", k ? "," : "", rq->type->params[k].key);
+		fprintf(stderr, "\n");
+		return -1;
+	}
+	const struct model_param *mp = &rq->type->params[i];
+	double v;
+	char why[200] = "";
+	if (qty_parse(eq + 1, mp->kind, &v, why, sizeof why) != QTY_OK ||
+	    model_param_check(mp, v, why, sizeof why) != 0) {
+		fprintf(stderr, "biasline fit: --fix %s: %s\n", key,
+		        why[0] ? why : "not a number");
+		return -1;
+	}
+	rq->p[i] = v;
+	rq->fixed[i] = true;
+	return 0;
+}
+
+/* Significant digits that show VALUE to well inside its standard error. */
+static int fit_digits(double value, double se)
+{
+	if (!(se > 0.0) || !isfinite(se) || value == 0.0)
+		return 6;
+	int d = (int)ceil(log10(fabs(value) / se)) + 2;
+	return d < 3 ? 3 : d > 12 ? 12 : d;
+}
+
+/* The kinds of the points' x and y. */
+static enum qty_kind fit_xkind(const struct model_type *t)
+{
+	return fit_model_axes(t) == FIT_AXES_TR ? QTY_TEMPERATURE : QTY_VOLTAGE;
+}
+static enum qty_kind fit_ykind(const struct model_type *t)
+{
+	return fit_model_axes(t) == FIT_AXES_TR ? QTY_RESISTANCE : QTY_CURRENT;
+}
+
+/* Whether to list parameter I of RES beyond the fitted ones: held by the
+ * user, chosen by the fit, or a value different from the default. */
+static bool fit_shows(const struct fit_result *res, const bool *fixed, size_t i)
+{
+	const struct model_param *mp = &res->type->params[i];
+	for (size_t j = 0; j < res->nfree; j++)
+		if ((size_t)res->idx[j] == i)
+			return false;
+	if (fixed[i] || res->held_by_fit[i])
+		return true;
+	double v = res->p[i], d = mp->def;
+	return isfinite(v) && !(v == d);
+}
+
+/* "relative weighting (residuals in ln I)" for RES. */
+static const char *fit_weight_text(const struct fit_result *res)
+{
+	bool tr = fit_model_axes(res->type) == FIT_AXES_TR;
+	if (res->weight == FIT_WEIGHT_RELATIVE)
+		return tr ? "relative weighting (residuals in ln R)"
+		          : "relative weighting (residuals in ln I)";
+	return tr ? "absolute weighting (residuals in ohm)"
+	          : "absolute weighting (residuals in A)";
+}
+
+/* The RMS error and residual scale of RES as text. */
+static void fit_rms_text(const struct fit_result *res, char *buf, size_t n)
+{
+	char a[48], b[48];
+	if (res->weight == FIT_WEIGHT_RELATIVE) {
+		snprintf(a, sizeof a, "%.3g %%", 100.0 * res->rms);
+		snprintf(b, sizeof b, "%.3g %%", 100.0 * res->sigma);
+	} else {
+		cli_fmt(a, sizeof a, res->rms, fit_ykind(res->type), 3);
+		cli_fmt(b, sizeof b, res->sigma, fit_ykind(res->type), 3);
+	}
+	if (res->dof > 0)
+		snprintf(buf, n, "RMS error %s, residual scale s = %s", a, b);
+	else
+		snprintf(buf, n, "RMS error %s", a);
+}
+
+/* Print RES as text. */
+static void fit_print_text(const struct fit_result *res,
+                           const struct fit_input *in, const bool *fixed)
+{
+	const struct model_type *t = res->type;
+	printf("%s fitted to %zu point%s of %s, %s\n\n", t->name, res->n,
+	       res->n == 1 ? "" : "s", in->source, fit_weight_text(res));
+	printf("  %-24s %-16s %s\n", "parameter", "value", "standard error");
+	for (size_t j = 0; j < res->nfree; j++) {
+		const struct model_param *mp = &t->params[res->idx[j]];
+		double v = res->p[res->idx[j]], se = res->se[j];
+		char a[48], b[48], rel[32] = "";
+		cli_fmt(a, sizeof a, v, mp->kind, fit_digits(v, se));
+		if (isfinite(se)) {
+			cli_fmt(b, sizeof b, se, mp->kind, 2);
+			if (v != 0.0)
+				snprintf(rel, sizeof rel, " (%.2g %%)", 100.0 * se / fabs(v));
+		} else {
+			snprintf(b, sizeof b, "-");
+		}
+		printf("  %-24s %-16s %s%s\n", mp->key, a, b, rel);
+	}
+	bool any = false;
+	for (size_t i = 0; i < t->nparams; i++) {
+		if (!fit_shows(res, fixed, i))
+			continue;
+		char a[48];
+		cli_fmt(a, sizeof a, res->p[i], t->params[i].kind, 6);
+		printf("%s%s = %s%s", any ? ", " : "  held: ", t->params[i].key, a,
+		       res->held_by_fit[i] ? (fit_model_axes(t) == FIT_AXES_VI &&
+		                              strcmp(t->params[i].key, "temperature") == 0
+		                              ? " (the points')" : " (chosen by the fit)")
+		                           : "");
+		any = true;
+	}
+	if (any)
+		printf("\n");
+	if (res->nfree > 1 && res->dof > 0) {
+		printf("\n  correlation\n");
+		for (size_t i = 0; i < res->nfree; i++) {
+			printf("  %-24s", t->params[res->idx[i]].key);
+			for (size_t j = 0; j <= i; j++)
+				printf(" %7.4f", res->corr[i][j]);
+			printf("\n");
+		}
+	}
+	enum qty_kind xk = fit_xkind(t), yk = fit_ykind(t);
+	bool tr = fit_model_axes(t) == FIT_AXES_TR;
+	bool temps = in->t != NULL;
+	printf("\n  %4s %5s  %-11s %s%-13s %-13s %-12s %s\n", "row", "line",
+	       tr ? "T" : "V", temps ? "T          " : "",
+	       tr ? "R measured" : "I measured", tr ? "R fitted" : "I fitted",
+	       "residual", "relative");
+	for (size_t k = 0; k < res->n; k++) {
+		const struct fit_point *fp = &res->points[k];
+		char x[48], tt[48] = "", y[48], f[48], r[48];
+		cli_fmt(x, sizeof x, fp->x, xk, 5);
+		if (temps) {
+			char t4[40];
+			cli_fmt(t4, sizeof t4, fp->t, QTY_TEMPERATURE, 4);
+			snprintf(tt, sizeof tt, "%-10s", t4);
+		}
+		cli_fmt(y, sizeof y, fp->y, yk, 5);
+		cli_fmt(f, sizeof f, fp->fitted, yk, 5);
+		cli_fmt(r, sizeof r, fp->resid_abs, yk, 3);
+		char ln[16] = "-";
+		if (in->line != NULL)
+			snprintf(ln, sizeof ln, "%u", in->line[k]);
+		printf("  %4zu %5s  %-11s %s%s%-13s %-13s %-12s %+.3g %%\n", k + 1, ln,
+		       x, tt, temps ? " " : "", y, f, r, 100.0 * fp->resid_rel);
+	}
+	char rms[300];
+	fit_rms_text(res, rms, sizeof rms);
+	printf("\n  N = %zu points, %zu free parameter%s, %d degree%s of "
+	       "freedom\n  %s\n", res->n, res->nfree, res->nfree == 1 ? "" : "s",
+	       res->dof, res->dof == 1 ? "" : "s", rms);
+	if (res->dof > 0)
+		printf("  (s: the root of the sum of squares over the degrees of "
+		       "freedom; it scales\n  the standard errors)\n");
+	if (res->dof == 0)
+		printf("  note: no degrees of freedom: the curve passes through every "
+		       "point, so the\n  standard errors are unknown; add points or "
+		       "hold a parameter (--fix)\n");
+	for (size_t i = 0; i < res->nfree; i++)
+		for (size_t j = 0; j < i; j++)
+			if (res->dof > 0 && fabs(res->corr[i][j]) > 0.999)
+				printf("  note: %s and %s are correlated at %.5f: the points "
+				       "barely tell\n  them apart; points over a wider range "
+				       "would\n", t->params[res->idx[j]].key,
+				       t->params[res->idx[i]].key, res->corr[i][j]);
+}
+
+/* Write S as a CSV field (quoted when it holds a comma, quote or newline;
+ * RFC 4180). */
+static void fit_csv_field(const char *s)
+{
+	if (strpbrk(s, ",\"\r\n") == NULL) {
+		fputs(s, stdout);
+		return;
+	}
+	putchar('"');
+	for (; *s != '\0'; s++) {
+		if (*s == '"')
+			putchar('"');
+		putchar(*s);
+	}
+	putchar('"');
+}
+
+/* A number for CSV: the shortest text that reads back exactly, or empty. */
+static void fit_csv_number(double v)
+{
+	char b[48];
+	if (isfinite(v))
+		fputs(qty_format_exact(b, sizeof b, v), stdout);
+}
+
+/* Print the parameters of RES as one CSV table. */
+static void fit_print_csv(const struct fit_result *res, const bool *fixed)
+{
+	const struct model_type *t = res->type;
+	printf("key,value,standard_error,unit,role");
+	for (size_t j = 0; j < res->nfree; j++)
+		printf(",corr_%s", t->params[res->idx[j]].key);
+	printf("\n");
+	for (size_t j = 0; j < res->nfree; j++) {
+		const struct model_param *mp = &t->params[res->idx[j]];
+		fit_csv_field(mp->key);
+		putchar(',');
+		fit_csv_number(res->p[res->idx[j]]);
+		putchar(',');
+		fit_csv_number(res->se[j]);
+		printf(",%s,fitted", qty_unit_ascii(mp->kind));
+		for (size_t i = 0; i < res->nfree; i++) {
+			putchar(',');
+			fit_csv_number(res->dof > 0 ? res->corr[j][i] : NAN);
+		}
+		printf("\n");
+	}
+	for (size_t i = 0; i < t->nparams; i++) {
+		if (!fit_shows(res, fixed, i))
+			continue;
+		fit_csv_field(t->params[i].key);
+		putchar(',');
+		fit_csv_number(res->p[i]);
+		printf(",,%s,held", qty_unit_ascii(t->params[i].kind));
+		for (size_t j = 0; j < res->nfree; j++)
+			putchar(',');
+		printf("\n");
+	}
+}
+
+/* Print the points of RES with their residuals as one CSV table. */
+static void fit_print_residuals(const struct fit_result *res,
+                                const struct fit_input *in)
+{
+	bool tr = fit_model_axes(res->type) == FIT_AXES_TR;
+	printf("row,line,%s%s,%s,%s,residual_%s,relative_residual\n",
+	       tr ? "temperature_degC" : "voltage_V",
+	       in->t != NULL ? ",temperature_degC" : "",
+	       tr ? "resistance_ohm" : "current_A",
+	       tr ? "fitted_ohm" : "fitted_A", tr ? "ohm" : "A");
+	for (size_t k = 0; k < res->n; k++) {
+		const struct fit_point *fp = &res->points[k];
+		printf("%zu,", k + 1);
+		if (in->line != NULL)
+			printf("%u", in->line[k]);
+		putchar(',');
+		fit_csv_number(fp->x);
+		if (in->t != NULL) {
+			putchar(',');
+			fit_csv_number(fp->t);
+		}
+		putchar(',');
+		fit_csv_number(fp->y);
+		putchar(',');
+		fit_csv_number(fp->fitted);
+		putchar(',');
+		fit_csv_number(fp->resid_abs);
+		putchar(',');
+		fit_csv_number(fp->resid_rel);
+		printf("\n");
+	}
+}
+
+/* Today's date (YYYY-MM-DD), or SOURCE_DATE_EPOCH's when set, into BUF. */
+static void fit_date(char *buf, size_t n)
+{
+	time_t now = time(NULL);
+	const char *sde = getenv("SOURCE_DATE_EPOCH");
+	if (sde != NULL && sde[0] != '\0') {
+		char *end;
+		long long v = strtoll(sde, &end, 10);
+		if (*end == '\0')
+			now = (time_t)v;
+	}
+	struct tm tm;
+	if (gmtime_r(&now, &tm) == NULL || strftime(buf, n, "%Y-%m-%d", &tm) == 0)
+		snprintf(buf, n, "(unknown date)");
+}
+
+/* Print RES as a device section with the fit recorded in comments. */
+static void fit_print_yaml(const struct fit_result *res,
+                           const struct fit_input *in, const bool *fixed)
+{
+	const struct model_type *t = res->type;
+	char date[32], rms[300];
+	fit_date(date, sizeof date);
+	fit_rms_text(res, rms, sizeof rms);
+	printf("# fitted by biasline fit on %s to %zu point%s of %s,\n# %s;\n",
+	       date, res->n, res->n == 1 ? "" : "s", in->source,
+	       fit_weight_text(res));
+	printf("# %s; N = %zu, %d degree%s of freedom\n", rms, res->n, res->dof,
+	       res->dof == 1 ? "" : "s");
+	printf("device:\n  model: %s\n", t->name);
+	for (size_t j = 0; j < res->nfree; j++) {
+		const struct model_param *mp = &t->params[res->idx[j]];
+		double v = res->p[res->idx[j]], se = res->se[j];
+		char a[48], b[48], line[128];
+		cli_fmt(a, sizeof a, v, mp->kind, fit_digits(v, se));
+		snprintf(line, sizeof line, "  %s: %s", mp->key, a);
+		if (isfinite(se))
+			printf("%-44s # +- %s (standard error)\n", line,
+			       cli_fmt(b, sizeof b, se, mp->kind, 2));
+		else
+			printf("%-44s # exact through the points: no standard error\n",
+			       line);
+	}
+	for (size_t i = 0; i < t->nparams; i++) {
+		if (!fit_shows(res, fixed, i))
+			continue;
+		char a[48], line[128];
+		cli_fmt(a, sizeof a, res->p[i], t->params[i].kind, 6);
+		snprintf(line, sizeof line, "  %s: %s", t->params[i].key, a);
+		printf("%-44s # held%s\n", line,
+		       res->held_by_fit[i] ? " (chosen by the fit, or the points')" : "");
+	}
+	for (size_t i = 0; i < t->nparams; i++)
+		if (isnan(res->p[i]))
+			printf("  # %s: required, and not in the points: set it here\n",
+			       t->params[i].key);
+}
+
+/* Print a refusal of the fit with where it points in the file. */
+static void fit_print_refusal(const struct fit_result *res,
+                              const struct fit_input *in)
+{
+	if (res->bad_point != SIZE_MAX && in->line != NULL)
+		fprintf(stderr, "biasline fit: %s:%u: %s\n", in->source,
+		        in->line[res->bad_point], res->message);
+	else
+		fprintf(stderr, "biasline fit: %s: %s\n", in->source, res->message);
+	if (res->status == FIT_TOO_FEW || res->status == FIT_UNDETERMINED)
+		fprintf(stderr, "biasline fit: hold a parameter with --fix KEY=VALUE\n");
+}
+
+/* Entry point of `biasline fit`. */
+int cmd_fit(int argc, char **argv)
+{
+	struct fit_args a;
+	int code;
+	if (fit_parse_args(argc, argv, &a, &code) != 0)
+		return code;
+	struct session se;
+	bool have_session = false;
+	if (a.session != NULL) {
+		struct session_error err;
+		enum session_status ls = session_load_file(&se, a.session, &err);
+		if (ls != SESSION_OK) {
+			char msg[1024];
+			session_error_format(&err, msg, sizeof msg);
+			fprintf(stderr, "biasline fit: %s\n", msg);
+			return ls == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+		}
+		have_session = true;
+	}
+	const struct model_type *type =
+		a.model != NULL ? model_find(a.model) : se.device.type;
+	if (type == NULL || !fit_model_supported(type)) {
+		char models[200];
+		fit_model_list(models, sizeof models);
+		fprintf(stderr, "biasline fit: %s '%s' %s; models that can be "
+		        "fitted%s: %s\n",
+		        a.model != NULL ? "--model" : "the session's model",
+		        a.model != NULL ? a.model : type->name,
+		        type == NULL ? "is not a model" : "cannot be fitted",
+		        a.model != NULL ? "" : " (give one with --model)", models);
+		if (have_session)
+			session_fini(&se);
+		return EXIT_USAGE;
+	}
+	struct fit_request rq = { .type = type, .weight = a.weight };
+	struct device def;
+	device_init(&def, type);
+	memcpy(rq.p, def.p, sizeof rq.p);
+	if (have_session && se.device.type == type)
+		memcpy(rq.p, se.device.p, sizeof rq.p);
+	for (size_t k = 0; k < a.nfix; k++)
+		if (fit_apply_fix(a.fix[k], &rq) != 0) {
+			if (have_session)
+				session_fini(&se);
+			return EXIT_USAGE;
+		}
+
+	struct fit_input in = { 0 };
+	if (a.points != NULL) {
+		code = fit_read_points(a.points, type, &in);
+		if (code != 0) {
+			if (have_session)
+				session_fini(&se);
+			return code;
+		}
+	} else if (se.curve != NULL && fit_model_axes(type) == FIT_AXES_VI) {
+		in.source = a.session;
+		in.n = se.curve->n;
+		in.x = se.curve->v;
+		in.y = se.curve->i;
+	} else {
+		fprintf(stderr, "biasline fit: %s has no measured points to fit "
+		        "(a measured device's points: or points_file:); give "
+		        "--points FILE\n", a.session);
+		session_fini(&se);
+		return EXIT_USAGE;
+	}
+	rq.n = in.n;
+	rq.x = in.x;
+	rq.y = in.y;
+	rq.t = in.t;
+
+	struct fit_result res;
+	enum fit_status st = fit_run(&rq, &res);
+	code = EXIT_OK_CODE;
+	if (st != FIT_OK) {
+		fit_print_refusal(&res, &in);
+		code = st == FIT_NO_MEMORY ? EXIT_SOFTWARE : EXIT_DATA;
+	} else if (a.format == FIT_CSV) {
+		if (a.residuals)
+			fit_print_residuals(&res, &in);
+		else
+			fit_print_csv(&res, rq.fixed);
+	} else if (a.format == FIT_YAML) {
+		fit_print_yaml(&res, &in, rq.fixed);
+	} else {
+		fit_print_text(&res, &in, rq.fixed);
+	}
+	fit_result_fini(&res);
+	if (a.points != NULL)
+		points_table_fini(&in.table);
+	if (have_session)
+		session_fini(&se);
+	if (fflush(stdout) != 0 || ferror(stdout)) {
+		fprintf(stderr, "biasline fit: cannot write the output\n");
+		return EXIT_IO;
+	}
+	return code;
+}
