@@ -8,7 +8,8 @@
  * reader as the measured model's points_file:) or, without --points, from
  * SESSION's own measured points.  SESSION also gives the values the fit
  * holds (a transistor's current gain, a thermistor's dissipation
- * constant) when its device is of the model fitted.
+ * constant) when its device is of the model fitted.  CSV goes through
+ * the one writer (csv.h), exit statuses come from exit_status.h.
  */
 #include <getopt.h>
 #include <math.h>
@@ -20,6 +21,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
+#include "csv.h"
 #include "core/fit.h"
 #include "core/models/models.h"
 #include "session/points_file.h"
@@ -81,10 +83,14 @@ static void fit_usage(FILE *out)
 	        "  -h, --help            show this help and exit\n"
 	        "  -V, --version         show the version and exit\n"
 	        "\n"
-	        "Exit status: 0 fitted; 64 bad usage; 65 bad points or session, or\n"
-	        "a fit the points cannot support (the message says which parameter\n"
-	        "to hold); 66 a file cannot be read; 74 output cannot be written.\n",
+	        "Points the fit cannot support (too few, a shared V, not monotone,\n"
+	        "a parameter they do not determine) exit 65 with the rows or the\n"
+	        "parameter to hold.\n",
 	        models);
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
+	                                        EXIT_DATA, EXIT_NO_INPUT,
+	                                        EXIT_SOFTWARE, EXIT_IO };
+	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
 /* Parse the command line into A; returns -1 to exit with *CODE. */
@@ -224,7 +230,7 @@ static int fit_read_points(const char *file, const struct model_type *type,
 		char msg[1024];
 		session_error_format(&err, msg, sizeof msg);
 		fprintf(stderr, "biasline fit: %s\n", msg);
-		return st == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+		return (int)cli_exit_from_session(st);
 	}
 	if (in->table.n == 0) {
 		fprintf(stderr, "biasline fit: %s: no points (only blank lines, "
@@ -428,97 +434,85 @@ static void fit_print_text(const struct fit_result *res,
 				       t->params[res->idx[i]].key, res->corr[i][j]);
 }
 
-/* Write S as a CSV field (quoted when it holds a comma, quote or newline;
- * RFC 4180). */
-static void fit_csv_field(const char *s)
-{
-	if (strpbrk(s, ",\"\r\n") == NULL) {
-		fputs(s, stdout);
-		return;
-	}
-	putchar('"');
-	for (; *s != '\0'; s++) {
-		if (*s == '"')
-			putchar('"');
-		putchar(*s);
-	}
-	putchar('"');
-}
-
-/* A number for CSV: the shortest text that reads back exactly, or empty. */
-static void fit_csv_number(double v)
-{
-	char b[48];
-	if (isfinite(v))
-		fputs(qty_format_exact(b, sizeof b, v), stdout);
-}
-
-/* Print the parameters of RES as one CSV table. */
-static void fit_print_csv(const struct fit_result *res, const bool *fixed)
+/* Print the parameters of RES as one CSV table; returns the exit status. */
+static int fit_print_csv(const struct fit_result *res, const bool *fixed)
 {
 	const struct model_type *t = res->type;
-	printf("key,value,standard_error,unit,role");
-	for (size_t j = 0; j < res->nfree; j++)
-		printf(",corr_%s", t->params[res->idx[j]].key);
-	printf("\n");
+	struct csv w;
+	char name[CSV_NAME_MAX];
+	csv_init(&w, stdout);
+	csv_column(&w, "key");
+	csv_column(&w, "value");
+	csv_column(&w, "standard_error");
+	csv_column(&w, "unit");
+	csv_column(&w, "role");
+	for (size_t j = 0; j < res->nfree; j++) {
+		snprintf(name, sizeof name, "corr_%s", t->params[res->idx[j]].key);
+		csv_column(&w, name);
+	}
+	csv_end_row(&w);
 	for (size_t j = 0; j < res->nfree; j++) {
 		const struct model_param *mp = &t->params[res->idx[j]];
-		fit_csv_field(mp->key);
-		putchar(',');
-		fit_csv_number(res->p[res->idx[j]]);
-		putchar(',');
-		fit_csv_number(res->se[j]);
-		printf(",%s,fitted", qty_unit_ascii(mp->kind));
-		for (size_t i = 0; i < res->nfree; i++) {
-			putchar(',');
-			fit_csv_number(res->dof > 0 ? res->corr[j][i] : NAN);
-		}
-		printf("\n");
+		csv_text(&w, mp->key);
+		csv_number(&w, res->p[res->idx[j]]);
+		csv_number(&w, res->se[j]);
+		csv_text(&w, qty_unit_ascii(mp->kind));
+		csv_text(&w, "fitted");
+		for (size_t i = 0; i < res->nfree; i++)
+			csv_number(&w, res->dof > 0 ? res->corr[j][i] : NAN);
+		csv_end_row(&w);
 	}
 	for (size_t i = 0; i < t->nparams; i++) {
 		if (!fit_shows(res, fixed, i))
 			continue;
-		fit_csv_field(t->params[i].key);
-		putchar(',');
-		fit_csv_number(res->p[i]);
-		printf(",,%s,held", qty_unit_ascii(t->params[i].kind));
+		csv_text(&w, t->params[i].key);
+		csv_number(&w, res->p[i]);
+		csv_empty(&w);
+		csv_text(&w, qty_unit_ascii(t->params[i].kind));
+		csv_text(&w, "held");
 		for (size_t j = 0; j < res->nfree; j++)
-			putchar(',');
-		printf("\n");
+			csv_empty(&w);
+		csv_end_row(&w);
 	}
+	return csv_finish(&w, "fit");
 }
 
-/* Print the points of RES with their residuals as one CSV table. */
-static void fit_print_residuals(const struct fit_result *res,
-                                const struct fit_input *in)
+/* Print the points of RES with their residuals as one CSV table; returns
+ * the exit status. */
+static int fit_print_residuals(const struct fit_result *res,
+                               const struct fit_input *in)
 {
+	enum qty_kind xk = fit_xkind(res->type), yk = fit_ykind(res->type);
 	bool tr = fit_model_axes(res->type) == FIT_AXES_TR;
-	printf("row,line,%s%s,%s,%s,residual_%s,relative_residual\n",
-	       tr ? "temperature_degC" : "voltage_V",
-	       in->t != NULL ? ",temperature_degC" : "",
-	       tr ? "resistance_ohm" : "current_A",
-	       tr ? "fitted_ohm" : "fitted_A", tr ? "ohm" : "A");
+	struct csv w;
+	csv_init(&w, stdout);
+	csv_column(&w, "row");
+	csv_column(&w, "line");
+	csv_column_unit(&w, tr ? "temperature" : "voltage", xk);
+	if (in->t != NULL)
+		csv_column_unit(&w, "temperature", QTY_TEMPERATURE);
+	csv_column_unit(&w, tr ? "resistance" : "current", yk);
+	csv_column_unit(&w, "fitted", yk);
+	csv_column_unit(&w, "residual", yk);
+	csv_column(&w, "relative_residual");
+	csv_end_row(&w);
 	for (size_t k = 0; k < res->n; k++) {
 		const struct fit_point *fp = &res->points[k];
-		printf("%zu,", k + 1);
+		csv_count(&w, k + 1);
 		if (in->line != NULL)
-			printf("%u", in->line[k]);
-		putchar(',');
-		fit_csv_number(fp->x);
-		if (in->t != NULL) {
-			putchar(',');
-			fit_csv_number(fp->t);
-		}
-		putchar(',');
-		fit_csv_number(fp->y);
-		putchar(',');
-		fit_csv_number(fp->fitted);
-		putchar(',');
-		fit_csv_number(fp->resid_abs);
-		putchar(',');
-		fit_csv_number(fp->resid_rel);
-		printf("\n");
+			csv_count(&w, in->line[k]);
+		else
+			csv_empty(&w);
+		csv_number(&w, fp->x);
+		if (in->t != NULL)
+			csv_number(&w, fp->t);
+		csv_number(&w, fp->y);
+		csv_number(&w, fp->fitted);
+		csv_number(&w, fp->resid_abs);
+		csv_number(&w, fp->resid_rel);
+		csv_end_row(&w);
 	}
+	return csv_finish(&w, "fit");
 }
 
 /* Today's date (YYYY-MM-DD), or SOURCE_DATE_EPOCH's when set, into BUF. */
@@ -608,7 +602,7 @@ int cmd_fit(int argc, char **argv)
 			char msg[1024];
 			session_error_format(&err, msg, sizeof msg);
 			fprintf(stderr, "biasline fit: %s\n", msg);
-			return ls == SESSION_NO_INPUT ? EXIT_NO_INPUT : EXIT_DATA;
+			return (int)cli_exit_from_session(ls);
 		}
 		have_session = true;
 	}
@@ -672,10 +666,8 @@ int cmd_fit(int argc, char **argv)
 		fit_print_refusal(&res, &in);
 		code = st == FIT_NO_MEMORY ? EXIT_SOFTWARE : EXIT_DATA;
 	} else if (a.format == FIT_CSV) {
-		if (a.residuals)
-			fit_print_residuals(&res, &in);
-		else
-			fit_print_csv(&res, rq.fixed);
+		code = a.residuals ? fit_print_residuals(&res, &in)
+		                   : fit_print_csv(&res, rq.fixed);
 	} else if (a.format == FIT_YAML) {
 		fit_print_yaml(&res, &in, rq.fixed);
 	} else {
@@ -686,9 +678,6 @@ int cmd_fit(int argc, char **argv)
 		points_table_fini(&in.table);
 	if (have_session)
 		session_fini(&se);
-	if (fflush(stdout) != 0 || ferror(stdout)) {
-		fprintf(stderr, "biasline fit: cannot write the output\n");
-		return EXIT_IO;
-	}
+	/* a failed write is reported by cli_finish_output (main.c) */
 	return code;
 }

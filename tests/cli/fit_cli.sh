@@ -4,10 +4,11 @@
 # CSV tables' shape and residuals, held keys, the session as the source of
 # held values and of points, the temperature law, and every refusal with
 # its exit status and place in the file.
-# Usage: fit_cli.sh BIASLINE SAMPLES_DIR
+# Usage: fit_cli.sh BIASLINE SAMPLES_DIR (CSV_STRICT names tests/cli/csv_strict)
 set -u
 bl=$1
 samples=$2
+case $bl in /*) ;; *) bl=$PWD/$bl ;; esac
 . "$(dirname "$0")/tap.sh"
 export SOURCE_DATE_EPOCH=1796256000
 
@@ -47,11 +48,17 @@ expect_text "$tmp/out" "    11    17  2.143 V     30 mA"
 
 # CSV: one table of parameters; the residuals as another, on request.
 expect_exit 0 "$bl" fit --model led --points "$samples/amber-panel-led.csv" --format csv
+expect_strict_csv "$tmp/out" "fit csv"
+tr -d '\r' <"$tmp/out" >"$tmp/p.csv"
+mv "$tmp/p.csv" "$tmp/out"
 expect_text "$tmp/out" "key,value,standard_error,unit,role,corr_forward_voltage,corr_ideality,corr_series_resistance"
 expect_awk "$tmp/out" 'NR > 1 && $5 == "fitted" { k++; if ($2 <= 0 || $3 <= 0) bad = 1 }
 	NR > 1 && $5 == "fitted" && $(5 + k) != 1 { bad = 1 }
 	END { exit !(k == 3 && !bad) }' "three fitted rows, unit diagonal of the correlations"
 expect_exit 0 "$bl" fit --model led --points "$samples/amber-panel-led.csv" --format csv --residuals
+expect_strict_csv "$tmp/out" "fit csv --residuals"
+tr -d '\r' <"$tmp/out" >"$tmp/p.csv"
+mv "$tmp/p.csv" "$tmp/out"
 expect_text "$tmp/out" "row,line,voltage_V,current_A,fitted_A,residual_A,relative_residual"
 expect_awk "$tmp/out" 'NR > 1 { k++; r = $5 / $4 - 1; d = r - $7; if (d < 0) d = -d
 	if (d > 1e-12 || $6 - ($5 - $4) > 1e-15 || $6 - ($5 - $4) < -1e-15) bad = 1 }
@@ -114,6 +121,8 @@ V;I;T (degC)
 0.7313;0.01262;75
 CSV
 expect_exit 0 "$bl" fit --model diode --points "$tmp/t.csv" --format csv
+tr -d '\r' <"$tmp/out" >"$tmp/p.csv"
+mv "$tmp/p.csv" "$tmp/out"
 expect_awk "$tmp/out" '$1 == "bandgap" { g = $2; s = $3 }
 	END { d = g - 1.143; if (d < 0) d = -d; exit !(d < 1e-3 && d < 3 * s) }' \
 	"the bandgap comes back within 1 meV and 3 standard errors"
@@ -159,7 +168,7 @@ expect_exit 64 "$bl" fit --points "$tmp/two.csv"
 n=$((n + 1))
 "$bl" fit --model led --points "$samples/amber-panel-led.csv" >/dev/full 2>"$tmp/err"
 got=$?
-if [ "$got" -eq 74 ]; then
+if [ "$got" -eq 74 ] && grep -q "cannot write the output" "$tmp/err"; then
 	echo "ok $n - a full standard output exits 74"
 else
 	echo "not ok $n - a full standard output exited $got, expected 74"
