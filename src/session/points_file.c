@@ -224,9 +224,10 @@ static int points_header(struct points_parser *ps, const char *s,
 	size_t known = 0;
 	for (size_t j = 0; j < nf; j++) {
 		/* the name is what comes before "(" or "[" */
-		size_t nl = strcspn(s + f[j].off, "([");
-		if (nl > f[j].len)
-			nl = f[j].len;
+		size_t nl = 0;
+		while (nl < f[j].len && s[f[j].off + nl] != '(' &&
+		       s[f[j].off + nl] != '[')
+			nl++;
 		role_of[j] = points_name_role(s + f[j].off, nl);
 		if (role_of[j] >= 0)
 			known++;
@@ -598,6 +599,7 @@ static char *points_slurp(const char *path, size_t *len, char *why, size_t n)
 		}
 	}
 	close(fd);
+	buf[got] = '\0';   /* not needed by the parser; kept for safety */
 	*len = got;
 	return buf;
 }
