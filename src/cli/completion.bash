@@ -23,11 +23,13 @@ _biasline_options()
 		sort -u
 }
 
-# The choices of an option that takes one word from a fixed set.
+# The choices of an option ($1) that takes one word from a fixed set, in
+# subcommand $2.
 _biasline_choices()
 {
 	case $1 in
-	--format) echo "text csv" ;;
+	--format) if [ "$2" = fit ]; then echo "text csv yaml"; else echo "text csv"; fi ;;
+	--weight) echo "relative absolute" ;;
 	--method) echo "auto projection relaxed newton brent" ;;
 	--order) echo "voltage-from-line voltage-from-device" ;;
 	--series) echo "E6 E12 E24 E48 E96 E192" ;;
@@ -54,7 +56,7 @@ _biasline()
 	done
 
 	local choices
-	choices=$(_biasline_choices "$prev")
+	choices=$(_biasline_choices "$prev" "$cmd")
 	if [ -n "$choices" ]; then
 		mapfile -t COMPREPLY < <(compgen -W "$choices" -- "$cur")
 		return

@@ -164,6 +164,28 @@ expect_exit 64 "$bl" fit --model diode --points "$tmp/two.csv" --fix ideality=-1
 expect_exit 64 "$bl" fit --model diode --points "$tmp/two.csv" --weight loud
 expect_exit 64 "$bl" fit --points "$tmp/two.csv"
 
+# Every choice the bash completion offers for fit's --format and --weight
+# is one fit accepts.
+if command -v bash >/dev/null 2>&1; then
+	for opt in --format --weight; do
+		words=$(PATH="$(dirname "$bl"):$PATH" bash -c '
+			. "$1"; COMP_WORDS=(biasline fit "$2" ""); COMP_CWORD=3
+			_biasline; printf "%s\n" "${COMPREPLY[@]}"' _ \
+			"$samples/../src/cli/completion.bash" "$opt")
+		n=$((n + 1))
+		if [ -n "$words" ]; then
+			echo "ok $n - the completion offers fit $opt:" $words
+		else
+			echo "not ok $n - the completion offers nothing for fit $opt"
+			fails=$((fails + 1))
+		fi
+		for w in $words; do
+			expect_exit 0 "$bl" fit --model led --points \
+				"$samples/amber-panel-led.csv" "$opt" "$w"
+		done
+	done
+fi
+
 # Standard output that cannot be written: exit 74.
 n=$((n + 1))
 "$bl" fit --model led --points "$samples/amber-panel-led.csv" >/dev/full 2>"$tmp/err"
