@@ -98,6 +98,29 @@ double fit_model_value(const struct model_type *type, const double *p,
 	return s->eval(s, &c, p, 0, &y, NULL) == 0 ? y : NAN;
 }
 
+/* The residuals of a parameter set at the points (see fit.h). */
+double fit_evaluate(const struct model_type *type, const double *p,
+                    enum fit_weight w, size_t n, const double *x,
+                    const double *y, const double *t, struct fit_point *out)
+{
+	if (fit_spec_find(type) == NULL)
+		return NAN;
+	double s = 0.0;
+	for (size_t k = 0; k < n; k++) {
+		struct fit_point *fp = &out[k];
+		fp->x = x[k];
+		fp->y = y[k];
+		fp->t = t != NULL ? t[k] : NAN;
+		fp->fitted = fit_model_value(type, p, x[k], fp->t);
+		fp->resid_abs = fp->fitted - y[k];
+		fp->resid_rel = fp->fitted / y[k] - 1.0;
+		double r = w == FIT_WEIGHT_ABSOLUTE ? fp->resid_abs
+		           : fp->fitted / y[k] > 0.0 ? log(fp->fitted / y[k]) : NAN;
+		s += r * r;
+	}
+	return n > 0 ? sqrt(s / (double)n) : NAN;
+}
+
 /* Free what RES owns. */
 void fit_result_fini(struct fit_result *res)
 {

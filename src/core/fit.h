@@ -17,6 +17,11 @@
  *
  * Pure computation: no I/O.  fit_run allocates the per-point results;
  * fit_result_fini frees them.
+ *
+ * For a front end showing a fit: the points and their residuals are in
+ * fit_result.points, the fitted device is fit_result.type with
+ * fit_result.p, fit_model_value draws its curve in the points' own terms
+ * and fit_evaluate lists the residuals of any other parameter set.
  */
 #ifndef BIASLINE_FIT_H
 #define BIASLINE_FIT_H
@@ -133,12 +138,25 @@ void fit_result_fini(struct fit_result *res);
 
 /*
  * The model's y at x (and t: degC, NaN for the model's own temperature)
- * for parameters P: the current at V, or the thermistor's resistance at T.
- * NaN when the model cannot give it.  For plotting the fitted curve with
- * the points and for listing residuals of any parameter set.
+ * for parameters P, as the fit sees it: the current at V (for npn and pnp
+ * the collector current at VBE), or a thermistor's zero-power resistance
+ * at T.  NaN when the model cannot give it.  For drawing the fitted curve
+ * through the points.
  */
 double fit_model_value(const struct model_type *type, const double *p,
                        double x, double t);
+
+/*
+ * The residuals of parameter set P of TYPE at N points X, Y (T may be
+ * NULL), without fitting: OUT[k] (N of them, the caller's) as fit_run
+ * fills its points.  Returns the RMS of the residuals weighted by W (as
+ * fit_result.rms), NaN when the model cannot be evaluated at some point
+ * or cannot be fitted.  For listing how far a device (say one the user
+ * has nudged since the fit) lies from the points.
+ */
+double fit_evaluate(const struct model_type *type, const double *p,
+                    enum fit_weight w, size_t n, const double *x,
+                    const double *y, const double *t, struct fit_point *out);
 
 /*
  * Steinhart & Hart's three-point closed form (Steinhart & Hart, "Calibration

@@ -565,6 +565,22 @@ static void test_held(void **state)
 	assert_true(fabs(res.p[DIODE_N] / 1.613 - 1.0) < 1e-10);
 	assert_true(fabs(res.p[DIODE_RS] / 0.4713 - 1.0) < 1e-9);
 	assert_true(res.rms < 1e-12);
+
+	/* the residuals of another parameter set, without fitting: the
+	 * fitted set gives the fit's own residuals back */
+	struct fit_point pts[40];
+	double rms = fit_evaluate(&model_diode, res.p, FIT_WEIGHT_RELATIVE, m, v,
+	                          i, NULL, pts);
+	assert_true(fabs(rms - res.rms) <= 1e-15);
+	for (size_t k = 0; k < m; k++)
+		assert_true(pts[k].fitted == res.points[k].fitted &&
+		            pts[k].resid_rel == res.points[k].resid_rel);
+	model_values nudged;
+	memcpy(nudged, res.p, sizeof nudged);
+	nudged[DIODE_RS] *= 1.1;
+	rms = fit_evaluate(&model_diode, nudged, FIT_WEIGHT_RELATIVE, m, v, i,
+	                   NULL, pts);
+	assert_true(rms > 1e-3 && pts[m - 1].resid_rel < -1e-3);
 	fit_result_fini(&res);
 
 	rq.p[DIODE_RS] = 0.5;
