@@ -364,20 +364,27 @@ static void fit_print_text(const struct fit_result *res,
 		}
 		printf("  %-24s %-16s %s%s\n", mp->key, a, b, rel);
 	}
-	bool any = false;
+	/* the held keys, wrapped to 78 columns */
+	size_t col = 0;
 	for (size_t i = 0; i < t->nparams; i++) {
 		if (!fit_shows(res, fixed, i))
 			continue;
-		char a[48];
+		char a[48], item[160];
 		cli_fmt(a, sizeof a, res->p[i], t->params[i].kind, 6);
-		printf("%s%s = %s%s", any ? ", " : "  held: ", t->params[i].key, a,
-		       res->held_by_fit[i] ? (fit_model_axes(t) == FIT_AXES_VI &&
-		                              strcmp(t->params[i].key, "temperature") == 0
-		                              ? " (the points')" : " (chosen by the fit)")
-		                           : "");
-		any = true;
+		snprintf(item, sizeof item, "%s = %s%s", t->params[i].key, a,
+		         !res->held_by_fit[i] ? ""
+		         : strcmp(t->params[i].key, "temperature") == 0
+		           ? " (the points')" : " (chosen by the fit)");
+		if (col == 0) {
+			col = (size_t)printf("  held: %s", item);
+		} else if (col + 2 + strlen(item) > 78) {
+			printf(",\n");
+			col = (size_t)printf("        %s", item);
+		} else {
+			col += (size_t)printf(", %s", item);
+		}
 	}
-	if (any)
+	if (col > 0)
 		printf("\n");
 	if (res->nfree > 1 && res->dof > 0) {
 		printf("\n  correlation\n");
