@@ -561,10 +561,10 @@ static enum fit_status fit_choose(struct fit_engine *e,
 			continue;
 		if (s->need[k] == FIT_NEED_REVERSE && !reverse)
 			return fit_fail(res, FIT_TOO_FEW,
-			                "%s needs points in breakdown: V < 0 and I < 0 in "
-			                "the passive sign convention (a %s reverse "
-			                "current is I = -5m); found none, or hold it", s->free[k],
-			                c->type->name);
+			                "%s needs points in breakdown, where V < 0 and "
+			                "I < 0 in the passive sign convention (5 mA of "
+			                "reverse current is I = -5m); the %s points have "
+			                "none", s->free[k], c->type->name);
 		e->idx[e->nfree++] = i;
 	}
 	if (ntemps >= 2 && !rq->fixed[il])
