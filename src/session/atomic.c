@@ -11,6 +11,7 @@
 #include <errno.h>
 #include <fcntl.h>
 #include <limits.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -70,6 +71,44 @@ static mode_t atomic_new_file_mode(void)
 	return 0666 & ~mask;
 }
 
+/*
+ * Whether the existing file TARGET (status ST) may be replaced: not when
+ * it is read-only to the user.  Root passes every permission check, so for
+ * root a file without any write permission bit counts as read-only, the
+ * way careful tools treat it.  Returns 0, or -1 with the reason in WHY.
+ */
+static int atomic_writable(const char *target, const struct stat *st,
+                           char *why, size_t n)
+{
+	if (geteuid() == 0) {
+		if ((st->st_mode & 0222) == 0) {
+			snprintf(why, n, "the file is read-only (mode %04o); not "
+			         "replacing it", (unsigned)(st->st_mode & 07777));
+			return -1;
+		}
+		return 0;
+	}
+	if (faccessat(AT_FDCWD, target, W_OK, AT_EACCESS) != 0) {
+		int e = errno;
+		if (e == EACCES || e == EPERM || e == EROFS) {
+			snprintf(why, n, "the file is read-only for you (%s); not "
+			         "replacing it", strerror(e));
+			return -1;
+		}
+	}
+	return 0;
+}
+
+/* The stop signals a terminal or a shell sends. */
+static void atomic_stop_signals(sigset_t *set)
+{
+	sigemptyset(set);
+	sigaddset(set, SIGINT);
+	sigaddset(set, SIGTERM);
+	sigaddset(set, SIGHUP);
+	sigaddset(set, SIGQUIT);
+}
+
 /* Write DATA to PATH atomically, with optional test hooks. */
 int atomic_write_file_hooked(const char *path, const void *data, size_t len,
                              const struct atomic_hooks *hooks, char *err,
@@ -93,6 +132,11 @@ int atomic_write_file_hooked(const char *path, const void *data, size_t len,
 		snprintf(err, errlen, "%s: not a regular file; not replacing it", path);
 		return -1;
 	}
+	char why[160];
+	if (exists && atomic_writable(target, &st, why, sizeof why) != 0) {
+		snprintf(err, errlen, "%s: %s", path, why);
+		return -1;
+	}
 
 	char dir[PATH_MAX], base[NAME_MAX + 1], tmp[PATH_MAX];
 	if (atomic_split(target, dir, sizeof dir, base, sizeof base) != 0 ||
@@ -105,16 +149,33 @@ int atomic_write_file_hooked(const char *path, const void *data, size_t len,
 		snprintf(err, errlen, "%s: the path is too long", path);
 		return -1;
 	}
+	/*
+	 * From here until the temporary file is renamed or removed, a stop
+	 * signal (Ctrl-C, kill, hangup) waits: it takes effect when this
+	 * returns, and no hidden temporary file is left behind.
+	 */
+	sigset_t stops, old;
+	atomic_stop_signals(&stops);
+	sigprocmask(SIG_BLOCK, &stops, &old);
 	int fd = mkstemp(tmp);
 	if (fd < 0) {
+		int e = errno;
+		sigprocmask(SIG_SETMASK, &old, NULL);
 		snprintf(err, errlen, "%s: cannot create a file in %s: %s", path, dir,
-		         strerror(errno));
+		         strerror(e));
 		return -1;
 	}
 	const char *step = "cannot write";
 	int e = 0;
 	mode_t mode = exists ? (st.st_mode & 07777) : atomic_new_file_mode();
-	if (fchmod(fd, mode) != 0) {
+	struct stat mine;
+	/* the owner and group first: changing them clears set-id bits */
+	if (exists && fstat(fd, &mine) == 0 &&
+	    (mine.st_uid != st.st_uid || mine.st_gid != st.st_gid) &&
+	    fchown(fd, st.st_uid, st.st_gid) != 0) {
+		step = "cannot keep the owner and group of";
+		e = errno;
+	} else if (fchmod(fd, mode) != 0) {
 		step = "cannot set the permissions of";
 		e = errno;
 	} else if (atomic_write_all(fd, data, len) != 0) {
@@ -137,10 +198,12 @@ int atomic_write_file_hooked(const char *path, const void *data, size_t len,
 	}
 	if (e != 0) {
 		unlink(tmp);
+		sigprocmask(SIG_SETMASK, &old, NULL);
 		snprintf(err, errlen, "%s: %s the file (%s); the old file is unchanged",
 		         path, step, strerror(e));
 		return -1;
 	}
+	sigprocmask(SIG_SETMASK, &old, NULL);
 	/* make the rename itself durable */
 	int dfd = open(dir, O_RDONLY | O_DIRECTORY);
 	if (dfd >= 0) {

@@ -1,8 +1,8 @@
 /*
  * atomic.h - replace a file atomically: write a temporary file in the same
- * folder, flush and fsync it, rename it over the target, fsync the folder.
- * On any failure the temporary file is removed and the old file is left as
- * it was.
+ * folder, give it the old file's owner, group and mode, flush and fsync
+ * it, rename it over the target, fsync the folder.  On any failure the
+ * temporary file is removed and the old file is left as it was.
  */
 #ifndef BIASLINE_ATOMIC_H
 #define BIASLINE_ATOMIC_H
@@ -22,8 +22,13 @@ struct atomic_hooks {
 
 /*
  * Write LEN bytes of DATA to PATH atomically.  A symbolic link at PATH is
- * followed (the file it names is replaced).  Returns 0, or -1 with a
- * message naming the path and the system's reason in ERR.
+ * followed (the file it names is replaced).  A file that is there keeps
+ * its owner, group and mode; one that is read-only to the user (for root:
+ * one with no write permission bit at all) is refused, as is one whose
+ * owner or group cannot be kept.  Stop signals (SIGINT, SIGTERM, SIGHUP,
+ * SIGQUIT) are held while the temporary file exists, so none leaves it
+ * behind.  Returns 0, or -1 with a message naming the path and the reason
+ * in ERR.
  */
 int atomic_write_file(const char *path, const void *data, size_t len,
                       char *err, size_t errlen);

@@ -34,6 +34,9 @@ struct load_ctx {
 	const char *name;             /* file name for messages */
 	struct session_error *err;
 	struct session *s;            /* the session being filled */
+	/* the status a failed load returns: SESSION_BAD_DATA unless a loader
+	 * sets another (SESSION_NO_INPUT: a points_file cannot be read) */
+	enum session_status status;
 };
 
 /* State while writing one file. */

@@ -102,8 +102,9 @@ static void device_unknown_key(struct load_ctx *c, const struct model_type *type
 
 /*
  * Apply the named preset in V to the device: the preset's values first,
- * then the keys given in the file override them.  The file is saved with
- * every value written out, so the preset name itself is not kept.
+ * then the keys given in the file override them.  The canonical form
+ * (tidy) writes every value out and drops the preset name; a save into
+ * the user's text (session_text.h) keeps it.
  */
 static int device_apply_preset(struct load_ctx *c, const struct model_type *type,
                                const struct ynode *v, const char *path)
@@ -259,10 +260,12 @@ static int device_load_points_file(struct load_ctx *c, const struct ynode *v,
 	struct points_table t;
 	enum session_status st = points_file_read(file, path, &spec, &t, c->err);
 	if (st == SESSION_NO_INPUT) {
-		/* a file that cannot be read is the session's error, at its key */
+		/* a file that cannot be read is the session's error, at its key,
+		 * and missing input (66) as for the session file itself */
 		char msg[sizeof c->err->message];
 		memcpy(msg, c->err->message, sizeof msg);
 		ytree_error(c->err, c->name, v, path, "%s: %s", file, msg);
+		c->status = SESSION_NO_INPUT;
 		return -1;
 	}
 	if (st != SESSION_OK)

@@ -233,25 +233,23 @@ enum session_status session_load_buffer(struct session *s, const char *name,
 		session_fini(s);
 		return st;
 	}
-	struct load_ctx c = { .name = name, .err = err, .s = s };
+	struct load_ctx c = { .name = name, .err = err, .s = s,
+	                      .status = SESSION_BAD_DATA };
 	int rc = section_load(&c, &section_root, NULL, t->root, "");
 	ytree_destroy(t);
 	if (rc != 0) {
 		session_fini(s);
-		return SESSION_BAD_DATA;
+		return c.status;
 	}
 	return SESSION_OK;
 }
 
-/* Load PATH. */
-enum session_status session_load_file(struct session *s, const char *path,
-                                      struct session_error *err)
+/* Read the session file PATH into a new buffer. */
+enum session_status session_read_file(const char *path, char **out,
+                                      size_t *outlen, struct session_error *err)
 {
-	struct session_error scratch;
-	if (err == NULL)
-		err = &scratch;
-	memset(err, 0, sizeof *err);
-	session_init(s);
+	*out = NULL;
+	*outlen = 0;
 	/* non-blocking open: a FIFO without a writer must not hang us */
 	int fd = open(path, O_RDONLY | O_NOCTTY | O_NONBLOCK);
 	if (fd < 0) {
@@ -292,7 +290,7 @@ enum session_status session_load_file(struct session *s, const char *path,
 	}
 	/* read one byte more than allowed, in case the file grew meanwhile */
 	size_t cap = (size_t)st.st_size + 1;
-	char *buf = malloc(cap);
+	char *buf = malloc(cap + 1);
 	if (buf == NULL) {
 		fclose(f);
 		ytree_error_at(err, path, 0, 0, "", "out of memory");
@@ -314,7 +312,27 @@ enum session_status session_load_file(struct session *s, const char *path,
 		               "the file changed size while being read");
 		return SESSION_NO_INPUT;
 	}
-	enum session_status r = session_load_buffer(s, path, buf, len, err);
+	buf[len] = '\0';
+	*out = buf;
+	*outlen = len;
+	return SESSION_OK;
+}
+
+/* Load PATH. */
+enum session_status session_load_file(struct session *s, const char *path,
+                                      struct session_error *err)
+{
+	struct session_error scratch;
+	if (err == NULL)
+		err = &scratch;
+	memset(err, 0, sizeof *err);
+	session_init(s);
+	char *buf;
+	size_t len;
+	enum session_status r = session_read_file(path, &buf, &len, err);
+	if (r != SESSION_OK)
+		return r;
+	r = session_load_buffer(s, path, buf, len, err);
 	free(buf);
 	return r;
 }
@@ -432,39 +450,40 @@ enum session_status session_save_buffer_with(const struct session *s,
 	return SESSION_OK;
 }
 
-/* The leading comment block of PATH, without biasline's own header. */
-char *session_file_comments(const char *path)
+/* The leading comment block of the text BUF, without biasline's header. */
+char *session_buffer_comments(const char *buf, size_t len)
 {
-	FILE *f = fopen(path, "r");
-	if (f == NULL)
-		return NULL;
 	static const char own[] = "# biasline session, written by biasline";
 	struct session_out o = { 0 };
-	char *line = NULL;
-	size_t cap = 0, blank = 0; /* blank lines held until a comment follows */
-	ssize_t n;
+	size_t blank = 0; /* blank lines held until a comment follows */
 	int bad = 0;
-	while (bad == 0 && o.len < SESSION_MAX_BYTES &&
-	       (n = getline(&line, &cap, f)) > 0) {
-		if (line[strspn(line, " \t\r\n")] == '\0') {
+	size_t start = len >= 3 && memcmp(buf, "\xef\xbb\xbf", 3) == 0 ? 3 : 0;
+	for (size_t at = start; bad == 0 && at < len && o.len < SESSION_MAX_BYTES;) {
+		const char *line = buf + at;
+		const char *nl = memchr(line, '\n', len - at);
+		size_t n = nl != NULL ? (size_t)(nl - line) : len - at;
+		at += n + (nl != NULL ? 1 : 0);
+		size_t k = 0;
+		while (k < n && (line[k] == ' ' || line[k] == '\t' || line[k] == '\r'))
+			k++;
+		if (k == n) {
 			blank++;
 			continue;
 		}
 		if (line[0] != '#')
 			break;
-		if (strncmp(line, own, sizeof own - 1) == 0)
+		if (n >= sizeof own - 1 && strncmp(line, own, sizeof own - 1) == 0)
 			continue;
 		for (; blank > 0 && o.len > 0 && bad == 0; blank--)
 			bad = session_out_put(&o, "\n", 1);
 		blank = 0;
-		line[strcspn(line, "\r\n")] = '\0';
+		while (n > 0 && line[n - 1] == '\r')
+			n--;
 		if (bad == 0)
-			bad = session_out_put(&o, line, strlen(line));
+			bad = session_out_put(&o, line, n);
 		if (bad == 0)
 			bad = session_out_put(&o, "\n", 1);
 	}
-	free(line);
-	fclose(f);
 	if (bad != 0) {
 		free(o.buf);
 		return NULL;
@@ -473,6 +492,19 @@ char *session_file_comments(const char *path)
 	if (o.len > 0 && o.buf[o.len - 1] == '\n')
 		o.buf[--o.len] = '\0';
 	return o.buf;
+}
+
+/* The leading comment block of PATH, without biasline's own header. */
+char *session_file_comments(const char *path)
+{
+	char *buf;
+	size_t len;
+	struct session_error err;
+	if (session_read_file(path, &buf, &len, &err) != SESSION_OK)
+		return NULL;
+	char *c = session_buffer_comments(buf, len);
+	free(buf);
+	return c;
 }
 
 /* Write S as YAML into a new buffer. */

@@ -89,6 +89,15 @@ int session_set_curve(struct session *s, const double *v, const double *i,
 /* Format ERR as one line "FILE:LINE:COL: KEY: MESSAGE" into BUF. */
 void session_error_format(const struct session_error *err, char *buf, size_t n);
 
+/*
+ * Read the session file PATH (a regular file of at most the session size
+ * limit) into a new NUL-terminated buffer *BUF of *LEN bytes (the caller
+ * frees it).  Returns SESSION_OK, SESSION_NO_INPUT (cannot be read),
+ * SESSION_BAD_DATA (too large) or SESSION_IO_ERROR, with ERR.
+ */
+enum session_status session_read_file(const char *path, char **buf,
+                                      size_t *len, struct session_error *err);
+
 /* Load PATH into S (initialised by the call).  On error S is finied. */
 enum session_status session_load_file(struct session *s, const char *path,
                                       struct session_error *err);
@@ -131,6 +140,9 @@ enum session_status session_save_file(const struct session *s, const char *path,
  * there is none or the file cannot be read.  tidy keeps it this way.
  */
 char *session_file_comments(const char *path);
+
+/* session_file_comments of the LEN bytes of text BUF. */
+char *session_buffer_comments(const char *buf, size_t len);
 
 /*
  * True when A and B hold the same session: every number bit for bit, the

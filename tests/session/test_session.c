@@ -926,7 +926,9 @@ static void test_measured_points_file(void **state)
 		"source:\n  vs: 4.87\n  rs: 1.33k\n"
 		"device:\n  model: measured\n  points_file: absent.csv\n";
 	write_file(p, missing, strlen(missing));
-	assert_int_equal(session_load_file(&a, p, &err), SESSION_BAD_DATA);
+	/* a points file that cannot be read is missing input (66), as for the
+	 * session file itself */
+	assert_int_equal(session_load_file(&a, p, &err), SESSION_NO_INPUT);
 	session_error_format(&err, msg, sizeof msg);
 	assert_non_null(strstr(msg, "cannot open the file"));
 	assert_int_equal(err.line, 6);
