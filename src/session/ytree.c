@@ -212,7 +212,31 @@ struct ytree_build {
 	struct ytree *tree;
 	struct ynode *stack[YTREE_MAX_DEPTH + 1];
 	size_t depth;
+	/* turning libyaml's marks (characters counted after a byte order
+	 * mark) into byte offsets: the text and a cursor that walks it */
+	const char *buf;
+	size_t len, base;          /* BASE: bytes of the byte order mark */
+	size_t cur_index, cur_byte;
 };
+
+/* The byte offset in the text of the character at INDEX. */
+static size_t ytree_byte_of(struct ytree_build *b, size_t index)
+{
+	const unsigned char *t = (const unsigned char *)b->buf;
+	while (b->cur_index < index && b->cur_byte < b->len) {
+		b->cur_byte++;
+		while (b->cur_byte < b->len && (t[b->cur_byte] & 0xc0) == 0x80)
+			b->cur_byte++;
+		b->cur_index++;
+	}
+	while (b->cur_index > index && b->cur_byte > b->base) {
+		b->cur_byte--;
+		while (b->cur_byte > b->base && (t[b->cur_byte] & 0xc0) == 0x80)
+			b->cur_byte--;
+		b->cur_index--;
+	}
+	return b->cur_byte;
+}
 
 /* Create a node of TYPE at MARK and attach it to the open collection. */
 static struct ynode *ytree_add(struct ytree_build *b, enum ynode_type type,
@@ -233,6 +257,8 @@ static struct ynode *ytree_add(struct ytree_build *b, enum ynode_type type,
 	n->type = type;
 	n->line = (unsigned)mark.line + 1;
 	n->col = (unsigned)mark.column + 1;
+	n->off = ytree_byte_of(b, mark.index);
+	n->end = n->off;
 	if (b->depth == 0) {
 		b->tree->root = n;
 	} else if (ynode_append(b->stack[b->depth - 1], n) != 0) {
@@ -336,6 +362,16 @@ static int ytree_event(struct ytree_build *b, const yaml_event_t *ev)
 		n->text[ev->data.scalar.length] = '\0';
 		n->len = ev->data.scalar.length;
 		n->plain = ev->data.scalar.style == YAML_PLAIN_SCALAR_STYLE;
+		switch (ev->data.scalar.style) {
+		case YAML_SINGLE_QUOTED_SCALAR_STYLE: n->style = YSTYLE_SINGLE; break;
+		case YAML_DOUBLE_QUOTED_SCALAR_STYLE: n->style = YSTYLE_DOUBLE; break;
+		case YAML_LITERAL_SCALAR_STYLE: n->style = YSTYLE_LITERAL; break;
+		case YAML_FOLDED_SCALAR_STYLE: n->style = YSTYLE_FOLDED; break;
+		case YAML_ANY_SCALAR_STYLE:
+		case YAML_PLAIN_SCALAR_STYLE:
+		default: n->style = YSTYLE_PLAIN; break;
+		}
+		n->end = ytree_byte_of(b, ev->end_mark.index);
 		return 0;
 	case YAML_SEQUENCE_START_EVENT:
 	case YAML_MAPPING_START_EVENT: {
@@ -362,13 +398,24 @@ static int ytree_event(struct ytree_build *b, const yaml_event_t *ev)
 		n = ytree_add(b, map ? YNODE_MAPPING : YNODE_SEQUENCE, ev->start_mark);
 		if (n == NULL)
 			return -1;
+		bool flow = map ? ev->data.mapping_start.style == YAML_FLOW_MAPPING_STYLE
+		                : ev->data.sequence_start.style == YAML_FLOW_SEQUENCE_STYLE;
+		n->style = flow ? YSTYLE_FLOW : YSTYLE_BLOCK;
 		b->stack[b->depth++] = n;
 		return 0;
 	}
 	case YAML_SEQUENCE_END_EVENT:
 	case YAML_MAPPING_END_EVENT:
-		if (b->depth > 0)
-			b->depth--;
+		if (b->depth > 0) {
+			/* a flow collection ends after its bracket; a block one
+			 * where its last child ends (its end event comes at the
+			 * next token, past any comments) */
+			n = b->stack[--b->depth];
+			if (n->style == YSTYLE_FLOW)
+				n->end = ytree_byte_of(b, ev->end_mark.index);
+			else if (n->nkids > 0)
+				n->end = n->kids[n->nkids - 1]->end;
+		}
 		return 0;
 	case YAML_NO_EVENT:
 	default:
@@ -392,16 +439,25 @@ enum session_status ytree_parse(const char *name, const char *buf, size_t len,
 		ytree_error_at(err, name, 0, 0, "", "out of memory while reading");
 		return SESSION_IO_ERROR;
 	}
-	/* Session files are UTF-8; no guessing of UTF-16 from a byte order mark. */
+	/*
+	 * Session files are UTF-8; no guessing of UTF-16 from a byte order
+	 * mark.  A UTF-8 one (some editors write it) is passed over here: with
+	 * the encoding set, libyaml would read it as a character in column 0
+	 * and put the first key out of line with the rest.
+	 */
+	size_t bom = len >= 3 && memcmp(buf, "\xef\xbb\xbf", 3) == 0 ? 3 : 0;
 	yaml_parser_set_encoding(&p, YAML_UTF8_ENCODING);
-	yaml_parser_set_input_string(&p, (const unsigned char *)buf, len);
+	yaml_parser_set_input_string(&p, (const unsigned char *)buf + bom, len - bom);
 
-	struct ytree_build b = { .name = name, .err = err, .tree = t };
+	/* libyaml's marks count characters from the first byte it reads */
+	struct ytree_build b = { .name = name, .err = err, .tree = t,
+	                         .buf = buf, .len = len, .base = bom,
+	                         .cur_byte = bom };
 	int rc = 0;
 	while (rc == 0) {
 		yaml_event_t ev;
 		if (!yaml_parser_parse(&p, &ev)) {
-			ytree_parser_error(&p, name, buf, len, err);
+			ytree_parser_error(&p, name, buf + bom, len - bom, err);
 			rc = p.error == YAML_MEMORY_ERROR ? -2 : -1;
 			break;
 		}

@@ -21,6 +21,17 @@
 
 enum ynode_type { YNODE_SCALAR, YNODE_MAPPING, YNODE_SEQUENCE };
 
+/* How a node was written: a scalar's quoting, a collection's form. */
+enum ynode_style {
+	YSTYLE_PLAIN,              /* scalar without quotes */
+	YSTYLE_SINGLE,             /* 'scalar' */
+	YSTYLE_DOUBLE,             /* "scalar" */
+	YSTYLE_LITERAL,            /* | block scalar */
+	YSTYLE_FOLDED,             /* > block scalar */
+	YSTYLE_BLOCK,              /* a collection in block form (indented lines) */
+	YSTYLE_FLOW,               /* a collection in flow form: [ ] or { } */
+};
+
 /* One node.  A mapping's children alternate key, value. */
 struct ynode {
 	enum ynode_type type;
@@ -28,6 +39,14 @@ struct ynode {
 	char *text;                /* scalar text (NUL-terminated), else NULL */
 	size_t len;                /* scalar length in bytes */
 	bool plain;                /* scalar written without quotes or block */
+	enum ynode_style style;
+	/*
+	 * Byte offsets of the node in the parsed text: where it starts and
+	 * where its last character ends (a quoted scalar with its quotes, a
+	 * flow collection with its closing bracket, a block collection at the
+	 * end of its last child).  What session_text patches in place.
+	 */
+	size_t off, end;
 	struct ynode **kids;       /* children (mapping: key, value, ...) */
 	size_t nkids;
 	size_t cap;

@@ -53,7 +53,8 @@ int app_init(struct app *a, const struct tui_options *opt, char *err,
 	}
 	if (opt->path != NULL) {
 		struct session_error serr;
-		enum session_status ss = session_load_file(&a->s, opt->path, &serr);
+		enum session_status ss = session_load_file_text(&a->s, opt->path,
+		                                                &a->text, &serr);
 		if (ss != SESSION_OK) {
 			session_error_format(&serr, err, errlen);
 			stepper_destroy(a->st);
@@ -75,6 +76,7 @@ void app_fini(struct app *a)
 	stepper_destroy(a->st);
 	a->st = NULL;
 	session_fini(&a->s);
+	session_text_fini(&a->text);
 	free(a->path);
 	a->path = NULL;
 }
@@ -249,7 +251,29 @@ void app_ask_save_as(struct app *a, const char *initial, const char *error)
 	app_ask(a, NULL, APP_ASK_SAVE_AS, false, "save as: ", initial, error);
 }
 
-/* Save to PATH or the session's own file. */
+/* True when PATH is the own file and changed since it was read. */
+bool app_changed_on_disk(const struct app *a, const char *path)
+{
+	return a->text.buf != NULL && app_is_own_file(a, path) &&
+	       session_text_matches_file(&a->text, path) == 0;
+}
+
+/* Ask before replacing PATH. */
+void app_ask_overwrite(struct app *a, const char *path, const char *typed,
+                       bool own)
+{
+	snprintf(a->pending, sizeof a->pending, "%s", path);
+	snprintf(a->pending_typed, sizeof a->pending_typed, "%.255s", typed);
+	char q[1100];
+	if (own)
+		snprintf(q, sizeof q, "%.1000s changed on disk since it was read: "
+		         "replace it with this session? (y/N) ", path);
+	else
+		snprintf(q, sizeof q, "%.1000s exists: replace it? (y/N) ", path);
+	app_ask(a, NULL, APP_ASK_OVERWRITE, true, q, NULL, NULL);
+}
+
+/* Save to PATH or the session's own file, keeping the file's text. */
 int app_save(struct app *a, const char *path)
 {
 	const char *target = path != NULL ? path : a->path;
@@ -258,7 +282,9 @@ int app_save(struct app *a, const char *path)
 		return -1;
 	}
 	struct session_error serr;
-	enum session_status ss = session_save_file(&a->s, target, &serr);
+	struct session_save_report rep;
+	enum session_status ss = session_save_keeping_text(&a->s, &a->text, target,
+	                                                   &rep, &serr);
 	if (ss != SESSION_OK) {
 		char msg[1024];
 		session_error_format(&serr, msg, sizeof msg);
@@ -277,7 +303,26 @@ int app_save(struct app *a, const char *path)
 		recovery_remove(a->path, rerr, sizeof rerr);
 	}
 	a->dirty = false;
-	app_message(a, false, "saved %s", target);
+	const char *base = strrchr(a->path, '/');
+	base = base != NULL ? base + 1 : a->path;
+	size_t n = rep.changed + rep.inserted + rep.removed;
+	switch (rep.how) {
+	case SESSION_SAVED_PATCHED:
+		app_message(a, false, "saved %s: %zu value%s rewritten, the rest "
+		            "kept as written", base, n, n == 1 ? "" : "s");
+		break;
+	case SESSION_SAVED_UNCHANGED:
+		app_message(a, false, "saved %s (nothing had changed)", base);
+		break;
+	case SESSION_SAVED_CANONICAL:
+		app_message(a, true, "saved %s in standard form (comments below "
+		            "the top are lost): %s", base, rep.why);
+		break;
+	case SESSION_SAVED_NEW:
+	default:
+		app_message(a, false, "saved %s", base);
+		break;
+	}
 	return 0;
 }
 
@@ -395,12 +440,9 @@ static unsigned app_save_as(struct app *a, const char *typed)
 			app_ask_save_as(a, typed, why);
 			return APP_HANDLED | APP_REDRAW;
 		}
-		if (!app_is_own_file(a, path)) {
-			snprintf(a->pending, sizeof a->pending, "%s", path);
-			snprintf(a->pending_typed, sizeof a->pending_typed, "%.255s", typed);
-			char q[1100];
-			snprintf(q, sizeof q, "%.1000s exists: replace it? (y/N) ", path);
-			app_ask(a, NULL, APP_ASK_OVERWRITE, true, q, NULL, NULL);
+		bool own = app_is_own_file(a, path);
+		if (!own || app_changed_on_disk(a, path)) {
+			app_ask_overwrite(a, path, typed, own);
 			return APP_HANDLED | APP_REDRAW;
 		}
 	}

@@ -19,6 +19,7 @@
 #include "core/stepper.h"
 #include "render/render.h"
 #include "session/session.h"
+#include "session/session_text.h"
 #include "tui/pane.h"
 #include "tui/params.h"
 #include "tui/term.h"
@@ -61,6 +62,8 @@ struct app {
 	struct tui_options opt;
 	struct session s;
 	char *path;             /* the session's file (owned), NULL for the demo */
+	struct session_text text; /* the file's text as read or last saved:
+	                           a save changes only what changed in it */
 	bool dirty;             /* changes not saved */
 
 	struct problem pb;
@@ -172,6 +175,19 @@ int app_expand_path(const char *in, char *out, size_t n);
 
 /* True when PATH names the same existing file as the session's own. */
 bool app_is_own_file(const struct app *a, const char *path);
+
+/*
+ * True when PATH is the session's own file and it no longer holds the text
+ * the session was read from (or last saved as): someone changed it since.
+ */
+bool app_changed_on_disk(const struct app *a, const char *path);
+
+/*
+ * Ask before replacing PATH (TYPED as the user typed it): the session's own
+ * file changed on disk (OWN), or another existing file.
+ */
+void app_ask_overwrite(struct app *a, const char *path, const char *typed,
+                       bool own);
 
 /* Step the path once; the status line says why when it cannot move. */
 void app_step(struct app *a);

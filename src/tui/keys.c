@@ -131,6 +131,10 @@ static unsigned key_save(struct app *a)
 		app_ask_save_as(a, "", NULL);
 		return APP_HANDLED | APP_REDRAW;
 	}
+	if (app_changed_on_disk(a, a->path)) {
+		app_ask_overwrite(a, a->path, a->path, true);
+		return APP_HANDLED | APP_REDRAW;
+	}
 	if (app_save(a, NULL) != 0) {
 		char why[sizeof a->status];
 		snprintf(why, sizeof why, "%s", a->status);

@@ -125,8 +125,9 @@ static unsigned pane_plot_key(struct app *a, void *self, int key)
 	default:
 		return 0;
 	}
-	/* The session keeps the zoom: a save writes it. */
-	a->s.view.zoom = v->zoom;
+	/* Zoom, pan and frame are how the user looks, not the case: like the
+	 * pan they stay out of the session, so a save does not change the
+	 * file for them (the session's view: section only sets the start). */
 	p->valid = false;
 	return APP_HANDLED | APP_REDRAW;
 }

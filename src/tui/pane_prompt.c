@@ -72,7 +72,24 @@ static void pane_prompt_draw(struct app *a, void *self, const struct rect *box)
 	if (!p->open) {
 		const char *msg = a->status[0] != '\0' ? a->status
 		                  : "Space step  g run  b back  o order  e edit  ? help  q quit";
-		term_text(&a->term, row, 0, msg, cols, a->status_error ? TS_ERROR : TS_DIM);
+		/* an error is read whole: it wraps upwards over three lines */
+		const char *ls[3];
+		size_t ln[3];
+		int n = a->status_error ? pane_prompt_wrap(msg, cols, ls, ln, 3) : 1;
+		if (n == 1) {
+			term_text(&a->term, row, 0, msg, cols,
+			          a->status_error ? TS_ERROR : TS_DIM);
+			return;
+		}
+		char line[sizeof a->status];
+		for (int k = 0; k < n; k++) {
+			int r = row - (n - 1) + k;
+			if (r < 0)
+				continue;
+			snprintf(line, sizeof line, "%.*s", (int)ln[k], ls[k]);
+			term_fill(&a->term, r, 0, cols, TS_NORMAL);
+			term_text(&a->term, r, 0, line, cols, TS_ERROR);
+		}
 		return;
 	}
 	size_t ll = strlen(p->label);
