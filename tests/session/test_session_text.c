@@ -773,7 +773,8 @@ static char *gen_text(uint64_t *st)
 	if (rng_chance(st, 0.5))
 		gen_word(top, &nt, "format_version", "1");
 	/* the source */
-	if (rng_chance(st, 0.7)) {
+	bool thevenin = rng_chance(st, 0.7);
+	if (thevenin) {
 		gen_value(st, sub, &ns, "vs", 1 + (long)rng_below(st, 480), -1, QTY_VOLTAGE);
 		gen_value(st, sub, &ns, "rs", 10 + (long)rng_below(st, 90),
 		          (int)rng_below(st, 5), QTY_RESISTANCE);
@@ -871,7 +872,8 @@ static char *gen_text(uint64_t *st)
 		char b[64];
 		snprintf(b, sizeof b, "%zu%s%%", 1 + rng_below(st, 20),
 		         rng_chance(st, 0.5) ? " " : "");
-		gen_word(sub, &ns, "vs", b);
+		/* a tolerance on the source's own first value */
+		gen_word(sub, &ns, thevenin ? "vs" : "is", b);
 		if (rng_chance(st, 0.5)) {
 			snprintf(b, sizeof b, "{plus_minus: %zu%%, distribution: normal}",
 			         1 + rng_below(st, 9));
