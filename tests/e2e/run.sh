@@ -520,6 +520,13 @@ resize)
 		fi
 		wait_gone "terminal too small"
 		wait_for "I^ V>"
+		# the old frame stays on screen until the new one is drawn: poll
+		for ((k = 0; k < 100; k++)); do
+			screen | grep -qE '^ *[0-9.]+ [munp]?A\+' &&
+				screen | grep -qE '\+-+\+' &&
+				table_rows | grep -qE '^ *3 ' && break
+			sleep 0.1
+		done
 		screen | grep -qE '^ *[0-9.]+ [munp]?A\+' || fail "no current axis at $size"
 		screen | grep -qE '\+-+\+' || fail "no voltage axis at $size"
 		wait_for "Convergence"
