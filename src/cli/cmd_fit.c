@@ -25,6 +25,7 @@
 #include "core/fit.h"
 #include "core/models/models.h"
 #include "session/points_file.h"
+#include "session/session_text.h"
 
 /* Output formats. */
 enum fit_format { FIT_TEXT, FIT_CSV, FIT_YAML };
@@ -39,6 +40,7 @@ struct fit_args {
 	enum fit_weight weight;
 	enum fit_format format;
 	bool residuals;
+	bool into;              /* write the fit into SESSION */
 };
 
 /* Print the usage of `fit` to OUT. */
@@ -48,6 +50,7 @@ static void fit_usage(FILE *out)
 	fit_model_list(models, sizeof models);
 	fprintf(out,
 	        "Usage: biasline fit --model MODEL --points FILE [OPTIONS] [SESSION]\n"
+	        "       biasline fit --model MODEL --points FILE --into SESSION\n"
 	        "\n"
 	        "Fit a device model's parameters to measured points by least\n"
 	        "squares (Levenberg-Marquardt) and print each parameter with its\n"
@@ -80,6 +83,11 @@ static void fit_usage(FILE *out)
 	        "                        yaml (a device: section ready to use)\n"
 	        "  -r, --residuals       with --format csv: the points with their\n"
 	        "                        fitted values and residuals instead\n"
+	        "  -i, --into            write the fitted device into SESSION,\n"
+	        "                        keeping the file's own text (comments,\n"
+	        "                        units, order) and recording the fit's\n"
+	        "                        points file, RMS error and date in a\n"
+	        "                        comment above device:\n"
 	        "  -h, --help            show this help and exit\n"
 	        "  -V, --version         show the version and exit\n"
 	        "\n"
@@ -89,7 +97,8 @@ static void fit_usage(FILE *out)
 	        models);
 	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
 	                                        EXIT_DATA, EXIT_NO_INPUT,
-	                                        EXIT_SOFTWARE, EXIT_IO };
+	                                        EXIT_SOFTWARE, EXIT_CANT_CREATE,
+	                                        EXIT_IO };
 	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
 
@@ -103,6 +112,7 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 		{ "weight", required_argument, NULL, 'w' },
 		{ "format", required_argument, NULL, 'f' },
 		{ "residuals", no_argument, NULL, 'r' },
+		{ "into", no_argument, NULL, 'i' },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -112,7 +122,7 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 	opterr = 0;
 	*code = EXIT_USAGE;
 	int c;
-	while ((c = getopt_long(argc, argv, ":m:p:x:w:f:rhV", opts, NULL)) != -1) {
+	while ((c = getopt_long(argc, argv, ":m:p:x:w:f:rihV", opts, NULL)) != -1) {
 		switch (c) {
 		case 'm':
 			a->model = optarg;
@@ -155,6 +165,9 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 		case 'r':
 			a->residuals = true;
 			break;
+		case 'i':
+			a->into = true;
+			break;
 		case 'h':
 			fit_usage(stdout);
 			*code = EXIT_OK_CODE;
@@ -188,6 +201,11 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 	if (a->points == NULL && a->session == NULL) {
 		fprintf(stderr, "biasline fit: --points is required without a "
 		        "SESSION (try --help)\n");
+		return -1;
+	}
+	if (a->into && a->session == NULL) {
+		fprintf(stderr, "biasline fit: --into needs the SESSION to write "
+		        "into (try --help)\n");
 		return -1;
 	}
 	if (a->residuals && a->format != FIT_CSV) {
@@ -593,6 +611,178 @@ static void fit_print_refusal(const struct fit_result *res,
 		fprintf(stderr, "biasline fit: hold a parameter with --fix KEY=VALUE\n");
 }
 
+/* The three comment lines that record a fit (file, date, weighting, RMS
+ * error, N, degrees of freedom) into BUF. */
+static void fit_record(const struct fit_result *res, const struct fit_input *in,
+                       char *buf, size_t n)
+{
+	char date[32], rms[300];
+	fit_date(date, sizeof date);
+	fit_rms_text(res, rms, sizeof rms);
+	int o = snprintf(buf, n, "# fitted by biasline fit on %s to %zu point%s "
+	                 "of %s,\n# %s;\n# %s; N = %zu, %d degree%s of freedom\n",
+	                 date, res->n, res->n == 1 ? "" : "s", in->source,
+	                 fit_weight_text(res), rms, res->n, res->dof,
+	                 res->dof == 1 ? "" : "s");
+	if (res->dof <= 0 || o < 0 || (size_t)o >= n)
+		return;
+	size_t at = (size_t)o;
+	at += (size_t)snprintf(buf + at, n - at, "# standard errors:");
+	for (size_t j = 0; j < res->nfree && at < n; j++) {
+		const struct model_param *mp = &res->type->params[res->idx[j]];
+		char e[48];
+		at += (size_t)snprintf(buf + at, n - at, "%s %s %s", j ? "," : "",
+		                       mp->key, cli_fmt(e, sizeof e, res->se[j],
+		                                        mp->kind, 2));
+	}
+	if (at < n)
+		snprintf(buf + at, n - at, "\n");
+}
+
+/* VALUE to the digits shown beside standard error SE (fit_digits): what
+ * a session should keep of a fitted number. */
+static double fit_round(double value, double se)
+{
+	char b[48];
+	snprintf(b, sizeof b, "%.*g", fit_digits(value, se), value);
+	return strtod(b, NULL);
+}
+
+/* True when the LEN bytes at S start with PREFIX. */
+static bool fit_starts(const char *s, size_t len, const char *prefix)
+{
+	size_t n = strlen(prefix);
+	return len >= n && memcmp(s, prefix, n) == 0;
+}
+
+/*
+ * Put the fit's record RECORD in the comments right above the top-level
+ * device: line of TEXT, in place of an earlier record there.  Only
+ * comments change, so the text still reads as the same session.  Returns
+ * 1 done, 0 no device: line to put it above, -1 out of memory.
+ */
+static int fit_put_record(struct session_text *text, const char *record)
+{
+	const char *b = text->buf;
+	size_t len = text->len, dev = SIZE_MAX;
+	for (size_t at = 0; at < len;) {
+		const char *nl = memchr(b + at, '\n', len - at);
+		size_t ll = nl != NULL ? (size_t)(nl - (b + at)) : len - at;
+		if (fit_starts(b + at, ll, "device")) {
+			size_t k = 6;
+			while (k < ll && (b[at + k] == ' ' || b[at + k] == '\t'))
+				k++;
+			if (k < ll && b[at + k] == ':') {
+				dev = at;
+				break;
+			}
+		}
+		at += ll + (nl != NULL);
+	}
+	if (dev == SIZE_MAX)
+		return 0;
+	/* an earlier record: the comment lines from "# fitted by biasline
+	 * fit" down to device: (walking up while the lines are comments) */
+	size_t from = dev;
+	for (size_t end = dev; end > 0;) {
+		size_t ls = end - 1;   /* the '\n' ending the line above */
+		while (ls > 0 && b[ls - 1] != '\n')
+			ls--;
+		size_t ll = end - ls;
+		if (!fit_starts(b + ls, ll, "# "))
+			break;
+		if (fit_starts(b + ls, ll, "# fitted by biasline fit ")) {
+			from = ls;
+			break;
+		}
+		end = ls;
+	}
+	size_t rl = strlen(record);
+	size_t nlen = from + rl + (len - dev);
+	char *nb = malloc(nlen + 1);
+	if (nb == NULL)
+		return -1;
+	memcpy(nb, b, from);
+	memcpy(nb + from, record, rl);
+	memcpy(nb + from + rl, b + dev, len - dev);
+	nb[nlen] = '\0';
+	char *name = text->name;
+	text->name = NULL;
+	int rc = session_text_set(text, name, nb, nlen);
+	free(name);
+	free(nb);
+	return rc == 0 ? 1 : -1;
+}
+
+/*
+ * Write the fitted device of RES into the session SE read from PATH with
+ * TEXT, keeping the user's text.  Returns the exit status.
+ */
+static int fit_write_into(struct session *se, struct session_text *text,
+                          const char *path, const struct fit_result *res,
+                          const struct fit_input *in)
+{
+	const struct model_type *t = res->type;
+	for (size_t i = 0; i < t->nparams; i++)
+		if (isnan(res->p[i])) {
+			fprintf(stderr, "biasline fit: not written into %s: the %s model "
+			        "needs %s, which the points do not give; hold it with "
+			        "--fix %s=VALUE\n", path, t->name, t->params[i].key,
+			        t->params[i].key);
+			return EXIT_DATA;
+		}
+	struct device dev;
+	device_init(&dev, t);
+	memcpy(dev.p, res->p, sizeof dev.p);
+	for (size_t j = 0; j < res->nfree; j++)
+		dev.p[res->idx[j]] = fit_round(res->p[res->idx[j]], res->se[j]);
+	char why[512];
+	if (device_validate(&dev, why, sizeof why) != 0) {
+		fprintf(stderr, "biasline fit: not written into %s: %s\n", path, why);
+		return EXIT_DATA;
+	}
+	bool was_points = se->device.type != t && se->curve != NULL;
+	se->device = dev;   /* a measured device's table stays owned by SE */
+	char record[1400];
+	fit_record(res, in, record, sizeof record);
+	int put = fit_put_record(text, record);
+	if (put < 0) {
+		fprintf(stderr, "biasline fit: out of memory\n");
+		return EXIT_SOFTWARE;
+	}
+	struct session_error err;
+	struct session_save_report rep;
+	enum session_status st = session_save_keeping_text(se, text, path, &rep,
+	                                                   &err);
+	if (st != SESSION_OK) {
+		char msg[1024];
+		session_error_format(&err, msg, sizeof msg);
+		fprintf(stderr, "biasline fit: not written into %s: %s\n", path, msg);
+		return (int)cli_exit_from_session(st);
+	}
+	size_t n = rep.changed + rep.inserted + rep.removed;
+	switch (rep.how) {
+	case SESSION_SAVED_CANONICAL:
+		fprintf(stderr, "biasline fit: %s written in standard form (comments "
+		        "below the top are lost): %s\n", path, rep.why);
+		break;
+	case SESSION_SAVED_UNCHANGED:
+		fprintf(stderr, "biasline fit: %s already held this device\n", path);
+		break;
+	default:
+		fprintf(stderr, "biasline fit: wrote the %s device into %s: %zu "
+		        "value%s rewritten, the rest kept as written%s\n", t->name,
+		        path, n, n == 1 ? "" : "s",
+		        put ? "; the fit's record is in a comment above device:"
+		            : "");
+		break;
+	}
+	if (was_points)
+		fprintf(stderr, "biasline fit: the session's measured points are "
+		        "no longer its device; the points file keeps them\n");
+	return EXIT_OK_CODE;
+}
+
 /* Entry point of `biasline fit`. */
 int cmd_fit(int argc, char **argv)
 {
@@ -601,10 +791,14 @@ int cmd_fit(int argc, char **argv)
 	if (fit_parse_args(argc, argv, &a, &code) != 0)
 		return code;
 	struct session se;
+	struct session_text text;
+	session_text_init(&text);
 	bool have_session = false;
 	if (a.session != NULL) {
 		struct session_error err;
-		enum session_status ls = session_load_file(&se, a.session, &err);
+		enum session_status ls =
+			a.into ? session_load_file_text(&se, a.session, &text, &err)
+			       : session_load_file(&se, a.session, &err);
 		if (ls != SESSION_OK) {
 			char msg[1024];
 			session_error_format(&err, msg, sizeof msg);
@@ -626,6 +820,7 @@ int cmd_fit(int argc, char **argv)
 		        a.model != NULL ? "" : " (give one with --model)", models);
 		if (have_session)
 			session_fini(&se);
+		session_text_fini(&text);
 		return EXIT_USAGE;
 	}
 	struct fit_request rq = { .type = type, .weight = a.weight };
@@ -638,6 +833,7 @@ int cmd_fit(int argc, char **argv)
 		if (fit_apply_fix(a.fix[k], &rq) != 0) {
 			if (have_session)
 				session_fini(&se);
+			session_text_fini(&text);
 			return EXIT_USAGE;
 		}
 
@@ -647,6 +843,7 @@ int cmd_fit(int argc, char **argv)
 		if (code != 0) {
 			if (have_session)
 				session_fini(&se);
+			session_text_fini(&text);
 			return code;
 		}
 	} else if (se.curve != NULL && fit_model_axes(type) == FIT_AXES_VI) {
@@ -659,6 +856,7 @@ int cmd_fit(int argc, char **argv)
 		        "(a measured device's points: or points_file:); give "
 		        "--points FILE\n", a.session);
 		session_fini(&se);
+		session_text_fini(&text);
 		return EXIT_USAGE;
 	}
 	rq.n = in.n;
@@ -680,7 +878,10 @@ int cmd_fit(int argc, char **argv)
 	} else {
 		fit_print_text(&res, &in, rq.fixed);
 	}
+	if (code == EXIT_OK_CODE && a.into)
+		code = fit_write_into(&se, &text, a.session, &res, &in);
 	fit_result_fini(&res);
+	session_text_fini(&text);
 	if (a.points != NULL)
 		points_table_fini(&in.table);
 	if (have_session)

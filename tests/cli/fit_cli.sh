@@ -164,6 +164,63 @@ expect_exit 64 "$bl" fit --model diode --points "$tmp/two.csv" --fix ideality=-1
 expect_exit 64 "$bl" fit --model diode --points "$tmp/two.csv" --weight loud
 expect_exit 64 "$bl" fit --points "$tmp/two.csv"
 
+# --into writes the fitted device into the session and keeps its text:
+# every line of the original is still there, in order; the fit's record
+# sits above device:; a second fit replaces the record, not adds to it.
+cat >"$tmp/panel.yaml" <<'YAML'
+# Panel indicator, board rev B
+format_version: 1
+source:
+  vs: 12 V      # the panel rail
+  rs: 680       # R14
+# the LED as first typed from a catalogue
+device:
+  model: led
+  preset: amber
+  test_current: 20m   # as the catalogue states it
+notes: |
+  Check R14's power at 13.8 V.
+YAML
+cp "$tmp/panel.yaml" "$tmp/panel0.yaml"
+expect_exit 0 "$bl" fit --model led --points "$samples/amber-panel-led.csv" --into "$tmp/panel.yaml"
+expect_text "$tmp/err" "wrote the led device into $tmp/panel.yaml: 3 values rewritten, the rest kept as written"
+n=$((n + 1))
+if diff "$tmp/panel0.yaml" "$tmp/panel.yaml" | grep -q '^<'; then
+	echo "not ok $n - --into removed or changed a line of the user's text"
+	diff "$tmp/panel0.yaml" "$tmp/panel.yaml"; fails=$((fails + 1))
+else
+	echo "ok $n - --into only added lines to the user's text"
+fi
+expect_text "$tmp/panel.yaml" "# fitted by biasline fit on 2026-12-03 to 11 points of $samples/amber-panel-led.csv,"
+expect_text "$tmp/panel.yaml" "# standard errors: forward_voltage 1.6 mV, ideality 0.031, series_resistance 170 mohm"
+expect_text "$tmp/panel.yaml" "  forward_voltage: 2.0484"
+# the session now solves as the fitted device does
+expect_exit 0 "$bl" solve --format csv "$tmp/panel.yaml"
+expect_text "$tmp/out" "1,1.99224"
+expect_exit 0 "$bl" fit --model led --points "$samples/amber-panel-led.csv" --fix series_resistance=7 --into "$tmp/panel.yaml"
+expect_awk "$tmp/panel.yaml" '/^# fitted by biasline fit/ { k++ } /^  series_resistance: 7$/ { r = 1 }
+	END { exit !(k == 1 && r) }' "a second fit replaces the record and the values"
+# a measured session fitted by a model becomes that model's device
+cp "$samples/measured-diode-curve.yaml" "$tmp/m.yaml"
+expect_exit 0 "$bl" fit --model diode --fix series_resistance=0 --into "$tmp/m.yaml"
+expect_text "$tmp/err" "the session's measured points are no longer its device"
+expect_exit 0 "$bl" check "$tmp/m.yaml"
+expect_text "$tmp/m.yaml" "  model: diode"
+# refused, and the file untouched: no SESSION; a key the points cannot
+# give; a read-only file
+expect_exit 64 "$bl" fit --model led --points "$samples/amber-panel-led.csv" --into
+printf 'source:\n  vs: 5\n  rs: 1k\ndevice:\n  model: diode\n  saturation_current: 1e-14\n  ideality: 1\n' >"$tmp/th.yaml"
+cp "$tmp/th.yaml" "$tmp/th0.yaml"
+expect_exit 65 "$bl" fit --model thermistor --points "$tmp/r.csv" --into "$tmp/th.yaml"
+expect_text "$tmp/err" "needs dissipation_constant, which the points do not give; hold it with --fix dissipation_constant=VALUE"
+expect_exit 0 cmp "$tmp/th.yaml" "$tmp/th0.yaml"
+chmod 444 "$tmp/th.yaml"
+expect_exit 73 "$bl" fit --model thermistor --points "$tmp/r.csv" --fix dissipation_constant=2m --into "$tmp/th.yaml"
+expect_exit 0 cmp "$tmp/th.yaml" "$tmp/th0.yaml"
+chmod 644 "$tmp/th.yaml"
+expect_exit 0 "$bl" fit --model thermistor --points "$tmp/r.csv" --fix dissipation_constant=2m --into "$tmp/th.yaml"
+expect_text "$tmp/th.yaml" "  model: thermistor"
+
 # Every choice the bash completion offers for fit's --format and --weight
 # is one fit accepts.
 if command -v bash >/dev/null 2>&1; then
