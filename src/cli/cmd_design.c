@@ -338,7 +338,8 @@ static void design_print_worst(const struct problem *pb,
 	printf("\n  worst case over the tolerances (every corner of the box)\n");
 	printf("  %-7s %-13s %-12s %-12s %-12s %-12s %-14s %s\n", "",
 	       part ? "value" : for_rs ? "RS" : "VS", "I nominal", "I min",
-	       "I max", part ? "" : "P(RS) max", "verdict", "fits");
+	       "I max", part ? "P(part) max" : "P(RS) max", "verdict", "fits");
+	bool rated = false;
 	for (size_t k = 0; k < res->nrows; k++) {
 		const struct design_row *r = &res->rows[k];
 		const struct design_worst *w = &r->worst;
@@ -351,15 +352,19 @@ static void design_print_worst(const struct problem *pb,
 			       w->message[0] ? w->message : "no operating point");
 			continue;
 		}
+		/* A part without a resistor of its own has no power to rate. */
+		bool has = !isnan(w->p_resistor_max);
+		rated = rated || has;
 		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %-14s %s\n",
 		       design_row_name(r->kind), a,
 		       cli_fmt(b, sizeof b, r->pt.i, QTY_CURRENT, 5),
 		       cli_fmt(c, sizeof c, w->i_min, QTY_CURRENT, 5),
 		       cli_fmt(d, sizeof d, w->i_max, QTY_CURRENT, 5),
-		       part ? "" : cli_fmt(e, sizeof e, w->p_resistor_max, QTY_POWER, 4),
+		       has ? cli_fmt(e, sizeof e, w->p_resistor_max, QTY_POWER, 4)
+		           : "-",
 		       ratings_verdict_name(w->verdict),
-		       part || isnan(w->suggested_resistor_power)
-		           ? (part ? "" : "-")
+		       !has || isnan(w->suggested_resistor_power)
+		           ? "-"
 		           : cli_fmt(f, sizeof f, w->suggested_resistor_power,
 		                     QTY_POWER, 3));
 	}
@@ -373,8 +378,10 @@ static void design_print_worst(const struct problem *pb,
 		       r->worst.words);
 	}
 	if (part)
-		printf("  (the source is a network: check each resistor with "
-		       "'biasline reduce --nodes')\n");
+		printf("  (the source is a network: %s'biasline reduce --nodes' "
+		       "shows every part at a point)\n",
+		       rated ? "the designed resistor is rated over the corners; "
+		             : "");
 }
 
 /* Print the result as text; returns the safety flags of all rows. */

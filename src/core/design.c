@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "network.h"
 #include "verdict.h"
 
 /* Row kind name. */
@@ -579,8 +580,52 @@ static void design_mark_nearest(struct design_result *out)
 		out->rows[out->nearest].nearest = true;
 }
 
+/*
+ * The largest power in network part PART over the corners of C's box,
+ * following the point nearest V_NOM; NaN when a corner has no point.
+ */
+static double design_part_worst(const struct tol_case *c, size_t part,
+                                double v_nom)
+{
+	const char *name = network_part(c->pb.net, part)->name;
+	size_t ncorners = (size_t)1 << c->nitems;
+	double worst = -INFINITY;
+	for (size_t m = 0; m < ncorners; m++) {
+		struct problem q = c->pb;
+		for (size_t k = 0; k < c->nitems; k++) {
+			const struct tol_item *it = &c->items[k];
+			if (paramref_set(&q, &it->param,
+			                 (m >> k) & 1 ? it->hi : it->lo) != 0)
+				return NAN;
+		}
+		char why[8];
+		struct solve_result sr;
+		if (device_validate(&q.dev, why, sizeof why) != 0 ||
+		    solve_problem(&q, &c->opts, &sr) != SOLVE_OK || sr.n == 0)
+			return NAN;
+		size_t best = 0;
+		for (size_t k = 1; k < sr.n; k++)
+			if (fabs(sr.pts[k].v - v_nom) < fabs(sr.pts[best].v - v_nom))
+				best = k;
+		struct verdict vd;
+		verdict_at(&q, SOURCE_THEVENIN, sr.pts[best].v, sr.pts[best].i, NULL,
+		           NULL, &vd);
+		bool found = false;
+		for (size_t k = 0; k < vd.nlines; k++)
+			if (vd.lines[k].part == VERDICT_RESISTOR &&
+			    strcmp(vd.lines[k].name, name) == 0) {
+				worst = fmax(worst, vd.lines[k].value);
+				found = true;
+			}
+		if (!found)
+			return NAN;
+	}
+	return worst;
+}
+
 /* The worst case of one row. */
 int design_row_worst(const struct tol_case *c, const struct ratings *r,
+                     const struct design_request *rq,
                      struct design_worst *out)
 {
 	memset(out, 0, sizeof *out);
@@ -606,13 +651,22 @@ int design_row_worst(const struct tol_case *c, const struct ratings *r,
 	out->v_max = w.max[TOL_VOLTAGE].value;
 	out->p_device_max = fmax(fabs(w.min[TOL_DEVICE_POWER].value),
 	                         fabs(w.max[TOL_DEVICE_POWER].value));
-	/* A network's equivalent resistance is no part: nothing to rate. */
-	if (c->pb.net == NULL)
+	/* A network's equivalent resistance is no part: the designed
+	 * resistor of the network is rated instead, over the corners. */
+	const char *rname = c->form == SOURCE_NORTON ? "RP" : "RS";
+	if (c->pb.net == NULL) {
 		out->p_resistor_max = w.max[TOL_RESISTOR_POWER].value;
+	} else if (rq != NULL && rq->unknown == DESIGN_FOR_PART &&
+	           rq->part.kind == PARAMREF_NETWORK &&
+	           network_part(c->pb.net, (size_t)rq->part.index)->kind ==
+	                   NETWORK_RESISTOR) {
+		out->p_resistor_max = design_part_worst(c, (size_t)rq->part.index,
+		                                        w.nominal[TOL_VOLTAGE]);
+		rname = network_part(c->pb.net, (size_t)rq->part.index)->name;
+	}
 	struct verdict vd;
 	verdict_worst(out->p_device_max, fmax(fabs(out->i_min), fabs(out->i_max)),
-	              out->p_resistor_max,
-	              c->form == SOURCE_NORTON ? "RP" : "RS", r, &vd);
+	              out->p_resistor_max, rname, r, &vd);
 	out->verdict = vd.worst;
 	out->resistor_verdict = RATINGS_NO_RATING;
 	const struct verdict_line *shown = vd.nlines > 0 ? &vd.lines[0] : NULL;

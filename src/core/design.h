@@ -96,8 +96,9 @@ struct design_worst {
 	double i_min, i_max;       /* device current, A */
 	double v_min, v_max;       /* device voltage, V */
 	double p_device_max;       /* largest device power, W */
-	double p_resistor_max;     /* largest power in RS (RP), W; NaN for a
-	                              network source (no single resistor) */
+	double p_resistor_max;     /* largest power in RS (RP), or in the
+	                              designed resistor of a network source,
+	                              W; NaN when there is none */
 	double suggested_resistor_power; /* the standard rating that fits the
 	                              rule of thumb at worst (NaN: none) */
 	enum ratings_verdict resistor_verdict; /* RS against its rating */
@@ -183,11 +184,16 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 /*
  * The worst case of one row: C is the tolerance case built on the row's
  * problem (design_apply_request with the row's value, so a tolerance on
- * the designed part follows its new value), R (may be NULL) the ratings.
- * Fills OUT and returns 0, or -1 with the reason in OUT->message (no
- * tolerances, too many for the corners, no point at a corner).
+ * the designed part follows its new value), R (may be NULL) the ratings,
+ * RQ (may be NULL) the request.  For a plain source the resistor is RS
+ * (RP); for a network source whose designed part is a resistor, that part
+ * is rated, its largest power taken over the corners of the box (where an
+ * output monotone in each parameter has its extremes).  Fills OUT and
+ * returns 0, or -1 with the reason in OUT->message (no tolerances, too
+ * many for the corners, no point at a corner).
  */
 int design_row_worst(const struct tol_case *c, const struct ratings *r,
+                     const struct design_request *rq,
                      struct design_worst *out);
 
 /* The unit of a target of kind T: a current, a voltage or a power

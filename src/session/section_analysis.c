@@ -707,7 +707,7 @@ int session_design_worst(const struct session *s, const struct problem *pb,
 		/* The tolerances around the row's own value. */
 		if (session_tolerance_case(s, &q, &c, err, errlen) != 0)
 			return -1;
-		design_row_worst(&c, &s->analysis.ratings, &r->worst);
+		design_row_worst(&c, &s->analysis.ratings, rq, &r->worst);
 	}
 	return 0;
 }

@@ -595,7 +595,7 @@ static void test_design_worst_brute(void **state)
 			r.resistor_power = 0.5 * (res.rows[j].power.p_resistor +
 			                          mx[TOL_RESISTOR_POWER]);
 			struct design_worst w;
-			if (design_row_worst(&c, &r, &w) != 0)
+			if (design_row_worst(&c, &r, &rq, &w) != 0)
 				fail_msg("kind %zu row %zu: %s", k, j, w.message);
 			assert_true(w.done);
 			double got[4] = { w.i_min, w.i_max, w.p_resistor_max,
@@ -622,9 +622,95 @@ static void test_design_worst_brute(void **state)
 	struct tol_case c;
 	struct design_worst w;
 	tol_case_init(&c, &kinds[0].pb, SOURCE_THEVENIN, &o);
-	assert_int_equal(design_row_worst(&c, NULL, &w), -1);
+	assert_int_equal(design_row_worst(&c, NULL, NULL, &w), -1);
 	assert_false(w.done);
 	assert_non_null(strstr(w.message, "no tolerances"));
+}
+
+/*
+ * A network part's worst power: the divider of test_design_network_part
+ * with tolerances on its upper resistor, its rail and the diode; the
+ * designed resistor's largest power (E - V)^2 / R1 (Joule's law) over a
+ * grid of the box, each point solved, against design_row_worst.
+ */
+static void test_design_worst_part(void **state)
+{
+	(void)state;
+	const double e = 11.83, r1 = 3.37e3, r2 = 2.41e3;
+	struct network *net = network_create();
+	assert_non_null(net);
+	assert_true(network_add_part(net, "rail", NETWORK_VOLTAGE_SOURCE, e, "gnd",
+	                             "top") >= 0);
+	assert_true(network_add_part(net, "upper", NETWORK_RESISTOR, r1, "top",
+	                             "mid") >= 0);
+	assert_true(network_add_part(net, "lower", NETWORK_RESISTOR, r2, "mid",
+	                             "gnd") >= 0);
+	assert_int_equal(network_set_terminals(net, "mid", "gnd"), 0);
+	struct problem pb;
+	memset(&pb, 0, sizeof pb);
+	struct source_spec spec;
+	char err[300];
+	assert_int_equal(network_reduce(net, NULL, &spec, NULL), NETWORK_OK);
+	assert_int_equal(source_from_spec(&spec, &pb.src, err, sizeof err), 0);
+	pb.net = net;
+	device_init(&pb.dev, &model_diode);
+	pb.dev.p[DIODE_IS] = 2.77e-14;
+	pb.dev.p[DIODE_N] = 1.41;
+	struct solve_options o;
+	solve_options_init(&o);
+	struct design_request rq = { .target = DESIGN_CURRENT, .value = 1.37e-3,
+		                         .unknown = DESIGN_FOR_PART,
+		                         .series = ESERIES_E24 };
+	assert_int_equal(paramref_find(&pb, "source.network.upper", &rq.part, err,
+	                               sizeof err), 0);
+	struct design_result res;
+	assert_int_equal(design_solve(&pb, &o, &rq, NULL, &res), 0);
+	struct ratings r;
+	ratings_init(&r);
+	for (size_t j = 1; j < res.nrows; j++) {
+		struct problem q;
+		struct tol_case c;
+		assert_int_equal(design_apply_request(&pb, &rq, res.rows[j].value,
+		                                      &q), 0);
+		tol_case_init(&c, &q, SOURCE_THEVENIN, &o);
+		add_rel(&c, "source.network.upper", 0.05);
+		add_rel(&c, "source.network.rail", 0.10);
+		add_rel(&c, "saturation_current", 0.41);
+		/* The grid: each point solved, the power in R1 by hand. */
+		const int g = 5;
+		double best = -INFINITY;
+		for (int a = 0; a < g; a++)
+			for (int b = 0; b < g; b++)
+				for (int d = 0; d < g; d++) {
+					double x[3];
+					int idx[3] = { a, b, d };
+					struct problem t = q;
+					for (int k = 0; k < 3; k++) {
+						x[k] = c.items[k].lo +
+						       (c.items[k].hi - c.items[k].lo) * idx[k] /
+						               (g - 1);
+						assert_int_equal(paramref_set(&t, &c.items[k].param,
+						                              x[k]), 0);
+					}
+					struct solve_result sr;
+					assert_int_equal(solve_problem(&t, &o, &sr), SOLVE_OK);
+					double v = sr.pts[0].v;
+					best = fmax(best, (x[1] - v) * (x[1] - v) / x[0]);
+				}
+		r.resistor_power = 0.9 * best;
+		struct design_worst w;
+		if (design_row_worst(&c, &r, &rq, &w) != 0)
+			fail_msg("row %zu: %s", j, w.message);
+		if (rel(w.p_resistor_max, best) > 1e-9)
+			fail_msg("row %zu: part power %.15g, grid %.15g", j,
+			         w.p_resistor_max, best);
+		assert_int_equal(w.resistor_verdict, RATINGS_OVER);
+		assert_non_null(strstr(w.words, "upper dissipates"));
+		/* Without the request the equivalent is not rated. */
+		assert_int_equal(design_row_worst(&c, &r, NULL, &w), 0);
+		assert_true(isnan(w.p_resistor_max));
+	}
+	network_destroy(net);
 }
 
 /*
@@ -773,6 +859,7 @@ int main(void)
 		cmocka_unit_test(test_design_nearest),
 		cmocka_unit_test(test_design_worst_brute),
 		cmocka_unit_test(test_design_stage),
+		cmocka_unit_test(test_design_worst_part),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
