@@ -448,6 +448,14 @@ static void test_design_zener_shunt(void **state)
 		if (rel(res.rows[0].value, want) > 1e-9)
 			fail_msg("case %zu power: RS %.17g, closed form %.17g", k,
 			         res.rows[0].value, want);
+		/* The breakdown voltage as a voltage target of the same sign. */
+		rq.target = DESIGN_VOLTAGE;
+		rq.value = -tab[k].vz;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("case %zu voltage: %s", k, res.message);
+		if (rel(res.rows[0].value, want) > 1e-9)
+			fail_msg("case %zu voltage: RS %.17g, closed form %.17g", k,
+			         res.rows[0].value, want);
 		/* A forward current on the negative source is refused, and the
 		 * message names the reverse target that works. */
 		rq.target = DESIGN_CURRENT;
