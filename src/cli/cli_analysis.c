@@ -40,6 +40,23 @@ int cli_add_set(const char *cmd, struct cli_sets *sets, const char *arg)
 	return 0;
 }
 
+/* Apply the --set options to a loaded session. */
+int cli_apply_sets(const char *cmd, const char *file,
+                   const struct cli_sets *sets, struct session *se)
+{
+	for (size_t k = 0; sets != NULL && k < sets->n; k++) {
+		char why[1024];
+		enum session_set_status st = session_set_assignment(
+		        se, sets->text[k], why, sizeof why);
+		if (st != SESSION_SET_OK) {
+			fprintf(stderr, "biasline %s: %s: --set %s: %s\n", cmd, file,
+			        sets->text[k], why);
+			return st == SESSION_SET_BAD_VALUE ? EXIT_DATA : EXIT_USAGE;
+		}
+	}
+	return 0;
+}
+
 /* Load FILE, apply the --set options and build its problem. */
 int cli_load_with(const char *cmd, const char *file,
                   const struct cli_sets *sets, struct session *se,
@@ -53,16 +70,10 @@ int cli_load_with(const char *cmd, const char *file,
 		fprintf(stderr, "biasline %s: %s\n", cmd, msg);
 		return cli_exit_from_session(ls);
 	}
-	for (size_t k = 0; sets != NULL && k < sets->n; k++) {
-		char why[1024];
-		enum session_set_status st = session_set_assignment(
-		        se, sets->text[k], why, sizeof why);
-		if (st != SESSION_SET_OK) {
-			fprintf(stderr, "biasline %s: %s: --set %s: %s\n", cmd, file,
-			        sets->text[k], why);
-			session_fini(se);
-			return st == SESSION_SET_BAD_VALUE ? EXIT_DATA : EXIT_USAGE;
-		}
+	int rc = cli_apply_sets(cmd, file, sets, se);
+	if (rc != 0) {
+		session_fini(se);
+		return rc;
 	}
 	char emsg[512];
 	if (session_problem(se, pb, emsg, sizeof emsg) != 0) {

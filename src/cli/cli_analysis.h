@@ -51,6 +51,15 @@ struct cli_sets {
 int cli_add_set(const char *cmd, struct cli_sets *sets, const char *arg);
 
 /*
+ * Apply SETS (may be NULL) in order to the loaded session SE of FILE;
+ * prints "biasline CMD: FILE: --set ...: why" and returns the exit status
+ * (64 a key SE does not have, 65 a bad value; SE is left as it was after
+ * the last good one), or 0.
+ */
+int cli_apply_sets(const char *cmd, const char *file,
+                   const struct cli_sets *sets, struct session *se);
+
+/*
  * As cli_load_problem, applying SETS (may be NULL) to the session after
  * loading, each checked like the file (session/session_set.h): a key the
  * session does not have exits 64, a bad value 65, each message naming

@@ -41,6 +41,7 @@ struct fit_args {
 	enum fit_format format;
 	bool residuals;
 	bool into;              /* write the fit into SESSION */
+	struct cli_sets sets;   /* --set KEY=VALUE on SESSION */
 };
 
 /* Print the usage of `fit` to OUT. */
@@ -88,6 +89,9 @@ static void fit_usage(FILE *out)
 	        "                        units, order) and recording the fit's\n"
 	        "                        points file, RMS error and date in a\n"
 	        "                        comment above device:\n"
+	        CLI_SET_HELP
+	        "                       (on SESSION for this run, before its values\n"
+	        "                       are used; not with --into)\n"
 	        "  -h, --help            show this help and exit\n"
 	        "  -V, --version         show the version and exit\n"
 	        "\n"
@@ -113,6 +117,7 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 		{ "format", required_argument, NULL, 'f' },
 		{ "residuals", no_argument, NULL, 'r' },
 		{ "into", no_argument, NULL, 'i' },
+		{ "set", required_argument, NULL, CLI_OPT_SET },
 		{ "help", no_argument, NULL, 'h' },
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
@@ -168,6 +173,10 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 		case 'i':
 			a->into = true;
 			break;
+		case CLI_OPT_SET:
+			if (cli_add_set("fit", &a->sets, optarg) != 0)
+				return -1;
+			break;
 		case 'h':
 			fit_usage(stdout);
 			*code = EXIT_OK_CODE;
@@ -206,6 +215,12 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 	if (a->into && a->session == NULL) {
 		fprintf(stderr, "biasline fit: --into needs the SESSION to write "
 		        "into (try --help)\n");
+		return -1;
+	}
+	if (a->into && a->sets.n > 0) {
+		/* --set changes this run only; --into would write it to the file. */
+		fprintf(stderr, "biasline fit: --set changes SESSION for this run "
+		        "only, and --into writes SESSION: give one of them\n");
 		return -1;
 	}
 	if (a->residuals && a->format != FIT_CSV) {
@@ -806,6 +821,13 @@ int cmd_fit(int argc, char **argv)
 			return (int)cli_exit_from_session(ls);
 		}
 		have_session = true;
+		if ((code = cli_apply_sets("fit", a.session, &a.sets, &se)) != 0) {
+			session_fini(&se);
+			return code;
+		}
+	} else if (a.sets.n > 0) {
+		fprintf(stderr, "biasline fit: --set changes a SESSION: give one\n");
+		return EXIT_USAGE;
 	}
 	const struct model_type *type =
 		a.model != NULL ? model_find(a.model) : se.device.type;

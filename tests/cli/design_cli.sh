@@ -155,6 +155,21 @@ for cmd in design sweep tolerance plot reduce; do
 	expect_exit 65 "$bl" $cmd $args --set "vs=1 A" "$tmp/led.yaml"
 	expect_text "$tmp/err" "vs:"
 done
+# fit takes --set on its SESSION, whose values it holds.
+pts="$samples/amber-panel-led.csv"
+expect_exit 0 "$bl" fit --model diode --points "$pts" --fix series_resistance=0 \
+	--set temperature=61.3 "$tmp/led.yaml"
+expect_text "$tmp/out" "temperature = 61.3 degC"
+expect_exit 64 "$bl" fit --model diode --points "$pts" --set temperature=40
+expect_text "$tmp/err" "--set changes a SESSION"
+expect_exit 64 "$bl" fit --model diode --points "$pts" --set temperature=40 \
+	--into "$tmp/led.yaml"
+expect_text "$tmp/err" "give one of them"
+expect_exit 64 "$bl" fit --model diode --points "$pts" --set gain=3 "$tmp/led.yaml"
+expect_text "$tmp/err" "gain"
+expect_exit 65 "$bl" fit --model diode --points "$pts" --set "temperature=3 V" \
+	"$tmp/led.yaml"
+expect_text "$tmp/err" "temperature"
 # A part of a network source by its key path: 12 V over 39k and 12k
 # gives Vth = 12 V x 12 / 51 = 2.82353 V (the divider rule).
 expect_exit 0 "$bl" reduce --nodes --set "source.network.upper divider=39k" \
