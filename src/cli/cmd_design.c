@@ -273,7 +273,7 @@ static int design_print_csv(const struct problem *pb,
 	static const char *const wcols[] = {
 		"current_min_A", "current_max_A", "voltage_min_V", "voltage_max_V",
 		"device_power_max_W", "resistor_power_max_W", "worst_verdict",
-		"worst_suggested_resistor_W"
+		"worst_suggested_resistor_W", "result_min", "result_max"
 	};
 	struct csv w;
 	csv_init(&w, stdout);
@@ -321,6 +321,8 @@ static int design_print_csv(const struct problem *pb,
 			else
 				csv_empty(&w);
 			csv_number(&w, x->suggested_resistor_power);
+			csv_number(&w, x->result_min);
+			csv_number(&w, x->result_max);
 		}
 		csv_end_row(&w);
 	}
@@ -335,10 +337,24 @@ static void design_print_worst(const struct problem *pb,
 	char a[48], b[48], c[48], d[48], e[48], f[48];
 	enum qty_kind uk = design_unknown_unit(pb, rq);
 	bool part = rq->unknown == DESIGN_FOR_PART;
+	/* A stage's result (IC, VCE) is what its designer watches. */
+	bool result = rq->target == DESIGN_RESULT;
+	enum qty_kind yk = result ? design_request_unit(pb, rq) : QTY_CURRENT;
+	const char *label = "I";
+	struct model_extra ex;
+	if (result && device_secondary(&pb->dev, &pb->src, res->v_target,
+	                               res->i_target, &ex) == 0)
+		for (size_t k = 0; k < ex.n; k++)
+			if (strcmp(ex.v[k].key, rq->result) == 0)
+				label = ex.v[k].label;
+	char h1[32], h2[32], h3[32];
+	snprintf(h1, sizeof h1, "%s nominal", label);
+	snprintf(h2, sizeof h2, "%s min", label);
+	snprintf(h3, sizeof h3, "%s max", label);
 	printf("\n  worst case over the tolerances (every corner of the box)\n");
 	printf("  %-7s %-13s %-12s %-12s %-12s %-12s %-14s %s\n", "",
-	       part ? "value" : for_rs ? "RS" : "VS", "I nominal", "I min",
-	       "I max", part ? "P(part) max" : "P(RS) max", "verdict", "fits");
+	       part ? "value" : for_rs ? "RS" : "VS", h1, h2, h3,
+	       part ? "P(part) max" : "P(RS) max", "verdict", "fits");
 	bool rated = false;
 	for (size_t k = 0; k < res->nrows; k++) {
 		const struct design_row *r = &res->rows[k];
@@ -357,9 +373,9 @@ static void design_print_worst(const struct problem *pb,
 		rated = rated || has;
 		printf("  %-7s %-13s %-12s %-12s %-12s %-12s %-14s %s\n",
 		       design_row_name(r->kind), a,
-		       cli_fmt(b, sizeof b, r->pt.i, QTY_CURRENT, 5),
-		       cli_fmt(c, sizeof c, w->i_min, QTY_CURRENT, 5),
-		       cli_fmt(d, sizeof d, w->i_max, QTY_CURRENT, 5),
+		       cli_fmt(b, sizeof b, result ? r->achieved : r->pt.i, yk, 5),
+		       cli_fmt(c, sizeof c, result ? w->result_min : w->i_min, yk, 5),
+		       cli_fmt(d, sizeof d, result ? w->result_max : w->i_max, yk, 5),
 		       has ? cli_fmt(e, sizeof e, w->p_resistor_max, QTY_POWER, 4)
 		           : "-",
 		       ratings_verdict_name(w->verdict),

@@ -581,46 +581,63 @@ static void design_mark_nearest(struct design_result *out)
 }
 
 /*
- * The largest power in network part PART over the corners of C's box,
- * following the point nearest V_NOM; NaN when a corner has no point.
+ * Over the corners of C's box, following the point nearest V_NOM: the
+ * largest power in network part PART (when PART >= 0) into *PMAX, and the
+ * range of model result KEY (when not NULL) into *RMIN, *RMAX.  Each is
+ * NaN when a corner has no point or no such value.
  */
-static double design_part_worst(const struct tol_case *c, size_t part,
-                                double v_nom)
+static void design_corners(const struct tol_case *c, long part,
+                           const char *key, double v_nom, double *pmax,
+                           double *rmin, double *rmax)
 {
-	const char *name = network_part(c->pb.net, part)->name;
+	const char *name = part >= 0 ? network_part(c->pb.net, (size_t)part)->name
+	                             : NULL;
 	size_t ncorners = (size_t)1 << c->nitems;
-	double worst = -INFINITY;
+	*pmax = part >= 0 ? -INFINITY : NAN;
+	*rmin = key != NULL ? INFINITY : NAN;
+	*rmax = key != NULL ? -INFINITY : NAN;
 	for (size_t m = 0; m < ncorners; m++) {
 		struct problem q = c->pb;
-		for (size_t k = 0; k < c->nitems; k++) {
+		bool ok = true;
+		for (size_t k = 0; k < c->nitems && ok; k++) {
 			const struct tol_item *it = &c->items[k];
-			if (paramref_set(&q, &it->param,
-			                 (m >> k) & 1 ? it->hi : it->lo) != 0)
-				return NAN;
+			ok = paramref_set(&q, &it->param,
+			                  (m >> k) & 1 ? it->hi : it->lo) == 0;
 		}
 		char why[8];
 		struct solve_result sr;
-		if (device_validate(&q.dev, why, sizeof why) != 0 ||
-		    solve_problem(&q, &c->opts, &sr) != SOLVE_OK || sr.n == 0)
-			return NAN;
+		if (!ok || device_validate(&q.dev, why, sizeof why) != 0 ||
+		    solve_problem(&q, &c->opts, &sr) != SOLVE_OK || sr.n == 0) {
+			*pmax = *rmin = *rmax = NAN;
+			return;
+		}
 		size_t best = 0;
 		for (size_t k = 1; k < sr.n; k++)
 			if (fabs(sr.pts[k].v - v_nom) < fabs(sr.pts[best].v - v_nom))
 				best = k;
+		double v = sr.pts[best].v, i = sr.pts[best].i, y;
+		if (key != NULL) {
+			if (design_result_value(&q, key, v, i, &y) != 0)
+				y = NAN;
+			*rmin = fmin(*rmin, y);
+			*rmax = fmax(*rmax, y);
+			if (isnan(y))
+				*rmin = *rmax = NAN;
+		}
+		if (name == NULL)
+			continue;
 		struct verdict vd;
-		verdict_at(&q, SOURCE_THEVENIN, sr.pts[best].v, sr.pts[best].i, NULL,
-		           NULL, &vd);
+		verdict_at(&q, SOURCE_THEVENIN, v, i, NULL, NULL, &vd);
 		bool found = false;
 		for (size_t k = 0; k < vd.nlines; k++)
 			if (vd.lines[k].part == VERDICT_RESISTOR &&
 			    strcmp(vd.lines[k].name, name) == 0) {
-				worst = fmax(worst, vd.lines[k].value);
+				*pmax = fmax(*pmax, vd.lines[k].value);
 				found = true;
 			}
 		if (!found)
-			return NAN;
+			*pmax = NAN;
 	}
-	return worst;
 }
 
 /* The worst case of one row. */
@@ -631,6 +648,7 @@ int design_row_worst(const struct tol_case *c, const struct ratings *r,
 	memset(out, 0, sizeof *out);
 	out->i_min = out->i_max = out->v_min = out->v_max = NAN;
 	out->p_device_max = out->p_resistor_max = NAN;
+	out->result_min = out->result_max = NAN;
 	out->suggested_resistor_power = NAN;
 	if (c->nitems == 0) {
 		snprintf(out->message, sizeof out->message, "no tolerances");
@@ -654,15 +672,24 @@ int design_row_worst(const struct tol_case *c, const struct ratings *r,
 	/* A network's equivalent resistance is no part: the designed
 	 * resistor of the network is rated instead, over the corners. */
 	const char *rname = c->form == SOURCE_NORTON ? "RP" : "RS";
+	long part = -1;
 	if (c->pb.net == NULL) {
 		out->p_resistor_max = w.max[TOL_RESISTOR_POWER].value;
 	} else if (rq != NULL && rq->unknown == DESIGN_FOR_PART &&
 	           rq->part.kind == PARAMREF_NETWORK &&
 	           network_part(c->pb.net, (size_t)rq->part.index)->kind ==
 	                   NETWORK_RESISTOR) {
-		out->p_resistor_max = design_part_worst(c, (size_t)rq->part.index,
-		                                        w.nominal[TOL_VOLTAGE]);
-		rname = network_part(c->pb.net, (size_t)rq->part.index)->name;
+		part = rq->part.index;
+		rname = network_part(c->pb.net, (size_t)part)->name;
+	}
+	const char *key = rq != NULL && rq->target == DESIGN_RESULT ? rq->result
+	                                                           : NULL;
+	if (part >= 0 || key != NULL) {
+		double pmax;
+		design_corners(c, part, key, w.nominal[TOL_VOLTAGE], &pmax,
+		               &out->result_min, &out->result_max);
+		if (part >= 0)
+			out->p_resistor_max = pmax;
 	}
 	struct verdict vd;
 	verdict_worst(out->p_device_max, fmax(fabs(out->i_min), fabs(out->i_max)),

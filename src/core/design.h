@@ -96,6 +96,9 @@ struct design_worst {
 	double i_min, i_max;       /* device current, A */
 	double v_min, v_max;       /* device voltage, V */
 	double p_device_max;       /* largest device power, W */
+	double result_min, result_max; /* a DESIGN_RESULT target's result
+	                              (a stage's collector current) over the
+	                              corners of the box; NaN otherwise */
 	double p_resistor_max;     /* largest power in RS (RP), or in the
 	                              designed resistor of a network source,
 	                              W; NaN when there is none */
@@ -188,7 +191,8 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
  * RQ (may be NULL) the request.  For a plain source the resistor is RS
  * (RP); for a network source whose designed part is a resistor, that part
  * is rated, its largest power taken over the corners of the box (where an
- * output monotone in each parameter has its extremes).  Fills OUT and
+ * output monotone in each parameter has its extremes); for a model result
+ * target (a collector current) its range over the corners too.  Fills OUT and
  * returns 0, or -1 with the reason in OUT->message (no tolerances, too
  * many for the corners, no point at a corner).
  */

@@ -817,6 +817,49 @@ static void test_design_stage(void **state)
 			fail_msg("VCE %g: R1 %.15g, base loop %.15g", vce,
 			         res.rows[0].value, want);
 	}
+	/* The collector current's range at worst, over the corners, against
+	 * a grid of the box (IC rises with beta and with the supply). */
+	{
+		struct design_request rq = { .target = DESIGN_RESULT, .value = 2.13e-3,
+			                         .unknown = DESIGN_FOR_PART,
+			                         .series = ESERIES_E24,
+			                         .result = "collector_current" };
+		assert_int_equal(paramref_find(&pb, "emitter_resistance", &rq.part,
+		                               err, sizeof err), 0);
+		struct design_result dr;
+		assert_int_equal(design_solve(&pb, &o, &rq, NULL, &dr), 0);
+		struct problem q;
+		struct tol_case c;
+		assert_int_equal(design_apply_request(&pb, &rq, dr.rows[2].value, &q),
+		                 0);
+		tol_case_init(&c, &q, SOURCE_THEVENIN, &o);
+		assert_int_equal(tol_case_add(&c, "current_gain", 103.0, 297.0,
+		                              TOL_UNIFORM, err, sizeof err), 0);
+		add_rel(&c, "source.network.supply", 0.05);
+		double lo = INFINITY, hi = -INFINITY;
+		for (int a = 0; a < 6; a++)
+			for (int b = 0; b < 6; b++) {
+				struct problem t = q;
+				assert_int_equal(paramref_set(&t, &c.items[0].param,
+				                              103.0 + 194.0 * a / 5), 0);
+				assert_int_equal(paramref_set(&t, &c.items[1].param,
+				                              c.items[1].lo + (c.items[1].hi -
+				                              c.items[1].lo) * b / 5), 0);
+				struct solve_result sr;
+				double y;
+				assert_int_equal(solve_problem(&t, &o, &sr), SOLVE_OK);
+				assert_int_equal(design_result_value(&t, "collector_current",
+				                                     sr.pts[0].v, sr.pts[0].i,
+				                                     &y), 0);
+				lo = fmin(lo, y);
+				hi = fmax(hi, y);
+			}
+		struct design_worst w;
+		assert_int_equal(design_row_worst(&c, NULL, &rq, &w), 0);
+		if (rel(w.result_min, lo) > 1e-9 || rel(w.result_max, hi) > 1e-9)
+			fail_msg("IC at worst [%.15g, %.15g], grid [%.15g, %.15g]",
+			         w.result_min, w.result_max, lo, hi);
+	}
 	/* A result the model does not have is refused by name. */
 	struct design_request none = { .target = DESIGN_RESULT, .value = 1e-3,
 		                          .unknown = DESIGN_FOR_PART,
