@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "kernel.h"
 #include "network.h"
 #include "verdict.h"
 
@@ -108,43 +109,55 @@ static double design_power_gap_v(const struct device *d, double x, int side,
 	return v * device_current(d, v) - p;
 }
 
+/* The power gap of one device, target and side, for the kernel. */
+struct design_gap_ctx {
+	const struct device *d;
+	double p;
+	int in_current, side;
+};
+
+/* gap(x) of the context. */
+static double design_gap_eval(void *ctx, double x, double *step)
+{
+	const struct design_gap_ctx *g = ctx;
+	if (step != NULL)
+		*step = NAN;
+	return g->in_current ? design_power_gap_i(g->d, x, g->side, g->p)
+	                     : design_power_gap_v(g->d, x, g->side, g->p);
+}
+
 /*
  * Solve gap(x) = 0 for x > 0 where gap increases from -P at 0: double an
- * upper end until gap > 0, then bisect to the last bit.  SIDE picks the
- * forward (+1) or reverse (-1) region; *X is the magnitude.  Returns 0 or
- * -1.
+ * upper end until gap > 0, then bisect to the last bit (kernel.h).  SIDE
+ * picks the forward (+1) or reverse (-1) region; *X is the magnitude.
+ * Returns 0 or -1.
  */
 static int design_power_root(const struct device *d, double p, int in_current,
                              int side, double *x)
 {
-	double (*gap)(const struct device *, double, int, double) =
-		in_current ? design_power_gap_i : design_power_gap_v;
+	struct design_gap_ctx g = { d, p, in_current, side };
+	struct kernel_fn fn = { design_gap_eval, &g };
 	double hi = in_current ? 1e-12 : 1e-3;
-	double lo = 0.0;
+	double lo = 0.0, glo = -p;
 	int k = 0;
 	for (;; k++) {
-		double g = gap(d, hi, side, p);
-		if (g > 0.0)
+		double gh = design_gap_eval(&g, hi, NULL);
+		if (gh > 0.0)
 			break;
-		if (!(g <= 0.0) || k > 200)
+		if (!(gh <= 0.0) || k > 200)
 			return -1; /* undefined, or never reaches P */
 		lo = hi;
+		glo = gh;
 		hi *= 2.0;
 	}
-	for (int it = 0; it < 200; it++) {
-		double mid = 0.5 * (lo + hi);
-		if (!(mid > lo && mid < hi))
-			break;
-		double g = gap(d, mid, side, p);
-		if (!isfinite(g))
-			return -1;
-		if (g > 0.0)
-			hi = mid;
-		else
-			lo = mid;
-	}
+	struct kernel_result r = kernel_bisect_solve(&fn, lo, glo, hi, false, 0.0);
+	if (!r.ok)
+		return -1;
+	lo = r.lo;
+	hi = r.hi;
 	/* The end whose gap is smaller in size. */
-	*x = fabs(gap(d, lo, side, p)) < fabs(gap(d, hi, side, p)) ? lo : hi;
+	*x = fabs(design_gap_eval(&g, lo, NULL)) < fabs(design_gap_eval(&g, hi, NULL))
+	         ? lo : hi;
 	return lo > 0.0 || hi > 0.0 ? 0 : -1;
 }
 
@@ -288,6 +301,22 @@ static double design_part_gap(const struct problem *pb,
 	return source_line_residual(&q.src, v, i);
 }
 
+/* The part gap at fixed (V, I), for the kernel. */
+struct design_part_ctx {
+	const struct problem *pb;
+	const struct design_request *rq;
+	double v, i;
+};
+
+/* The gap with the part at X. */
+static double design_part_eval(void *ctx, double x, double *step)
+{
+	const struct design_part_ctx *c = ctx;
+	if (step != NULL)
+		*step = NAN;
+	return design_part_gap(c->pb, c->rq, x, c->v, c->i);
+}
+
 /*
  * The part value that puts the load line through (V, I).  A source's value
  * enters the reduced source linearly (superposition), so two evaluations
@@ -336,24 +365,11 @@ static int design_part_value(const struct problem *pb,
 		         "times its present value puts the device at the target");
 		return -1;
 	}
+	struct design_part_ctx pc = { pb, rq, v, i };
+	struct kernel_fn fn = { design_part_eval, &pc };
 	double flo = design_part_gap(pb, rq, lo, v, i);
-	for (int k = 0; k < 200 && hi - lo > 1e-15 * hi; k++) {
-		double m = sqrt(lo * hi);
-		if (!(m > lo && m < hi))
-			break;
-		double fm = design_part_gap(pb, rq, m, v, i);
-		if (fm == 0.0) {
-			lo = hi = m;
-			break;
-		}
-		if ((fm < 0.0) == (flo < 0.0)) {
-			lo = m;
-			flo = fm;
-		} else {
-			hi = m;
-		}
-	}
-	*out = 0.5 * (lo + hi);
+	struct kernel_result r = kernel_bisect_solve(&fn, lo, flo, hi, true, 1e-15);
+	*out = r.x;
 	return 0;
 }
 
@@ -455,6 +471,23 @@ static double design_present(const struct problem *pb,
 	return paramref_get(pb, &rq->part);
 }
 
+/* The targeted quantity minus the target with the unknown at X. */
+struct design_general_ctx {
+	const struct problem *pb;
+	const struct solve_options *o;
+	const struct design_request *rq;
+};
+
+/* design_achieved - target at X, for the kernel. */
+static double design_general_eval(void *ctx, double x, double *step)
+{
+	const struct design_general_ctx *c = ctx;
+	double v, i;
+	if (step != NULL)
+		*step = NAN;
+	return design_achieved(c->pb, c->o, c->rq, x, NAN, &v, &i) - c->rq->value;
+}
+
 /*
  * The general design (see design.h): the root in the unknown of the
  * targeted quantity at the solved point minus the target, bracketed on a
@@ -503,24 +536,11 @@ static int design_general(const struct problem *pb,
 		         design_request_name(rq), rq->value);
 		return -1;
 	}
-	for (int k = 0; k < 200; k++) {
-		double m = logscale ? sqrt(lo * hi) : 0.5 * (lo + hi);
-		if (!(m > fmin(lo, hi) && m < fmax(lo, hi)))
-			break;
-		double fm = design_achieved(pb, o, rq, m, NAN, &v, &i) - rq->value;
-		if (!isfinite(fm))
-			break;
-		if (fm == 0.0) {
-			lo = hi = m;
-			break;
-		}
-		if ((fm < 0.0) == (flo < 0.0)) {
-			lo = m;
-			flo = fm;
-		} else {
-			hi = m;
-		}
-	}
+	struct design_general_ctx gc = { pb, o, rq };
+	struct kernel_fn fn = { design_general_eval, &gc };
+	struct kernel_result r = kernel_bisect_solve(&fn, lo, flo, hi, logscale, 0.0);
+	lo = r.lo;
+	hi = r.hi;
 	*exact = logscale ? sqrt(lo * hi) : 0.5 * (lo + hi);
 	if (isnan(design_achieved(pb, o, rq, *exact, NAN, &v, &i))) {
 		snprintf(out->message, sizeof out->message,

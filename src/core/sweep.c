@@ -8,10 +8,11 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "kernel.h"
 #include "solve.h"
 
-/* Bisection steps that locate a fold in the parameter. */
-#define SWEEP_FOLD_BISECT 40
+/* How closely bisection locates a fold in the parameter (relative). */
+#define SWEEP_FOLD_REL 1e-12
 
 /* Empty R. */
 void sweep_result_init(struct sweep_result *r)
@@ -155,24 +156,36 @@ static size_t sweep_count_at(const struct problem *pb,
 	return res.status == SOLVE_OK ? res.n : 0;
 }
 
+/* What sweep_locate bisects: the count at a value against NA. */
+struct sweep_count_ctx {
+	const struct problem *pb;
+	const struct solve_options *o;
+	const struct paramref *r;
+	size_t na;
+};
+
+/* -1 where the count is the one before the change, +1 where it is not. */
+static double sweep_count_sign(void *ctx, double x, double *step)
+{
+	const struct sweep_count_ctx *c = ctx;
+	if (step != NULL)
+		*step = NAN;
+	return sweep_count_at(c->pb, c->o, c->r, x) == c->na ? -1.0 : 1.0;
+}
+
 /* Locate a change of count between A (count NA) and B by bisection. */
 static void sweep_locate(const struct problem *pb,
                          const struct solve_options *o,
                          const struct sweep_spec *sp, double a, size_t na,
                          double b, struct sweep_fold *f)
 {
-	for (int it = 0; it < SWEEP_FOLD_BISECT; it++) {
-		double m = sp->scale == SWEEP_LOG ? a * sqrt(b / a) : 0.5 * (a + b);
-		if (!(m != a && m != b))
-			break;
-		if (sweep_count_at(pb, o, &sp->param, m) == na)
-			a = m;
-		else
-			b = m;
-	}
-	f->lo = fmin(a, b);
-	f->hi = fmax(a, b);
-	f->value = 0.5 * (a + b);
+	struct sweep_count_ctx c = { pb, o, &sp->param, na };
+	struct kernel_fn fn = { sweep_count_sign, &c };
+	struct kernel_result r = kernel_bisect_solve(
+		&fn, a, -1.0, b, sp->scale == SWEEP_LOG, SWEEP_FOLD_REL);
+	f->lo = r.lo;
+	f->hi = r.hi;
+	f->value = r.x;
 }
 
 /* Append a row, growing the array; returns 0 or -1. */

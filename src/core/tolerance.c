@@ -10,12 +10,13 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "kernel.h"
 #include "safety.h"
 #include "sensitivity.h"
 #include "solve.h"
 
-/* Golden-section iterations along one parameter (shrinks by 0.618^k). */
-#define TOL_GOLDEN_ITERS 80
+/* How far golden section narrows the search along one parameter. */
+#define TOL_GOLDEN_REL 1e-15
 /* Redraws of a normal deviate outside the parameter's valid range. */
 #define TOL_REDRAWS 100
 
@@ -270,6 +271,28 @@ static double tol_objective(const struct tol_case *c, const double *x,
 	return sign * y[o];
 }
 
+/* The objective along parameter K from the point X, for golden section. */
+struct tol_line_ctx {
+	const struct tol_case *c;
+	const double *x;
+	size_t n, k;
+	double v_near;
+	enum tol_output o;
+	double sign;
+};
+
+/* Minus the objective with parameter K at T (golden section minimises). */
+static double tol_line_eval(void *ctx, double t, double *step)
+{
+	const struct tol_line_ctx *lc = ctx;
+	double xs[TOL_MAX_ITEMS];
+	if (step != NULL)
+		*step = NAN;
+	memcpy(xs, lc->x, lc->n * sizeof xs[0]);
+	xs[lc->k] = t;
+	return -tol_objective(lc->c, xs, lc->v_near, lc->o, lc->sign);
+}
+
 /*
  * From the extremum E (SIGN +1: a maximum), search inside the box along
  * every parameter whose derivative points into it, until none does.
@@ -277,7 +300,6 @@ static double tol_objective(const struct tol_case *c, const double *x,
 static void tol_refine(const struct tol_case *c, double v_near,
                        enum tol_output o, double sign, struct tol_extreme *e)
 {
-	const double gr = 0.5 * (sqrt(5.0) - 1.0);
 	size_t n = c->nitems;
 	double x[TOL_MAX_ITEMS], g[TOL_MAX_ITEMS];
 	memcpy(x, e->params, n * sizeof x[0]);
@@ -297,27 +319,11 @@ static void tol_refine(const struct tol_case *c, double v_near,
 			if (!inward || fabs(gk) * (hi - lo) <= 1e-12 * fabs(best))
 				continue;
 			/* Golden-section search for the best point along k. */
-			double a = lo, b = hi, xs[TOL_MAX_ITEMS];
-			memcpy(xs, x, n * sizeof xs[0]);
-			double c1 = b - gr * (b - a), c2 = a + gr * (b - a);
-			xs[k] = c1;
-			double f1 = tol_objective(c, xs, v_near, o, sign);
-			xs[k] = c2;
-			double f2 = tol_objective(c, xs, v_near, o, sign);
-			for (int it = 0; it < TOL_GOLDEN_ITERS && c2 - c1 > 0.0; it++) {
-				if (f1 > f2) {
-					b = c2, c2 = c1, f2 = f1;
-					c1 = b - gr * (b - a);
-					xs[k] = c1;
-					f1 = tol_objective(c, xs, v_near, o, sign);
-				} else {
-					a = c1, c1 = c2, f1 = f2;
-					c2 = a + gr * (b - a);
-					xs[k] = c2;
-					f2 = tol_objective(c, xs, v_near, o, sign);
-				}
-			}
-			double xk = f1 > f2 ? c1 : c2, fk = fmax(f1, f2);
+			struct tol_line_ctx lc = { c, x, n, k, v_near, o, sign };
+			struct kernel_fn fn = { tol_line_eval, &lc };
+			struct kernel_result kr =
+				kernel_golden_solve(&fn, lo, hi, TOL_GOLDEN_REL, 0.0);
+			double xk = kr.x, fk = -kr.fx;
 			if (fk > best + 1e-14 * fabs(best)) {
 				best = fk;
 				x[k] = xk;

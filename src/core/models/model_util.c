@@ -1,17 +1,41 @@
 /*
  * model_util.c - helpers the model files share: the inverse of a strictly
- * increasing function by safeguarded Newton-Raphson inside a kept bracket.
+ * increasing function, by the kernel's safeguarded Newton-Raphson.
  */
 #include <math.h>
 
+#include "../kernel.h"
 #include "models.h"
+
+/* F(x) - target and its Newton step, for model_invert. */
+struct model_invert_ctx {
+	double (*f)(const double *p, double x);
+	double (*df)(const double *p, double x);
+	const double *p;
+	double target;
+};
+
+/* F(X) - target, and the step (F - target) / F'. */
+static double model_invert_eval(void *ctx, double x, double *step)
+{
+	const struct model_invert_ctx *c = ctx;
+	double fx = c->f(c->p, x) - c->target;
+	if (step != NULL) {
+		double d = c->df(c->p, x);
+		*step = isfinite(fx) && isfinite(d) && d > 0.0 ? fx / d : NAN;
+	}
+	return fx;
+}
 
 /* Invert F (increasing, derivative DF) on [LO, HI] for F(X) = TARGET. */
 int model_invert(double (*f)(const double *p, double x),
                  double (*df)(const double *p, double x), const double *p,
                  double target, double lo, double hi, double *x)
 {
-	double flo = f(p, lo) - target, fhi = f(p, hi) - target;
+	struct model_invert_ctx c = { f, df, p, target };
+	struct kernel_fn fn = { model_invert_eval, &c };
+	double flo = model_invert_eval(&c, lo, NULL);
+	double fhi = model_invert_eval(&c, hi, NULL);
 	if (!(lo <= hi) || isnan(flo) || isnan(fhi) || flo > 0.0 || fhi < 0.0)
 		return -1;
 	if (flo == 0.0) {
@@ -23,27 +47,9 @@ int model_invert(double (*f)(const double *p, double x),
 		return 0;
 	}
 	/* Start at the end nearer the target in function value. */
-	double v = fabs(flo) < fabs(fhi) ? lo : hi;
-	for (int it = 0; it < 300; it++) {
-		double fv = f(p, v) - target;
-		if (fv == 0.0)
-			break;
-		if (fv < 0.0)
-			lo = v;
-		else
-			hi = v; /* F > 0, or overflow: v is above the root */
-		double d = df(p, v);
-		double vn = NAN;
-		if (isfinite(fv) && isfinite(d) && d > 0.0)
-			vn = v - fv / d;
-		if (!(vn > lo && vn < hi))
-			vn = 0.5 * (lo + hi);
-		double step = vn - v;
-		v = vn;
-		double scale = fmax(fabs(v), 1e-300);
-		if (fabs(step) <= 4e-16 * scale || hi - lo <= 4e-16 * scale)
-			break;
-	}
-	*x = v;
-	return isfinite(v) ? 0 : -1;
+	struct kernel_result r =
+		kernel_newton_solve(&fn, lo, flo, hi, fhi,
+		                    fabs(flo) < fabs(fhi) ? lo : hi, 4e-16, NULL, NULL);
+	*x = r.x;
+	return isfinite(r.x) ? 0 : -1;
 }

@@ -28,6 +28,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "../kernel.h"
 #include "models.h"
 
 #define ZERO_C 273.15
@@ -145,28 +146,42 @@ static double therm_turn(const double *p, bool sh, double t)
 	return -dl * (t - (p[THERM_TAMB] + ZERO_C)) - 1.0;
 }
 
+/* The turning-point condition for the kernel. */
+struct therm_turn_ctx {
+	const double *p;
+	bool sh;
+};
+
+/* therm_turn of the context at T. */
+static double therm_turn_eval(void *ctx, double t, double *step)
+{
+	const struct therm_turn_ctx *c = ctx;
+	if (step != NULL)
+		*step = NAN;
+	return therm_turn(c->p, c->sh, t);
+}
+
 /*
  * The voltage maximum: the body temperature where dV/dI = 0, found by
- * bisection of the condition above between ambient and the rated maximum.
+ * Brent-Dekker on the condition above between ambient and the rated
+ * maximum.
  * Returns 0 with *T (kelvin), *I and *V, or -1 when the voltage keeps
  * rising up to the rated maximum (no turning point in the domain).
  */
 static int therm_peak(const double *p, bool sh, double *t, double *i, double *v)
 {
 	double a = p[THERM_TAMB] + ZERO_C, b = p[THERM_TMAX] + ZERO_C;
-	if (!(therm_turn(p, sh, b) > 0.0))
+	double fb = therm_turn(p, sh, b);
+	if (!(fb > 0.0))
 		return -1;
-	for (int k = 0; k < 200 && b - a > 1e-13 * b; k++) {
-		double m = 0.5 * (a + b);
-		if (therm_turn(p, sh, m) > 0.0)
-			b = m;
-		else
-			a = m;
-	}
-	*t = 0.5 * (a + b);
-	double dr, r = therm_r(p, sh, *t, &dr);
-	*i = sqrt(p[THERM_DELTA] * (*t - (p[THERM_TAMB] + ZERO_C)) / r);
-	*v = *i * r;
+	struct therm_turn_ctx c = { p, sh };
+	struct kernel_fn fn = { therm_turn_eval, &c };
+	struct kernel_result r =
+		kernel_brent_solve(&fn, a, therm_turn(p, sh, a), b, fb, 1e-13, 0.0);
+	*t = r.x;
+	double dr, res = therm_r(p, sh, *t, &dr);
+	*i = sqrt(p[THERM_DELTA] * (*t - (p[THERM_TAMB] + ZERO_C)) / res);
+	*v = *i * res;
 	return 0;
 }
 

@@ -22,6 +22,7 @@
 #include <math.h>
 #include <stdio.h>
 
+#include "../kernel.h"
 #include "models.h"
 
 /* The derived excess-current constants. */
@@ -119,6 +120,14 @@ static void tunnel_range(const double *p, double *vmin, double *vmax)
 	*vmin = -0.5 * p[TUNNEL_VP];
 }
 
+/* dI/dV for the kernel. */
+static double tunnel_conductance_eval(void *ctx, double v, double *step)
+{
+	if (step != NULL)
+		*step = NAN;
+	return tunnel_conductance(ctx, v);
+}
+
 /* Peak and valley where the curve has them (see models.h). */
 int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
                    double *ivl)
@@ -126,23 +135,20 @@ int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
 	struct tunnel_k k;
 	if (tunnel_derive(p, &k) != 0)
 		return -1;
-	/* I' changes sign from + to - near Vp and from - to + at Vv: bisect
-	 * I' on a grid between 0 and Vv for the first sign change down. */
+	/* I' changes sign from + to - near Vp and from - to + at Vv: find the
+	 * first sign change down on a grid between 0 and Vv, then its root by
+	 * Brent-Dekker. */
 	double vv = p[TUNNEL_VV];
 	enum { N = 400 };
 	double a = 0.0, ga = tunnel_conductance(p, a);
+	struct kernel_fn fn = { tunnel_conductance_eval, (void *)p };
 	int found = -1;
 	for (int j = 1; j <= N; j++) {
 		double b = vv * j / N, gb = tunnel_conductance(p, b);
 		if (ga > 0.0 && gb <= 0.0) {
-			for (int it = 0; it < 200 && b - a > 1e-15 * b; it++) {
-				double m = 0.5 * (a + b);
-				if (tunnel_conductance(p, m) > 0.0)
-					a = m;
-				else
-					b = m;
-			}
-			*vpk = 0.5 * (a + b);
+			struct kernel_result r =
+				kernel_brent_solve(&fn, a, ga, b, gb, 1e-15, 0.0);
+			*vpk = r.x;
 			*ipk = tunnel_current(p, *vpk);
 			found = 0;
 			break;
