@@ -28,3 +28,78 @@ enum qty_kind problem_residual_kind(const struct problem *pb)
 {
 	return isinf(pb->src.r) ? QTY_CURRENT : QTY_VOLTAGE;
 }
+
+/* Set up the junction view of PB. */
+void problem_junction_init(struct problem_junction *j,
+                           const struct problem *pb)
+{
+	j->pb = pb;
+	j->t = pb->dev.type;
+	j->p = pb->dev.p;
+	j->rser = j->t->series_resistance ? j->t->series_resistance(j->p) : 0.0;
+	j->rt = pb->src.r + j->rser;
+}
+
+/* Intrinsic current at X. */
+double problem_junction_current(const struct problem_junction *j, double x)
+{
+	return j->t->intrinsic_current ? j->t->intrinsic_current(j->p, x)
+	                               : j->t->current(j->p, x);
+}
+
+/* Intrinsic conductance at X. */
+double problem_junction_conductance(const struct problem_junction *j,
+                                    double x)
+{
+	return j->t->intrinsic_conductance ? j->t->intrinsic_conductance(j->p, x)
+	                                   : j->t->conductance(j->p, x);
+}
+
+/* The junction residual at X. */
+double problem_junction_residual(const struct problem_junction *j, double x)
+{
+	double i = problem_junction_current(j, x);
+	if (isinf(j->pb->src.r))
+		return i - j->pb->src.isc;
+	return x + j->rt * i - j->pb->src.voc;
+}
+
+/* Its slope at X. */
+double problem_junction_slope(const struct problem_junction *j, double x)
+{
+	double g = problem_junction_conductance(j, x);
+	if (isinf(j->pb->src.r))
+		return g;
+	return 1.0 + j->rt * g;
+}
+
+/* The device's point at junction voltage X. */
+void problem_junction_point(const struct problem_junction *j, double x,
+                            double *v, double *i)
+{
+	double ij = problem_junction_current(j, x);
+	if (isfinite(j->rt) && j->rt > 0.0 &&
+	    j->rt * problem_junction_conductance(j, x) > 1.0)
+		ij = (j->pb->src.voc - x) / j->rt;
+	*v = x + j->rser * ij;
+	*i = ij;
+}
+
+/* The inverse of the intrinsic curve at I, or NaN. */
+double problem_junction_inverse(const struct problem_junction *j, double i)
+{
+	double v = NAN;
+	if (j->t->intrinsic_voltage != NULL)
+		v = j->t->intrinsic_voltage(j->p, i);
+	else if (j->t->series_resistance == NULL && j->t->voltage != NULL &&
+	         j->t->voltage(j->p, i, &v) != 0)
+		v = NAN;
+	return v;
+}
+
+/* The model's limiting. */
+double problem_junction_limit(const struct problem_junction *j, double vnew,
+                              double vold)
+{
+	return j->t->limit != NULL ? j->t->limit(j->p, vnew, vold) : vnew;
+}

@@ -56,4 +56,54 @@ double problem_residual_slope(const struct problem *pb, double v);
 /* The unit of the residual: QTY_VOLTAGE or QTY_CURRENT. */
 enum qty_kind problem_residual_kind(const struct problem *pb);
 
+/*
+ * The problem in the variable the bracketed methods and the every-root
+ * scan work on: for a model with a series split, the junction voltage x
+ * behind the series resistance Rs, which is folded into the source,
+ *
+ *     F(x) = x + (r + Rs) Ij(x) - voc       (finite r)
+ *     F(x) = Ij(x) - isc                    (ideal current source)
+ *
+ * and for any other model with current(V) the device voltage itself
+ * (Rs = 0, Ij = I).  It borrows PB, which must outlive it.
+ */
+struct problem_junction {
+	const struct problem *pb;
+	const struct model_type *t;
+	const double *p;
+	double rser;     /* Rs */
+	double rt;       /* r + Rs */
+};
+
+/* Set J up for PB (PB's device must have current(V)). */
+void problem_junction_init(struct problem_junction *j,
+                           const struct problem *pb);
+
+/* Ij(x), dIj/dx, F(x) and F'(x). */
+double problem_junction_current(const struct problem_junction *j, double x);
+double problem_junction_conductance(const struct problem_junction *j,
+                                    double x);
+double problem_junction_residual(const struct problem_junction *j, double x);
+double problem_junction_slope(const struct problem_junction *j, double x);
+
+/*
+ * The device's (V, I) at junction voltage X, with I taken from the load
+ * line where the device is the steeper curve (better conditioned there).
+ */
+void problem_junction_point(const struct problem_junction *j, double x,
+                            double *v, double *i);
+
+/*
+ * The junction voltage at which the intrinsic curve carries I (its
+ * inverse), or NaN where the model does not give it.
+ */
+double problem_junction_inverse(const struct problem_junction *j, double i);
+
+/*
+ * The model's Newton-step limiting of the junction voltage (VNEW, the
+ * proposed value, from VOLD); VNEW itself when the model has none.
+ */
+double problem_junction_limit(const struct problem_junction *j, double vnew,
+                              double vold);
+
 #endif

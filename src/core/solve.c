@@ -11,6 +11,7 @@
 
 #include "diagnose.h"
 #include "junction.h"
+#include "kernel.h"
 
 /* Relative tolerance of the independent check of a reported point. */
 #define VERIFY_TOL 1e-8
@@ -140,52 +141,49 @@ static int solve_cmp(const void *a, const void *b)
 	return (p->v > q->v) - (p->v < q->v);
 }
 
-/* V(I) + r I - voc for a curve given as V(I); NaN outside its domain. */
-static double solve_residual_i(const struct problem *pb, double i, double *v)
+/* V(I) + r I - voc for a curve given as V(I), and its Newton step with
+ * G' = r_d + r; NaN outside the curve's domain. */
+static double solve_residual_i(void *ctx, double i, double *step)
 {
-	if (device_voltage(&pb->dev, i, v) != 0)
+	const struct problem *pb = ctx;
+	double v;
+	if (device_voltage(&pb->dev, i, &v) != 0) {
+		if (step != NULL)
+			*step = NAN;
 		return NAN;
-	return *v + pb->src.r * i - pb->src.voc;
+	}
+	double g = v + pb->src.r * i - pb->src.voc;
+	if (step != NULL) {
+		const struct model_type *t = pb->dev.type;
+		double d = t->resistance != NULL ? t->resistance(pb->dev.p, i) : NAN;
+		*step = g / (d + pb->src.r);
+	}
+	return g;
 }
 
 /*
- * Refine a bracket in current (a curve given as V(I)) by safeguarded
- * Newton-Raphson on G(I) = V(I) + r I - voc, G' = r_d + r, keeping the end
- * whose residual has the other sign (G may fall through the root on the
- * falling branch past a voltage maximum) and bisecting when a step leaves
- * the bracket.  Returns 0 and fills PT's V, I and steps, or -1.
+ * Refine a bracket in current (a curve given as V(I)) by the kernel's
+ * safeguarded Newton on G(I) = V(I) + r I - voc from its middle (G may
+ * fall through the root on the falling branch past a voltage maximum: the
+ * kernel keeps the end of the other sign).  Returns 0 and fills PT's V, I
+ * and steps, or -1.
  */
 static int solve_refine_current(const struct problem *pb,
                                 const struct bracket *b, double tol,
                                 struct op_point *pt)
 {
-	const struct model_type *t = pb->dev.type;
 	double lo = b->lo, hi = b->hi, v;
-	double glo = solve_residual_i(pb, lo, &v);
+	struct kernel_fn fn = { solve_residual_i, (void *)pb };
+	double glo = solve_residual_i((void *)pb, lo, NULL);
 	double x = lo;
 	unsigned it = 0;
-	if (!b->tangent && lo != hi) {
-		x = 0.5 * (lo + hi);
-		for (it = 1; it <= 300; it++) {
-			double g = solve_residual_i(pb, x, &v);
-			if (g == 0.0 || isnan(g))
-				break;
-			if ((g < 0.0) == (glo < 0.0)) {
-				lo = x;
-				glo = g;
-			} else {
-				hi = x;
-			}
-			double d = t->resistance != NULL ? t->resistance(pb->dev.p, x) : NAN;
-			double xn = x - g / (d + pb->src.r);
-			if (!(xn > lo && xn < hi))
-				xn = 0.5 * (lo + hi);
-			double dx = xn - x;
-			x = xn;
-			if (fabs(dx) <= tol * fabs(x) || hi - lo <= tol * fabs(x) ||
-			    fabs(dx) < 1e-300)
-				break;
-		}
+	if (!b->tangent && lo != hi && glo != 0.0) {
+		double ghi = solve_residual_i((void *)pb, hi, NULL);
+		struct kernel_result kr = kernel_newton_solve(
+			&fn, lo, glo, hi, isnan(ghi) ? -glo : ghi, 0.5 * (lo + hi), tol,
+			NULL, NULL);
+		x = kr.x;
+		it = kr.iters;
 	}
 	if (device_voltage(&pb->dev, x, &v) != 0)
 		return -1;

@@ -1,7 +1,8 @@
 /*
  * stepper.h - iterative operating-point methods the caller steps one
- * iteration at a time (init / step / test, in the manner of GSL's root
- * solvers), recording every step in a trace.
+ * iteration at a time (init / iterate / test, in the manner of GSL's root
+ * solvers), recording every step in a trace.  Each method is a type in
+ * its own file (stepper_type.h); this is the interface they share.
  *
  * The projection methods advance exactly one projection per call (a half
  * step: horizontal to one curve or vertical to the other), so a front end
@@ -115,8 +116,24 @@ int stepper_init(struct stepper *s, const struct problem *pb,
 
 /*
  * Advance one step (one projection for the projection method) and append
- * a trace row.  Returns the status after the step; a stepper that has
- * stopped (anything but STEP_CONTINUE) does not move again.
+ * a trace row, without deciding convergence: STEP_CONTINUE, or a status
+ * that stops the path (it could not step: out of domain, non-finite,
+ * undefined, the step cap).  A caller with a test of its own steps with
+ * this and tests the trace itself.
+ */
+enum step_status stepper_iterate(struct stepper *s);
+
+/*
+ * The method's own test of the path so far at the options' tolerance:
+ * STEP_CONVERGED, STEP_CONTINUE, or STEP_DIVERGING / CYCLING / STALLED
+ * for a path that will not converge.  A pure function: it changes nothing.
+ */
+enum step_status stepper_test(const struct stepper *s);
+
+/*
+ * stepper_iterate then stepper_test: advance one step and append a trace
+ * row.  Returns the status after the step; a stepper that has stopped
+ * (anything but STEP_CONTINUE) does not move again.
  */
 enum step_status stepper_step(struct stepper *s);
 
@@ -160,7 +177,11 @@ size_t stepper_scan(const struct problem *pb, struct bracket *out, size_t max);
 int stepper_init_bracket(struct stepper *s, const struct problem *pb,
                          const struct solve_options *o, const struct bracket *b);
 
-/* Re-run the path from its start up to N steps (steps back when N < now). */
+/*
+ * Re-run the path from its start up to N steps (steps back when N < now):
+ * from the same problem, options and caller's bracket, so the rows are
+ * the same as the first time, bit for bit.
+ */
 enum step_status stepper_rewind(struct stepper *s, size_t n);
 
 /* The trace so far: *N rows (row 0 is the start point). */

@@ -8,6 +8,7 @@
 #include <stddef.h>
 #include <stdint.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include <cmocka.h>
@@ -303,6 +304,119 @@ static void test_rewind(void **state)
 	stepper_destroy(st);
 }
 
+
+/* Rows A and B are the same, bit for bit (NaN included). */
+static bool rows_identical(const struct trace_row *a, const struct trace_row *b)
+{
+	const double da[] = { a->v, a->i, a->residual, a->step, a->ratio };
+	const double db[] = { b->v, b->i, b->residual, b->step, b->ratio };
+	return a->k == b->k && a->on == b->on && memcmp(da, db, sizeof da) == 0;
+}
+
+/* One path to replay: a problem, options, and a bracket or none. */
+struct replay_case {
+	const char *name;
+	enum solve_method method;
+	enum projection_order order;
+	double omega;
+	int bracket;       /* 1: start from the scan's second bracket */
+	int tunnel;        /* 1: a tunnel diode with three crossings */
+};
+
+static const struct replay_case replay_cases[] = {
+	{ "projection/line", METHOD_PROJECTION, ORDER_VOLTAGE_FROM_LINE, 0, 0, 0 },
+	{ "projection/device", METHOD_PROJECTION, ORDER_VOLTAGE_FROM_DEVICE, 0, 0, 0 },
+	{ "relaxed/optimal", METHOD_RELAXED, ORDER_VOLTAGE_FROM_DEVICE, 0.0, 0, 0 },
+	{ "relaxed/0.613", METHOD_RELAXED, ORDER_VOLTAGE_FROM_LINE, 0.613, 0, 0 },
+	{ "newton", METHOD_NEWTON, ORDER_VOLTAGE_FROM_DEVICE, 0, 0, 0 },
+	{ "brent", METHOD_BRENT, ORDER_VOLTAGE_FROM_DEVICE, 0, 0, 0 },
+	{ "auto", METHOD_AUTO, ORDER_VOLTAGE_FROM_DEVICE, 0, 0, 0 },
+	{ "newton/bracket", METHOD_NEWTON, ORDER_VOLTAGE_FROM_DEVICE, 0, 1, 1 },
+	{ "brent/bracket", METHOD_BRENT, ORDER_VOLTAGE_FROM_DEVICE, 0, 1, 1 },
+	{ "newton/scan", METHOD_NEWTON, ORDER_VOLTAGE_FROM_DEVICE, 0, 0, 1 },
+};
+
+/*
+ * Every method replays: run a path to its end, then rewind to every
+ * earlier step and run on again; each replay must give the same rows, bit
+ * for bit, and the same status.  A bracket-started method keeps the
+ * caller's bracket as given (Newton narrows its own as it runs), so the
+ * replay starts where the first run did.  The tunnel diode (invented
+ * values; three crossings from 0.95 V through 2.37 kohm) gives the
+ * bracketed methods a non-monotone residual.
+ */
+static void test_rewind_every_method(void **state)
+{
+	(void)state;
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	for (size_t c = 0; c < sizeof replay_cases / sizeof replay_cases[0]; c++) {
+		const struct replay_case *rc = &replay_cases[c];
+		struct problem pb;
+		struct solve_options o;
+		solve_options_init(&o);
+		o.method = rc->method;
+		o.order = rc->order;
+		o.omega = rc->omega;
+		if (rc->tunnel) {
+			struct source_spec sp;
+			char err[200];
+			source_spec_thevenin(&sp, 0.95, 2370.0);
+			assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+			device_init(&pb.dev, &model_tunnel);
+			pb.net = NULL;
+			pb.net_nset = 0;
+			o.start_v = 0.2137;
+		} else {
+			double v = diverge_problem(&pb, &diverge_cases[1]);
+			pb.net = NULL;
+			pb.net_nset = 0;
+			o.start_v = rc->method == METHOD_PROJECTION &&
+			                    rc->order == ORDER_VOLTAGE_FROM_LINE
+			                ? v * 0.983
+			                : v - 0.37 * check_nvt(1.83, 61.9);
+		}
+		struct bracket br[SOLVE_MAX_POINTS];
+		int ok;
+		if (rc->bracket) {
+			assert_int_equal(stepper_scan(&pb, br, SOLVE_MAX_POINTS), 3);
+			ok = stepper_init_bracket(st, &pb, &o, &br[1]);
+		} else {
+			ok = stepper_init(st, &pb, &o);
+		}
+		assert_int_equal(ok, 0);
+		enum step_status first = stepper_run(st);
+		size_t n;
+		const struct trace_row *tr = stepper_trace(st, &n);
+		assert_true(n >= 3);
+		struct trace_row *saved = malloc(n * sizeof *saved);
+		assert_non_null(saved);
+		memcpy(saved, tr, n * sizeof *saved);
+		for (size_t j = 0; j < n; j++) {
+			stepper_rewind(st, j);
+			size_t m;
+			tr = stepper_trace(st, &m);
+			assert_int_equal(m, j + 1);
+			for (size_t k = 0; k < m; k++)
+				if (!rows_identical(&tr[k], &saved[k]))
+					fail_msg("%s: rewind to %zu: row %zu differs", rc->name,
+					         j, k);
+			enum step_status again = stepper_run(st);
+			tr = stepper_trace(st, &m);
+			assert_int_equal(m, n);
+			assert_int_equal(again, first);
+			for (size_t k = 0; k < m; k++)
+				if (!rows_identical(&tr[k], &saved[k]))
+					fail_msg("%s: after rewind to %zu: row %zu differs",
+					         rc->name, j, k);
+		}
+		print_message("# %-18s %zu rows replayed (%s)\n", rc->name, n,
+		              step_status_name(first));
+		free(saved);
+	}
+	stepper_destroy(st);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -312,6 +426,7 @@ int main(void)
 		cmocka_unit_test(test_relaxed_converges),
 		cmocka_unit_test(test_step_cap),
 		cmocka_unit_test(test_rewind),
+		cmocka_unit_test(test_rewind_every_method),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
