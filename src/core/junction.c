@@ -1,90 +1,437 @@
 /*
- * junction.c - safeguarded Newton-Raphson for vj + r * Ij(vj) = voc.
+ * junction.c - vj + r * Ij(vj) = voc, in closed form for a Shockley
+ * junction and by safeguarded Newton-Raphson otherwise.
  *
- * F(vj) = vj + r Ij(vj) - voc is increasing, so a kept bracket [lo, hi]
- * (F(lo) <= 0 <= F(hi)) is updated from the sign of F at every iterate; a
- * Newton step that would leave the bracket, or a non-finite value, falls
- * back to bisection, so the iteration can neither leave the bracket nor
- * stall.  Starting at the upper end of the bracket on a convex F (a forward
- * biased junction) the Newton iterates decrease monotonically onto the root.
+ * The closed form.  For Ij = Is (exp(vj / nVt) - 1) write u = vj / nVt,
+ * a = Is r / nVt and b0 = voc / nVt.  The equation is
+ *
+ *     u + a expm1(u) = b0,
+ *
+ * and w = a e^u satisfies w + ln w = ln a + b0 + a =: x, so w = omega(x),
+ * the Wright omega function (Corless & Jeffrey, "The Wright omega
+ * function", AISC 2002): the Lambert W solution of a diode behind a
+ * resistor (Banwell & Jayakumar, Electronics Letters 36(4), 2000) taken
+ * in log space, so that nothing overflows however far forward the diode
+ * is driven.  omega comes from a start of a few digits (a series about 1,
+ * the asymptotic expansion above, e^x below) and one or two steps of the
+ * fourth-order iteration of Fritsch, Shafer & Crowley ("Algorithm 443:
+ * Solution of the transcendental equation w e^w = x", CACM 16(2), 1973),
+ * in the form for omega of Lawrence, Corless & Jeffrey (ACM TOMS 38(3),
+ * 2012, Algorithm 917).
+ *
+ * From w: u = b0 - (w - a), exact in arithmetic, then one Newton
+ * correction of u + a expm1(u) - b0 on the junction's own equation.  That
+ * correction costs the one exponential of the check: its size bounds the
+ * distance to the root, and after it the error is of the order of its
+ * square.  The current comes from the better-conditioned side: the
+ * line, nVt (b0 - u) / r = nVt (w - a) / r, where the device is the
+ * steeper curve, else the device, Is expm1(u); and the junction's
+ * conductance is Is e^u / nVt = w / r, so r_d needs no exponential either.
+ *
+ * The fallback.  F(vj) = vj + r Ij(vj) - voc is increasing, so a kept
+ * bracket [lo, hi] (F(lo) <= 0 <= F(hi)) holds the root; kernel.h's
+ * safeguarded Newton iterates in it.  Where the load line is the flatter
+ * curve the step is taken on G(v) = v - Vj((voc - v) / r), which has the
+ * sign and root of F and is nearly linear there (one log instead of an
+ * exp and an expm1).
  */
 #include "junction.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdbool.h>
 
-/* Intrinsic current of TYPE (the whole current when it has no split). */
-static double junction_current(const struct model_type *t, const double *p,
-                               double v)
+#include "kernel.h"
+
+/* ---------------------------------------------------------------------- */
+/* The Wright omega function                                               */
+
+/*
+ * omega(x) for -37.5 <= x < -2, where omega is below 0.136 and ln w is
+ * nearly x: with y = e^x and w = y (1 + s), w + ln w = x reads
+ * g(s) = log1p(s) + y (1 + s) = 0, whose terms have no cancellation.  The
+ * series of W(y) (Corless et al., Adv. Comput. Math. 5, 1996, eq. 3.1:
+ * W(y) = sum (-n)^(n-1) y^n / n!) gives s to y^6, and Newton on g, whose
+ * error after a step is about ds^2 / 2, finishes it.
+ */
+static double junction_omega_small(double x)
 {
-	return t->intrinsic_current ? t->intrinsic_current(p, v) : t->current(p, v);
+	double y = exp(x);
+	double s = y * (-1.0 + y * (1.5 + y * (-8.0 / 3.0 +
+	                                     y * (125.0 / 24.0 + y * (-54.0 / 5.0)))));
+	for (int k = 0; k < 4; k++) {
+		double ds = (log1p(s) + y * (1.0 + s)) / (1.0 / (1.0 + s) + y);
+		s -= ds;
+		if (ds * ds <= DBL_EPSILON * DBL_EPSILON)
+			break;
+	}
+	return y * (1.0 + s);
 }
 
-/* Intrinsic conductance of TYPE. */
-static double junction_conductance(const struct model_type *t, const double *p,
-                                   double v)
+/* omega(x), see junction.h. */
+double junction_wright_omega(double x)
 {
-	return t->intrinsic_conductance ? t->intrinsic_conductance(p, v)
-	                                : t->conductance(p, v);
+	double w;
+	if (x < -37.5) {
+		/* omega = e^x (1 - e^x + ...): the rest is below rounding. */
+		return exp(x);
+	}
+	if (x < -2.0)
+		return junction_omega_small(x);
+	if (x <= 2.5) {
+		/* The Taylor series about x = 1, where omega = 1. */
+		double d = x - 1.0;
+		w = 1.0 + d * (1.0 / 2.0 +
+		               d * (1.0 / 16.0 +
+		                    d * (-1.0 / 192.0 +
+		                         d * (-1.0 / 3072.0 + d * (13.0 / 61440.0)))));
+	} else {
+		/* x - ln x + ln x / x (Corless et al., Adv. Comput. Math. 5,
+		 * 1996, eq. 4.19, in x = ln z). */
+		double l = log(x);
+		w = x - l + l / x;
+	}
+	/*
+	 * Fritsch-Shafer-Crowley steps: r = x - w - ln w, and
+	 * w <- w (1 + r / (1 + w) (q - r/2) / (q - r)), q = (1 + w)(1 + w +
+	 * 2r/3).  Fourth order: a relative change below 1e-4 leaves an error
+	 * near 1e-16 behind it.
+	 */
+	for (int k = 0; k < 3; k++) {
+		double r = x - w - log(w);
+		double wp = 1.0 + w;
+		double q = wp * (wp + (2.0 / 3.0) * r);
+		double dw = w * r / wp * (q - 0.5 * r) / (q - r);
+		w += dw;
+		if (!(fabs(dw) > 1e-4 * w))
+			break;
+	}
+	return w;
 }
 
-/* A finite estimate of the intrinsic voltage at current I > 0, or NaN. */
-static double junction_estimate(const struct model_type *t, const double *p,
-                                double i)
+/* ---------------------------------------------------------------------- */
+/* The Shockley junction's own functions                                   */
+
+/* Above this V / nVt the exponential is taken with ln Is folded in. */
+#define JUNCTION_EXP_SAFE 700.0
+
+/* Is expm1(V / nVt) (see junction.h). */
+double junction_shockley_current(double is, double nvt, double v)
 {
+	double u = v / nvt;
+	double ulo = fma(-u, nvt, v) / nvt; /* v / nvt = u + ulo, exactly */
+	if (u < JUNCTION_EXP_SAFE) {
+		double e = expm1(u);
+		return is * (e + (e + 1.0) * ulo);
+	}
+	/* e^u Is = e^(u - 700) (Is e^700): u - 700 is exact, no ln Is. */
+	return exp(u - JUNCTION_EXP_SAFE) * (is * exp(JUNCTION_EXP_SAFE)) *
+	       (1.0 + ulo);
+}
+
+/* Is exp(V / nVt) / nVt (see junction.h). */
+double junction_shockley_conductance(double is, double nvt, double v)
+{
+	double u = v / nvt;
+	if (u < JUNCTION_EXP_SAFE)
+		return is / nvt * exp(u);
+	return exp(u - JUNCTION_EXP_SAFE) * (is * exp(JUNCTION_EXP_SAFE)) / nvt;
+}
+
+/* nVt log1p(I / Is), NaN for I <= -Is (see junction.h). */
+double junction_shockley_voltage(double is, double nvt, double i)
+{
+	double q = i / is;
+	if (!(q > -1.0))
+		return NAN;
+	if (isfinite(q))
+		return nvt * log1p(q);
+	return nvt * (log(i) - log(is)); /* I / Is beyond a double: >> 1 */
+}
+
+/* ---------------------------------------------------------------------- */
+/* The general junction: the model's functions, or IS and NVT               */
+
+struct junction_ctx {
+	const struct model_type *t;  /* NULL: the Shockley junction is, nvt */
+	const double *p;
+	double is, nvt;
+	double voc, r;
+	bool log_step;               /* the last step was the log-domain one */
+};
+
+/* Ij at V. */
+static double junction_current(const struct junction_ctx *c, double v)
+{
+	const struct model_type *t = c->t;
+	if (t == NULL)
+		return junction_shockley_current(c->is, c->nvt, v);
+	return t->intrinsic_current ? t->intrinsic_current(c->p, v)
+	                            : t->current(c->p, v);
+}
+
+/* dIj/dV at V. */
+static double junction_conductance(const struct junction_ctx *c, double v)
+{
+	const struct model_type *t = c->t;
+	if (t == NULL)
+		return junction_shockley_conductance(c->is, c->nvt, v);
+	return t->intrinsic_conductance ? t->intrinsic_conductance(c->p, v)
+	                                : t->conductance(c->p, v);
+}
+
+/* The inverse Vj(I), or NaN where unknown. */
+static double junction_inverse(const struct junction_ctx *c, double i)
+{
+	const struct model_type *t = c->t;
 	double v = NAN;
+	if (t == NULL)
+		return junction_shockley_voltage(c->is, c->nvt, i);
 	if (t->intrinsic_voltage)
-		v = t->intrinsic_voltage(p, i);
-	else if (t->voltage && t->voltage(p, i, &v) != 0)
+		v = t->intrinsic_voltage(c->p, i);
+	else if (t->series_resistance == NULL && t->voltage != NULL &&
+	         t->resistance != NULL && t->voltage(c->p, i, &v) != 0)
 		v = NAN;
 	return v;
 }
 
-/*
- * The inverse of the intrinsic curve, Vj(I), when the model gives it: the
- * intrinsic voltage, or the voltage of a model without a series split.
- */
-static bool junction_has_inverse(const struct model_type *t)
+/* dVj/dI at I (NaN when unknown). */
+static double junction_rdiff(const struct junction_ctx *c, double i)
 {
-	return t->intrinsic_voltage != NULL ||
-	       (t->series_resistance == NULL && t->voltage != NULL &&
-	        t->resistance != NULL);
-}
-
-/* dVj/dI of the intrinsic curve at I (NaN when unknown). */
-static double junction_resistance(const struct model_type *t, const double *p,
-                                  double i)
-{
-	if (t->resistance == NULL)
+	const struct model_type *t = c->t;
+	if (t == NULL) {
+		double d = c->is + i;
+		return d > 0.0 ? c->nvt / d : NAN;
+	}
+	if (t->resistance == NULL ||
+	    (t->intrinsic_voltage == NULL &&
+	     (t->series_resistance != NULL || t->voltage == NULL)))
 		return NAN;
-	double rd = t->resistance(p, i);
+	double rd = t->resistance(c->p, i);
 	if (t->series_resistance != NULL)
-		rd -= t->series_resistance(p);
+		rd -= t->series_resistance(c->p);
 	return rd;
 }
 
 /*
- * One Newton step on the log-domain residual G(v) = v - Vj((voc - v)/r),
- * which has the sign of F and the same root, where the load line is the
- * flatter curve (dVj/dI < r, so 1 <= G' < 2).  There G is nearly linear
- * and costs one log instead of exp and expm1 (for a junction: Vj is
- * nVt log1p(I/Is)).  Returns false where it does not apply; else fills
- * *G and *STEP (the Newton step to subtract).
+ * F(v) = v + r Ij(v) - voc and its Newton step, or, where the load line
+ * is the flatter curve (dVj/dI < r), G(v) = v - Vj((voc - v) / r) and its
+ * step (same sign and root; 1 <= G' < 2 there).
  */
-static bool junction_log_step(const struct model_type *t, const double *p,
-                              double voc, double r, double v, double *g,
-                              double *step)
+static double junction_eval(void *ctx, double v, double *step)
 {
-	double il = (voc - v) / r;
-	double rj = junction_resistance(t, p, il);
-	if (!(rj >= 0.0 && rj < r))
-		return false;
-	double vd = junction_estimate(t, p, il);
-	if (!isfinite(vd))
-		return false;
-	*g = v - vd;
-	*step = *g / (1.0 + rj / r);
-	return isfinite(*step);
+	struct junction_ctx *c = ctx;
+	double il = (c->voc - v) / c->r;
+	double rj = junction_rdiff(c, il);
+	c->log_step = false;
+	if (rj >= 0.0 && rj < c->r) {
+		double vd = junction_inverse(c, il);
+		if (isfinite(vd)) {
+			double g = v - vd;
+			*step = g / (1.0 + rj / c->r);
+			if (isfinite(*step)) {
+				c->log_step = true;
+				return g;
+			}
+		}
+	}
+	double ij = junction_current(c, v);
+	double gj = junction_conductance(c, v);
+	double f = v + c->r * ij - c->voc;
+	double d = 1.0 + c->r * gj;
+	*step = isfinite(f) && isfinite(d) && d > 0.0 ? f / d : NAN;
+	return f;
+}
+
+/* Nagel's limiting of a step of the Shockley junction IS, NVT. */
+static double junction_shockley_limit(double is, double nvt, double vnew,
+                                      double vold)
+{
+	double vcrit = nvt * log(nvt / (sqrt(2.0) * is));
+	if (vnew > vold && vnew > vcrit && vnew - vold > 2.0 * nvt) {
+		if (vold > 0.0) {
+			double arg = 1.0 + (vnew - vold) / nvt;
+			vnew = arg > 0.0 ? vold + nvt * log(arg) : vcrit;
+		} else {
+			vnew = nvt * log(vnew / nvt);
+		}
+	}
+	return vnew;
+}
+
+/* The model's limiting, on plain Newton steps only. */
+static double junction_limit(void *ctx, double vnew, double vold)
+{
+	struct junction_ctx *c = ctx;
+	if (c->log_step)
+		return vnew;
+	if (c->t == NULL)
+		return junction_shockley_limit(c->is, c->nvt, vnew, vold);
+	return c->t->limit != NULL ? c->t->limit(c->p, vnew, vold) : vnew;
+}
+
+/* Safeguarded Newton in the bracket (see the top of the file). */
+static struct junction_result junction_newton(struct junction_ctx *c,
+                                              double tol)
+{
+	struct junction_result res = { .vj = c->voc, .ij = NAN, .gj = NAN,
+	                               .dvj = NAN, .path = JUNCTION_NEWTON };
+	double voc = c->voc;
+	double lo = fmin(0.0, voc), hi = fmax(0.0, voc);
+	/* The current cannot exceed |voc|/r: bound the junction voltage. */
+	double est = junction_inverse(c, fabs(voc) / c->r);
+	if (voc > 0.0 && isfinite(est) && est < hi && est > lo)
+		hi = est;
+	struct kernel_fn fn = { junction_eval, c };
+	/* F < 0 at lo and > 0 at hi by construction: the signs suffice. */
+	struct kernel_result kr = kernel_newton_solve(
+		&fn, lo, -1.0, hi, 1.0, voc > 0.0 ? hi : lo, tol, junction_limit, c);
+	double v = kr.x;
+	res.vj = v;
+	res.iters = kr.iters;
+	res.ok = kr.ok;
+	res.dvj = fabs(kr.hi - kr.lo);
+	/* The current from the better-conditioned side: the line where the
+	 * device is the steeper curve. */
+	res.gj = junction_conductance(c, v);
+	if (c->log_step || c->r * res.gj > 1.0)
+		res.ij = (voc - v) / c->r;
+	else
+		res.ij = junction_current(c, v);
+	if (!isfinite(res.ij))
+		res.ok = 0;
+	return res;
+}
+
+/* ---------------------------------------------------------------------- */
+/* The closed form                                                         */
+
+/*
+ * omega(x) for x > 2.5 from its asymptotic expansion through 1 / x^4
+ * (Corless et al., Adv. Comput. Math. 5, 1996, eq. 4.19, with ln z = x):
+ * off by less than 2e-5 at x = 10, 5e-8 from x = 60 and 1e-13 from
+ * x = 1000 (compared with a 40-digit Lambert W).
+ */
+static double junction_omega_asymptotic(double x)
+{
+	double l = log(x), ix = 1.0 / x, ix3 = ix * ix * ix;
+	/* The terms' coefficients in l, then summed in pairs (short chains). */
+	double c2 = l * (l - 2.0) * 0.5;
+	double c3 = l * (6.0 + l * (-9.0 + 2.0 * l)) * (1.0 / 6.0);
+	double c4 = l * (-12.0 + l * (36.0 + l * (-22.0 + 3.0 * l))) * (1.0 / 12.0);
+	return (x - l) + ((l + c2 * ix) * ix + (c3 + c4 * ix) * ix3);
+}
+
+/* Below this u, e^u is 0 in a double (and exp() would take its slow
+ * underflow path to say so). */
+#define JUNCTION_EXP_UNDERFLOW -746.0
+
+/*
+ * The closed form for IS, NVT (see the top of the file); res.ok = 0 when
+ * it cannot vouch for its answer (the caller then runs Newton).
+ */
+static struct junction_result junction_omega(double is, double nvt, double voc,
+                                             double r, double tol)
+{
+	struct junction_result res = { .vj = NAN, .ij = NAN, .gj = NAN,
+	                               .dvj = NAN, .path = JUNCTION_OMEGA };
+	double inv_nvt = 1.0 / nvt, nvt_r = nvt / r;
+	double a = is * r * inv_nvt, b0 = voc * inv_nvt;
+	double u;
+	if (a <= 1.0 && b0 + a < -40.0) {
+		/* Deep reverse: w = a e^u < e^-40 is below the rounding of u,
+		 * so u = b0 + a already; the correction below confirms it. */
+		u = b0 + a;
+	} else {
+		/* The start: omega of x = ln a + b0 + a. */
+		double x = log(a) + (b0 + a);
+		double w = x > 2.5 ? junction_omega_asymptotic(x)
+		                   : junction_wright_omega(x);
+		u = b0 - (w - a);
+	}
+	/*
+	 * Halley corrections on F(u) = u + a expm1(u) - b0, F' = 1 + a e^u,
+	 * F'' = a e^u: after a correction du the error is about du^3 / 12
+	 * (Halley's cubic convergence; Traub, Iterative Methods for the
+	 * Solution of Equations, 1964, sec. 5.2): once that is below the
+	 * rounding of u, u is as good as a double can hold.  One correction
+	 * normally does it, and it is the check: one exponential.
+	 */
+	double e = NAN, ex = NAN, du = NAN;
+	bool settled = false;
+	for (unsigned k = 1; k <= 4 && !settled; k++) {
+		if (u < JUNCTION_EXP_UNDERFLOW) {
+			ex = 0.0;
+			e = -1.0;
+		} else if (fabs(u) > 0.6931) {
+			ex = exp(u); /* ex - 1 loses at most one bit here */
+			e = ex - 1.0;
+		} else {
+			e = expm1(u);
+			ex = e + 1.0;
+		}
+		double ae = a * ex;
+		double f = (u - b0) + a * e, fp = 1.0 + ae;
+		/* Halley: (f / f') / (1 - f f'' / (2 f'^2)), one division. */
+		du = f * fp / (fp * fp - 0.5 * f * ae);
+		u -= du;
+		res.iters = k;
+		if (!isfinite(u) || !isfinite(ae))
+			return res; /* e^u overflows: let Newton decide */
+		settled = fabs(du * du * du) <= DBL_EPSILON * fabs(u);
+	}
+	if (!settled)
+		return res;
+	/* e^u and expm1(u) at the corrected u, to second order in du. */
+	double shrink = du * (1.0 - 0.5 * du);
+	double exc = ex - ex * shrink;
+	/*
+	 * The current from the side whose error is smaller: the line's grows
+	 * with |b0| / |b0 - u|, the device's with 1 + |u| e^u / |expm1(u)|
+	 * (compared multiplied out).
+	 */
+	double au = fabs(u), ae_ = fabs(e);
+	if ((fabs(b0) + au) * ae_ < (ae_ + au * ex) * fabs(b0 - u))
+		res.ij = (b0 - u) * nvt_r;
+	else
+		res.ij = is * (e - ex * shrink);
+	res.vj = nvt * u;
+	/* Is e^u / nVt; e^u near the bottom of the range has lost bits. */
+	res.gj = exc > 1e-290 || exc == 0.0 ? is * exc * inv_nvt
+	                                    : exp(u + log(is)) * inv_nvt;
+	/* The distance left: Halley's error estimate plus rounding. */
+	res.dvj = nvt * (fabs(du * du * du) + 2.0 * DBL_EPSILON * au);
+	double rel = tol > 4.0 * DBL_EPSILON ? tol : 4.0 * DBL_EPSILON;
+	res.ok = isfinite(res.ij) && isfinite(res.gj) &&
+	         res.dvj <= rel * fabs(res.vj) + DBL_MIN;
+	return res;
+}
+
+/* Ij at voc directly: an ideal voltage source, or a line steeper than any
+ * double can tell. */
+static struct junction_result junction_direct(struct junction_ctx *c)
+{
+	struct junction_result res = { .vj = c->voc, .dvj = 0.0,
+	                               .path = JUNCTION_DIRECT };
+	res.ij = junction_current(c, c->voc);
+	res.gj = junction_conductance(c, c->voc);
+	res.ok = isfinite(res.ij);
+	return res;
+}
+
+/* The Shockley junction IS, NVT (see junction.h). */
+struct junction_result junction_solve_shockley(double is, double nvt,
+                                               double voc, double r,
+                                               double tol)
+{
+	struct junction_ctx c = { .t = NULL, .is = is, .nvt = nvt, .voc = voc,
+	                          .r = r };
+	if (r == 0.0 || voc == 0.0 || !(is * r / nvt > DBL_MIN))
+		return junction_direct(&c);
+	struct junction_result res = junction_omega(is, nvt, voc, r, tol);
+	if (res.ok)
+		return res;
+	return junction_newton(&c, tol);
 }
 
 /* Solve vj + r Ij(vj) = voc (see junction.h). */
@@ -92,109 +439,17 @@ struct junction_result junction_solve(const struct model_type *t,
                                       const double *p, double voc, double r,
                                       double tol)
 {
-	struct junction_result res = { .vj = voc, .ij = NAN, .iters = 0, .ok = 0 };
-	if (r == 0.0 || voc == 0.0) {
-		res.ij = junction_current(t, p, voc);
-		res.ok = isfinite(res.ij);
-		return res;
-	}
-	double lo = fmin(0.0, voc), hi = fmax(0.0, voc);
-	/* The current cannot exceed |voc|/r: bound the junction voltage. */
-	double est = junction_estimate(t, p, fabs(voc) / r);
-	if (voc > 0.0 && isfinite(est) && est < hi && est > lo)
-		hi = est;
-	double v = voc > 0.0 ? hi : lo;
-	bool inverse = junction_has_inverse(t);
-	bool line_flatter = false; /* the last step was a log-domain one */
-	double prev_dv = NAN;      /* the last plain Newton step, same residual */
-	for (unsigned it = 1; it <= 400; it++) {
-		res.iters = it;
-		double f, dv = NAN;
-		bool was_flatter = line_flatter;
-		line_flatter = inverse && junction_log_step(t, p, voc, r, v, &f, &dv);
-		if (line_flatter != was_flatter)
-			prev_dv = NAN;
-		/* The current's scale, to hold its error below TOL as well. */
-		double iscale, gscale;
-		if (line_flatter) {
-			iscale = fabs(voc - v) / r; /* the current from the line */
-			gscale = 1.0 / r;
-		} else {
-			double ij = junction_current(t, p, v);
-			double g = junction_conductance(t, p, v);
-			f = v + r * ij - voc;
-			double d = 1.0 + r * g;
-			if (isfinite(f) && isfinite(d) && d > 0.0)
-				dv = f / d;
-			iscale = fabs(ij);
-			gscale = g;
-		}
-		if (f == 0.0) {
-			res.ok = 1;
-			break;
-		}
-		if (f < 0.0)
-			lo = v;
-		else
-			hi = v; /* F > 0, or overflow: v is above the root */
-		double vn = NAN;
-		if (isfinite(dv)) {
-			if (fabs(dv) <= tol * fabs(v)) {
-				/* Quadratic convergence: this last step is below TOL. */
-				v -= dv;
-				res.ok = 1;
-				break;
-			}
-			/*
-			 * Two plain Newton steps in the quadratic regime (this one
-			 * below 1e-3 of the last) estimate the error constant as
-			 * dv / prev^2, so the step after this one would be about
-			 * dv^3 / prev^2.  When that is 100 times below TOL on the
-			 * voltage and on the current it moves (the current is
-			 * steeper: g dv / I reaches V / nVt times dv / V), this
-			 * step lands within TOL: take it and skip the evaluation
-			 * that would only confirm it (Newton's error estimate;
-			 * Burden & Faires, Numerical Analysis, 9th ed., 2010,
-			 * sec. 2.4).  The caller still verifies the point.
-			 */
-			double next = fabs(dv) * (dv / prev_dv) * (dv / prev_dv);
-			if (isfinite(prev_dv) && fabs(dv) <= 1e-3 * fabs(prev_dv) &&
-			    next <= 0.01 * tol * fabs(v) &&
-			    next * gscale <= 0.01 * tol * iscale) {
-				v -= dv;
-				res.ok = 1;
-				break;
-			}
-			vn = v - dv;
-			if (t->limit && !line_flatter)
-				vn = t->limit(p, vn, v);
-		}
-		prev_dv = dv;
-		if (!(vn > lo && vn < hi)) {
-			vn = 0.5 * (lo + hi);
-			prev_dv = NAN; /* a bisection, not a Newton step */
-		} else if (vn != v - dv) {
-			prev_dv = NAN; /* limited */
-		}
-		double step = vn - v;
-		v = vn;
-		if (fabs(step) <= tol * fabs(v) || hi - lo <= tol * fabs(v) ||
-		    fabs(step) < 1e-300) {
-			res.ok = 1;
-			break;
-		}
-	}
-	res.vj = v;
-	/*
-	 * Take the current from the better-conditioned side (see solve.c):
-	 * the line where the device is the steeper curve - known without an
-	 * exp when the last step was a log-domain one.
-	 */
-	if (line_flatter || r * junction_conductance(t, p, v) > 1.0)
-		res.ij = (voc - v) / r;
-	else
-		res.ij = junction_current(t, p, v);
-	if (!isfinite(res.ij))
-		res.ok = 0;
-	return res;
+	struct model_shockley sk;
+	if (t->shockley != NULL && t->shockley(p, &sk) == 0)
+		return junction_solve_shockley(sk.is, sk.nvt, voc, r, tol);
+	struct junction_ctx c = { .t = t, .p = p, .voc = voc, .r = r };
+	if (r == 0.0 || voc == 0.0)
+		return junction_direct(&c);
+	return junction_newton(&c, tol);
+}
+
+/* Nagel's limiting for a Shockley junction (see junction.h). */
+double junction_limit_step(double is, double nvt, double vnew, double vold)
+{
+	return junction_shockley_limit(is, nvt, vnew, vold);
 }

@@ -108,11 +108,21 @@ int device_validate(const struct device *dev, char *err, size_t errlen)
 		snprintf(err, errlen, "model: no device model given");
 		return -1;
 	}
-	/* The inline test first: every solve validates, so keep it cheap. */
-	for (size_t k = 0; k < dev->type->nparams; k++)
-		if (!model_param_ok(&dev->type->params[k], dev->p[k]))
-			return model_param_check(&dev->type->params[k], dev->p[k], err,
-			                         errlen);
+	/*
+	 * Strictly inside the range is valid whatever the ends' kinds (and
+	 * rules out NaN and infinities): two compares per value, as every
+	 * solve validates.  Anything else takes the full test.
+	 */
+	const struct model_param *mp = dev->type->params;
+	for (size_t k = 0; k < dev->type->nparams; k++) {
+		double x = dev->p[k];
+		if (x > mp[k].min && x < mp[k].max)
+			continue;
+		if (isfinite(x) && ((x == mp[k].min && !mp[k].min_open) ||
+		                    (x == mp[k].max && !mp[k].max_open)))
+			continue; /* on a closed end */
+		return model_param_check(&mp[k], x, err, errlen);
+	}
 	if (dev->type->validate != NULL)
 		return dev->type->validate(dev->p, err, errlen);
 	return 0;

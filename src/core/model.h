@@ -37,6 +37,13 @@ struct model_param {
 
 struct source;
 
+/* A junction that is one Shockley exponential behind a series resistance. */
+struct model_shockley {
+	double is;     /* saturation current, A */
+	double nvt;    /* n Vt, V */
+	double rs;     /* the series resistance (series_resistance's value) */
+};
+
 #define MODEL_MAX_EXTRA 8
 
 /* One labelled result a model reports beside V and I. */
@@ -103,6 +110,15 @@ struct model_type {
 	 * previous and the proposed intrinsic voltage, return the limited one.
 	 */
 	double (*limit)(const double *p, double vnew, double vold);
+
+	/*
+	 * Optional: the intrinsic junction is one Shockley exponential,
+	 * Ij(vj) = Is (exp(vj / (n Vt)) - 1), behind the series resistance.
+	 * Fills OUT for P and returns 0 (or -1 when this parameter set has
+	 * no such junction), so that the solvers take the closed form
+	 * (junction.h).
+	 */
+	int (*shockley)(const double *p, struct model_shockley *out);
 
 	/*
 	 * Optional starting estimate of the intrinsic voltage at which the

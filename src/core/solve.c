@@ -106,7 +106,39 @@ bool solve_verify(const struct problem *pb, double v, double i, double tol)
 	return true;
 }
 
-/* The fast path: safeguarded Newton on the junction in the bracket. */
+/*
+ * A Shockley junction SK behind PB's source: the closed form (or its
+ * Newton fallback) into *PT.  The closed form checks itself with one
+ * correction on the junction's own equation, whose size bounds the
+ * distance to the intersection; a Newton answer is verified here.
+ * Returns 0, or -1.
+ */
+static int solve_shockley(const struct problem *pb,
+                          const struct model_shockley *sk, double tol,
+                          struct op_point *pt)
+{
+	const struct source *s = &pb->src;
+	struct junction_result jr =
+		junction_solve_shockley(sk->is, sk->nvt, s->voc, s->r + sk->rs, tol);
+	if (!jr.ok)
+		return -1;
+	pt->i = jr.ij;
+	pt->v = jr.vj + sk->rs * jr.ij;
+	pt->power = pt->v * pt->i;
+	pt->rd = 1.0 / jr.gj + sk->rs; /* no exponential: gj came with it */
+	pt->residual = fabs(pt->v + s->r * pt->i - s->voc);
+	pt->steps = jr.iters;
+	pt->method = METHOD_NEWTON;
+	pt->tangent = false;
+	if (jr.path == JUNCTION_NEWTON)
+		return solve_verify(pb, pt->v, pt->i, tol) ? 0 : -1;
+	return 0;
+}
+
+/*
+ * The fast path: the junction equation in closed form or by safeguarded
+ * Newton (junction.h).
+ */
 int solve_fast(const struct problem *pb, double tol, struct op_point *pt)
 {
 	const struct model_type *t = pb->dev.type;
@@ -121,6 +153,9 @@ int solve_fast(const struct problem *pb, double tol, struct op_point *pt)
 	} else if (t->current == NULL || !t->monotone) {
 		return -1;
 	} else {
+		struct model_shockley sk;
+		if (t->shockley != NULL && t->shockley(pb->dev.p, &sk) == 0)
+			return solve_shockley(pb, &sk, tol, pt);
 		double rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
 		struct junction_result jr = junction_solve(t, pb->dev.p, s->voc,
 		                                           s->r + rser, tol);
@@ -294,14 +329,10 @@ enum solve_status solve_problem(const struct problem *pb,
                                 const struct solve_options *o,
                                 struct solve_result *out)
 {
-	/* Only the header: points past n are never read (saves clearing
-	 * the whole 1.2 KB table on every solve). */
-	out->status = SOLVE_OK;
-	out->n = 0;
-	out->message[0] = '\0';
-	out->stop = STEP_CONTINUE;
 	char err[200];
 	if (device_validate(&pb->dev, err, sizeof err) != 0) {
+		out->n = 0;
+		out->stop = STEP_CONTINUE;
 		snprintf(out->message, sizeof out->message, "%s", err);
 		return out->status = SOLVE_BAD_INPUT;
 	}
@@ -319,17 +350,26 @@ enum solve_status solve_problem_valid(const struct problem *pb,
 	out->stop = STEP_CONTINUE;
 	if (o->method != METHOD_AUTO)
 		return solve_method(pb, o, out);
+	const struct model_type *t = pb->dev.type;
+	struct model_shockley sk;
+	/* The hot path: one Shockley junction behind a finite resistance. */
+	if (t->shockley != NULL && isfinite(pb->src.r) &&
+	    t->shockley(pb->dev.p, &sk) == 0 &&
+	    solve_shockley(pb, &sk, o->tol, &out->pts[0]) == 0) {
+		out->n = 1;
+		out->stop = STEP_CONVERGED;
+		return SOLVE_OK;
+	}
 	struct op_point pt;
 	/* A monotone device has one point; so does any V(I) curve fed by an
 	 * ideal current source (the point is V(isc)). */
-	bool unique = pb->dev.type->monotone ||
-	              (isinf(pb->src.r) && pb->dev.type->voltage != NULL);
+	bool unique = t->monotone || (isinf(pb->src.r) && t->voltage != NULL);
 	if (unique && solve_fast(pb, o->tol, &pt) == 0) {
 		out->pts[out->n++] = pt;
 		out->stop = STEP_CONVERGED;
 		return out->status = SOLVE_OK;
 	}
-	if (pb->src.r == 0.0 && pb->dev.type->current != NULL) {
+	if (pb->src.r == 0.0 && t->current != NULL) {
 		/* Ideal voltage source: the point is on the curve at voc. */
 		pt = (struct op_point){ .v = pb->src.voc, .method = METHOD_AUTO };
 		pt.i = device_current(&pb->dev, pt.v);

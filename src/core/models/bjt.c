@@ -113,6 +113,16 @@ static double bjt_limit(const double *p, double vnew, double vold)
 	return model_diode.limit(d, vnew, vold);
 }
 
+/* The base-emitter junction seen from the base: Is / beta and n Vt
+ * behind the reflected emitter resistance. */
+static int bjt_shockley(const double *p, struct model_shockley *out)
+{
+	out->is = p[BJT_IS] / p[BJT_BETA];
+	out->nvt = p[BJT_N] * diode_thermal_voltage(p[BJT_TEMP]);
+	out->rs = (p[BJT_BETA] + 1.0) * p[BJT_RE];
+	return 0;
+}
+
 /*
  * From a little reverse bias to the base voltage that drives the collector
  * current to twice its saturation value (or 1 A), kept below 600 n Vt so
@@ -241,6 +251,7 @@ const struct model_type model_npn = {
 	.intrinsic_current = bjt_intrinsic_current,
 	.intrinsic_conductance = bjt_intrinsic_conductance,
 	.limit = bjt_limit,
+	.shockley = bjt_shockley,
 	.intrinsic_voltage = bjt_intrinsic_voltage,
 	.secondary = bjt_npn_secondary,
 };
@@ -261,6 +272,7 @@ const struct model_type model_pnp = {
 	.intrinsic_current = bjt_intrinsic_current,
 	.intrinsic_conductance = bjt_intrinsic_conductance,
 	.limit = bjt_limit,
+	.shockley = bjt_shockley,
 	.intrinsic_voltage = bjt_intrinsic_voltage,
 	.secondary = bjt_pnp_secondary,
 };

@@ -71,23 +71,19 @@ static double diode_nvt(const double *p)
 /* Junction current at junction voltage VJ. */
 static double diode_intrinsic_current(const double *p, double vj)
 {
-	return diode_is(p) * expm1(vj / diode_nvt(p));
+	return junction_shockley_current(diode_is(p), diode_nvt(p), vj);
 }
 
 /* Junction conductance at VJ. */
 static double diode_intrinsic_conductance(const double *p, double vj)
 {
-	double nvt = diode_nvt(p);
-	return diode_is(p) / nvt * exp(vj / nvt);
+	return junction_shockley_conductance(diode_is(p), diode_nvt(p), vj);
 }
 
 /* Junction voltage at current I (I > -Is), NaN outside. */
 static double diode_intrinsic_voltage(const double *p, double i)
 {
-	double x = i / diode_is(p);
-	if (!(x > -1.0))
-		return NAN;
-	return diode_nvt(p) * log1p(x);
+	return junction_shockley_voltage(diode_is(p), diode_nvt(p), i);
 }
 
 /* Series resistance. */
@@ -113,8 +109,7 @@ static double diode_conductance(const double *p, double v)
 		return diode_intrinsic_conductance(p, v);
 	struct junction_result jr =
 		junction_solve(&model_diode, p, v, p[DIODE_RS], 1e-15);
-	double gj = diode_intrinsic_conductance(p, jr.vj);
-	return gj / (1.0 + gj * p[DIODE_RS]);
+	return jr.gj / (1.0 + jr.gj * p[DIODE_RS]);
 }
 
 /* Terminal voltage at current I. */
@@ -136,27 +131,19 @@ static double diode_resistance(const double *p, double i)
 	return diode_nvt(p) / d + p[DIODE_RS];
 }
 
-/*
- * Junction-voltage limiting (Nagel, SPICE2, UC Berkeley ERL Memo M520,
- * 1975): above the critical voltage a large forward step is replaced by
- * the step that changes the current by the same amount on a logarithmic
- * scale, so exp() cannot overflow and Newton cannot overshoot wildly.
- * Only upward steps are limited: the solvers keep a sign-change bracket,
- * which already bounds a downward step.
- */
+/* Junction-voltage limiting (junction.h). */
 static double diode_limit(const double *p, double vnew, double vold)
 {
-	double nvt = diode_nvt(p);
-	double vcrit = nvt * log(nvt / (sqrt(2.0) * diode_is(p)));
-	if (vnew > vold && vnew > vcrit && vnew - vold > 2.0 * nvt) {
-		if (vold > 0.0) {
-			double arg = 1.0 + (vnew - vold) / nvt;
-			vnew = arg > 0.0 ? vold + nvt * log(arg) : vcrit;
-		} else {
-			vnew = nvt * log(vnew / nvt);
-		}
-	}
-	return vnew;
+	return junction_limit_step(diode_is(p), diode_nvt(p), vnew, vold);
+}
+
+/* The junction is one Shockley exponential: Is, n Vt and Rs. */
+static int diode_shockley(const double *p, struct model_shockley *out)
+{
+	out->is = diode_is(p);
+	out->nvt = diode_nvt(p);
+	out->rs = p[DIODE_RS];
+	return 0;
 }
 
 /* From a reverse voltage to the forward voltage at 1 A (and 10 nVt). */
@@ -206,5 +193,6 @@ const struct model_type model_diode = {
 	.intrinsic_current = diode_intrinsic_current,
 	.intrinsic_conductance = diode_intrinsic_conductance,
 	.limit = diode_limit,
+	.shockley = diode_shockley,
 	.intrinsic_voltage = diode_intrinsic_voltage,
 };

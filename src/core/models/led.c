@@ -107,6 +107,15 @@ static double led_limit(const double *p, double vnew, double vold)
 	return model_diode.limit(d, vnew, vold);
 }
 
+/* The junction is the diode's: one Shockley exponential. */
+static int led_shockley(const double *p, struct model_shockley *out)
+{
+	out->nvt = p[LED_N] * diode_thermal_voltage(p[LED_TEMP]);
+	out->is = p[LED_IF] / expm1((p[LED_VF] - p[LED_IF] * p[LED_RS]) / out->nvt);
+	out->rs = p[LED_RS];
+	return 0;
+}
+
 /* From a little reverse bias to five times the test current. */
 static void led_range(const double *p, double *vmin, double *vmax)
 {
@@ -222,6 +231,7 @@ const struct model_type model_led = {
 	.intrinsic_current = led_intrinsic_current,
 	.intrinsic_conductance = led_intrinsic_conductance,
 	.limit = led_limit,
+	.shockley = led_shockley,
 	.intrinsic_voltage = led_intrinsic_voltage,
 	.presets = led_preset_names,
 	.apply_preset = led_apply_preset,

@@ -183,38 +183,20 @@ static double zener_resistance(const double *p, double i)
 }
 
 /*
- * Junction-voltage limiting (Nagel, SPICE2, UC Berkeley ERL Memo M520,
- * 1975) on both exponentials: a large step up the forward branch, or down
- * into breakdown, is shortened to the step that changes the current by the
- * same amount on a logarithmic scale.
+ * Junction-voltage limiting (junction.h) on both exponentials: a large
+ * step up the forward branch, or down into breakdown (the same limiting
+ * in u = -(vj + Vj0), the depth into breakdown).
  */
 static double zener_limit(const double *p, double vnew, double vold)
 {
 	struct zener_k k;
 	zener_derive(p, &k);
-	double vcrit = k.nvt * log(k.nvt / (sqrt(2.0) * k.is));
-	if (vnew > vold && vnew > vcrit && vnew - vold > 2.0 * k.nvt) {
-		if (vold > 0.0) {
-			double arg = 1.0 + (vnew - vold) / k.nvt;
-			vnew = arg > 0.0 ? vold + k.nvt * log(arg) : vcrit;
-		} else {
-			vnew = k.nvt * log(vnew / k.nvt);
-		}
-		return vnew;
-	}
-	/* The same in u = -(vj + Vj0), the depth into breakdown. */
+	double v = junction_limit_step(k.is, k.nvt, vnew, vold);
+	if (v != vnew)
+		return v;
 	double unew = -(vnew + k.vj0), uold = -(vold + k.vj0);
-	double ucrit = k.a * log(k.a / (sqrt(2.0) * k.ir));
-	if (unew > uold && unew > ucrit && unew - uold > 2.0 * k.a) {
-		if (uold > 0.0) {
-			double arg = 1.0 + (unew - uold) / k.a;
-			unew = arg > 0.0 ? uold + k.a * log(arg) : ucrit;
-		} else {
-			unew = k.a * log(unew / k.a);
-		}
-		vnew = -unew - k.vj0;
-	}
-	return vnew;
+	double u = junction_limit_step(k.ir, k.a, unew, uold);
+	return u != unew ? -u - k.vj0 : vnew;
 }
 
 /* From ten times the test current in breakdown to ten times it forward. */
