@@ -14,6 +14,7 @@
 #include "core/diagnose.h"
 #include "core/models/models.h"
 #include "core/safety.h"
+#include "core/stability.h"
 #include "core/sensitivity.h"
 #include "core/solve.h"
 #include "core/stepper.h"
@@ -360,8 +361,8 @@ static void solve_print_text(const char *file, const struct session *se,
 		printf(" %zu measured points", pb->dev.curve->n);
 	printf("\n  method   %s\n\n", solve_method_name(o->method));
 	printf("  %zu operating point%s\n", res->n, res->n == 1 ? "" : "s");
-	printf("  %-3s %-13s %-13s %-13s %-13s %s\n", "#", "voltage", "current",
-	       "power", "r_d", "steps");
+	printf("  %-3s %-13s %-13s %-13s %-13s %-10s %s\n", "#", "voltage",
+	       "current", "power", "r_d", "stability", "steps");
 	for (size_t k = 0; k < res->n; k++) {
 		const struct op_point *p = &res->pts[k];
 		char v[32], i[32], w[32], r[32];
@@ -369,8 +370,13 @@ static void solve_print_text(const char *file, const struct session *se,
 		cli_fmt_full(i, sizeof i, p->i, QTY_CURRENT, 6);
 		cli_fmt_full(w, sizeof w, p->power, QTY_POWER, 4);
 		cli_fmt_full(r, sizeof r, p->rd, QTY_RESISTANCE, 4);
-		printf("  %-3zu %-13s %-13s %-13s %-13s %u%s\n", k + 1, v, i, w, r,
-		       p->steps, p->tangent ? "  (touching point)" : "");
+		struct stability_result sr;
+		stability_classify(pb, p->rd, &se->reactive, &sr);
+		printf("  %-3zu %-13s %-13s %-13s %-13s %-10s %u%s\n", k + 1, v, i, w,
+		       r, stability_name(sr.verdict), p->steps,
+		       p->tangent ? "  (touching point)" : "");
+		if (sr.verdict != STABILITY_STABLE)
+			printf("      %s: %s\n", stability_name(sr.verdict), sr.reason);
 		solve_print_extra(pb, p);
 	}
 	solve_print_verdict(se, pb, res);
@@ -410,7 +416,7 @@ static bool solve_extra_keys(const struct problem *pb,
 }
 
 /* Print RES as CSV; returns the table's exit status. */
-static int solve_print_csv(const struct problem *pb,
+static int solve_print_csv(const struct session *se, const struct problem *pb,
                            const struct solve_result *res)
 {
 	/* The model's extra results follow as columns. */
@@ -420,7 +426,7 @@ static int solve_print_csv(const struct problem *pb,
 	csv_init(&w, stdout);
 	static const char *const cols[] = { "point", "voltage_V", "current_A",
 	                                    "power_W", "rd_ohm", "steps",
-	                                    "method", "tangent" };
+	                                    "method", "tangent", "stability" };
 	for (size_t k = 0; k < sizeof cols / sizeof cols[0]; k++)
 		csv_column(&w, cols[k]);
 	if (extra) {
@@ -432,6 +438,8 @@ static int solve_print_csv(const struct problem *pb,
 	csv_end_row(&w);
 	for (size_t k = 0; k < res->n; k++) {
 		const struct op_point *p = &res->pts[k];
+		struct stability_result sr;
+		stability_classify(pb, p->rd, &se->reactive, &sr);
 		csv_count(&w, k + 1);
 		csv_number(&w, p->v);
 		csv_number(&w, p->i);
@@ -440,6 +448,7 @@ static int solve_print_csv(const struct problem *pb,
 		csv_count(&w, p->steps);
 		csv_text(&w, solve_method_name(p->method));
 		csv_text(&w, p->tangent ? "yes" : "no");
+		csv_text(&w, stability_name(sr.verdict));
 		if (extra) {
 			struct model_extra e;
 			if (device_secondary(&pb->dev, &pb->src, p->v, p->i, &e) == 0) {
@@ -484,7 +493,7 @@ int cmd_solve(int argc, char **argv)
 	else if (a.csv && a.sensitivity)
 		out = solve_print_sensitivity(&pb, &res, true);
 	else if (a.csv)
-		out = solve_print_csv(&pb, &res);
+		out = solve_print_csv(&se, &pb, &res);
 	else
 		solve_print_text(a.file, &se, &pb, &o, &res);
 	if (a.trace && !a.csv && out == EXIT_OK_CODE)

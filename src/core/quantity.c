@@ -54,6 +54,8 @@ static const struct qty_symbol qty_symbols[] = {
 	{ "eV", QTY_ENERGY_EV, 0 },
 	{ "W/K", QTY_THERMAL_COND, 0 },
 	{ "%", QTY_PERCENT, 0 },
+	{ "F", QTY_CAPACITANCE, 0 },
+	{ "H", QTY_INDUCTANCE, 0 },
 };
 
 /* An SI prefix as typed and its power of ten. */
@@ -72,16 +74,17 @@ static const struct qty_prefix qty_prefixes[] = {
 
 static const char *const qty_units[QTY_KIND_COUNT] = {
 	"", "V", "A", "\xce\xa9", "S", "W", "\xc2\xb0\x43", "eV", "W/K", "%",
+	"F", "H",
 };
 
 static const char *const qty_units_ascii[QTY_KIND_COUNT] = {
-	"", "V", "A", "ohm", "S", "W", "degC", "eV", "W/K", "%",
+	"", "V", "A", "ohm", "S", "W", "degC", "eV", "W/K", "%", "F", "H",
 };
 
 static const char *const qty_nouns[QTY_KIND_COUNT] = {
 	"a number", "a voltage", "a current", "a resistance", "a conductance",
 	"a power", "a temperature", "an energy", "a thermal conductance",
-	"a percentage",
+	"a percentage", "a capacitance", "an inductance",
 };
 
 /* Return the canonical unit symbol of KIND. */

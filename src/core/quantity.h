@@ -22,6 +22,8 @@ enum qty_kind {
 	QTY_ENERGY_EV,    /* eV (band-gap energies) */
 	QTY_THERMAL_COND, /* W/K (dissipation constant) */
 	QTY_PERCENT,      /* % (value stored as a fraction: "5%" -> 0.05) */
+	QTY_CAPACITANCE,  /* F */
+	QTY_INDUCTANCE,   /* H */
 	QTY_KIND_COUNT
 };
 

@@ -25,6 +25,8 @@ static const char *section_noun(enum qty_kind kind)
 	case QTY_ENERGY_EV: return "an energy";
 	case QTY_THERMAL_COND: return "a thermal conductance";
 	case QTY_PERCENT: return "a percentage";
+	case QTY_CAPACITANCE: return "a capacitance";
+	case QTY_INDUCTANCE: return "an inductance";
 	case QTY_NUMBER:
 	case QTY_KIND_COUNT:
 	default: return "a number";

@@ -107,6 +107,7 @@ extern const struct session_section section_source;
 extern const struct session_section section_network;
 extern const struct session_section section_device;
 extern const struct session_section section_conditions;
+extern const struct session_section section_reactive;
 extern const struct session_section section_solver;
 extern const struct session_section section_view;
 

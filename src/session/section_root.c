@@ -162,6 +162,10 @@ static const struct session_field root_fields[] = {
 	{ .key = "view", .load = field_load_section, .save = field_save_section,
 	  .present = field_present_section, .section = &section_view,
 	  .help = "the plot's axes" },
+	{ .key = "reactive_parts", .load = field_load_section,
+	  .save = field_save_section, .present = field_present_section,
+	  .section = &section_reactive,
+	  .help = "capacitance across the device, inductance in series" },
 	{ .key = "target", .load = field_load_section, .save = field_save_section,
 	  .present = field_present_section, .section = &section_target,
 	  .help = "what to design for: current, voltage or power" },
@@ -196,4 +200,24 @@ const struct session_section section_conditions = {
 	.key = "conditions",
 	.fields = conditions_fields,
 	.nfields = sizeof conditions_fields / sizeof conditions_fields[0],
+};
+
+static const struct session_field reactive_fields[] = {
+	{ .key = "capacitance_across_device", .load = field_load_qty,
+	  .save = field_save_qty, .present = field_present_finite,
+	  .offset = offsetof(struct session, reactive.capacitance_across_device),
+	  .kind = QTY_CAPACITANCE, .min = 0.0, .max = 1.0, .min_open = true,
+	  .help = "capacitance across the device (F), for the stability verdict" },
+	{ .key = "inductance_in_series", .load = field_load_qty,
+	  .save = field_save_qty, .present = field_present_finite,
+	  .offset = offsetof(struct session, reactive.inductance_in_series),
+	  .kind = QTY_INDUCTANCE, .min = 0.0, .max = 1e3, .min_open = true,
+	  .help = "inductance in series with the source (H), for the stability "
+	          "verdict" },
+};
+
+const struct session_section section_reactive = {
+	.key = "reactive_parts",
+	.fields = reactive_fields,
+	.nfields = sizeof reactive_fields / sizeof reactive_fields[0],
 };

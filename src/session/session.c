@@ -51,6 +51,7 @@ void session_init(struct session *s)
 	s->view.i_min = 0.0;
 	s->view.i_max = 1.0;
 	s->view.zoom = 1.0;
+	reactive_parts_init(&s->reactive);
 	session_analysis_init(&s->analysis);
 	s->notes = NULL;
 }
@@ -195,6 +196,11 @@ bool session_equal(const struct session *a, const struct session *b)
 	if (v->autoscale != w->autoscale || !session_same(v->v_min, w->v_min) ||
 	    !session_same(v->v_max, w->v_max) || !session_same(v->i_min, w->i_min) ||
 	    !session_same(v->i_max, w->i_max) || !session_same(v->zoom, w->zoom))
+		return false;
+	if (!session_same(a->reactive.capacitance_across_device,
+	                  b->reactive.capacitance_across_device) ||
+	    !session_same(a->reactive.inductance_in_series,
+	                  b->reactive.inductance_in_series))
 		return false;
 	if ((a->notes == NULL) != (b->notes == NULL))
 		return false;

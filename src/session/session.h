@@ -15,6 +15,7 @@
 #include "core/network.h"
 #include "core/problem.h"
 #include "core/source.h"
+#include "core/stability.h"
 #include "core/stepper.h"
 #include "session/analysis.h"
 
@@ -48,6 +49,8 @@ struct session {
 	struct session_conditions conditions;
 	struct solve_options solver;
 	struct session_view view;
+	struct reactive_parts reactive; /* C across the device, L in series
+	                                   (NaN when not given) */
 	struct session_analysis analysis; /* target, ratings, tolerances */
 	char *notes;               /* free text, may be NULL */
 };

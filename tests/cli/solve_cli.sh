@@ -76,8 +76,8 @@ expect_exit 0 "$bl" solve "$tmp/npn.yaml"
 expect_text "$tmp/out" "region: active"
 expect_exit 0 "$bl" solve --format csv "$tmp/npn.yaml"
 expect_text "$tmp/out" "collector_current_A"
-# IC = beta * IB in the same row (columns 3 and 9).
-expect_awk "$tmp/out" 'NR==2 { d=($9-163*$3)/$9; if (d<0) d=-d; exit !(d < 1e-12) }' "collector current is beta times base current"
+# IC = beta * IB in the same row (columns 3 and 10).
+expect_awk "$tmp/out" 'NR==2 { d=($10-163*$3)/$10; if (d<0) d=-d; exit !(d < 1e-12) }' "collector current is beta times base current"
 expect_exit 65 "$bl" solve "$tmp/nan.yaml"
 expect_text "$tmp/err" "saturation_current"
 expect_exit 66 "$bl" solve "$tmp/does-not-exist.yaml"

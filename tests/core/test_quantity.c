@@ -51,6 +51,8 @@ struct parse_ok_case {
  * meaning (prefix powers per SI Brochure 2019, Table 7). */
 static const struct parse_ok_case parse_ok_cases[] = {
 	{ "4.7k", QTY_RESISTANCE, 4.7e3 },
+	{ "1.37 pF", QTY_CAPACITANCE, 1.37e-12 },
+	{ "47 nH", QTY_INDUCTANCE, 47e-9 },
 	{ "4.7 k\xce\xa9", QTY_RESISTANCE, 4.7e3 },
 	{ "6.813 k\xe2\x84\xa6", QTY_RESISTANCE, 6.813e3 },
 	{ "  2.385 Mohm ", QTY_RESISTANCE, 2.385e6 },
@@ -242,7 +244,10 @@ static const struct parse_err_case parse_err_cases[] = {
 	{ "4k7k", QTY_RESISTANCE, QTY_BAD_SUFFIX, "\"k\"" },
 	{ "4.7 k \xce\xa9", QTY_RESISTANCE, QTY_BAD_SUFFIX, "\"4.7 k " },
 	{ "4R7\xce\xa9", QTY_RESISTANCE, QTY_BAD_SUFFIX, "unknown" },
-	{ "2.5 pF", QTY_CURRENT, QTY_BAD_SUFFIX, "\"pF\"" },
+	{ "2.5 pF", QTY_CURRENT, QTY_WRONG_UNIT, "is a capacitance" },
+	{ "2.5 pQ", QTY_CURRENT, QTY_BAD_SUFFIX, "\"pQ\"" },
+	{ "47 nH", QTY_CAPACITANCE, QTY_WRONG_UNIT,
+	  "is an inductance, expected a capacitance (F)" },
 	{ "0x1p3", QTY_NUMBER, QTY_BAD_SUFFIX, "\"x1p3\"" },
 	{ "1e", QTY_NUMBER, QTY_BAD_NUMBER, "\"1e\" is not a valid number" },
 	{ "1E", QTY_VOLTAGE, QTY_BAD_NUMBER, "not a valid number" },
@@ -365,6 +370,8 @@ static void test_names(void **state)
 		{ QTY_ENERGY_EV, "eV", "eV", "an energy" },
 		{ QTY_THERMAL_COND, "W/K", "W/K", "a thermal conductance" },
 		{ QTY_PERCENT, "%", "%", "a percentage" },
+		{ QTY_CAPACITANCE, "F", "F", "a capacitance" },
+		{ QTY_INDUCTANCE, "H", "H", "an inductance" },
 	};
 	(void)state;
 	assert_int_equal(sizeof cases / sizeof cases[0], QTY_KIND_COUNT);

@@ -1,0 +1,92 @@
+/*
+ * stability.h - whether the circuit settles at an operating point: the
+ * classification of the linearised circuit around it.
+ *
+ * A real circuit has some capacitance C across the device and some
+ * inductance L in series with the source.  With the device linearised at
+ * the point (differential conductance g = 1/r_d) and a Thevenin source of
+ * resistance R, the state equations are
+ *
+ *     C dv/dt = i - g v            L di/dt = -v - R i
+ *
+ * whose matrix has trace T = -g/C - R/L and determinant
+ * D = (1 + g R) / (L C).  The point is asymptotically stable when both
+ * eigenvalues have negative real part: T < 0 and D > 0 (the Routh-Hurwitz
+ * conditions for a second-order system; Chua, Desoer & Kuh, Linear and
+ * Nonlinear Circuits, McGraw-Hill 1987, the second-order circuit chapter,
+ * where the tunnel-diode circuit is the worked case).  D < 0 is a saddle:
+ * the circuit leaves the point (the middle of three crossings); D > 0 with
+ * T > 0 is an unstable focus or node inside a bounded region, and the
+ * circuit oscillates around it (on a falling branch when L > R |r_d| C).
+ *
+ * Which reactance dominates when the session gives none:
+ *   - a device with I(V) (voltage-controlled, as a tunnel diode): its own
+ *     capacitance, with the series inductance negligible (L/C -> 0); then
+ *     the first-order circuit C dv/dt = -(1/R + g) v is stable iff
+ *     1/R + g > 0, i.e. 1 + g R > 0 (the same book, first-order circuits);
+ *   - a device given only as V(I) (current-controlled, as a self-heated
+ *     thermistor): its thermal lag, which acts like an inductance in series
+ *     (the resistance follows the temperature slowly); the first-order
+ *     circuit tau dv/dt = -(R + r_d) i is stable iff R + r_d > 0
+ *     (same book; for thermistors the same criterion from the heat balance,
+ *     Becker, Green & Pearson, "Properties and uses of thermistors",
+ *     Trans. AIEE 65, 1946 — from memory).
+ * A given capacitance or inductance replaces the assumed limit: with only
+ * L given, C -> 0 (the device's own capacitance is tiny), so a falling
+ * branch oscillates; with both, the full criterion above decides.
+ *
+ * Pure computation; no allocation.
+ */
+#ifndef BIASLINE_STABILITY_H
+#define BIASLINE_STABILITY_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "problem.h"
+
+/* The verdict at one operating point. */
+enum stability {
+	STABILITY_STABLE,      /* small disturbances die out */
+	STABILITY_UNSTABLE,    /* the circuit leaves the point (a saddle) */
+	STABILITY_OSCILLATES,  /* the circuit circles the point (no settling) */
+	STABILITY_UNKNOWN,     /* r_d not defined here (a corner, a tangent) */
+};
+
+/* The circuit's reactive parts; NaN (or negative) when not given. */
+struct reactive_parts {
+	double capacitance_across_device;   /* F */
+	double inductance_in_series;        /* H */
+};
+
+/* Which dynamics decided the verdict. */
+enum stability_dynamics {
+	DYNAMICS_ELECTRICAL,   /* C across the device, L in series */
+	DYNAMICS_THERMAL,      /* a current-controlled device's thermal lag */
+};
+
+/* The verdict and why. */
+struct stability_result {
+	enum stability verdict;
+	enum stability_dynamics dynamics;
+	double r_d;            /* the device's differential resistance, ohm */
+	double trace, det;     /* T and D when both C and L are given; NaN else */
+	char reason[200];      /* one line: "saddle: R + r_d < 0 (...)" */
+};
+
+/* Fill RP with "not given" for both parts. */
+void reactive_parts_init(struct reactive_parts *rp);
+
+/* Lower-case name of a verdict ("stable", "unstable", "oscillates", "unknown"). */
+const char *stability_name(enum stability s);
+
+/*
+ * Classify the operating point of PB with differential resistance R_D
+ * (dV/dI at the point, ohm; may be negative, infinite for a flat curve)
+ * under the reactive parts RP (NULL: none given).  Writes *OUT.
+ */
+void stability_classify(const struct problem *pb, double r_d,
+                        const struct reactive_parts *rp,
+                        struct stability_result *out);
+
+#endif
