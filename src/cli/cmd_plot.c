@@ -237,7 +237,7 @@ int cmd_plot(int argc, char **argv)
 	}
 	plot_cautions(&pb, &res);
 	struct stepper *st = plot_run_path(&pb, &s.solver, nsteps);
-	struct render_input in = { &pb, res.pts, res.n, NULL, 0 };
+	struct render_input in = { &pb, res.pts, res.n, NULL, 0, 0, false };
 	if (st != NULL)
 		in.rows = stepper_trace(st, &in.nrows);
 

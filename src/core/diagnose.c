@@ -275,8 +275,8 @@ void diagnose_status_message(enum step_status st, enum projection_order order,
 		         sep, advice[0] ? advice : "raise the step limit or use newton");
 		break;
 	case STEP_UNDEFINED:
-		snprintf(buf, n, "this method cannot run on this problem%s%s", sep,
-		         advice);
+		snprintf(buf, n, "the path cannot start in %s order on this device"
+		         "%s%s", projection_order_name(order), sep, advice);
 		break;
 	}
 }

@@ -93,10 +93,11 @@ static void render_frame_line(const struct render_input *in,
  * across it.  Without a usable current it falls back to slopes: a
  * current half-span that makes the two curves look alike.
  */
-static void render_frame_point(const struct render_input *in,
-                               struct render_window *w)
+static void render_frame_around(const struct render_input *in,
+                                struct render_window *w)
 {
-	const struct op_point *p = &in->pts[0];
+	size_t focus = in->focus < in->npts ? in->focus : 0;
+	const struct op_point *p = &in->pts[focus];
 	const struct source *s = &in->pb->src;
 	const struct device *d = &in->pb->dev;
 	double hi = POINT_HALF_CURRENT * fabs(p->i);
@@ -134,26 +135,122 @@ static void render_frame_point(const struct render_input *in,
 	w->i_hi = p->i + hi;
 }
 
-/* Work out the data window: the frame, then zoom and pan. */
-enum render_status render_window_compute(const struct render_input *in,
-                                         const struct render_view *view,
-                                         struct render_window *win)
+/* Relative margin around the path in the point frame. */
+#define PATH_MARGIN 0.12
+
+/*
+ * The point frame: around the focus point alone until the path has moved;
+ * then the box holding the point and the newest RENDER_PATH_ROWS rows of
+ * the path, with a margin, so the newest segment is always inside, a
+ * diverging path is followed and a converging one magnified as its steps
+ * shrink.  A box that has shrunk to nothing keeps a sliver of the size
+ * rounding allows.
+ */
+static void render_frame_point(const struct render_input *in,
+                               struct render_window *w)
+{
+	size_t focus = in->focus < in->npts ? in->focus : 0;
+	const struct op_point *p = &in->pts[focus];
+	size_t n = in->rows != NULL ? in->nrows : 0;
+	if (n < 2) {
+		render_frame_around(in, w);
+		return;
+	}
+	double vlo = p->v, vhi = p->v, ilo = p->i, ihi = p->i;
+	size_t first = n > RENDER_PATH_ROWS ? n - RENDER_PATH_ROWS : 0;
+	for (size_t k = first; k < n; k++) {
+		render_include(&vlo, &vhi, in->rows[k].v);
+		render_include(&ilo, &ihi, in->rows[k].i);
+	}
+	double dv = vhi - vlo, di = ihi - ilo;
+	/* A floor far below any step a person can see, far above rounding. */
+	double fv = 1e-9 * fmax(fabs(vlo), fabs(vhi));
+	double fi = 1e-9 * fmax(fabs(ilo), fabs(ihi));
+	if (!(dv > fv) || !(di > fi)) {
+		struct render_window around;
+		render_frame_around(in, &around);
+		/* Keep the aspect of the usual point frame at the path's size. */
+		double sv = around.v_hi - around.v_lo, si = around.i_hi - around.i_lo;
+		if (!(dv > fv) && di > fi)
+			dv = di * sv / si;
+		else if (!(di > fi) && dv > fv)
+			di = dv * si / sv;
+		else {
+			dv = fmax(fv, 1e-12) * 1e3;
+			di = dv * si / sv;
+		}
+		double cv = 0.5 * (vlo + vhi), ci = 0.5 * (ilo + ihi);
+		vlo = cv - 0.5 * dv;
+		vhi = cv + 0.5 * dv;
+		ilo = ci - 0.5 * di;
+		ihi = ci + 0.5 * di;
+	}
+	w->v_lo = vlo - PATH_MARGIN * dv;
+	w->v_hi = vhi + PATH_MARGIN * dv;
+	w->i_lo = ilo - PATH_MARGIN * di;
+	w->i_hi = ihi + PATH_MARGIN * di;
+}
+
+/* Work out the frame before zoom and pan. */
+enum render_status render_frame_compute(const struct render_input *in,
+                                        const struct render_view *view,
+                                        struct render_window *f)
 {
 	if (in == NULL || in->pb == NULL || in->pb->dev.type == NULL ||
 	    isnan(in->pb->src.r))
 		return RENDER_BAD_INPUT;
-	struct render_window f;
 	bool have_point = in->pts != NULL && in->npts > 0 &&
 	                  isfinite(in->pts[0].v) && isfinite(in->pts[0].i);
 	const struct render_window *x = &view->fixed;
 	bool fixed_ok = isfinite(x->v_lo) && isfinite(x->v_hi) && x->v_hi > x->v_lo &&
 	                isfinite(x->i_lo) && isfinite(x->i_hi) && x->i_hi > x->i_lo;
 	if (view->frame == FRAME_POINT && have_point)
-		render_frame_point(in, &f);
+		render_frame_point(in, f);
 	else if (view->frame == FRAME_FIXED && fixed_ok)
-		f = *x;
+		*f = *x;
 	else
-		render_frame_line(in, &f);
+		render_frame_line(in, f);
+	return RENDER_OK;
+}
+
+/* Zoom about a data point. */
+enum render_status render_zoom_about(const struct render_input *in,
+                                     struct render_view *view, double factor,
+                                     double v, double i)
+{
+	struct render_window f, w;
+	if (!(factor > 0.0) || render_frame_compute(in, view, &f) != RENDER_OK ||
+	    render_window_compute(in, view, &w) != RENDER_OK)
+		return RENDER_BAD_INPUT;
+	double sv = f.v_hi - f.v_lo, si = f.i_hi - f.i_lo;
+	double zoom = view->zoom * factor;
+	if (!isfinite(v) || !isfinite(i)) {
+		v = 0.5 * (w.v_lo + w.v_hi);
+		i = 0.5 * (w.i_lo + w.i_hi);
+	}
+	/* Where the point sits across the window now (0..1), kept after. */
+	double tv = (v - w.v_lo) / (w.v_hi - w.v_lo);
+	double ti = (i - w.i_lo) / (w.i_hi - w.i_lo);
+	double cv = v - tv * sv / zoom + 0.5 * sv / zoom;
+	double ci = i - ti * si / zoom + 0.5 * si / zoom;
+	double pv = (cv - 0.5 * (f.v_lo + f.v_hi)) / sv;
+	double pi = (ci - 0.5 * (f.i_lo + f.i_hi)) / si;
+	if (!isfinite(pv) || !isfinite(pi) || !isfinite(zoom))
+		return RENDER_BAD_INPUT;
+	view->zoom = zoom;
+	view->pan_v = pv;
+	view->pan_i = pi;
+	return RENDER_OK;
+}
+
+/* Work out the data window: the frame, then zoom and pan. */
+enum render_status render_window_compute(const struct render_input *in,
+                                         const struct render_view *view,
+                                         struct render_window *win)
+{
+	struct render_window f;
+	if (render_frame_compute(in, view, &f) != RENDER_OK)
+		return RENDER_BAD_INPUT;
 	double zoom = isfinite(view->zoom) && view->zoom > 0.0 ? view->zoom : 1.0;
 	double pv = isfinite(view->pan_v) ? view->pan_v : 0.0;
 	double pi = isfinite(view->pan_i) ? view->pan_i : 0.0;
@@ -170,6 +267,90 @@ enum render_status render_window_compute(const struct render_input *in,
 	return RENDER_OK;
 }
 
+/* One legend entry: a mark and its words. */
+struct render_legend_item {
+	uint32_t mark;
+	const char *name;
+};
+
+/* The off-plot marks, by direction (ASCII, Unicode). */
+static const uint32_t render_off_right[2] = { '>', 0x2192 };  /* → */
+static const uint32_t render_off_left[2] = { '<', 0x2190 };   /* ← */
+static const uint32_t render_off_up[2] = { '^', 0x2191 };     /* ↑ */
+static const uint32_t render_off_down[2] = { 'v', 0x2193 };   /* ↓ */
+
+/* The legend's entries for IN (OFF: the newest step leaves the plot). */
+static size_t render_legend_items(const struct render_input *in, bool off,
+                                  bool unicode, struct render_legend_item *out)
+{
+	size_t n = 0;
+	int u = unicode ? 1 : 0;
+	for (size_t k = 0; k < sizeof render_legend_order / sizeof render_legend_order[0]; k++) {
+		enum cell_role role = render_legend_order[k];
+		bool path = role == ROLE_PATH || role == ROLE_NEWEST;
+		if (path && (in->rows == NULL || in->nrows < 2))
+			continue;
+		if (role == ROLE_START && (in->rows == NULL || in->nrows < 1))
+			continue;
+		out[n].mark = render_mark(role, unicode);
+		out[n].name = render_role_name(role);
+		n++;
+	}
+	if (off) {
+		out[n].mark = render_off_right[u];
+		out[n].name = "newest step off the plot";
+		n++;
+	}
+	return n;
+}
+
+/* Rows the legend's N ITEMS take on COLS cells (words never cut). */
+static int render_legend_rows(const struct render_legend_item *items, size_t n,
+                              int cols)
+{
+	int rows = n > 0 ? 1 : 0, col = 0;
+	for (size_t k = 0; k < n; k++) {
+		int w = 2 + render_text_width(items[k].name);
+		if (col > 0 && col + w > cols) {
+			rows++;
+			col = 0;
+		}
+		col += w + 2;
+	}
+	return rows;
+}
+
+/* The legend: each mark and what it stands for, wrapped onto its rows. */
+static void render_legend(struct grid *g, const struct render_legend_item *items,
+                          size_t n, int max_rows)
+{
+	int row = 0, col = 0;
+	for (size_t k = 0; k < n; k++) {
+		int w = 2 + render_text_width(items[k].name);
+		if (col > 0 && col + w > g->cols) {
+			row++;
+			col = 0;
+		}
+		if (row >= max_rows)
+			break;
+		render_put(g, row, col, items[k].mark, ROLE_LEGEND);
+		render_text(g, row, col + 2, items[k].name, ROLE_LEGEND);
+		col += w + 2;
+	}
+}
+
+/* True when the newest point of IN's path lies outside window W. */
+static bool render_newest_off(const struct render_input *in,
+                              const struct render_window *w)
+{
+	if (in->rows == NULL || in->nrows < 2)
+		return false;
+	const struct trace_row *b = &in->rows[in->nrows - 1];
+	if (!isfinite(b->v) || !isfinite(b->i))
+		return false;
+	return b->v < w->v_lo || b->v > w->v_hi || b->i < w->i_lo || b->i > w->i_hi;
+}
+
 /* Work out the layout and the ticks of both axes. */
 static enum render_status render_layout_ticks(const struct render_input *in,
                                               const struct render_view *view,
@@ -183,7 +364,15 @@ static enum render_status render_layout_ticks(const struct render_input *in,
 	enum render_status st = render_window_compute(in, view, &lay->win);
 	if (st != RENDER_OK)
 		return st;
-	lay->top = view->legend ? 1 : 0;
+	lay->top = 0;
+	if (view->legend) {
+		struct render_legend_item items[16];
+		size_t n = render_legend_items(in, render_newest_off(in, &lay->win),
+		                               view->unicode, items);
+		lay->top = render_legend_rows(items, n, cols);
+		if (lay->top > 2)
+			lay->top = 2;
+	}
 	lay->axis_row = rows - 2;
 	lay->bottom = rows - 3;
 	int nr = lay->bottom - lay->top + 1;
@@ -209,22 +398,6 @@ enum render_status render_layout_compute(const struct render_input *in,
 {
 	struct render_ticks ty, tx;
 	return render_layout_ticks(in, view, rows, cols, lay, &ty, &tx);
-}
-
-/* The legend line: each mark and what it stands for, as many as fit. */
-static void render_legend(struct grid *g, bool unicode)
-{
-	int col = 0;
-	for (size_t k = 0; k < sizeof render_legend_order / sizeof render_legend_order[0]; k++) {
-		enum cell_role role = render_legend_order[k];
-		const char *name = render_role_name(role);
-		int w = 2 + render_text_width(name);
-		if (col + w > g->cols)
-			break;
-		render_put(g, 0, col, render_mark(role, unicode), ROLE_LEGEND);
-		render_text(g, 0, col + 2, name, ROLE_LEGEND);
-		col += w + 2;
-	}
 }
 
 /* A curve as two optional functions: I of V, and V of I. */
@@ -315,6 +488,63 @@ static void render_curve_draw(struct grid *g, const struct render_layout *lay,
 	}
 }
 
+/*
+ * Mark where the newest step A-B leaves the plot: an arrow on the edge
+ * where the segment (or, when it misses the window, the line from the
+ * window's centre towards B) crosses it, pointing the way B lies, and B's
+ * value beside it (the coordinates that are off the plot).
+ */
+static void render_off_marker(struct grid *g, const struct render_layout *lay,
+                              const struct trace_row *a,
+                              const struct trace_row *b, bool unicode)
+{
+	const struct render_window *w = &lay->win;
+	int u = unicode ? 1 : 0;
+	double v0 = a->v, i0 = a->i, v1 = b->v, i1 = b->i;
+	if (!render_clip(w, &v0, &i0, &v1, &i1)) {
+		v0 = 0.5 * (w->v_lo + w->v_hi);
+		i0 = 0.5 * (w->i_lo + w->i_hi);
+		v1 = b->v;
+		i1 = b->i;
+		if (!render_clip(w, &v0, &i0, &v1, &i1))
+			return;
+	}
+	int nr = lay->bottom - lay->top + 1, nc = lay->right - lay->left + 1;
+	int c = render_cell_index(render_fx(lay, v1), nc);
+	int r = render_cell_index(render_fy(lay, i1), nr);
+	if (c < 0)
+		c = render_fx(lay, v1) < 0.0 ? 0 : nc - 1;
+	if (r < 0)
+		r = render_fy(lay, i1) < 0.0 ? 0 : nr - 1;
+	/* The way B lies: the axis it is further out on, in spans. */
+	double ov = b->v < w->v_lo ? (w->v_lo - b->v) / (w->v_hi - w->v_lo)
+	            : b->v > w->v_hi ? (b->v - w->v_hi) / (w->v_hi - w->v_lo) : 0.0;
+	double oi = b->i < w->i_lo ? (w->i_lo - b->i) / (w->i_hi - w->i_lo)
+	            : b->i > w->i_hi ? (b->i - w->i_hi) / (w->i_hi - w->i_lo) : 0.0;
+	uint32_t arrow = ov >= oi ? (b->v < w->v_lo ? render_off_left[u]
+	                                            : render_off_right[u])
+	                          : (b->i > w->i_hi ? render_off_up[u]
+	                                            : render_off_down[u]);
+	render_put(g, lay->top + r, lay->left + c, arrow, ROLE_NEWEST);
+	char val[96], tv[40], ti[40];
+	qty_format_short(tv, sizeof tv, b->v, QTY_VOLTAGE, 4, unicode ? 0 : 1);
+	qty_format_short(ti, sizeof ti, b->i, QTY_CURRENT, 4, unicode ? 0 : 1);
+	if (ov > 0.0 && oi > 0.0)
+		snprintf(val, sizeof val, "%s, %s", tv, ti);
+	else
+		snprintf(val, sizeof val, "%s", ov > 0.0 ? tv : ti);
+	int vw = render_text_width(val);
+	/* Beside the arrow, inside the data area: left of it on the right
+	 * edge, right of it elsewhere; on the row below at the top edge. */
+	int tc = lay->left + c + 2;
+	if (tc + vw - 1 > lay->right)
+		tc = lay->left + c - 1 - vw;
+	if (tc < lay->left)
+		tc = lay->left;
+	int tr = lay->top + r + (r == 0 ? 1 : r == nr - 1 ? -1 : 0);
+	render_text(g, tr, tc, val, ROLE_NEWEST);
+}
+
 /* Draw the plot of IN with VIEW into G. */
 enum render_status render_plot(const struct render_input *in,
                                const struct render_view *view,
@@ -337,8 +567,12 @@ enum render_status render_plot(const struct render_input *in,
 	}
 	grid_clear(g);
 	bool u = view->unicode;
-	if (view->legend)
-		render_legend(g, u);
+	bool off = render_newest_off(in, &lay.win);
+	if (view->legend) {
+		struct render_legend_item items[16];
+		size_t n = render_legend_items(in, off, u, items);
+		render_legend(g, items, n, lay.top);
+	}
 	render_axes(g, &lay, &ty, &tx, u,
 	            u ? "I\xE2\x86\x91 V\xE2\x86\x92" : "I^ V>");
 
@@ -363,8 +597,21 @@ enum render_status render_plot(const struct render_input *in,
 			               k + 1 == in->nrows ? ROLE_NEWEST : ROLE_PATH, u);
 		render_marker(g, &lay, in->rows[0].v, in->rows[0].i, ROLE_START, u);
 	}
-	for (size_t k = 0; k < in->npts && in->pts != NULL; k++)
+	if (off)
+		render_off_marker(g, &lay, &in->rows[in->nrows - 2],
+		                  &in->rows[in->nrows - 1], u);
+	for (size_t k = 0; k < in->npts && in->pts != NULL; k++) {
 		render_marker(g, &lay, in->pts[k].v, in->pts[k].i, ROLE_POINT, u);
+		int r, c;
+		if (in->labels && render_cell_of(&lay, in->pts[k].v, in->pts[k].i, &r, &c)) {
+			/* The point's number beside it, inside the data area. */
+			char tag[24];
+			snprintf(tag, sizeof tag, "%zu", k + 1);
+			int w = render_text_width(tag);
+			int tc = c + 1 + w - 1 <= lay.right ? c + 1 : c - w;
+			render_text(g, r, tc, tag, ROLE_POINT);
+		}
+	}
 	if (lay_out != NULL)
 		*lay_out = lay;
 	return RENDER_OK;

@@ -64,7 +64,10 @@ enum render_status {
 /* Which automatic frame the view starts from. */
 enum render_frame {
 	FRAME_LINE,   /* both load-line intercepts and every operating point */
-	FRAME_POINT,  /* a box around the first operating point */
+	FRAME_POINT,  /* a box around the focus point and the newest
+	                 RENDER_PATH_ROWS rows of the path: it follows a
+	                 diverging path and magnifies as a converging one
+	                 shrinks */
 	FRAME_FIXED,  /* the view's fixed window (a session's stored ranges) */
 };
 
@@ -100,7 +103,14 @@ struct render_input {
 	size_t npts;
 	const struct trace_row *rows;  /* the path; row 0 = start (may be NULL) */
 	size_t nrows;
+	size_t focus;                  /* the point the point frame centres on
+	                                  and zoom keeps in place (an index
+	                                  into PTS; 0 when unsure) */
+	bool labels;                   /* number the points (1, 2, ...) */
 };
+
+/* Projections (trace rows) the point frame holds with the point. */
+#define RENDER_PATH_ROWS 6
 
 /* Allocate a ROWS x COLS grid of blanks; returns 0 or -1 (no memory). */
 int grid_init(struct grid *g, int rows, int cols);
@@ -175,6 +185,23 @@ uint32_t render_mark(enum cell_role role, bool unicode);
 
 /* Plain words for ROLE in the legend ("load line", "device", ...). */
 const char *render_role_name(enum cell_role role);
+
+/*
+ * Work out the frame of IN and VIEW before zoom and pan into *F.  Returns
+ * RENDER_OK or RENDER_BAD_INPUT.
+ */
+enum render_status render_frame_compute(const struct render_input *in,
+                                        const struct render_view *view,
+                                        struct render_window *f);
+
+/*
+ * Zoom VIEW by FACTOR (> 1 closer) keeping the data point (V, I) where it
+ * is on the screen: the pan is adjusted.  Returns RENDER_OK or
+ * RENDER_BAD_INPUT (VIEW unchanged).
+ */
+enum render_status render_zoom_about(const struct render_input *in,
+                                     struct render_view *view, double factor,
+                                     double v, double i);
 
 /*
  * Work out the data window for IN and VIEW (the frame, then zoom and pan).

@@ -552,21 +552,30 @@ enum session_status session_save_file(const struct session *s, const char *path,
 }
 
 /*
- * The demo: a green indicator LED on an industrial 24 V rail behind a
- * 2.2 kOhm resistor.  The LED values are invented for the demo (chosen to
- * give about 2.1 V at 10 mA, typical of the kind).  At that point the LED's
- * differential resistance (about 12 Ohm) is far below the 2.2 kOhm line, so
- * the voltage-from-line projections diverge (|g'| = RS/r_d >> 1) while the
- * voltage-from-device order converges; the demo starts on the diverging
- * order so the user sees why the order matters.
+ * The demo: a panel filament lamp run dim from a 24 V rail through 680 Ohm.
+ * The lamp is invented for the demo: rated 40 mA at 14 V, a power law with
+ * exponent 0.55 (common practice for tungsten filaments).  It settles near
+ * 6.37 V and 25.9 mA, where its differential resistance (about 446 Ohm) is
+ * comparable to the 680 Ohm line: the voltage-from-line projections spiral
+ * out slowly (g' about -1.52) and the voltage-from-device ones spiral in
+ * (g' about -0.66), so a few steps in each order show both on one screen.
+ * The path starts at 7 V, close enough that the diverging order takes
+ * several visible steps before it leaves the lamp's curve.
  */
 void session_demo(struct session *s)
 {
 	session_init(s);
+	const struct model_type *lamp = model_find("power-law");
+	if (lamp != NULL) {
+		device_init(&s->device, lamp);
+		s->device.p[model_param_index(lamp, "reference_voltage")] = 14.0;
+		s->device.p[model_param_index(lamp, "reference_current")] = 0.04;
+		s->device.p[model_param_index(lamp, "exponent")] = 0.55;
+		source_spec_thevenin(&s->source, 24.0, 680.0);
+	}
 	s->solver.method = METHOD_PROJECTION;
 	s->solver.order = ORDER_VOLTAGE_FROM_LINE;
-	s->solver.start_v = 0.0;
-	s->solver.max_steps = 40;
+	s->solver.start_v = 7.0;
 }
 
 /* Build the core problem from S. */

@@ -87,6 +87,53 @@ bool app_unicode(const struct app *a)
 	return a->opt.unicode;
 }
 
+/* The point the diagnosis speaks of. */
+size_t app_focus_point(const struct app *a, bool *heading)
+{
+	*heading = false;
+	if (a->res.n == 0)
+		return (size_t)-1;
+	size_t sel = a->point < a->res.n ? a->point : 0;
+	size_t n;
+	const struct trace_row *rows = stepper_trace(a->st, &n);
+	if (a->res.n == 1 || n < 2 || !isfinite(rows[n - 1].v) ||
+	    !isfinite(rows[n - 1].i))
+		return sel;
+	/* Nearest in the plot's sense: each axis scaled by the points' spread
+	 * (or the newest iterate's own size when the points share a value). */
+	double vs = 0.0, is = 0.0;
+	for (size_t k = 0; k < a->res.n; k++) {
+		vs = fmax(vs, fabs(a->res.pts[k].v - a->res.pts[0].v));
+		is = fmax(is, fabs(a->res.pts[k].i - a->res.pts[0].i));
+	}
+	if (!(vs > 0.0))
+		vs = fmax(fabs(rows[n - 1].v), 1e-12);
+	if (!(is > 0.0))
+		is = fmax(fabs(rows[n - 1].i), 1e-15);
+	size_t best = sel;
+	double bd = INFINITY;
+	for (size_t k = 0; k < a->res.n; k++) {
+		double dv = (rows[n - 1].v - a->res.pts[k].v) / vs;
+		double di = (rows[n - 1].i - a->res.pts[k].i) / is;
+		double d = dv * dv + di * di;
+		if (d < bd) {
+			bd = d;
+			best = k;
+		}
+	}
+	*heading = true;
+	return best;
+}
+
+/* The stability verdict of point K. */
+struct stability_result app_stability(const struct app *a, size_t k)
+{
+	struct stability_result r;
+	stability_classify(&a->pb, k < a->res.n ? a->res.pts[k].rd : NAN,
+	                   &a->s.reactive, &r);
+	return r;
+}
+
 /* Mark the plot's content as changed. */
 void app_touch(struct app *a)
 {
@@ -143,6 +190,8 @@ void app_resolve(struct app *a)
 		struct solve_options po = app_path_options(a);
 		stepper_init(a->st, &a->pb, &po);
 	}
+	if (a->point >= a->res.n)
+		a->point = 0;
 	struct action changed = { .kind = ACT_CHANGED };
 	app_post(a, &changed);
 }

@@ -16,6 +16,7 @@
 #include <stddef.h>
 
 #include "core/solve.h"
+#include "core/stability.h"
 #include "core/stepper.h"
 #include "render/render.h"
 #include "session/session.h"
@@ -71,6 +72,7 @@ struct app {
 	char pb_err[256];
 	struct solve_result res;
 	struct stepper *st;
+	size_t point;           /* the selected operating point (p) */
 	bool running;           /* g: the loop steps until stopped or a key */
 	unsigned gen;           /* counts changes of what the plot shows */
 
@@ -103,6 +105,17 @@ void app_resolve(struct app *a);
 
 /* Mark what the plot shows as changed (a step, a view move). */
 void app_touch(struct app *a);
+
+/*
+ * The operating point the diagnosis speaks of: while the path is under way
+ * (it has left its start), the point nearest the newest iterate (*HEADING
+ * set true); otherwise the selected one.  Returns an index into a->res, or
+ * (size_t)-1 when there is no point.
+ */
+size_t app_focus_point(const struct app *a, bool *heading);
+
+/* The stability verdict of point K of A's solution. */
+struct stability_result app_stability(const struct app *a, size_t k);
 
 /* Whether the user asked for Unicode marks (else ASCII). */
 bool app_unicode(const struct app *a);

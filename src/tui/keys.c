@@ -104,6 +104,27 @@ static unsigned key_anchor(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Select the next operating point (the diagnosis speaks of it). */
+static unsigned key_point(struct app *a)
+{
+	if (a->res.n < 2) {
+		app_message(a, false, "%s", a->res.n == 1 ? "only one operating point"
+		            : "no operating point to select");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	a->point = (a->point + 1) % a->res.n;
+	app_touch(a);
+	const struct op_point *p = &a->res.pts[a->point];
+	char v[48], i[48];
+	int ascii = app_unicode(a) ? 0 : 1;
+	qty_format_short(v, sizeof v, p->v, QTY_VOLTAGE, 4, ascii);
+	qty_format_short(i, sizeof i, p->i, QTY_CURRENT, 4, ascii);
+	struct stability_result sr = app_stability(a, a->point);
+	app_message(a, false, "point %zu of %zu: %s, %s, %s", a->point + 1,
+	            a->res.n, v, i, stability_name(sr.verdict));
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Undo the last change of a value. */
 static unsigned key_undo(struct app *a)
 {
@@ -180,6 +201,7 @@ static const struct key_binding key_table[] = {
 	{ { 'r' }, "r", "restart the path", RUN(key_reset) },
 	{ { 'o' }, "o", "flip projection order", RUN(key_order) },
 	{ { 'a' }, "a", "start at newest iterate", RUN(key_anchor) },
+	{ { 'p' }, "p", "select the next point", RUN(key_point) },
 	{ { TK_UP }, "Up", "select parameter above", TO(pane_side) },
 	{ { TK_DOWN }, "Down", "select parameter below", TO(pane_side) },
 	{ { '+', '=' }, "+", "raise value a little", TO(pane_side) },
@@ -199,7 +221,7 @@ static const struct key_binding key_table[] = {
 	{ { 0 }, "Enter", "(view) apply the row", DOC },
 	{ { 0 }, "t", "(design) new target", DOC },
 	{ { TK_ESC }, "Esc", "(view) close it", RUN(key_escape) },
-	{ { 'z' }, "z", "frame: line/point/ranges", TO(pane_plot) },
+	{ { 'z' }, "z", "frame: line/path/ranges", TO(pane_plot) },
 	{ { '>' }, ">", "zoom in", TO(pane_plot) },
 	{ { '<' }, "<", "zoom out", TO(pane_plot) },
 	{ { TK_LEFT }, "Left", "pan to lower V", TO(pane_plot) },

@@ -38,6 +38,9 @@ static void pane_plot_init(struct app *a, void *self)
 	}
 	if (isfinite(sv->zoom) && sv->zoom > 0.0)
 		p->view.zoom = sv->zoom;
+	/* The demo is about the path: frame it (z goes to the whole line). */
+	if (a->path == NULL)
+		p->view.frame = FRAME_POINT;
 }
 
 /* Free the grid. */
@@ -45,6 +48,19 @@ static void pane_plot_fini(void *self)
 {
 	struct plot_state *p = self;
 	grid_fini(&p->grid);
+}
+
+/* What the plot shows: the solution, the path, the focus point. */
+static void pane_plot_input(struct app *a, struct render_input *in)
+{
+	bool heading;
+	size_t focus = app_focus_point(a, &heading);
+	*in = (struct render_input){
+		.pb = &a->pb, .pts = a->res.pts, .npts = a->res.n,
+		.focus = focus == (size_t)-1 ? 0 : focus,
+		.labels = a->res.n > 1,
+	};
+	in->rows = stepper_trace(a->st, &in->nrows);
 }
 
 /* Draw the plot into BOX, rendering again only when something changed. */
@@ -64,8 +80,8 @@ static void pane_plot_draw(struct app *a, void *self, const struct rect *box)
 		p->valid = false;
 	}
 	if (!p->valid || p->gen != a->gen) {
-		struct render_input in = { &a->pb, a->res.pts, a->res.n, NULL, 0 };
-		in.rows = stepper_trace(a->st, &in.nrows);
+		struct render_input in;
+		pane_plot_input(a, &in);
 		render_plot(&in, &p->view, &p->grid, NULL);
 		p->valid = true;
 		p->gen = a->gen;
@@ -79,6 +95,7 @@ static void pane_plot_frame(struct app *a, struct plot_state *p)
 	bool has_fixed = !a->s.view.autoscale;
 	switch (p->view.frame) {
 	case FRAME_LINE: p->view.frame = FRAME_POINT; break;
+	/* (the point frame follows the path: it holds its newest steps) */
 	case FRAME_POINT: p->view.frame = has_fixed ? FRAME_FIXED : FRAME_LINE; break;
 	default: p->view.frame = FRAME_LINE; break;
 	}
@@ -86,7 +103,7 @@ static void pane_plot_frame(struct app *a, struct plot_state *p)
 	p->view.pan_v = p->view.pan_i = 0.0;
 	app_message(a, false, "frame: %s", p->view.frame == FRAME_LINE
 	            ? "whole load line" : p->view.frame == FRAME_POINT
-	            ? "operating point" : "the session's ranges");
+	            ? "the path and its point" : "the session's ranges");
 }
 
 /* The view keys (the key table hands them here). */
@@ -99,13 +116,27 @@ static unsigned pane_plot_key(struct app *a, void *self, int key)
 		pane_plot_frame(a, p);
 		break;
 	case '>':
-		if (v->zoom < 1e6)
-			v->zoom *= ZOOM_STEP;
+	case '<': {
+		double f = key == '>' ? ZOOM_STEP : 1.0 / ZOOM_STEP;
+		if ((key == '>' && !(v->zoom < 1e6)) || (key == '<' && !(v->zoom > 1e-3)))
+			break;
+		/* About the newest iterate while the path moves, else the point. */
+		struct render_input in;
+		pane_plot_input(a, &in);
+		double av = NAN, ai = NAN;
+		const struct trace_row *last = stepper_last(a->st);
+		if (in.nrows > 1 && last != NULL && isfinite(last->v) &&
+		    isfinite(last->i)) {
+			av = last->v;
+			ai = last->i;
+		} else if (a->res.n > 0) {
+			av = a->res.pts[in.focus].v;
+			ai = a->res.pts[in.focus].i;
+		}
+		if (!a->pb_ok || render_zoom_about(&in, v, f, av, ai) != RENDER_OK)
+			v->zoom *= f;
 		break;
-	case '<':
-		if (v->zoom > 1e-3)
-			v->zoom /= ZOOM_STEP;
-		break;
+	}
 	case TK_LEFT:
 		v->pan_v -= PAN_STEP / v->zoom;
 		break;

@@ -36,7 +36,8 @@ static char *pane_side_eng(char *buf, size_t n, double value, int sig)
 {
 	static const char prefixes[] = "fpnum kMGT";
 	if (!isfinite(value)) {
-		snprintf(buf, n, "%s", isnan(value) ? "nan" : value > 0 ? "inf" : "-inf");
+		/* Not defined here (a table cell): a dash, never "nan". */
+		snprintf(buf, n, "-");
 		return buf;
 	}
 	if (value == 0.0) {
@@ -118,7 +119,20 @@ static int pane_wrap_lines(const char *text, int w)
 	return w > 0 ? (int)render_wrap(text, w, NULL, 0) : 0;
 }
 
-/* Draw the operating-point lines; returns the rows used. */
+/* The verdict's style: plain when stable, an error otherwise. */
+static enum term_style pane_verdict_style(enum stability v)
+{
+	return v == STABILITY_STABLE ? TS_NORMAL
+	       : v == STABILITY_UNKNOWN ? TS_DIM : TS_ERROR;
+}
+
+/*
+ * Draw the operating points; returns the rows used.  One point: its V, I
+ * and power, then r_d and its stability.  Several: a table with a header
+ * (the columns' units), one row per point, the selected one inverted and
+ * the one the path is heading for marked with '>'; scrolled to keep the
+ * selection when they do not all fit.
+ */
 static int pane_points(struct app *a, int row, int col, int w, int max)
 {
 	int ascii = app_unicode(a) ? 0 : 1;
@@ -128,22 +142,65 @@ static int pane_points(struct app *a, int row, int col, int w, int max)
 	if (a->res.n == 0)
 		return pane_wrap(a, row, col, w, max, a->res.message[0] != '\0'
 		                 ? a->res.message : "no operating point", TS_ERROR);
-	for (size_t k = 0; k < a->res.n && used < max; k++) {
-		if (used == max - 1 && k + 1 < a->res.n) {
-			char more[64];
-			snprintf(more, sizeof more, "... %zu more points", a->res.n - k);
-			term_text(&a->term, row + used++, col, more, w, TS_DIM);
-			break;
-		}
-		char v[48], i[48], p[48], line[192];
-		qty_format(v, sizeof v, a->res.pts[k].v, QTY_VOLTAGE, 5, ascii);
-		qty_format(i, sizeof i, a->res.pts[k].i, QTY_CURRENT, 5, ascii);
-		qty_format(p, sizeof p, a->res.pts[k].power, QTY_POWER, 5, ascii);
+	char line[192];
+	if (a->res.n == 1) {
+		char v[48], i[48], p[48], r[48];
+		qty_format(v, sizeof v, a->res.pts[0].v, QTY_VOLTAGE, 5, ascii);
+		qty_format(i, sizeof i, a->res.pts[0].i, QTY_CURRENT, 5, ascii);
+		qty_format(p, sizeof p, a->res.pts[0].power, QTY_POWER, 5, ascii);
 		if (w >= 40)
 			snprintf(line, sizeof line, "V %s  I %s  P %s", v, i, p);
 		else
 			snprintf(line, sizeof line, "%s %s %s", v, i, p);
 		term_text(&a->term, row + used++, col, line, w, TS_HEADER);
+		if (used >= max)
+			return used;
+		struct stability_result sr = app_stability(a, 0);
+		if (isfinite(a->res.pts[0].rd))
+			qty_format_short(r, sizeof r, a->res.pts[0].rd, QTY_RESISTANCE, 4,
+			                 ascii);
+		else
+			snprintf(r, sizeof r, "not defined");
+		snprintf(line, sizeof line, "r_d %s  %s", r, stability_name(sr.verdict));
+		term_text(&a->term, row + used++, col, line, w,
+		          pane_verdict_style(sr.verdict));
+		return used;
+	}
+	bool heading;
+	size_t focus = app_focus_point(a, &heading);
+	snprintf(line, sizeof line, "#  %-5s %-5s %s", "V(V)", "I(A)",
+	         ascii ? "rd(ohm)" : "rd(\xCE\xA9)");
+	term_text(&a->term, row + used++, col, line, w, TS_DIM);
+	int room = max - used;
+	if (room <= 0)
+		return used;
+	size_t first = 0, n = a->res.n;
+	bool more = n > (size_t)room;
+	size_t shown = more ? (size_t)(room > 1 ? room - 1 : 1) : n;
+	if (a->point >= shown)
+		first = a->point - shown + 1;
+	for (size_t k = first; k < n && k < first + shown; k++) {
+		const struct op_point *pt = &a->res.pts[k];
+		char v[32], i[32], r[32];
+		pane_side_eng(v, sizeof v, pt->v, 3);
+		pane_side_eng(i, sizeof i, pt->i, 3);
+		pane_side_eng(r, sizeof r, pt->rd, 3);
+		struct stability_result sr = app_stability(a, k);
+		const char *verdict = stability_name(sr.verdict);
+		snprintf(line, sizeof line, "%zu%c %-5s %-5s %-5s %s", k + 1,
+		         heading && k == focus ? '>' : ' ', v, i, r, verdict);
+		if (render_text_width(line) > w && sr.verdict == STABILITY_OSCILLATES)
+			snprintf(line, sizeof line, "%zu%c %-5s %-5s %-5s %s", k + 1,
+			         heading && k == focus ? '>' : ' ', v, i, r, "oscill.");
+		enum term_style st = k == a->point ? TS_SELECTED
+		                     : pane_verdict_style(sr.verdict);
+		if (k == a->point)
+			term_fill(&a->term, row + used, col, w, st);
+		term_text(&a->term, row + used++, col, line, w, st);
+	}
+	if (more && used < max) {
+		snprintf(line, sizeof line, "%zu points: p selects", n);
+		term_text(&a->term, row + used++, col, line, w, TS_DIM);
 	}
 	return used;
 }
@@ -269,16 +326,30 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 		return;
 	enum projection_order order = a->s.solver.order;
 	struct diagnosis at;
-	bool have = a->res.n > 0;
+	bool heading = false;
+	size_t focus = app_focus_point(a, &heading);
+	bool have = focus != (size_t)-1;
 	if (have) {
-		diagnose_at(&a->pb, order, a->res.pts[0].v, a->s.solver.tol, 1.0, &at);
-		snprintf(d->text[d->n], sizeof d->text[0], "predicted: %s", at.verdict);
+		diagnose_at(&a->pb, order, a->res.pts[focus].v, a->s.solver.tol, 1.0,
+		            &at);
+		char which[64] = "";
+		if (a->res.n > 1)
+			snprintf(which, sizeof which, " at point %zu%s", focus + 1,
+			         heading ? " (the path's)" : " (selected)");
+		snprintf(d->text[d->n], sizeof d->text[0], "predicted%s: %s", which,
+		         at.verdict);
 		d->style[d->n++] = fabs(at.gprime) < 1.0 ? TS_GOOD : TS_ERROR;
 		char g[48], o[48];
-		pane_side_eng(g, sizeof g, at.gprime, 3);
-		pane_side_eng(o, sizeof o, at.gprime_other, 3);
-		snprintf(d->text[d->n], sizeof d->text[0], "g' %s here, %s other order",
-		         g, o);
+		if (isfinite(at.gprime))
+			pane_side_eng(g, sizeof g, at.gprime, 3);
+		else
+			snprintf(g, sizeof g, "not defined");
+		if (isfinite(at.gprime_other))
+			pane_side_eng(o, sizeof o, at.gprime_other, 3);
+		else
+			snprintf(o, sizeof o, "not defined");
+		snprintf(d->text[d->n], sizeof d->text[0], "g' %s in this order, %s "
+		         "in the other", g, o);
 		d->optional = d->n;
 		d->style[d->n++] = TS_NORMAL;
 	}
@@ -291,15 +362,21 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 		diagnose_at(&a->pb, order, last->v, a->s.solver.tol, 1.0, &live);
 		dp = &live;
 	}
-	diagnose_status_message(st, order, dp, msg, sizeof msg);
 	size_t n;
 	stepper_trace(a->st, &n);
-	snprintf(d->text[d->n], sizeof d->text[0], "k=%zu %s: %s", n > 0 ? n - 1 : 0,
-	         step_status_name(st), msg);
-	d->style[d->n++] = st == STEP_CONVERGED ? TS_GOOD
-	                   : st == STEP_CONTINUE ? TS_NORMAL : TS_ERROR;
-	/* The remedy, unless the status line already carries it. */
-	if (have && at.advice[0] != '\0' && strstr(msg, at.advice) == NULL) {
+	size_t k = n > 0 ? n - 1 : 0;
+	if (st != STEP_CONTINUE) {
+		/* (while the path can go on, the table's title counts the steps) */
+		diagnose_status_message(st, order, dp, msg, sizeof msg);
+		snprintf(d->text[d->n], sizeof d->text[0], "after %zu projection%s: %s",
+		         k, k == 1 ? "" : "s", msg);
+		d->style[d->n++] = st == STEP_CONVERGED ? TS_GOOD : TS_ERROR;
+	}
+	/* The remedy, unless the status line already carries one. */
+	bool said = st != STEP_CONTINUE &&
+	            (strstr(msg, at.advice) != NULL ||
+	             (dp != NULL && dp->advice[0] != '\0'));
+	if (have && at.advice[0] != '\0' && !said) {
 		snprintf(d->text[d->n], sizeof d->text[0], "%s", at.advice);
 		d->style[d->n++] = TS_DIM;
 	}
@@ -321,8 +398,12 @@ static int pane_diagnosis(struct app *a, const struct pane_diag *d, int row,
 {
 	bool drop = pane_diag_lines(d, w, false) > max;
 	int used = 0;
+	/* Whole paragraphs only: one that does not fit is left out, never cut. */
 	for (int k = 0; k < d->n && used < max; k++) {
 		if (drop && k == d->optional)
+			continue;
+		int need = pane_wrap_lines(d->text[k], w);
+		if (used + need > max)
 			continue;
 		used += pane_wrap(a, row + used, col, w, max - used, d->text[k],
 		                  d->style[k]);
@@ -337,11 +418,16 @@ static void pane_conv_table(struct app *a, int row, int col, int w, int max)
 		return;
 	bool wide = w >= 42;
 	char line[256];
+	/* Units in the header: the residual is a current or a voltage
+	 * (problem.h); the step changes V or I, whichever the half step moved. */
+	const char *ru = problem_residual_kind(&a->pb) == QTY_VOLTAGE ? "F(V)"
+	                                                               : "F(A)";
 	if (wide)
-		snprintf(line, sizeof line, "%3s %7s %7s %7s %7s %6s", "k", "V", "I",
-		         "resid", "step", "ratio");
+		snprintf(line, sizeof line, "%3s %7s %7s %7s %7s %6s", "k", "V(V)",
+		         "I(A)", ru, "step", "ratio");
 	else
-		snprintf(line, sizeof line, "%3s %8s %8s %7s", "k", "V", "I", "ratio");
+		snprintf(line, sizeof line, "%3s %8s %8s %7s", "k", "V(V)", "I(A)",
+		         "ratio");
 	term_text(&a->term, row, col, line, w, TS_HEADER);
 	size_t n;
 	const struct trace_row *rows = stepper_trace(a->st, &n);
@@ -354,7 +440,7 @@ static void pane_conv_table(struct app *a, int row, int col, int w, int max)
 		pane_side_eng(i, sizeof i, r->i, 4);
 		pane_side_eng(res, sizeof res, r->residual, 3);
 		/* Row 0 is the start point: it has no step yet. */
-		if (isnan(r->step))
+		if (!isfinite(r->step))
 			snprintf(step, sizeof step, "-");
 		else
 			pane_side_eng(step, sizeof step, r->step, 3);
@@ -387,9 +473,12 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 	int nparams = (int)params_list(&a->s, ps, PARAMS_MAX);
 
 	pane_header(a, y++, x, w, a->res.n > 1 ? "Operating points" : "Operating point");
-	y += pane_points(a, y, x, w, 2);
+	int pmax = a->res.n > 1 ? 1 + (int)a->res.n : 2;
+	if (pmax > 2 + rows / 6)
+		pmax = 2 + rows / 6;
+	y += pane_points(a, y, x, w, pmax);
 	y += pane_extra(a, y, x, w, 7);
-	y += pane_caution(a, y, x, w, 6);
+	y += pane_caution(a, y, x, w, 9);
 
 	/* Share the rest.  The diagnosis gets the lines its text needs first
 	 * (it carries the remedy), keeping room for the parameter header and
@@ -434,7 +523,13 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 		y += dl > 0 ? dl : 0;
 	}
 	if (y < end - 1) {
-		pane_header(a, y++, x, w, "Convergence");
+		size_t nt;
+		stepper_trace(a->st, &nt);
+		char ctitle[64];
+		snprintf(ctitle, sizeof ctitle, "Convergence (%zu projection%s%s)",
+		         nt > 0 ? nt - 1 : 0, nt == 2 ? "" : "s",
+		         a->running ? ", running" : "");
+		pane_header(a, y++, x, w, ctitle);
 		pane_conv_table(a, y, x, w, end - y);
 	}
 }

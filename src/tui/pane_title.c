@@ -17,11 +17,13 @@ static void pane_title_draw(struct app *a, void *self, const struct rect *box)
 	char right[160] = "";
 	int ascii = app_unicode(a) ? 0 : 1;
 	if (a->res.n > 0) {
-		char v[48], i[48];
-		qty_format(v, sizeof v, a->res.pts[0].v, QTY_VOLTAGE, 5, ascii);
-		qty_format(i, sizeof i, a->res.pts[0].i, QTY_CURRENT, 5, ascii);
-		snprintf(right, sizeof right, "point %s, %s%s  ? help ", v, i,
-		         a->res.n > 1 ? " (+more)" : "");
+		char v[48], i[48], which[64] = "";
+		size_t k = a->point < a->res.n ? a->point : 0;
+		qty_format(v, sizeof v, a->res.pts[k].v, QTY_VOLTAGE, 5, ascii);
+		qty_format(i, sizeof i, a->res.pts[k].i, QTY_CURRENT, 5, ascii);
+		if (a->res.n > 1)
+			snprintf(which, sizeof which, " (%zu of %zu)", k + 1, a->res.n);
+		snprintf(right, sizeof right, "point %s, %s%s  ? help ", v, i, which);
 	} else {
 		snprintf(right, sizeof right, "no operating point  ? help ");
 	}

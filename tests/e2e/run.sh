@@ -126,7 +126,7 @@ title_point() {
 # Rows of the convergence table: lines of the side pane after its header.
 table_rows() {
 	screen | awk -F'|' 'NF > 1 { print $NF }' |
-		awk '/^ *k +V +I/ { on = 1; next } on && /^ *[0-9]+ / { print }'
+		awk '/^ *k +V\(V\) +I\(A\)/ { on = 1; next } on && /^ *[0-9]+ / { print }'
 }
 
 # Start with pipe-pane capturing the program's output into OUT from its
@@ -194,7 +194,7 @@ steps)
 	wait_for "Convergence"
 	for ((k = 1; k <= 10; k++)); do
 		keys Space
-		wait_for "k=$k "
+		wait_for "($k projection"
 	done
 	rows=$(table_rows)
 	for ((k = 1; k <= 10; k++)); do
@@ -212,7 +212,7 @@ steps)
 	echo "ok: newest ratio $ratio, predicted g' -$g"
 	# Stepping back removes the newest row.
 	keys b
-	wait_for "k=9 "
+	wait_for "(9 projections"
 	table_rows | grep -qE '^ *10 ' && fail "row 10 still shown after b"
 	echo "ok: ten steps, ten rows; b removed the newest"
 	;;
@@ -274,7 +274,7 @@ wrap)
 		fail "the remedy is not shown whole: $box"
 	grep -qF "Is       110e-21 A" <<<"$side" || fail "Is not in short form"
 	tmx resize-window -x 100 -y 30
-	wait_for "resid"
+	wait_for "step  ratio"
 	row0=$(table_rows | grep -E '^ *0 ')
 	[ "$(awk '{ print $5 }' <<<"$row0")" = "-" ] || fail "row 0 step is not '-': $row0"
 	grep -q nan <<<"$row0" && fail "row 0 shows nan: $row0"
@@ -511,7 +511,7 @@ resize)
 	start 100 30 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"
 	keys Space Space Space
-	wait_for "k=3 "
+	wait_for "(3 projections"
 	for size in 80x24 200x60 50x15 100x30; do
 		tmx resize-window -x "${size%x*}" -y "${size#*x}"
 		if [ "$size" = 50x15 ]; then
@@ -825,7 +825,7 @@ bytes)
 	prev=$full total=0
 	for ((s = 1; s <= 10; s++)); do
 		keys Space
-		wait_for "k=$s "
+		wait_for "($s projection"
 		now=$(settle "$out")
 		total=$((total + now - prev))
 		prev=$now
@@ -924,7 +924,7 @@ valgrind)
 		"exec valgrind --error-exitcode=1 --leak-check=full --errors-for-leak-kinds=definite --log-file=$(printf '%q' "$log") $(printf '%q ' "$bin" "$samples/indicator-led-24v.yaml")"
 	wait_for "Convergence" 1500
 	keys Space Space
-	wait_for "k=2 " 1000
+	wait_for "(2 projections" 1000
 	keys g
 	wait_for "after" 1000
 	keys o Down e 4.7k Enter

@@ -143,7 +143,7 @@ static void test_load_line_ends(void **state)
 			struct problem pb;
 			make_resistor(&pb, cases[k][0], cases[k][1], cases[k][2]);
 			struct op_point pt = resistor_point(cases[k][0], cases[k][1], cases[k][2]);
-			struct render_input in = { &pb, &pt, 1, NULL, 0 };
+			struct render_input in = { &pb, &pt, 1, NULL, 0, 0, false };
 			struct render_view view;
 			render_view_init(&view);
 			struct grid g;
@@ -175,7 +175,7 @@ static void test_point_marker(void **state)
 		struct problem pb;
 		make_resistor(&pb, 9.173, 2.207e3, 1.459e3);
 		struct op_point pt = resistor_point(9.173, 2.207e3, 1.459e3);
-		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_input in = { &pb, &pt, 1, NULL, 0, 0, false };
 		struct render_view view;
 		render_view_init(&view);
 		struct grid g;
@@ -234,7 +234,7 @@ static void test_axis_labels(void **state)
 		struct problem pb;
 		make_resistor(&pb, 14.93, 6.81e2, 2.279e3);
 		struct op_point pt = resistor_point(14.93, 6.81e2, 2.279e3);
-		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_input in = { &pb, &pt, 1, NULL, 0, 0, false };
 		struct render_view view;
 		render_view_init(&view);
 		struct grid g;
@@ -344,7 +344,7 @@ static void test_path_after_steps(void **state)
 			struct op_point pt = resistor_point(8.411, 1.629e3, 2.351e3);
 			struct trace_row rows[16];
 			make_path(&pb, 1.217, rows, n);
-			struct render_input in = { &pb, &pt, 1, rows, n };
+			struct render_input in = { &pb, &pt, 1, rows, n, 0, false };
 			struct render_view view;
 			render_view_init(&view);
 			struct grid g;
@@ -446,7 +446,7 @@ static void test_diode_far_intercept(void **state)
 		struct problem pb;
 		make_diode(&pb, 47.3, 2.61e3, 2.17e-15, 1.08, 22.7);
 		struct op_point pt = diode_point(&pb);
-		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_input in = { &pb, &pt, 1, NULL, 0, 0, false };
 		struct render_view view;
 		render_view_init(&view);
 		struct grid g;
@@ -485,7 +485,7 @@ static void test_ideal_sources(void **state)
 		struct problem pb;
 		make_resistor(&pb, 3.847, 0.0, 1.733e3);
 		struct op_point pt = { .v = 3.847, .i = 3.847 / 1.733e3 };
-		struct render_input in = { &pb, &pt, 1, NULL, 0 };
+		struct render_input in = { &pb, &pt, 1, NULL, 0, 0, false };
 		struct render_view view;
 		render_view_init(&view);
 		struct grid g;
@@ -530,7 +530,7 @@ static void test_zoom_pan(void **state)
 	struct problem pb;
 	make_resistor(&pb, 6.271, 8.21e2, 1.907e3);
 	struct op_point pt = resistor_point(6.271, 8.21e2, 1.907e3);
-	struct render_input in = { &pb, &pt, 1, NULL, 0 };
+	struct render_input in = { &pb, &pt, 1, NULL, 0, 0, false };
 	struct render_view view;
 	render_view_init(&view);
 	struct render_window w1, w2;
@@ -583,7 +583,7 @@ static void test_small_and_unicode(void **state)
 	struct problem pb;
 	make_resistor(&pb, 5.113, 1.07e3, 2.2e3);
 	struct op_point pt = resistor_point(5.113, 1.07e3, 2.2e3);
-	struct render_input in = { &pb, &pt, 1, NULL, 0 };
+	struct render_input in = { &pb, &pt, 1, NULL, 0, 0, false };
 	struct render_view view;
 	render_view_init(&view);
 	static const int small[][2] = { { 0, 0 }, { 1, 1 }, { 7, 80 }, { 24, 29 } };
