@@ -338,7 +338,8 @@ static void solve_print_verdict(const struct session *se,
 static void solve_print_text(const char *file, const struct session *se,
                              const struct problem *pb,
                              const struct solve_options *o,
-                             const struct solve_result *res)
+                             const struct solve_result *res,
+                             const char *unreached)
 {
 	char a[48], b[48];
 	printf("%s\n", file);
@@ -360,7 +361,11 @@ static void solve_print_text(const char *file, const struct session *se,
 	if (pb->dev.curve != NULL)
 		printf(" %zu measured points", pb->dev.curve->n);
 	printf("\n  method   %s\n\n", solve_method_name(o->method));
-	printf("  %zu operating point%s\n", res->n, res->n == 1 ? "" : "s");
+	printf("  %zu operating point%s%s\n", res->n, res->n == 1 ? "" : "s",
+	       unreached != NULL ? " (found by auto; not reached by the method)"
+	                         : "");
+	if (unreached != NULL)
+		printf("  %s\n", unreached);
 	printf("  %-3s %-13s %-13s %-13s %-13s %-10s %s\n", "#", "voltage",
 	       "current", "power", "r_d", "stability", "steps");
 	for (size_t k = 0; k < res->n; k++) {
@@ -466,6 +471,50 @@ static int solve_print_csv(const struct session *se, const struct problem *pb,
 	return csv_finish(&w, "solve");
 }
 
+/*
+ * Why the requested method of O reached none of the points ROB holds
+ * (found by the every-root solve), and what converges instead, into BUF:
+ * a run stopped by the step limit while still closing in says how many
+ * more steps it needed (diagnose_projections from its last iterate).
+ */
+static void solve_why_not(const struct problem *pb,
+                          const struct solve_options *o,
+                          const struct solve_result *res,
+                          const struct solve_result *rob, char *buf, size_t n)
+{
+	struct remedy rm;
+	diagnose_remedy(pb, o, &rm);
+	if (res->stop == STEP_CAP) {
+		struct stepper *st = stepper_create();
+		double more = NAN;
+		if (st != NULL && stepper_init(st, pb, o) == 0) {
+			stepper_run(st);
+			const struct trace_row *last = stepper_last(st);
+			size_t best = 0;
+			for (size_t k = 1; last != NULL && k < rob->n; k++)
+				if (fabs(rob->pts[k].v - last->v) <
+				    fabs(rob->pts[best].v - last->v))
+					best = k;
+			if (last != NULL && (o->method == METHOD_PROJECTION))
+				more = diagnose_projections(pb, o->order, rob->pts[best].v,
+				                            rob->pts[best].i, last->i,
+				                            o->tol);
+		}
+		stepper_destroy(st);
+		if (isfinite(more)) {
+			snprintf(buf, n, "not converged after %u steps (about %.0f more "
+			         "needed): raise solver.step_limit, or %s", o->max_steps,
+			         fmax(more, 1.0), rm.text);
+			return;
+		}
+		snprintf(buf, n, "not converged after %u steps: %s", o->max_steps,
+		         rm.text);
+		return;
+	}
+	snprintf(buf, n, "%s stopped (%s): %s", solve_method_name(o->method),
+	         step_status_name(res->stop), rm.text);
+}
+
 /* Entry point of `biasline solve`. */
 int cmd_solve(int argc, char **argv)
 {
@@ -486,6 +535,20 @@ int cmd_solve(int argc, char **argv)
 
 	struct solve_result res;
 	solve_problem(&pb, &o, &res);
+	/* A method that reached no point: list the points the every-root solve
+	 * finds, say why, and name a setting that converges. */
+	char why[400];
+	const char *unreached = NULL;
+	if (res.status != SOLVE_OK && o.method != METHOD_AUTO) {
+		struct solve_options ao = o;
+		ao.method = METHOD_AUTO;
+		struct solve_result rob;
+		if (solve_problem(&pb, &ao, &rob) == SOLVE_OK && rob.n > 0) {
+			solve_why_not(&pb, &o, &res, &rob, why, sizeof why);
+			unreached = why;
+			res = rob;
+		}
+	}
 	/* CSV carries one table: the trace when asked for, else the points. */
 	int out = EXIT_OK_CODE;
 	if (a.csv && a.trace)
@@ -495,12 +558,16 @@ int cmd_solve(int argc, char **argv)
 	else if (a.csv)
 		out = solve_print_csv(&se, &pb, &res);
 	else
-		solve_print_text(a.file, &se, &pb, &o, &res);
+		solve_print_text(a.file, &se, &pb, &o, &res, unreached);
 	if (a.trace && !a.csv && out == EXIT_OK_CODE)
 		out = solve_print_trace(&pb, &o, false);
 	if (a.sensitivity && !a.csv && out == EXIT_OK_CODE)
 		out = solve_print_sensitivity(&pb, &res, false);
-	if (res.status != SOLVE_OK) {
+	if (unreached != NULL) {
+		fprintf(stderr, "biasline solve: %s: %s: %s\n", a.file,
+		        solve_method_name(o.method), unreached);
+		code = EXIT_NOT_REACHED;
+	} else if (res.status != SOLVE_OK) {
 		fprintf(stderr, "biasline solve: %s: no operating point: %s\n", a.file,
 		        res.message);
 		code = cli_exit_from_solve(res.status);

@@ -10,6 +10,8 @@
 static const struct exit_status_info exit_table[] = {
 	{ EXIT_OK_CODE, "success" },
 	{ EXIT_NO_POINT, "no operating point (or no value meets the target)" },
+	{ EXIT_NOT_REACHED, "the requested method reached no operating point, "
+	  "though one exists (the points are listed)" },
 	{ EXIT_USAGE, "bad command line" },
 	{ EXIT_DATA, "bad data in a session file or a file it names" },
 	{ EXIT_NO_INPUT, "a file cannot be read" },

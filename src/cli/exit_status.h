@@ -18,6 +18,7 @@
 enum exit_code {
 	EXIT_OK_CODE = 0,
 	EXIT_NO_POINT = 3,      /* no operating point (or no design value) */
+	EXIT_NOT_REACHED = 4,   /* points exist; the requested method missed them */
 	EXIT_USAGE = 64,        /* bad command line */
 	EXIT_DATA = 65,         /* bad data in a session file */
 	EXIT_NO_INPUT = 66,     /* a file cannot be read */

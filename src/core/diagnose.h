@@ -52,6 +52,42 @@ void diagnose_at(const struct problem *pb, enum projection_order order,
                  double v, double tol, double start_err, struct diagnosis *d);
 
 /*
+ * Projections the plain projection path of ORDER needs from a start with
+ * device current I0 to the point (V, I) of PB, counted the way the
+ * stepper counts them and stopped by its test (both the last voltage and
+ * the last current change within TOL of the point's own): the error on
+ * the current shrinks by |g'| per full step (two projections) from
+ * I0 - I, and a full step moves the current by |1 - g'| times the error
+ * and the voltage by the slope of the curve it moves along (r on the
+ * line, r_d on the device) times that (Burden & Faires, Numerical
+ * Analysis, 9th ed., 2010, sec. 2.2: linear convergence at rate
+ * |g'(x*)|).  INFINITY when the order does not contract there.
+ */
+double diagnose_projections(const struct problem *pb,
+                            enum projection_order order, double v, double i,
+                            double i0, double tol);
+
+/* A setting that converges: what to change, and the words for it. */
+struct remedy {
+	enum solve_method method;
+	enum projection_order order;
+	double relaxation;     /* for METHOD_RELAXED: a factor in (0, 2] */
+	char text[160];        /* "switch to voltage-from-device", "use newton" */
+};
+
+/*
+ * Find a setting that converges, from O's start, to an operating point
+ * that the every-root solve of PB finds: the other projection order,
+ * relaxation in either order with the factor that is optimal at that
+ * point (kept inside the loader's range (0, 2]), newton, brent.  Each
+ * candidate is run, not guessed, with O's tolerance and step limit; the
+ * first that converges is written to *R.  Returns 0, or -1 when none does
+ * (R's text then names auto, the every-root solve) or no point exists.
+ */
+int diagnose_remedy(const struct problem *pb, const struct solve_options *o,
+                    struct remedy *r);
+
+/*
  * A one-line plain-language message for stepper status ST under ORDER
  * (what happened, and the remedy), written to BUF.  Uses the diagnosis at
  * the last iterate when D is not NULL.

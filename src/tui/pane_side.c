@@ -336,8 +336,21 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 		if (a->res.n > 1)
 			snprintf(which, sizeof which, " at point %zu%s", focus + 1,
 			         heading ? " (the path's)" : " (selected)");
-		snprintf(d->text[d->n], sizeof d->text[0], "predicted%s: %s", which,
-		         at.verdict);
+		/* How many projections from this path's start, to the stopping
+		 * test's tolerance. */
+		char count[96] = "";
+		size_t nr;
+		const struct trace_row *rows = stepper_trace(a->st, &nr);
+		if (nr > 0 && fabs(at.gprime) < 1.0) {
+			double p = diagnose_projections(&a->pb, order, a->res.pts[focus].v,
+			                                a->res.pts[focus].i, rows[0].i,
+			                                a->s.solver.tol);
+			if (isfinite(p))
+				snprintf(count, sizeof count, "; about %.0f projections from "
+				         "the start", p);
+		}
+		snprintf(d->text[d->n], sizeof d->text[0], "predicted%s: %s%s", which,
+		         at.verdict, count);
 		d->style[d->n++] = fabs(at.gprime) < 1.0 ? TS_GOOD : TS_ERROR;
 		char g[48], o[48];
 		if (isfinite(at.gprime))
@@ -361,6 +374,17 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 	if (st != STEP_CONTINUE && last != NULL && isfinite(last->v)) {
 		diagnose_at(&a->pb, order, last->v, a->s.solver.tol, 1.0, &live);
 		dp = &live;
+	}
+	if (st != STEP_CONTINUE && st != STEP_CONVERGED) {
+		/* A remedy that was run and converges, not a guess. */
+		struct solve_options po = *stepper_options(a->st);
+		struct remedy rm;
+		diagnose_remedy(&a->pb, &po, &rm);
+		if (dp == NULL) {
+			memset(&live, 0, sizeof live);
+			dp = &live;
+		}
+		snprintf(live.advice, sizeof live.advice, "%s", rm.text);
 	}
 	size_t n;
 	stepper_trace(a->st, &n);

@@ -45,8 +45,8 @@ expect_awk "$tmp/out" 'NR==2 { p=$2*$3; d=(p-$4)/$4; if (d<0) d=-d; exit !(d < 1
 expect_text "$tmp/out" "1,1.12655615"
 expect_awk "$tmp/out" 'NR==2 { s=$2; gsub(/[-.]|e.*/, "", s); exit !(length(s) >= 15) }' "voltage has full precision"
 # Voltage from the line diverges for this LED-like junction (|g'| >> 1):
-# no point, exit 3, and the message says to switch.
-expect_exit 3 "$bl" solve --method projection --order voltage-from-line "$tmp/diode.yaml"
+# no point, exit 4 (a point exists), and the message says to switch.
+expect_exit 4 "$bl" solve --method projection --order voltage-from-line "$tmp/diode.yaml"
 expect_text "$tmp/err" "switch to voltage-from-device"
 expect_exit 0 "$bl" solve --method projection --order voltage-from-device "$tmp/diode.yaml"
 expect_exit 0 "$bl" solve --method newton --trace "$tmp/diode.yaml"

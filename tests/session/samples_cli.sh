@@ -111,8 +111,8 @@ report $? "at least two samples carry tolerances, ratings and a target ($full)"
 # The order sample: the session's own order diverges, the other converges.
 f="$dir/projection-order-matters.yaml"
 "$bl" solve --format csv "$f" >/dev/null 2>"$tmp/err"
-[ $? -eq 3 ]
-report $? "projection-order-matters: the stated order finds no point (exit 3)"
+[ $? -eq 4 ]
+report $? "projection-order-matters: the stated order reaches no point, though one exists (exit 4)"
 grep -q 'voltage-from-device' "$tmp/err"
 report $? "projection-order-matters: the message names the other order"
 "$bl" solve --format csv --order voltage-from-device "$f" >"$tmp/csv" 2>/dev/null
