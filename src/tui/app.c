@@ -81,6 +81,23 @@ void app_fini(struct app *a)
 	a->path = NULL;
 }
 
+/* Clear an overlay's box and its ring, and draw the side borders. */
+void app_overlay_box(struct app *a, int top, int left, int h, int w)
+{
+	int rows, cols;
+	term_size(&a->term, &rows, &cols);
+	int r0 = top > 1 ? top - 1 : top, r1 = top + h < rows - 1 ? top + h : top + h - 1;
+	int c0 = left > 0 ? left - 1 : left;
+	int c1 = left + w < cols ? left + w : left + w - 1;
+	for (int r = r0; r <= r1; r++)
+		term_fill(&a->term, r, c0, c1 - c0 + 1, TS_NORMAL);
+	uint32_t bar = app_unicode(a) ? 0x2502 : '|';
+	for (int r = top + 1; r < top + h - 1; r++) {
+		term_put(&a->term, r, left, bar, TS_TITLE);
+		term_put(&a->term, r, left + w - 1, bar, TS_TITLE);
+	}
+}
+
 /* Whether marks are Unicode. */
 bool app_unicode(const struct app *a)
 {

@@ -117,6 +117,14 @@ size_t app_focus_point(const struct app *a, bool *heading);
 /* The stability verdict of point K of A's solution. */
 struct stability_result app_stability(const struct app *a, size_t k);
 
+/*
+ * Clear an overlay box of H rows and W columns at TOP, LEFT, and the ring
+ * of cells around it (inside the screen), and draw its side borders, so
+ * nothing under it shows through.  Its first and last rows are left for
+ * the title and foot bars the overlay draws.
+ */
+void app_overlay_box(struct app *a, int top, int left, int h, int w);
+
 /* Whether the user asked for Unicode marks (else ASCII). */
 bool app_unicode(const struct app *a);
 

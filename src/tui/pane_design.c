@@ -39,7 +39,11 @@ static void pane_design_run(struct app *a, struct design_state *d)
 		snprintf(d->res.message, sizeof d->res.message, "%s", a->pb_err);
 		return;
 	}
-	d->ok = design_solve(&a->pb, &a->s.solver, &d->rq, &a->s.analysis.ratings,
+	/* The candidates' points come from the every-root solve, whatever
+	 * method the path is drawn with (a diverging order finds none). */
+	struct solve_options so = a->s.solver;
+	so.method = METHOD_AUTO;
+	d->ok = design_solve(&a->pb, &so, &d->rq, &a->s.analysis.ratings,
 	                     &d->res) == 0;
 	/* Start on the first standard value: the exact one is rarely bought. */
 	if (d->ok && d->res.nrows > 1)
@@ -113,8 +117,7 @@ static void pane_design_draw(struct app *a, void *self, const struct rect *box)
 		ncs = 4;
 	int h = 11 + (ncs > 0 ? (int)ncs + 1 : 0);
 	int top = box->row + (box->rows - h) / 2, left = box->col + (box->cols - w) / 2;
-	for (int r = 0; r < h; r++)
-		term_fill(&a->term, top + r, left, w, TS_NORMAL);
+	app_overlay_box(a, top, left, h, w);
 	char line[512], t[64], b[64], c[64], e[64], f[64];
 	qty_format_short(t, sizeof t, d->rq.value, pane_design_unit(d->rq.target), 5,
 	                 ascii);

@@ -26,8 +26,7 @@ static void pane_help_draw(struct app *a, void *self, const struct rect *box)
 	int h = per + 3 < rows - 2 ? per + 3 : rows - 2;
 	int top = (rows - h) / 2, left = (cols - w) / 2;
 	int cw = (w - 2) / ncol;
-	for (int r = 0; r < h; r++)
-		term_fill(&a->term, top + r, left, w, TS_NORMAL);
+	app_overlay_box(a, top, left, h, w);
 	term_fill(&a->term, top, left, w, TS_TITLE);
 	term_text(&a->term, top, left + 1, "Keys (any key closes this help)", w - 2,
 	          TS_TITLE);

@@ -69,8 +69,7 @@ static void pane_sens_draw(struct app *a, void *self, const struct rect *box)
 	int w = box->cols - 4 < 74 ? box->cols - 4 : 74;
 	int top = box->row, left = box->col + (box->cols - w) / 2;
 	int end = top + box->rows - 1;
-	for (int r = top; r <= end; r++)
-		term_fill(&a->term, r, left, w, TS_NORMAL);
+	app_overlay_box(a, top, left, end - top + 1, w);
 	term_fill(&a->term, top, left, w, TS_TITLE);
 	term_text(&a->term, top, left + 1,
 	          "Sensitivities at the first operating point (% per %)", w - 2,

@@ -112,8 +112,7 @@ static void pane_tol_draw(struct app *a, void *self, const struct rect *box)
 	int w = box->cols - 4 < 74 ? box->cols - 4 : 74;
 	int h = box->rows;
 	int top = box->row, left = box->col + (box->cols - w) / 2;
-	for (int r = 0; r < h; r++)
-		term_fill(&a->term, top + r, left, w, TS_NORMAL);
+	app_overlay_box(a, top, left, h, w);
 	char line[640], b0[48], b1[48], b2[48];
 	term_fill(&a->term, top, left, w, TS_TITLE);
 	snprintf(line, sizeof line, "Tolerance: %zu parameters varied",

@@ -256,6 +256,57 @@ order)
 	wait_for "converged after"
 	echo "ok: diagnosis changed from spiral out to spiral in; converged after the flip"
 	;;
+demo)
+	# The demo at 80x24: in its stored order the first six steps keep the
+	# newest segment (the '=' marks) inside the plot as the path spirals
+	# out; after o each of the first four steps changes the plot.
+	start 80 24
+	wait_for "Convergence"
+	plot() { screen | sed -n '2,22p' | cut -c1-47; }
+	for ((k = 1; k <= 6; k++)); do
+		keys Space
+		wait_for "($k projection"
+		plot | grep -q '=' || fail "step $k: the newest segment is not in the plot"
+	done
+	keys o
+	wait_for "order: voltage from the device"
+	wait_for "predicted: spirals in"
+	prev=$(plot)
+	for ((k = 1; k <= 4; k++)); do
+		keys Space
+		wait_for "($k projection"
+		now=$(plot)
+		[ "$now" != "$prev" ] || fail "step $k after the flip did not change the plot"
+		prev=$now
+	done
+	echo "ok: six steps out stay in view; four steps in each change the plot"
+	;;
+points)
+	# A tunnel diode crossed three times (0.47 V behind 420 ohm): all three
+	# points are listed with their stability, numbered on the plot, and
+	# selecting each changes the diagnosis.
+	f=$work/tunnel.yaml
+	printf 'format_version: 1\nsource:\n  vs: 470 mV\n  rs: 420\ndevice:\n  model: tunnel\n' >"$f"
+	start 80 24 "$f"
+	wait_for "Convergence"
+	side=$(screen | cut -c51-)
+	for p in 1 2 3; do
+		grep -qE "^$p[ >] " <<<"$side" || fail "point $p is not listed"
+	done
+	grep -qE '^2[ >] .*unstable' <<<"$side" || fail "the middle point is not unstable"
+	[ "$(grep -cE '^[13][ >] .*stable' <<<"$side")" = 2 ] || fail "the outer points are not stable"
+	last=""
+	for p in 2 3 1; do
+		keys p
+		wait_for "point $p of 3"
+		d=$(screen | cut -c51- | awk '/- Diagnosis/ { on = 1 } /- Convergence/ { on = 0 } on')
+		grep -q "at point $p" <<<"$d" || fail "the diagnosis does not speak of point $p"
+		[ "$d" != "$last" ] || fail "selecting point $p did not change the diagnosis"
+		last=$d
+	done
+	screen | grep -qiE '(^|[^a-z])(nan|inf)([^a-z]|$)' && fail "nan or inf on screen"
+	echo "ok: three points listed with stable/unstable/stable; p changes the diagnosis"
+	;;
 wrap)
 	# At 80x24 the diagnosis box wraps its text at word boundaries and
 	# keeps the remedy; row 0 of the table shows "-" for its step; typed
@@ -389,7 +440,7 @@ tolerance)
 	screen | grep -qF "Monte Carlo, 10000" && fail "the trials ran before m"
 	keys m
 	wait_for "Monte Carlo, 10000 trials"
-	bin1=$(screen | grep -E '[0-9] [munp]?A \|#*' | head -1 | awk '{ print $NF }')
+	bin1=$(screen | grep -oE '[0-9] [munp]?A \|#* +[0-9]+' | head -1 | awk '{ print $NF }')
 	[ "$bin1" = "$cli_bin" ] || fail "first bin holds $bin1 trials, CLI says $cli_bin"
 	echo "ok: worst case $tmin ... $tmax and first histogram bin $bin1 match the CLI"
 	;;
@@ -530,6 +581,11 @@ resize)
 		screen | grep -qE '^ *[0-9.]+ [munp]?A\+' || fail "no current axis at $size"
 		screen | grep -qE '\+-+\+' || fail "no voltage axis at $size"
 		wait_for "Convergence"
+		# (the redraw after a resize may still be under way: poll)
+		for ((t = 0; t < 50; t++)); do
+			table_rows | grep -qE '^ *3 ' && break
+			sleep 0.1
+		done
 		table_rows | grep -qE '^ *3 ' || fail "table lost row 3 at $size"
 	done
 	echo "ok: axes and table at 80x24, 200x60; too-small screen at 50x15"
