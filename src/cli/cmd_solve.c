@@ -568,8 +568,9 @@ int cmd_solve(int argc, char **argv)
 		        solve_method_name(o.method), unreached);
 		code = EXIT_NOT_REACHED;
 	} else if (res.status != SOLVE_OK) {
+		char run[400];
 		fprintf(stderr, "biasline solve: %s: no operating point: %s\n", a.file,
-		        res.message);
+		        stability_runaway(&pb, run, sizeof run) ? run : res.message);
 		code = cli_exit_from_solve(res.status);
 	}
 	if (out != EXIT_OK_CODE)

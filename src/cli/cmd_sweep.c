@@ -13,6 +13,7 @@
 #include "commands.h"
 #include "csv.h"
 #include "core/safety.h"
+#include "core/stability.h"
 #include "core/sweep.h"
 
 /* What the command line asked for. */
@@ -156,6 +157,48 @@ static void sweep_print_folds(FILE *out, const char *prefix, const char *key,
 	}
 }
 
+/*
+ * Print to OUT where the circuit jumps between stable branches when the
+ * parameter moves slowly up, and down, through the folds of RES, and the
+ * hysteresis loop when it jumps both ways.
+ */
+static void sweep_print_jumps(FILE *out, const char *prefix, const char *key,
+                              enum qty_kind unit, const struct problem *pb,
+                              const struct session *se,
+                              const struct sweep_spec *sp,
+                              const struct sweep_result *res)
+{
+	if (res->nfolds == 0)
+		return;
+	struct stability_jump up[8], down[8];
+	size_t nu = stability_jumps(pb, &se->reactive, sp, res, true, up, 8);
+	size_t nd = stability_jumps(pb, &se->reactive, sp, res, false, down, 8);
+	for (int pass = 0; pass < 2; pass++) {
+		const struct stability_jump *j = pass == 0 ? up : down;
+		size_t n = pass == 0 ? nu : nd;
+		for (size_t k = 0; k < n; k++) {
+			char a[48], v0[48], i0[48], v1[48], i1[48];
+			fprintf(out, "%sjump %s: at %s = %s the stable point at %s, %s "
+			        "vanishes; the circuit jumps to %s, %s\n", prefix,
+			        pass == 0 ? "going up" : "going down", key,
+			        cli_fmt(a, sizeof a, j[k].value, unit, 6),
+			        cli_fmt(v0, sizeof v0, j[k].v_from, QTY_VOLTAGE, 5),
+			        cli_fmt(i0, sizeof i0, j[k].i_from, QTY_CURRENT, 5),
+			        cli_fmt(v1, sizeof v1, j[k].v_to, QTY_VOLTAGE, 5),
+			        cli_fmt(i1, sizeof i1, j[k].i_to, QTY_CURRENT, 5));
+		}
+	}
+	if (nu > 0 && nd > 0) {
+		char a[48], b[48];
+		double lo = fmin(up[0].value, down[nd - 1].value);
+		double hi = fmax(up[0].value, down[nd - 1].value);
+		fprintf(out, "%shysteresis: between %s = %s and %s the circuit sits on "
+		        "either branch, the one it came from\n", prefix, key,
+		        cli_fmt(a, sizeof a, lo, unit, 6),
+		        cli_fmt(b, sizeof b, hi, unit, 6));
+	}
+}
+
 /* Entry point of `biasline sweep`. */
 int cmd_sweep(int argc, char **argv)
 {
@@ -213,6 +256,8 @@ int cmd_sweep(int argc, char **argv)
 		}
 		code = csv_finish(&w, "sweep");
 		sweep_print_folds(stderr, "biasline sweep: ", key, unit, &res);
+		sweep_print_jumps(stderr, "biasline sweep: ", key, unit, &pb, &se, &sp,
+		                  &res);
 	} else {
 		char a1[48], a2[48], v[48], i[48], p[48];
 		printf("%s\n  sweep    %s from %s to %s, %zu %s points\n\n", a.file,
@@ -233,6 +278,7 @@ int cmd_sweep(int argc, char **argv)
 		if (res.nfolds > 0)
 			printf("\n");
 		sweep_print_folds(stdout, "  ", key, unit, &res);
+		sweep_print_jumps(stdout, "  ", key, unit, &pb, &se, &sp, &res);
 	}
 	if (res.failed > 0)
 		fprintf(stderr, "biasline sweep: %zu of %zu steps have no operating "

@@ -6,6 +6,10 @@
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
+
+#include "paramref.h"
+#include "quantity.h"
 
 /* Names of the verdicts. */
 static const char *const stability_names[] = {
@@ -142,4 +146,191 @@ void stability_classify(const struct problem *pb, double r_d,
 		stability_thermal(pb->src.r, r_d, out);
 	else
 		stability_electrical(pb->src.r, r_d, c, l, out);
+}
+
+/* The differential resistance at (V, I). */
+double stability_rd(const struct problem *pb, double v, double i)
+{
+	const struct model_type *t = pb->dev.type;
+	if (t == NULL)
+		return NAN;
+	if (t->current != NULL) {
+		double g = device_conductance(&pb->dev, v);
+		return isfinite(g) && g != 0.0 ? 1.0 / g : g == 0.0 ? INFINITY : NAN;
+	}
+	if (t->resistance != NULL)
+		return t->resistance(pb->dev.p, i);
+	return NAN;
+}
+
+/* One step of a sweep: its rows [first, first + n), its value. */
+struct stability_step {
+	size_t first, n;
+	double value;
+};
+
+/* Whether point K of step S is stable. */
+static bool stability_step_stable(const struct problem *pb,
+                                  const struct reactive_parts *rp,
+                                  const struct sweep_spec *sp,
+                                  const struct sweep_result *res,
+                                  const struct stability_step *s, size_t k)
+{
+	const struct sweep_row *r = &res->rows[s->first + k];
+	struct problem q = *pb;
+	if (paramref_set(&q, &sp->param, s->value) != 0)
+		return false;
+	struct stability_result sr;
+	stability_classify(&q, stability_rd(&q, r->v, r->i), rp, &sr);
+	return sr.verdict == STABILITY_STABLE;
+}
+
+/*
+ * Where a pair was born or died between a step of NA points and one of NB
+ * (NB = NA +- 2): the index J of the pair in the longer list that leaves
+ * the other's points matched in order with the least voltage change.
+ */
+static size_t stability_pair(const struct sweep_row *a, size_t na,
+                             const struct sweep_row *b, size_t nb)
+{
+	const struct sweep_row *lng = na > nb ? a : b, *sht = na > nb ? b : a;
+	size_t nl = na > nb ? na : nb, best = 0;
+	double bc = INFINITY;
+	for (size_t j = 0; j + 1 < nl; j++) {
+		double c = 0.0;
+		for (size_t m = 0, x = 0; m < nl; m++) {
+			if (m == j || m == j + 1)
+				continue;
+			c += fabs(lng[m].v - sht[x++].v);
+		}
+		if (c < bc) {
+			bc = c;
+			best = j;
+		}
+	}
+	return best;
+}
+
+/* Follow the stable branch along the sweep (see stability.h). */
+size_t stability_jumps(const struct problem *pb, const struct reactive_parts *rp,
+                       const struct sweep_spec *sp, const struct sweep_result *res,
+                       bool up, struct stability_jump *out, size_t max)
+{
+	size_t nsteps = sp->points, njumps = 0;
+	if (nsteps == 0 || res->nrows == 0)
+		return 0;
+	struct stability_step *steps = calloc(nsteps, sizeof *steps);
+	if (steps == NULL)
+		return 0;
+	for (size_t k = 0; k < nsteps; k++)
+		steps[k].value = sweep_value(sp, k);
+	for (size_t r = res->nrows; r-- > 0;) {
+		size_t k = res->rows[r].step;
+		if (k >= nsteps)
+			continue;
+		steps[k].first = r;
+		steps[k].n++;
+	}
+	bool have = false;
+	size_t t = 0, prev = 0;
+	for (size_t c = 0; c < nsteps; c++) {
+		size_t k = up ? c : nsteps - 1 - c;
+		const struct stability_step *s = &steps[k];
+		const struct sweep_row *rows = &res->rows[s->first];
+		if (s->n == 0) {
+			have = false;
+			continue;
+		}
+		if (!have) {
+			/* Start on the lowest (up) or highest (down) stable point. */
+			for (size_t m = 0; m < s->n; m++) {
+				size_t x = up ? m : s->n - 1 - m;
+				if (stability_step_stable(pb, rp, sp, res, s, x)) {
+					t = x;
+					have = true;
+					break;
+				}
+			}
+			prev = k;
+			continue;
+		}
+		const struct stability_step *p = &steps[prev];
+		const struct sweep_row *old = &res->rows[p->first + t];
+		bool died = false;
+		size_t cand = t;
+		if (s->n + 2 == p->n) {
+			size_t j = stability_pair(&res->rows[p->first], p->n, rows, s->n);
+			died = t == j || t == j + 1;
+			cand = t < j ? t : t - 2;
+		} else if (s->n == p->n + 2) {
+			size_t j = stability_pair(&res->rows[p->first], p->n, rows, s->n);
+			cand = t < j ? t : t + 2;
+		} else if (s->n != p->n) {
+			/* Any other change: the nearest point in voltage. */
+			cand = 0;
+			for (size_t m = 1; m < s->n; m++)
+				if (fabs(rows[m].v - old->v) < fabs(rows[cand].v - old->v))
+					cand = m;
+		}
+		if (!died && cand < s->n &&
+		    stability_step_stable(pb, rp, sp, res, s, cand)) {
+			t = cand;
+			prev = k;
+			continue;
+		}
+		/* The branch is gone: the nearest stable point left takes over. */
+		size_t best = s->n;
+		for (size_t m = 0; m < s->n; m++)
+			if (stability_step_stable(pb, rp, sp, res, s, m) &&
+			    (best == s->n ||
+			     fabs(rows[m].v - old->v) < fabs(rows[best].v - old->v)))
+				best = m;
+		if (best == s->n) {
+			have = false;
+			continue;
+		}
+		if (njumps < max) {
+			struct stability_jump *jp = &out[njumps];
+			jp->value = 0.5 * (p->value + s->value);
+			size_t after = k > prev ? k : prev;
+			for (size_t f = 0; f < res->nfolds; f++)
+				if (res->folds[f].step == after)
+					jp->value = res->folds[f].value;
+			jp->v_from = old->v;
+			jp->i_from = old->i;
+			jp->v_to = rows[best].v;
+			jp->i_to = rows[best].i;
+		}
+		njumps++;
+		t = best;
+		prev = k;
+	}
+	free(steps);
+	return njumps < max ? njumps : max;
+}
+
+/* Whether the part runs away (see stability.h). */
+bool stability_runaway(const struct problem *pb, char *msg, size_t n)
+{
+	const struct model_type *t = pb->dev.type;
+	if (t == NULL || t->current != NULL || t->current_range == NULL ||
+	    !(isfinite(pb->src.r)) || !(pb->src.r >= 0.0))
+		return false;
+	double ilo, ihi, v;
+	t->current_range(pb->dev.p, &ilo, &ihi);
+	if (!(ihi > 0.0) || device_voltage(&pb->dev, ihi, &v) != 0)
+		return false;
+	/* At the end of the range the line still lies above the curve: the
+	 * source would push more current than the part reaches at its limit. */
+	double line_v = pb->src.voc - pb->src.r * ihi;
+	if (!(line_v > v))
+		return false;
+	char a[48], b[48];
+	qty_format_short(a, sizeof a, ihi, QTY_CURRENT, 4, 1);
+	qty_format_short(b, sizeof b, v, QTY_VOLTAGE, 4, 1);
+	snprintf(msg, n, "the part runs away: at the end of its range (%s at "
+	         "%s, its maximum temperature) the source still drives more "
+	         "current, so it heats past its limit; raise RS or lower VS",
+	         a, b);
+	return true;
 }

@@ -44,6 +44,7 @@
 #include <stddef.h>
 
 #include "problem.h"
+#include "sweep.h"
 
 /* The verdict at one operating point. */
 enum stability {
@@ -88,5 +89,43 @@ const char *stability_name(enum stability s);
 void stability_classify(const struct problem *pb, double r_d,
                         const struct reactive_parts *rp,
                         struct stability_result *out);
+
+/*
+ * The device's differential resistance dV/dI at its point (V, I) in PB:
+ * 1/conductance for a curve with I(V), the model's own dV/dI for one given
+ * as V(I).  NaN where it is not defined.
+ */
+double stability_rd(const struct problem *pb, double v, double i);
+
+/*
+ * Whether PB describes a part that runs away: a device given as V(I) over
+ * a limited current range (a self-heated thermistor up to its maximum
+ * temperature) whose load line stays above the curve to the end of that
+ * range, so the source drives ever more current and the part heats past
+ * its limit instead of settling.  When it does, a message naming the limit
+ * goes to MSG and true is returned.
+ */
+bool stability_runaway(const struct problem *pb, char *msg, size_t n);
+
+/* Where a swept circuit leaves a vanished stable branch for another. */
+struct stability_jump {
+	double value;            /* the parameter where the branch ends */
+	double v_from, i_from;   /* the last point on the old branch */
+	double v_to, i_to;       /* the first point on the new one */
+};
+
+/*
+ * Follow the stable operating point along the sweep RES of SP on PB (with
+ * the reactive parts RP, may be NULL) in increasing parameter order (UP)
+ * or decreasing, as the circuit would if the parameter moved slowly that
+ * way: where the followed branch dies at a fold, the circuit jumps to the
+ * nearest stable point left.  Writes at most MAX jumps to OUT and returns
+ * how many.  Sweeping up and down over the same range gives the two jump
+ * values of a hysteresis loop (Chua, Desoer & Kuh 1987, the jump
+ * phenomenon of circuits with folded characteristics).
+ */
+size_t stability_jumps(const struct problem *pb, const struct reactive_parts *rp,
+                       const struct sweep_spec *sp, const struct sweep_result *res,
+                       bool up, struct stability_jump *out, size_t max);
 
 #endif

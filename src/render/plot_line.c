@@ -298,7 +298,7 @@ static size_t render_legend_items(const struct render_input *in, bool off,
 	}
 	if (off) {
 		out[n].mark = render_off_right[u];
-		out[n].name = "newest step off the plot";
+		out[n].name = "off the plot";
 		n++;
 	}
 	return n;
@@ -370,8 +370,8 @@ static enum render_status render_layout_ticks(const struct render_input *in,
 		size_t n = render_legend_items(in, render_newest_off(in, &lay->win),
 		                               view->unicode, items);
 		lay->top = render_legend_rows(items, n, cols);
-		if (lay->top > 2)
-			lay->top = 2;
+		if (lay->top > 3)
+			lay->top = 3;
 	}
 	lay->axis_row = rows - 2;
 	lay->bottom = rows - 3;

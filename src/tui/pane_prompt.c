@@ -25,6 +25,9 @@ struct prompt_state {
 	char error[1024];          /* why the last entry was refused, or "" */
 };
 
+/* Most lines the last message takes (it wraps upwards). */
+#define PROMPT_MAX_STATUS 3
+
 /* Most lines a prompt and its error take. */
 #define PROMPT_MAX_LINES 12
 
@@ -72,23 +75,22 @@ static void pane_prompt_draw(struct app *a, void *self, const struct rect *box)
 	if (!p->open) {
 		const char *msg = a->status[0] != '\0' ? a->status
 		                  : "Space step  g run  b back  o order  e edit  ? help  q quit";
-		/* an error is read whole: it wraps upwards over three lines */
-		const char *ls[3];
-		size_t ln[3];
-		int n = a->status_error ? pane_prompt_wrap(msg, cols, ls, ln, 3) : 1;
-		if (n == 1) {
-			term_text(&a->term, row, 0, msg, cols,
-			          a->status_error ? TS_ERROR : TS_DIM);
-			return;
-		}
-		char line[sizeof a->status];
-		for (int k = 0; k < n; k++) {
-			int r = row - (n - 1) + k;
-			if (r < 0)
+		/* A long message wraps at blanks onto the rows above, whole. */
+		struct render_span sp[PROMPT_MAX_STATUS];
+		size_t n = render_wrap(msg, cols, sp, PROMPT_MAX_STATUS);
+		if (n > PROMPT_MAX_STATUS)
+			n = PROMPT_MAX_STATUS;
+		int top = row - (int)n + 1;
+		for (size_t k = 0; k < n; k++) {
+			char line[512];
+			size_t len = sp[k].len < sizeof line ? sp[k].len : sizeof line - 1;
+			memcpy(line, msg + sp[k].off, len);
+			line[len] = '\0';
+			if (top + (int)k < 0)
 				continue;
-			snprintf(line, sizeof line, "%.*s", (int)ln[k], ls[k]);
-			term_fill(&a->term, r, 0, cols, TS_NORMAL);
-			term_text(&a->term, r, 0, line, cols, TS_ERROR);
+			term_fill(&a->term, top + (int)k, 0, cols, TS_NORMAL);
+			term_text(&a->term, top + (int)k, 0, line, cols,
+			          a->status_error ? TS_ERROR : TS_DIM);
 		}
 		return;
 	}

@@ -139,9 +139,13 @@ static int pane_points(struct app *a, int row, int col, int w, int max)
 	int used = 0;
 	if (!a->pb_ok)
 		return pane_wrap(a, row, col, w, max, a->pb_err, TS_ERROR);
-	if (a->res.n == 0)
+	if (a->res.n == 0) {
+		char run[400];
+		if (stability_runaway(&a->pb, run, sizeof run))
+			return pane_wrap(a, row, col, w, max, run, TS_ERROR);
 		return pane_wrap(a, row, col, w, max, a->res.message[0] != '\0'
 		                 ? a->res.message : "no operating point", TS_ERROR);
+	}
 	char line[192];
 	if (a->res.n == 1) {
 		char v[48], i[48], p[48], r[48];
@@ -497,8 +501,8 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 	int nparams = (int)params_list(&a->s, ps, PARAMS_MAX);
 
 	pane_header(a, y++, x, w, a->res.n > 1 ? "Operating points" : "Operating point");
-	int pmax = a->res.n > 1 ? 1 + (int)a->res.n : 2;
-	if (pmax > 2 + rows / 6)
+	int pmax = a->res.n > 1 ? 1 + (int)a->res.n : a->res.n == 1 ? 2 : 9;
+	if (a->res.n > 1 && pmax > 2 + rows / 6)
 		pmax = 2 + rows / 6;
 	y += pane_points(a, y, x, w, pmax);
 	y += pane_extra(a, y, x, w, 7);

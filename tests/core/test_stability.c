@@ -17,7 +17,9 @@
 
 #include "core/model.h"
 #include "core/solve.h"
+#include "core/paramref.h"
 #include "core/stability.h"
+#include "core/sweep.h"
 
 /* Solve a Thevenin source VS, RS into the model NAME (defaults) into PB, RES. */
 static void solve_case(const char *name, double vs, double rs,
@@ -25,6 +27,7 @@ static void solve_case(const char *name, double vs, double rs,
 {
 	const struct model_type *mt = model_find(name);
 	assert_non_null(mt);
+	memset(pb, 0, sizeof *pb);
 	device_init(&pb->dev, mt);
 	struct source_spec sp;
 	char err[128];
@@ -119,6 +122,7 @@ static void thermistor_case(struct problem *pb, double vs, double rs,
 {
 	const struct model_type *mt = model_find("thermistor");
 	assert_non_null(mt);
+	memset(pb, 0, sizeof *pb);
 	device_init(&pb->dev, mt);
 	pb->dev.p[model_param_index(mt, "resistance_at_reference")] = 10e3;
 	pb->dev.p[model_param_index(mt, "reference_temperature")] = 25.0;
@@ -182,6 +186,37 @@ static void test_thermistor(void **state)
 	}
 }
 
+/*
+ * A thermistor driven past the end of its range runs away: 60 V behind
+ * 200 ohm still pushes more current than the part carries at its maximum
+ * temperature (no crossing: the solve finds none); 40 V behind 2 kohm
+ * settles (the sample's case) and is not reported.
+ */
+static void test_runaway(void **state)
+{
+	(void)state;
+	struct problem pb;
+	struct solve_result res;
+	thermistor_case(&pb, 40.0, 2000.0, &res);
+	char msg[400];
+	assert_false(stability_runaway(&pb, msg, sizeof msg));
+	struct source_spec sp;
+	char err[128];
+	source_spec_thevenin(&sp, 60.0, 200.0);
+	assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+	struct solve_options o;
+	solve_options_init(&o);
+	solve_problem(&pb, &o, &res);
+	assert_int_equal(res.n, 0);
+	assert_true(stability_runaway(&pb, msg, sizeof msg));
+	print_message("# %s\n", msg);
+	assert_non_null(strstr(msg, "runs away"));
+	assert_non_null(strstr(msg, "maximum temperature"));
+	/* A device with I(V) never runs away this way. */
+	solve_case("tunnel", 0.47, 420.0, &pb, &res);
+	assert_false(stability_runaway(&pb, msg, sizeof msg));
+}
+
 /* Ideal sources, undefined slopes and the names. */
 static void test_edges(void **state)
 {
@@ -202,6 +237,74 @@ static void test_edges(void **state)
 	assert_string_equal(stability_name(STABILITY_UNSTABLE), "unstable");
 }
 
+/* V on the tunnel diode's curve in [LO, HI] where dI/dV = G (bisection). */
+static double slope_at(const struct device *d, double lo, double hi, double g)
+{
+	double flo = device_conductance(d, lo) - g;
+	for (int k = 0; k < 200; k++) {
+		double m = 0.5 * (lo + hi), fm = device_conductance(d, m) - g;
+		if ((fm < 0.0) == (flo < 0.0)) {
+			lo = m;
+			flo = fm;
+		} else {
+			hi = m;
+		}
+	}
+	return 0.5 * (lo + hi);
+}
+
+/*
+ * Sweeping the source voltage across the tunnel diode's bistable range
+ * behind 420 ohm: going up, the low branch ends where the line is tangent
+ * to the curve near the peak and the circuit jumps to the high branch;
+ * going down, the high branch ends at the tangent near the valley and it
+ * jumps back.  The tangents are where dI/dV = -1/R, so the jump values are
+ * V + R I(V) there (the fold condition; Chua, Desoer & Kuh 1987, the jump
+ * phenomenon), computed here by bisection on the model's own slope.
+ */
+static void test_sweep_jumps(void **state)
+{
+	(void)state;
+	struct problem pb;
+	struct solve_result res0;
+	solve_case("tunnel", 0.47, 420.0, &pb, &res0);
+	struct sweep_spec sp = { .from = 0.1, .to = 0.9, .points = 161,
+	                         .scale = SWEEP_LINEAR };
+	char err[200];
+	assert_int_equal(paramref_find(&pb, "vs", &sp.param, err, sizeof err), 0);
+	struct solve_options o;
+	solve_options_init(&o);
+	struct sweep_result res;
+	assert_int_equal(sweep_run(&pb, &o, &sp, &res), 0);
+	struct stability_jump up[4], down[4];
+	size_t nu = stability_jumps(&pb, NULL, &sp, &res, true, up, 4);
+	size_t nd = stability_jumps(&pb, NULL, &sp, &res, false, down, 4);
+	assert_int_equal(nu, 1);
+	assert_int_equal(nd, 1);
+	/* The tangents on the falling branch, between peak and valley. */
+	double vp = pb.dev.p[model_param_index(pb.dev.type, "peak_voltage")];
+	double vv = pb.dev.p[model_param_index(pb.dev.type, "valley_voltage")];
+	double g = -1.0 / 420.0;
+	/* The slope falls from 0 at the peak to its steepest, then back. */
+	double steep = vp;
+	for (double v = vp; v <= vv; v += 1e-4)
+		if (device_conductance(&pb.dev, v) < device_conductance(&pb.dev, steep))
+			steep = v;
+	double va = slope_at(&pb.dev, vp, steep, g);
+	double vb = slope_at(&pb.dev, steep, vv, g);
+	double fold_a = va + 420.0 * device_current(&pb.dev, va);
+	double fold_b = vb + 420.0 * device_current(&pb.dev, vb);
+	print_message("# folds by tangency %.6g V and %.6g V; jumps up %.6g V, "
+	              "down %.6g V\n", fold_a, fold_b, up[0].value, down[0].value);
+	double hi = fmax(fold_a, fold_b), lo = fmin(fold_a, fold_b);
+	assert_true(fabs(up[0].value - hi) < 1e-4 * hi);
+	assert_true(fabs(down[0].value - lo) < 1e-4 * lo);
+	/* Up: from the low-voltage branch to the high one; down: back. */
+	assert_true(up[0].v_from < vp * 1.5 && up[0].v_to > vv * 0.9);
+	assert_true(down[0].v_from > up[0].v_from && down[0].v_to < vp * 1.5);
+	sweep_result_fini(&res);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -209,6 +312,8 @@ int main(void)
 		cmocka_unit_test(test_tunnel_falling_branch),
 		cmocka_unit_test(test_thermistor),
 		cmocka_unit_test(test_edges),
+		cmocka_unit_test(test_runaway),
+		cmocka_unit_test(test_sweep_jumps),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

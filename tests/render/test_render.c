@@ -17,6 +17,7 @@
 #include <gsl/gsl_sf_lambert.h>
 
 #include "core/models/models.h"
+#include "core/solve.h"
 #include "render/render.h"
 
 /* Grid sizes every case runs at (rows, cols). */
@@ -759,6 +760,171 @@ static void test_xy_plot(void **state)
 }
 
 /* Run every render test. */
+/* True when grid row ROW holds the text T. */
+static bool row_has(const struct grid *g, int row, const char *t)
+{
+	char buf[4096];
+	grid_row_text(g, row, buf, sizeof buf);
+	return strstr(buf, t) != NULL;
+}
+
+/* True when any row of G holds the text T. */
+static bool grid_has(const struct grid *g, const char *t)
+{
+	for (int r = 0; r < g->rows; r++)
+		if (row_has(g, r, t))
+			return true;
+	return false;
+}
+
+/*
+ * A diverging path (RD < RS: g' = -RS/RD, about -1.8) whose newest step
+ * leaves the whole-line frame is drawn to the edge: an arrow on the data
+ * area's border pointing the way it went, the far end's value beside it,
+ * and the legend says what the arrow means.
+ */
+static void test_off_plot(void **state)
+{
+	(void)state;
+	for (size_t s = 0; s < NSIZES; s++) {
+		struct problem pb;
+		make_resistor(&pb, 8.411, 1.629e3, 0.913e3);
+		struct op_point pt = resistor_point(8.411, 1.629e3, 0.913e3);
+		struct trace_row rows[32];
+		struct render_view view;
+		render_view_init(&view);
+		size_t n = 3;
+		struct render_window w;
+		bool off = false;
+		for (; n < 32 && !off; n++) {
+			make_path(&pb, pt.v * 1.1, rows, n);
+			struct render_input in = { &pb, &pt, 1, rows, n, 0, false };
+			assert_int_equal(render_window_compute(&in, &view, &w), RENDER_OK);
+			const struct trace_row *b = &rows[n - 1];
+			off = b->v < w.v_lo || b->v > w.v_hi || b->i < w.i_lo || b->i > w.i_hi;
+			if (off)
+				break;
+		}
+		assert_true(off);
+		struct render_input in = { &pb, &pt, 1, rows, n, 0, false };
+		struct grid g;
+		struct render_layout lay;
+		draw(&g, sizes[s][0], sizes[s][1], &in, &view, &lay);
+		const struct trace_row *b = &rows[n - 1];
+		/* The arrow: a newest-step cell on the border of the data area. */
+		int arrows = 0;
+		for (int r = lay.top; r <= lay.bottom; r++)
+			for (int c = lay.left; c <= lay.right; c++) {
+				const struct cell *x = grid_at(&g, r, c);
+				bool edge = r == lay.top || r == lay.bottom || c == lay.left ||
+				            c == lay.right;
+				if (x->role == ROLE_NEWEST && edge &&
+				    (x->ch == '<' || x->ch == '>' || x->ch == '^' || x->ch == 'v'))
+					arrows++;
+			}
+		assert_int_equal(arrows, 1);
+		/* The far end's value, as the axis that it is off. */
+		char want[48];
+		if (b->v < w.v_lo || b->v > w.v_hi)
+			qty_format_short(want, sizeof want, b->v, QTY_VOLTAGE, 4, 1);
+		else
+			qty_format_short(want, sizeof want, b->i, QTY_CURRENT, 4, 1);
+		assert_true(grid_has(&g, want));
+		assert_true(row_has(&g, 0, "off the plot") ||
+		            row_has(&g, 1, "off the plot") ||
+		            row_has(&g, 2, "off the plot"));
+		grid_fini(&g);
+	}
+}
+
+/*
+ * The point frame holds the point and the newest projections: as a
+ * converging spiral (g' = -RS/RD, about -0.69) shrinks, every full step
+ * magnifies the plot, and the newest point stays inside.
+ */
+static void test_frame_magnifies(void **state)
+{
+	(void)state;
+	struct problem pb;
+	make_resistor(&pb, 8.411, 1.629e3, 2.351e3);
+	struct op_point pt = resistor_point(8.411, 1.629e3, 2.351e3);
+	struct trace_row rows[40];
+	struct render_view view;
+	render_view_init(&view);
+	view.frame = FRAME_POINT;
+	double prev_v = INFINITY, prev_i = INFINITY;
+	for (size_t n = 8; n <= 30; n += 2) {
+		make_path(&pb, pt.v * 1.37, rows, n);
+		struct render_input in = { &pb, &pt, 1, rows, n, 0, false };
+		struct render_window w;
+		assert_int_equal(render_window_compute(&in, &view, &w), RENDER_OK);
+		double sv = w.v_hi - w.v_lo, si = w.i_hi - w.i_lo;
+		assert_true(sv < prev_v && si < prev_i);
+		const struct trace_row *b = &rows[n - 1];
+		assert_true(b->v >= w.v_lo && b->v <= w.v_hi);
+		assert_true(b->i >= w.i_lo && b->i <= w.i_hi);
+		assert_true(pt.v >= w.v_lo && pt.v <= w.v_hi);
+		prev_v = sv;
+		prev_i = si;
+	}
+	/* After 28 projections the frame is far smaller than the first. */
+	make_path(&pb, pt.v * 1.37, rows, 8);
+	struct render_input first = { &pb, &pt, 1, rows, 8, 0, false };
+	struct render_window w0;
+	assert_int_equal(render_window_compute(&first, &view, &w0), RENDER_OK);
+	assert_true(prev_v < 0.05 * (w0.v_hi - w0.v_lo));
+}
+
+/*
+ * At 80x24 the plot is 22 rows by 48 columns: with a path, three points
+ * and their numbers, every legend entry is there whole, and each point
+ * is numbered beside its mark.
+ */
+static void test_labels_80x24(void **state)
+{
+	(void)state;
+	struct problem pb;
+	const struct model_type *mt = model_find("tunnel");
+	assert_non_null(mt);
+	device_init(&pb.dev, mt);
+	struct source_spec sp;
+	char err[128];
+	source_spec_thevenin(&sp, 0.47, 420.0);
+	assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+	struct solve_options o;
+	solve_options_init(&o);
+	struct solve_result res;
+	assert_int_equal(solve_problem(&pb, &o, &res), SOLVE_OK);
+	assert_int_equal(res.n, 3);
+	struct trace_row rows[4];
+	rows[0] = (struct trace_row){ .v = 0.0, .i = 0.0 };
+	rows[1] = (struct trace_row){ .v = 0.47, .i = 0.0 };
+	rows[2] = (struct trace_row){ .v = 0.47, .i = device_current(&pb.dev, 0.47) };
+	struct render_input in = { &pb, res.pts, res.n, rows, 3, 0, true };
+	struct render_view view;
+	render_view_init(&view);
+	struct grid g;
+	struct render_layout lay;
+	draw(&g, 22, 48, &in, &view, &lay);
+	static const char *const names[] = { "op. point", "load line", "device",
+	                                     "start", "path", "newest step" };
+	for (size_t k = 0; k < sizeof names / sizeof names[0]; k++)
+		assert_true(row_has(&g, 0, names[k]) || row_has(&g, 1, names[k]));
+	for (size_t k = 0; k < res.n; k++) {
+		int r, c;
+		assert_true(render_cell_of(&lay, res.pts[k].v, res.pts[k].i, &r, &c));
+		char want = (char)('1' + k);
+		bool found = false;
+		for (int dc = -1; dc <= 1; dc += 2) {
+			const struct cell *x = grid_at(&g, r, c + dc);
+			if (x != NULL && x->ch == (uint32_t)want && x->role == ROLE_POINT)
+				found = true;
+		}
+		assert_true(found);
+	}
+	grid_fini(&g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -772,6 +938,9 @@ int main(void)
 		cmocka_unit_test(test_small_and_unicode),
 		cmocka_unit_test(test_wrap),
 		cmocka_unit_test(test_xy_plot),
+		cmocka_unit_test(test_off_plot),
+		cmocka_unit_test(test_frame_magnifies),
+		cmocka_unit_test(test_labels_80x24),
 	};
 	return cmocka_run_group_tests_name("render", tests, NULL, NULL);
 }

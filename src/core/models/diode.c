@@ -162,7 +162,7 @@ static const struct model_param diode_params[DIODE_NPARAMS] = {
 	               "saturation current (at reference_temperature if given)" },
 	[DIODE_N] = { "ideality", "n", QTY_NUMBER, NAN, 0.0, 100.0, true, false,
 	              false, "ideality (emission) factor, about 1 to 2 for silicon" },
-	[DIODE_RS] = { "series_resistance", "Rs", QTY_RESISTANCE, 0.0, 0.0, 1e9,
+	[DIODE_RS] = { "series_resistance", "Rbulk", QTY_RESISTANCE, 0.0, 0.0, 1e9,
 	               false, false, true, "bulk/series resistance, 0 for none" },
 	[DIODE_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15,
 	                 1000.0, true, false, false,

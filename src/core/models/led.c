@@ -209,7 +209,7 @@ static const struct model_param led_params[LED_NPARAMS] = {
 	             false, true, "current at which forward_voltage is stated" },
 	[LED_N] = { "ideality", "n", QTY_NUMBER, 2.0, 0.0, 100.0, true, false,
 	            false, "ideality factor: ~2 AlGaInP, 3+ InGaN, 1.5 GaAs IR" },
-	[LED_RS] = { "series_resistance", "Rs", QTY_RESISTANCE, 6.0, 0.0, 1e6,
+	[LED_RS] = { "series_resistance", "Rbulk", QTY_RESISTANCE, 6.0, 0.0, 1e6,
 	             false, false, true, "series resistance of die and leads" },
 	[LED_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15, 1000.0,
 	               true, false, false, "junction temperature in degrees Celsius" },
