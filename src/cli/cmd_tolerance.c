@@ -14,6 +14,7 @@
 #include "commands.h"
 #include "csv.h"
 #include "core/safety.h"
+#include "core/stability.h"
 #include "core/tolerance.h"
 #include "core/verdict.h"
 
@@ -194,7 +195,12 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 	printf("\n  worst case (%zu corners", w->corners);
 	if (w->failed)
 		printf(", %zu without an operating point", w->failed);
-	printf(")\n  %-16s %-13s %-13s %s\n", "", "nominal", "minimum", "maximum");
+	char fold[400];
+	bool folded = stability_box_fold(c, fold, sizeof fold);
+	printf(")\n");
+	if (folded)
+		printf("  %s\n", fold);
+	printf("  %-16s %-13s %-13s %s\n", "", "nominal", "minimum", "maximum");
 	for (int o = 0; o < TOL_NOUT; o++) {
 		enum qty_kind u = tolerance_unit((enum tol_output)o);
 		printf("  %-16s %-13s %-13s %s\n", tol_output_name((enum tol_output)o),

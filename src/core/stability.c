@@ -10,6 +10,7 @@
 
 #include "paramref.h"
 #include "quantity.h"
+#include "solve.h"
 
 /* Names of the verdicts. */
 static const char *const stability_names[] = {
@@ -332,5 +333,43 @@ bool stability_runaway(const struct problem *pb, char *msg, size_t n)
 	         "%s, its maximum temperature) the source still drives more "
 	         "current, so it heats past its limit; raise RS or lower VS",
 	         a, b);
+	return true;
+}
+
+/* Whether the tolerance box holds a fold (see stability.h). */
+bool stability_box_fold(const struct tol_case *c, char *msg, size_t n)
+{
+	if (c->nitems == 0 || c->nitems > TOL_MAX_CORNER_ITEMS)
+		return false;
+	struct solve_options o = c->opts;
+	o.method = METHOD_AUTO;
+	struct solve_result res;
+	if (solve_problem(&c->pb, &o, &res) != SOLVE_OK)
+		res.n = 0;
+	size_t lo = res.n, hi = res.n;
+	size_t corners = (size_t)1 << c->nitems;
+	for (size_t m = 0; m < corners; m++) {
+		struct problem q = c->pb;
+		bool ok = true;
+		for (size_t k = 0; k < c->nitems && ok; k++) {
+			const struct tol_item *it = &c->items[k];
+			ok = paramref_set(&q, &it->param, (m >> k) & 1u ? it->hi
+			                                               : it->lo) == 0;
+		}
+		if (!ok)
+			continue;
+		if (solve_problem(&q, &o, &res) != SOLVE_OK)
+			res.n = 0;
+		if (res.n < lo)
+			lo = res.n;
+		if (res.n > hi)
+			hi = res.n;
+	}
+	if (lo == hi)
+		return false;
+	snprintf(msg, n, "the tolerance box holds a fold: the circuit has %zu "
+	         "operating point%s at some corners and %zu at others, so it may "
+	         "sit on another branch than the nominal one (biasline sweep "
+	         "shows where it jumps)", hi, hi == 1 ? "" : "s", lo);
 	return true;
 }

@@ -45,6 +45,7 @@
 
 #include "problem.h"
 #include "sweep.h"
+#include "tolerance.h"
 
 /* The verdict at one operating point. */
 enum stability {
@@ -106,6 +107,16 @@ double stability_rd(const struct problem *pb, double v, double i);
  * goes to MSG and true is returned.
  */
 bool stability_runaway(const struct problem *pb, char *msg, size_t n);
+
+/*
+ * Whether the tolerance box of C holds a fold: the number of operating
+ * points differs between its corners (and the nominal), so the circuit has
+ * several points somewhere in the box and may sit on another branch than
+ * the nominal one.  Solves every corner (C must have at most
+ * TOL_MAX_CORNER_ITEMS items; false otherwise).  When it does, a message
+ * goes to MSG and true is returned.
+ */
+bool stability_box_fold(const struct tol_case *c, char *msg, size_t n);
 
 /* Where a swept circuit leaves a vanished stable branch for another. */
 struct stability_jump {

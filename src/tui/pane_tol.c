@@ -12,6 +12,7 @@
 
 #include "core/safety.h"
 #include "session/analysis.h"
+#include "core/stability.h"
 #include "core/tolerance.h"
 #include "tui/app.h"
 #include "tui/panes.h"
@@ -70,6 +71,9 @@ static void pane_tol_open(struct app *a, struct tol_state *t)
 		snprintf(t->msg, sizeof t->msg, "%s", err);
 	else
 		t->have_wc = true;
+	/* Several points somewhere in the box: say so under the table. */
+	if (t->have_wc && stability_box_fold(&t->c, err, sizeof err))
+		snprintf(t->msg, sizeof t->msg, "%s", err);
 }
 
 /* Run the Monte Carlo trials (on the m key). */

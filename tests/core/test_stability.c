@@ -217,6 +217,37 @@ static void test_runaway(void **state)
 	assert_false(stability_runaway(&pb, msg, sizeof msg));
 }
 
+/*
+ * A tolerance box across the tunnel diode's bistable range holds a fold
+ * (one point at 517 mV, three at 470 mV: the sweep above shows the range
+ * 349 mV to 491 mV); a box inside the one-point range does not.
+ */
+static void test_box_fold(void **state)
+{
+	(void)state;
+	struct problem pb;
+	struct solve_result res;
+	solve_case("tunnel", 0.47, 420.0, &pb, &res);
+	struct tol_case c;
+	memset(&c, 0, sizeof c);
+	c.pb = pb;
+	solve_options_init(&c.opts);
+	c.nitems = 1;
+	char err[200], msg[400];
+	assert_int_equal(paramref_find(&pb, "vs", &c.items[0].param, err,
+	                               sizeof err), 0);
+	c.items[0].lo = 0.423;
+	c.items[0].hi = 0.517;
+	assert_true(stability_box_fold(&c, msg, sizeof msg));
+	assert_non_null(strstr(msg, "fold"));
+	c.items[0].lo = 0.62;
+	c.items[0].hi = 0.71;
+	struct source_spec sp;
+	source_spec_thevenin(&sp, 0.665, 420.0);
+	assert_int_equal(source_from_spec(&sp, &c.pb.src, err, sizeof err), 0);
+	assert_false(stability_box_fold(&c, msg, sizeof msg));
+}
+
 /* Ideal sources, undefined slopes and the names. */
 static void test_edges(void **state)
 {
@@ -313,6 +344,7 @@ int main(void)
 		cmocka_unit_test(test_thermistor),
 		cmocka_unit_test(test_edges),
 		cmocka_unit_test(test_runaway),
+		cmocka_unit_test(test_box_fold),
 		cmocka_unit_test(test_sweep_jumps),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
