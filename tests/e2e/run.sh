@@ -63,9 +63,15 @@ start() {
 # Wait until the screen contains TEXT (fixed string): wait_for TEXT [TRIES].
 # The bound is generous because the machine may be shared and loaded.
 wait_for() {
-	local tries=${2:-300} k
+	local tries=${2:-300} k shot
 	for ((k = 0; k < tries; k++)); do
-		screen | grep -qF -- "$1" && return 0
+		shot=$(screen)
+		if grep -qF -- "$1" <<<"$shot"; then
+			# No screen of the suite shows a NaN or an infinity to a person.
+			grep -qiE '(^|[^a-z])-?(nan|inf)([^a-z]|$)' <<<"$shot" &&
+				fail "nan or inf on screen"
+			return 0
+		fi
 		sleep 0.1
 	done
 	fail "did not see '$1'"
