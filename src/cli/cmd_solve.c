@@ -12,6 +12,7 @@
 #include "commands.h"
 #include "csv.h"
 #include "core/diagnose.h"
+#include "core/remedy.h"
 #include "core/models/models.h"
 #include "core/safety.h"
 #include "core/stability.h"
@@ -483,7 +484,7 @@ static void solve_why_not(const struct problem *pb,
                           const struct solve_result *rob, char *buf, size_t n)
 {
 	struct remedy rm;
-	diagnose_remedy(pb, o, &rm);
+	remedy_find(pb, o, &rm);
 	if (res->stop == STEP_CAP) {
 		struct stepper *st = stepper_create();
 		double more = NAN;

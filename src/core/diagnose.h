@@ -67,26 +67,6 @@ double diagnose_projections(const struct problem *pb,
                             enum projection_order order, double v, double i,
                             double i0, double tol);
 
-/* A setting that converges: what to change, and the words for it. */
-struct remedy {
-	enum solve_method method;
-	enum projection_order order;
-	double relaxation;     /* for METHOD_RELAXED: a factor in (0, 2] */
-	char text[160];        /* "switch to voltage-from-device", "use newton" */
-};
-
-/*
- * Find a setting that converges, from O's start, to an operating point
- * that the every-root solve of PB finds: the other projection order,
- * relaxation in either order with the factor that is optimal at that
- * point (kept inside the loader's range (0, 2]), newton, brent.  Each
- * candidate is run, not guessed, with O's tolerance and step limit; the
- * first that converges is written to *R.  Returns 0, or -1 when none does
- * (R's text then names auto, the every-root solve) or no point exists.
- */
-int diagnose_remedy(const struct problem *pb, const struct solve_options *o,
-                    struct remedy *r);
-
 /*
  * A one-line plain-language message for stepper status ST under ORDER
  * (what happened, and the remedy), written to BUF.  Uses the diagnosis at

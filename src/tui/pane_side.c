@@ -12,6 +12,7 @@
 
 #include "core/safety.h"
 #include "core/diagnose.h"
+#include "core/remedy.h"
 #include "core/eseries.h"
 #include "tui/app.h"
 #include "tui/panes.h"
@@ -383,7 +384,7 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 		/* A remedy that was run and converges, not a guess. */
 		struct solve_options po = *stepper_options(a->st);
 		struct remedy rm;
-		diagnose_remedy(&a->pb, &po, &rm);
+		remedy_find(&a->pb, &po, &rm);
 		if (dp == NULL) {
 			memset(&live, 0, sizeof live);
 			dp = &live;

@@ -16,6 +16,7 @@
 #include "core_check.h"
 
 #include "core/diagnose.h"
+#include "core/remedy.h"
 #include "core/models/models.h"
 #include "core/solve.h"
 
@@ -367,7 +368,7 @@ static void test_advice_followed(void **state)
 					break;
 				failed_runs += tries == 0;
 				struct remedy rm;
-				if (diagnose_remedy(&pb, &o, &rm) != 0) {
+				if (remedy_find(&pb, &o, &rm) != 0) {
 					print_message("# %s, r %.4g, %s: no remedy (%s)\n",
 					              mt->name, r, projection_order_name(o.order),
 					              rm.text);
