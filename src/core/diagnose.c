@@ -128,9 +128,8 @@ void diagnose_at(const struct problem *pb, enum projection_order order,
 	bool away = !(fabs(d->gprime) < 1.0);
 	char caution[200];
 	snprintf(caution, sizeof caution,
-	         "r_d < 0 (negative resistance)%s; in a circuit it may be "
-	         "unstable: capacitance or inductance can make it switch or "
-	         "oscillate",
+	         "r_d < 0 (negative resistance)%s; such a point can be unstable "
+	         "in a circuit: see its stability verdict",
 	         away ? ", which this order cannot reach" : "");
 	size_t n = strlen(d->advice);
 	snprintf(d->advice + n, sizeof d->advice - n, "%s%s", n ? "; " : "",

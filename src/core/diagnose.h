@@ -37,7 +37,7 @@ struct diagnosis {
 	double steps_to_tol;   /* predicted full steps to the tolerance */
 	double omega_opt;      /* 1 / (1 - g') */
 	char verdict[128];     /* one line: "spirals in, |g'| = 0.31" */
-	char advice[256];      /* a remedy or "" */
+	char advice[512];      /* a remedy or "" */
 };
 
 /* Name of a shape ("spiral in", "staircase out", ...). */
