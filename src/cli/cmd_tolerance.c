@@ -203,6 +203,11 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 	printf("  %-16s %-13s %-13s %s\n", "", "nominal", "minimum", "maximum");
 	for (int o = 0; o < TOL_NOUT; o++) {
 		enum qty_kind u = tolerance_unit((enum tol_output)o);
+		if (isnan(w->nominal[o])) {
+			printf("  %-16s %s\n", tol_output_name((enum tol_output)o),
+			       CLI_UNDEFINED);
+			continue;
+		}
 		printf("  %-16s %-13s %-13s %s\n", tol_output_name((enum tol_output)o),
 		       cli_fmt(a, sizeof a, w->nominal[o], u, 5),
 		       cli_fmt(b, sizeof b, w->min[o].value, u, 5),
@@ -243,6 +248,11 @@ monte_carlo:
 		enum qty_kind u = tolerance_unit((enum tol_output)o);
 		const struct tol_stats *s = &mc->stats[o];
 		char e1[48], e2[48];
+		if (isnan(s->mean)) {
+			printf("  %-16s %s\n", tol_output_name((enum tol_output)o),
+			       CLI_UNDEFINED);
+			continue;
+		}
 		printf("  %-16s %-12s %-12s %-12s %-12s %s\n",
 		       tol_output_name((enum tol_output)o),
 		       cli_fmt(a, sizeof a, s->mean, u, 5),

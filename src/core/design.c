@@ -258,6 +258,7 @@ int design_apply(const struct problem *pb, enum design_unknown u, double value,
 		out->src.voc = value;
 	}
 	out->src.isc = out->src.r > 0.0 ? out->src.voc / out->src.r : NAN;
+	problem_bind(out);
 	return 0;
 }
 

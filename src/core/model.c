@@ -171,3 +171,12 @@ int device_secondary(const struct device *dev, const struct source *src,
 	}
 	return 0;
 }
+
+/* The power the device dissipates. */
+double device_dissipation(const struct device *dev, const struct source *src,
+                          double v, double i)
+{
+	if (dev->type != NULL && dev->type->power != NULL)
+		return dev->type->power(dev->p, src, v, i);
+	return v * i;
+}

@@ -150,6 +150,25 @@ struct model_type {
 	 * scan and for plots.  NULL for curves with current(V).
 	 */
 	void (*current_range)(const double *p, double *imin, double *imax);
+
+	/*
+	 * Optional: copy into P what the curve takes from the source that
+	 * biases the device, into the slots after the table's parameters
+	 * (P[nparams] on; device_init zeroes them).  A FET's drain loop
+	 * carries the source resistor, so its transfer curve depends on the
+	 * source's r.  problem_bind calls it whenever a problem's source
+	 * changes.  NULL for a curve that is the device's own.
+	 */
+	void (*bind)(double *p, const struct source *src);
+
+	/*
+	 * Optional: the power the device dissipates at the point (V, I) with
+	 * source SRC, when that is not V I: a transistor's V and I are its
+	 * input loop's (VGS and ID, or VB and IB), and its heat is made in
+	 * the output loop (ID VDS; IC VCE + IB VBE).  NULL: V I.
+	 */
+	double (*power)(const double *p, const struct source *src, double v,
+	                double i);
 };
 
 struct curve_data;
@@ -214,5 +233,13 @@ int device_secondary(const struct device *dev, const struct source *src,
 
 /* Device power V*I at (V, I). */
 static inline double device_power(double v, double i) { return v * i; }
+
+/*
+ * The power DEV dissipates at (V, I) with source SRC: the model's own
+ * (model_type.power) or V I.  Ratings, tolerances, cautions and every
+ * printed device power use this.
+ */
+double device_dissipation(const struct device *dev, const struct source *src,
+                          double v, double i);
 
 #endif

@@ -324,8 +324,9 @@ static int paramref_set_part(struct problem *pb, const struct paramref *r,
 	return rc;
 }
 
-/* Set R to X. */
-int paramref_set(struct problem *pb, const struct paramref *r, double x)
+/* Set R to X, without binding the device to the changed source. */
+static int paramref_set_value(struct problem *pb, const struct paramref *r,
+                              double x)
 {
 	struct source *s = &pb->src;
 	if (r->kind == PARAMREF_NETWORK)
@@ -360,6 +361,15 @@ int paramref_set(struct problem *pb, const struct paramref *r, double x)
 		break;
 	}
 	return -1;
+}
+
+/* Set R to X and let the device see the source it now has. */
+int paramref_set(struct problem *pb, const struct paramref *r, double x)
+{
+	if (paramref_set_value(pb, r, x) != 0)
+		return -1;
+	problem_bind(pb);
+	return 0;
 }
 
 /* Every parameter PB can vary. */

@@ -5,6 +5,13 @@
 
 #include <math.h>
 
+/* Bind the device to the source. */
+void problem_bind(struct problem *pb)
+{
+	if (pb->dev.type != NULL && pb->dev.type->bind != NULL)
+		pb->dev.type->bind(pb->dev.p, &pb->src);
+}
+
 /* F(V) (see problem.h). */
 double problem_residual(const struct problem *pb, double v)
 {

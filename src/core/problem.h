@@ -47,6 +47,14 @@ struct problem {
 	double net_value[PROBLEM_NET_MAX_SET];
 };
 
+/*
+ * Let the device take what its curve needs from the source (model.h:
+ * bind; a FET's drain loop carries the source resistance).  Whoever sets
+ * or changes PB's source or device calls this before using the problem:
+ * session_problem, paramref_set and design_apply_request do.
+ */
+void problem_bind(struct problem *pb);
+
 /* F(V) as above; NaN when the device has no current(V). */
 double problem_residual(const struct problem *pb, double v);
 

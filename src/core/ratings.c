@@ -79,11 +79,11 @@ void ratings_check(const struct problem *pb, enum source_form form, double v,
 {
 	const struct source *s = &pb->src;
 	memset(out, 0, sizeof *out);
-	out->p_device = v * i;
+	out->p_device = device_dissipation(&pb->dev, s, v, i);
 	if (form == SOURCE_NORTON) {
 		/* Current source IS with RP across it: RP carries V / RP. */
 		out->p_resistor = isinf(s->r) || s->r == 0.0 ? 0.0 : v * v / s->r;
-		out->p_source = isinf(s->isc) ? out->p_device : s->isc * v;
+		out->p_source = isinf(s->isc) ? v * i : s->isc * v;
 	} else {
 		/* Voltage source VS with RS in series: RS carries I. */
 		out->p_resistor = isinf(s->r) ? 0.0 : i * i * s->r;

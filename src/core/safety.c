@@ -16,8 +16,15 @@ unsigned safety_check(const struct problem *pb, double v, double i)
 		vmax = fmax(vmax, fabs(s->voc));
 	if (vmax > SAFETY_DC_VOLTAGE)
 		f |= SAFETY_HIGH_VOLTAGE;
-	if (fabs(v * i) > SAFETY_HOT_POWER)
+	if (fabs(device_dissipation(&pb->dev, s, v, i)) > SAFETY_HOT_POWER)
 		f |= SAFETY_HOT_DEVICE;
+	/* A transistor's supply and drain or collector voltages count too. */
+	struct model_extra ex;
+	if (device_secondary(&pb->dev, s, v, i, &ex) == 0)
+		for (size_t k = 0; k < ex.n; k++)
+			if (ex.v[k].kind == QTY_VOLTAGE &&
+			    fabs(ex.v[k].value) > SAFETY_DC_VOLTAGE)
+				f |= SAFETY_HIGH_VOLTAGE;
 	if (isfinite(s->r) && s->r > 0.0 && s->r * i * i > SAFETY_HOT_POWER)
 		f |= SAFETY_HOT_RESISTOR;
 	return f;

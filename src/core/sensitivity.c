@@ -102,6 +102,76 @@ static double sens_network_fp(const struct problem *pb,
 	return i * dr - dvoc;
 }
 
+/*
+ * dI/dp at fixed V for a source or network parameter R when the device's
+ * curve takes something from its source (model_type.bind: a FET's drain
+ * loop carries r): the central difference of the bound device current as
+ * R moves the source, or the one-sided three-point rule where p - h is
+ * not a valid value (rs = 0).  0 for a device that takes nothing from its
+ * source; NaN when neither rule fits.
+ */
+static double sens_bound_partial(const struct problem *pb,
+                                 const struct paramref *r, double v)
+{
+	if (pb->dev.type->bind == NULL || r->kind == PARAMREF_DEVICE)
+		return 0.0;
+	double p = paramref_get(pb, r);
+	double h = SENS_REL_STEP * fabs(p);
+	if (h == 0.0)
+		h = SENS_REL_STEP;
+	struct problem a = *pb, b = *pb, c = *pb;
+	if (paramref_set(&a, r, p + h) != 0)
+		return NAN;
+	if (paramref_set(&b, r, p - h) == 0)
+		return (device_current(&a.dev, v) - device_current(&b.dev, v)) /
+		       (2.0 * h);
+	if (paramref_set(&c, r, p + 2.0 * h) != 0)
+		return NAN;
+	return (-3.0 * device_current(&pb->dev, v) +
+	        4.0 * device_current(&a.dev, v) - device_current(&c.dev, v)) /
+	       (2.0 * h);
+}
+
+/* The dissipation of PB with R at P + T, at (V + T DV, I + T DI). */
+static double sens_power_along(const struct problem *pb,
+                               const struct paramref *r, double p, double t,
+                               double v, double i, double dv, double di,
+                               bool *ok)
+{
+	struct problem q = *pb;
+	if (t != 0.0 && paramref_set(&q, r, p + t) != 0) {
+		*ok = false;
+		return NAN;
+	}
+	*ok = true;
+	return device_dissipation(&q.dev, &q.src, v + t * dv, i + t * di);
+}
+
+/*
+ * dP/dp of a device whose dissipation is not V I (model_type.power): the
+ * difference of P along the point's own tangent (p + t, V + t dV/dp,
+ * I + t dI/dp), central, or one-sided where p - h is not a valid value.
+ */
+static double sens_power_partial(const struct problem *pb,
+                                 const struct paramref *r, double v, double i,
+                                 double dv, double di)
+{
+	double p = paramref_get(pb, r);
+	double h = SENS_REL_STEP * fabs(p);
+	if (h == 0.0)
+		h = SENS_REL_STEP;
+	bool ok1, ok2;
+	double a = sens_power_along(pb, r, p, h, v, i, dv, di, &ok1);
+	double b = sens_power_along(pb, r, p, -h, v, i, dv, di, &ok2);
+	if (ok1 && ok2)
+		return (a - b) / (2.0 * h);
+	double f0 = sens_power_along(pb, r, p, 0.0, v, i, dv, di, &ok2);
+	double f2 = sens_power_along(pb, r, p, 2.0 * h, v, i, dv, di, &ok2);
+	if (!ok1 || !ok2)
+		return NAN;
+	return (-3.0 * f0 + 4.0 * a - f2) / (2.0 * h);
+}
+
 /* (P / Y) DY, NaN when Y is 0. */
 static double sens_norm(double p, double y, double dy)
 {
@@ -149,14 +219,23 @@ int sensitivity_at(const struct problem *pb, double v, double i,
 		fp = sens_network_fp(pb, r, i);
 		break;
 	}
+	if (r->kind != PARAMREF_DEVICE) {
+		/* A device bound to its source moves with it: F = V + r I(V; p)
+		 * - voc gains r dI/dp (or dI/dp when F is in amperes). */
+		ip = sens_bound_partial(pb, r, v);
+		fp += amps ? ip : s->r * ip;
+	}
 	if (!isfinite(fv) || fv == 0.0 || !isfinite(fp) || !isfinite(g))
 		return -1;
 	out->dv = -fp / fv;
 	out->di = g * out->dv + ip;
-	out->dp = i * out->dv + v * out->di;
+	double pw = device_dissipation(&pb->dev, &pb->src, v, i);
+	out->dp = pb->dev.type->power != NULL
+	                  ? sens_power_partial(pb, r, v, i, out->dv, out->di)
+	                  : i * out->dv + v * out->di;
 	out->sv = sens_norm(out->value, v, out->dv);
 	out->si = sens_norm(out->value, i, out->di);
-	out->sp = sens_norm(out->value, v * i, out->dp);
+	out->sp = sens_norm(out->value, pw, out->dp);
 	return 0;
 }
 

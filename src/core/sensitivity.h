@@ -16,9 +16,14 @@
  * so that a parameter the model is not smooth in is refused.  For a part
  * of a network source, dF/dp = I dr/dp - dvoc/dp (or -disc/dp for an
  * ideal current source), with the reduced source's dvoc/dp and dr/dp taken
- * by a central difference of the network's reduction.  Then dI/dp =
- * g dV/dp + dI/dp|V, and for the
- * device power P = V I, dP/dp = I dV/dp + V dI/dp.
+ * by a central difference of the network's reduction.  A device whose
+ * curve takes the source's resistance (model_type.bind: a FET's drain
+ * loop) adds r dI/dp|V for a source or part parameter, by a central
+ * difference of the bound curve.  Then dI/dp = g dV/dp + dI/dp|V, and for
+ * the device power P = V I, dP/dp = I dV/dp + V dI/dp; for a device that
+ * dissipates otherwise (model_type.power: a transistor) dP/dp is the
+ * central difference of its power along the point's tangent
+ * (p + t, V + t dV/dp, I + t dI/dp).
  *
  * Normalised sensitivities are (p / y) dy/dp: the per-cent change of y per
  * per-cent change of p.  They are NaN where y is 0, and mean little for a

@@ -20,7 +20,7 @@
 void solve_finish_point(const struct problem *pb, struct op_point *pt)
 {
 	const struct model_type *t = pb->dev.type;
-	pt->power = pt->v * pt->i;
+	pt->power = device_dissipation(&pb->dev, &pb->src, pt->v, pt->i);
 	if (pt->i > 0.0 && t->resistance != NULL) {
 		/* Forward: resistance(I) is well conditioned, and needs no exp. */
 		pt->rd = t->resistance(pb->dev.p, pt->i);

@@ -169,7 +169,7 @@ static void tol_outputs(const struct tol_case *c, const struct problem *q,
 	double r = q->src.r;
 	out[TOL_CURRENT] = i;
 	out[TOL_VOLTAGE] = v;
-	out[TOL_DEVICE_POWER] = v * i;
+	out[TOL_DEVICE_POWER] = device_dissipation(&q->dev, &q->src, v, i);
 	if (isinf(r) || r == 0.0)
 		out[TOL_RESISTOR_POWER] = 0.0;
 	else if (c->form == SOURCE_NORTON)
@@ -389,6 +389,11 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 		return -1;
 	}
 	for (int o = 0; o < TOL_NOUT; o++) {
+		/* An output no corner defines (model.h, power) has no extremes. */
+		if (!isfinite(out->min[o].value) || !isfinite(out->nominal[o])) {
+			out->min[o].value = out->max[o].value = NAN;
+			continue;
+		}
 		tol_refine(c, v_nom, (enum tol_output)o, 1.0, &out->max[o]);
 		tol_refine(c, v_nom, (enum tol_output)o, -1.0, &out->min[o]);
 	}
@@ -486,6 +491,18 @@ static void tol_multiselect(double *a, size_t lo, size_t hi,
 static void tol_summarise(double *a, size_t n, size_t nbins,
                           struct tol_stats *st, struct tol_hist *h)
 {
+	/* An output the device does not define (a FET's drain power on an
+	 * ideal current source: model.h, power) has no statistics. */
+	for (size_t k = 0; k < n; k++)
+		if (!isfinite(a[k])) {
+			memset(h->counts, 0, sizeof h->counts);
+			h->lo = h->hi = NAN;
+			h->nbins = nbins;
+			st->mean = st->sd = st->min = st->max = NAN;
+			for (int p = 0; p < TOL_NPCT; p++)
+				st->pct[p] = NAN;
+			return;
+		}
 	/* Sums of the data shifted by the first value, which keeps the
 	 * rounding of the mean and the variance small (and exact for equal
 	 * values); Chan, Golub & LeVeque, Am. Stat. 37(3), 1983. */

@@ -259,7 +259,8 @@ void verdict_at(const struct problem *pb, enum source_form form, double v,
                 const struct design_request *target, struct verdict *out)
 {
 	verdict_start(out, r);
-	verdict_device(out, v * i, i, r, "");
+	verdict_device(out, device_dissipation(&pb->dev, &pb->src, v, i), i, r,
+	               "");
 	if (pb->net != NULL) {
 		verdict_network(pb, v, i, r, out);
 	} else {

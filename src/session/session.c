@@ -598,5 +598,6 @@ int session_problem(const struct session *s, struct problem *pb, char *err,
 	pb->dev = s->device;
 	pb->net = s->network; /* borrowed: S outlives PB (problem.h) */
 	pb->net_nset = 0;
+	problem_bind(pb);
 	return 0;
 }
