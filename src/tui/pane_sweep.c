@@ -11,6 +11,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "core/stability.h"
 #include "core/sweep.h"
 #include "tui/app.h"
 #include "tui/panes.h"
@@ -27,6 +28,8 @@ struct sweep_state {
 	double x[SWEEP_POINTS], y[SWEEP_POINTS];
 	size_t multi;           /* steps with several operating points */
 	size_t folds;
+	double jump_up, jump_down; /* where the followed stable point jumps
+	                              going up and going down (NaN: none) */
 	char msg[256];
 	struct grid grid;
 	bool valid;             /* the grid shows the sweep */
@@ -79,6 +82,12 @@ static void pane_sweep_refresh(struct app *a, struct sweep_state *v)
 			v->multi++;
 	}
 	v->folds = res.nfolds;
+	/* Where the circuit jumps each way: the ends of the hysteresis. */
+	struct stability_jump j;
+	v->jump_up = stability_jumps(&a->pb, &a->s.reactive, &sp, &res, true,
+	                             &j, 1) > 0 ? j.value : NAN;
+	v->jump_down = stability_jumps(&a->pb, &a->s.reactive, &sp, &res, false,
+	                               &j, 1) > 0 ? j.value : NAN;
 	sweep_result_fini(&res);
 	v->ok = true;
 }
@@ -90,8 +99,18 @@ static void pane_sweep_toggle(struct app *a, struct sweep_state *v)
 	v->valid = false;
 	if (v->open) {
 		pane_sweep_refresh(a, v);
+		char jumps[160] = "";
+		if (isfinite(v->jump_up) && isfinite(v->jump_down)) {
+			char u[48], d[48];
+			qty_format_short(u, sizeof u, v->jump_up, QTY_RESISTANCE, 3,
+			                 app_unicode(a) ? 0 : 1);
+			qty_format_short(d, sizeof d, v->jump_down, QTY_RESISTANCE, 3,
+			                 app_unicode(a) ? 0 : 1);
+			snprintf(jumps, sizeof jumps, "; the circuit jumps at %s going up "
+			         "and at %s going down (hysteresis)", u, d);
+		}
 		app_message(a, false, "sweep of the device current: W or Esc closes; "
-		            "keys still change the session");
+		            "keys still change the session%s", jumps);
 	} else {
 		app_message(a, false, "back to the load line");
 	}
