@@ -1,17 +1,14 @@
 /*
  * plot_line.c - the load-line plot: the frame (the whole load line, a box
- * around the operating point, or fixed ranges) with zoom and pan, the
- * layout, the legend, the two curves, the path and the points.
- *
- * Curves are sampled twice: once per column (I from V) and once per row
- * (V from I, when the curve has an inverse).  Row sampling puts the steep
- * part of an exponential in the right column; the vertical gaps left
- * between two column samples are filled half in each column, so a curve
- * reads as one continuous stroke at any size.
+ * around the operating point, or fixed ranges) with zoom and pan, and its
+ * description (plot.h): the legend, the two curves, the path and the
+ * points with their stability, and the caption; render_plot draws it into
+ * the character grid (raster.c).
  */
 #include <math.h>
 #include <stdio.h>
 
+#include "render/plot.h"
 #include "render/render_int.h"
 
 /* Relative margin added beyond the frame's extreme values. */
@@ -25,6 +22,12 @@
 static const enum cell_role render_legend_order[] = {
 	ROLE_POINT, ROLE_LINE, ROLE_DEVICE, ROLE_START, ROLE_PATH, ROLE_NEWEST,
 };
+
+/* The shape of each role's marker in the vector back end. */
+static enum plot_shape render_legend_shape(enum cell_role role)
+{
+	return role == ROLE_START ? SHAPE_CIRCLE : SHAPE_DOT;
+}
 
 /* Fill V with the defaults. */
 void render_view_init(struct render_view *v)
@@ -267,78 +270,6 @@ enum render_status render_window_compute(const struct render_input *in,
 	return RENDER_OK;
 }
 
-/* One legend entry: a mark and its words. */
-struct render_legend_item {
-	uint32_t mark;
-	const char *name;
-};
-
-/* The off-plot marks, by direction (ASCII, Unicode). */
-static const uint32_t render_off_right[2] = { '>', 0x2192 };  /* → */
-static const uint32_t render_off_left[2] = { '<', 0x2190 };   /* ← */
-static const uint32_t render_off_up[2] = { '^', 0x2191 };     /* ↑ */
-static const uint32_t render_off_down[2] = { 'v', 0x2193 };   /* ↓ */
-
-/* The legend's entries for IN (OFF: the newest step leaves the plot). */
-static size_t render_legend_items(const struct render_input *in, bool off,
-                                  bool unicode, struct render_legend_item *out)
-{
-	size_t n = 0;
-	int u = unicode ? 1 : 0;
-	for (size_t k = 0; k < sizeof render_legend_order / sizeof render_legend_order[0]; k++) {
-		enum cell_role role = render_legend_order[k];
-		bool path = role == ROLE_PATH || role == ROLE_NEWEST;
-		if (path && (in->rows == NULL || in->nrows < 2))
-			continue;
-		if (role == ROLE_START && (in->rows == NULL || in->nrows < 1))
-			continue;
-		out[n].mark = render_mark(role, unicode);
-		out[n].name = render_role_name(role);
-		n++;
-	}
-	if (off) {
-		out[n].mark = render_off_right[u];
-		out[n].name = "off the plot";
-		n++;
-	}
-	return n;
-}
-
-/* Rows the legend's N ITEMS take on COLS cells (words never cut). */
-static int render_legend_rows(const struct render_legend_item *items, size_t n,
-                              int cols)
-{
-	int rows = n > 0 ? 1 : 0, col = 0;
-	for (size_t k = 0; k < n; k++) {
-		int w = 2 + render_text_width(items[k].name);
-		if (col > 0 && col + w > cols) {
-			rows++;
-			col = 0;
-		}
-		col += w + 2;
-	}
-	return rows;
-}
-
-/* The legend: each mark and what it stands for, wrapped onto its rows. */
-static void render_legend(struct grid *g, const struct render_legend_item *items,
-                          size_t n, int max_rows)
-{
-	int row = 0, col = 0;
-	for (size_t k = 0; k < n; k++) {
-		int w = 2 + render_text_width(items[k].name);
-		if (col > 0 && col + w > g->cols) {
-			row++;
-			col = 0;
-		}
-		if (row >= max_rows)
-			break;
-		render_put(g, row, col, items[k].mark, ROLE_LEGEND);
-		render_text(g, row, col + 2, items[k].name, ROLE_LEGEND);
-		col += w + 2;
-	}
-}
-
 /* True when the newest point of IN's path lies outside window W. */
 static bool render_newest_off(const struct render_input *in,
                               const struct render_window *w)
@@ -351,61 +282,24 @@ static bool render_newest_off(const struct render_input *in,
 	return b->v < w->v_lo || b->v > w->v_hi || b->i < w->i_lo || b->i > w->i_hi;
 }
 
-/* Work out the layout and the ticks of both axes. */
-static enum render_status render_layout_ticks(const struct render_input *in,
-                                              const struct render_view *view,
-                                              int rows, int cols,
-                                              struct render_layout *lay,
-                                              struct render_ticks *ty,
-                                              struct render_ticks *tx)
+/* The legend's entries for IN (OFF: the newest step leaves the plot). */
+static void render_line_legend(const struct render_input *in, bool off,
+                               bool unicode, struct plot_desc *d)
 {
-	if (rows < RENDER_MIN_ROWS || cols < RENDER_MIN_COLS)
-		return RENDER_TOO_SMALL;
-	enum render_status st = render_window_compute(in, view, &lay->win);
-	if (st != RENDER_OK)
-		return st;
-	lay->top = 0;
-	if (view->legend) {
-		struct render_legend_item items[16];
-		size_t n = render_legend_items(in, render_newest_off(in, &lay->win),
-		                               view->unicode, items);
-		lay->top = render_legend_rows(items, n, cols);
-		if (lay->top > 3)
-			lay->top = 3;
+	for (size_t k = 0; k < sizeof render_legend_order / sizeof render_legend_order[0]; k++) {
+		enum cell_role role = render_legend_order[k];
+		bool path = role == ROLE_PATH || role == ROLE_NEWEST;
+		if (path && (in->rows == NULL || in->nrows < 2))
+			continue;
+		if (role == ROLE_START && (in->rows == NULL || in->nrows < 1))
+			continue;
+		plot_desc_legend(d, role, 0, render_legend_shape(role),
+		                 render_role_name(role));
 	}
-	lay->axis_row = rows - 2;
-	lay->bottom = rows - 3;
-	int nr = lay->bottom - lay->top + 1;
-	render_ticks_make(ty, lay->win.i_lo, lay->win.i_hi, nr / 3 > 2 ? nr / 3 : 2,
-	                  QTY_CURRENT, view->unicode);
-	int margin = ty->width + 1;
-	if (margin > cols / 3)
-		margin = cols / 3;
-	lay->axis_col = margin;
-	lay->left = margin + 1;
-	lay->right = cols - 1;
-	int nc = lay->right - lay->left + 1;
-	render_ticks_make(tx, lay->win.v_lo, lay->win.v_hi, nc / 12 > 2 ? nc / 12 : 2,
-	                  QTY_VOLTAGE, view->unicode);
-	return RENDER_OK;
+	if (off)
+		plot_desc_legend(d, ROLE_NEWEST, render_arrow(0, unicode), SHAPE_DOT,
+		                 "off the plot");
 }
-
-/* Work out where the data area lies. */
-enum render_status render_layout_compute(const struct render_input *in,
-                                         const struct render_view *view,
-                                         int rows, int cols,
-                                         struct render_layout *lay)
-{
-	struct render_ticks ty, tx;
-	return render_layout_ticks(in, view, rows, cols, lay, &ty, &tx);
-}
-
-/* A curve as two optional functions: I of V, and V of I. */
-struct render_curve {
-	double (*i_of_v)(const void *ctx, double v);
-	double (*v_of_i)(const void *ctx, double i);
-	const void *ctx;
-};
 
 /* Load-line current at V. */
 static double render_line_i(const void *ctx, double v)
@@ -431,118 +325,156 @@ static double render_dev_v(const void *ctx, double i)
 	return render_device_voltage(ctx, i);
 }
 
-/* Fractional row of CV at V, clamped to [-1, NR]; NaN where undefined. */
-static double render_curve_row(const struct render_layout *lay,
-                               const struct render_curve *cv, double v, int nr)
+/* A marker item at (X, Y) with ROLE and SHAPE (nothing when out of memory). */
+static struct plot_item *render_add_marker(struct plot_desc *d,
+                                           enum cell_role role,
+                                           enum plot_shape shape, double x,
+                                           double y)
 {
-	double i = cv->i_of_v(cv->ctx, v);
-	if (isnan(i))
-		return NAN;
-	return fmin(fmax(render_fy(lay, i), -1.0), (double)nr);
+	struct plot_item *it = plot_desc_add(d, PLOT_MARKER, role);
+	if (it != NULL) {
+		it->x0 = x;
+		it->y0 = y;
+		it->shape = shape;
+	}
+	return it;
 }
 
-/*
- * Draw curve CV with mark CH and ROLE.  Per column, every row the curve
- * passes through between the column's two edges is marked (exact for a
- * curve monotone within a column); per row, the cell at the curve's
- * voltage for the row's centre current is marked too, which draws
- * vertical lines and curves known only as V(I).
- */
-static void render_curve_draw(struct grid *g, const struct render_layout *lay,
-                              const struct render_curve *cv, uint32_t ch,
-                              enum cell_role role)
+/* The caption: the file, the source and device, and each point. */
+static void render_line_caption(const struct render_input *in,
+                                const char *name,
+                                const struct stability_result *sr,
+                                struct plot_desc *d)
 {
-	int nr = lay->bottom - lay->top + 1, nc = lay->right - lay->left + 1;
-	const struct render_window *w = &lay->win;
-	double dv = (w->v_hi - w->v_lo) / nc, di = (w->i_hi - w->i_lo) / nr;
-	if (cv->i_of_v != NULL) {
-		double yl = render_curve_row(lay, cv, w->v_lo, nr);
-		for (int c = 0; c < nc; c++) {
-			double yr = render_curve_row(lay, cv, w->v_lo + (c + 1) * dv, nr);
-			double a = yl, b = yr;
-			if (isnan(a))
-				a = b;
-			if (isnan(b))
-				b = a;
-			yl = yr;
-			if (isnan(a))
-				continue;
-			/* Stay off rows the curve only touches at a corner. */
-			double lo = fmin(a, b) + 1e-9, hi = fmax(a, b) - 1e-9;
-			if (hi < lo)
-				hi = lo;
-			for (int r = (int)floor(lo); r <= (int)floor(hi); r++)
-				if (r >= 0 && r < nr)
-					render_put(g, lay->top + r, lay->left + c, ch, role);
-		}
+	const struct source *s = &in->pb->src;
+	char a[48], b[48];
+	if (name != NULL && name[0] != '\0')
+		plot_desc_caption(d, "%s", name);
+	if (source_is_ideal_current(s)) {
+		qty_format_short(a, sizeof a, s->isc, QTY_CURRENT, 5, 0);
+		plot_desc_caption(d, "source: ideal current source %s; device: %s", a,
+		                  in->pb->dev.type->name);
+	} else {
+		qty_format_short(a, sizeof a, s->voc, QTY_VOLTAGE, 5, 0);
+		qty_format_short(b, sizeof b, s->r, QTY_RESISTANCE, 5, 0);
+		plot_desc_caption(d, "source: %s behind %s; device: %s", a, b,
+		                  in->pb->dev.type->name);
 	}
-	if (cv->v_of_i == NULL)
+	if (in->pts == NULL || in->npts == 0) {
+		plot_desc_caption(d, "no operating point");
 		return;
-	for (int r = 0; r < nr; r++) {
-		double v = cv->v_of_i(cv->ctx, w->i_hi - (r + 0.5) * di);
-		if (isnan(v))
-			continue;
-		int c = render_cell_index(render_fx(lay, v), nc);
-		if (c >= 0)
-			render_put(g, lay->top + r, lay->left + c, ch, role);
+	}
+	for (size_t k = 0; k < in->npts; k++) {
+		char v[48], i[48];
+		qty_format(v, sizeof v, in->pts[k].v, QTY_VOLTAGE, 6, 0);
+		qty_format(i, sizeof i, in->pts[k].i, QTY_CURRENT, 6, 0);
+		if (d->ncaption + 1 == PLOT_MAX_CAPTION && k + 1 < in->npts) {
+			plot_desc_caption(d, "and %zu more points", in->npts - k);
+			return;
+		}
+		plot_desc_caption(d, "point %zu: %s, %s, %s", k + 1, v, i,
+		                  stability_name(sr[k].verdict));
 	}
 }
 
-/*
- * Mark where the newest step A-B leaves the plot: an arrow on the edge
- * where the segment (or, when it misses the window, the line from the
- * window's centre towards B) crosses it, pointing the way B lies, and B's
- * value beside it (the coordinates that are off the plot).
- */
-static void render_off_marker(struct grid *g, const struct render_layout *lay,
-                              const struct trace_row *a,
-                              const struct trace_row *b, bool unicode)
+/* The description of the load-line plot. */
+enum render_status render_desc_line(const struct render_input *in,
+                                    const struct render_view *view,
+                                    const struct render_notes *notes,
+                                    struct plot_desc *d)
 {
-	const struct render_window *w = &lay->win;
-	int u = unicode ? 1 : 0;
-	double v0 = a->v, i0 = a->i, v1 = b->v, i1 = b->i;
-	if (!render_clip(w, &v0, &i0, &v1, &i1)) {
-		v0 = 0.5 * (w->v_lo + w->v_hi);
-		i0 = 0.5 * (w->i_lo + w->i_hi);
-		v1 = b->v;
-		i1 = b->i;
-		if (!render_clip(w, &v0, &i0, &v1, &i1))
-			return;
+	plot_desc_init(d);
+	struct render_window win;
+	if (render_window_compute(in, view, &win) != RENDER_OK)
+		return RENDER_BAD_INPUT;
+	bool u = view->unicode;
+	d->x = (struct plot_axis){ win.v_lo, win.v_hi, false, QTY_VOLTAGE,
+	                           "device voltage" };
+	d->y = (struct plot_axis){ win.i_lo, win.i_hi, false, QTY_CURRENT,
+	                           "device current" };
+	d->unicode = u;
+	d->tags = in->labels;
+	d->names = u ? "I\xE2\x86\x91 V\xE2\x86\x92" : "I^ V>";
+	bool off = render_newest_off(in, &win);
+	if (view->legend) {
+		render_line_legend(in, off, u, d);
+		d->legend_rows = 3;
 	}
-	int nr = lay->bottom - lay->top + 1, nc = lay->right - lay->left + 1;
-	int c = render_cell_index(render_fx(lay, v1), nc);
-	int r = render_cell_index(render_fy(lay, i1), nr);
-	if (c < 0)
-		c = render_fx(lay, v1) < 0.0 ? 0 : nc - 1;
-	if (r < 0)
-		r = render_fy(lay, i1) < 0.0 ? 0 : nr - 1;
-	/* The way B lies: the axis it is further out on, in spans. */
-	double ov = b->v < w->v_lo ? (w->v_lo - b->v) / (w->v_hi - w->v_lo)
-	            : b->v > w->v_hi ? (b->v - w->v_hi) / (w->v_hi - w->v_lo) : 0.0;
-	double oi = b->i < w->i_lo ? (w->i_lo - b->i) / (w->i_hi - w->i_lo)
-	            : b->i > w->i_hi ? (b->i - w->i_hi) / (w->i_hi - w->i_lo) : 0.0;
-	uint32_t arrow = ov >= oi ? (b->v < w->v_lo ? render_off_left[u]
-	                                            : render_off_right[u])
-	                          : (b->i > w->i_hi ? render_off_up[u]
-	                                            : render_off_down[u]);
-	render_put(g, lay->top + r, lay->left + c, arrow, ROLE_NEWEST);
-	char val[96], tv[40], ti[40];
-	qty_format_short(tv, sizeof tv, b->v, QTY_VOLTAGE, 4, unicode ? 0 : 1);
-	qty_format_short(ti, sizeof ti, b->i, QTY_CURRENT, 4, unicode ? 0 : 1);
-	if (ov > 0.0 && oi > 0.0)
-		snprintf(val, sizeof val, "%s, %s", tv, ti);
-	else
-		snprintf(val, sizeof val, "%s", ov > 0.0 ? tv : ti);
-	int vw = render_text_width(val);
-	/* Beside the arrow, inside the data area: left of it on the right
-	 * edge, right of it elsewhere; on the row below at the top edge. */
-	int tc = lay->left + c + 2;
-	if (tc + vw - 1 > lay->right)
-		tc = lay->left + c - 1 - vw;
-	if (tc < lay->left)
-		tc = lay->left;
-	int tr = lay->top + r + (r == 0 ? 1 : r == nr - 1 ? -1 : 0);
-	render_text(g, tr, tc, val, ROLE_NEWEST);
+
+	struct plot_item *it = plot_desc_add(d, PLOT_CURVE, ROLE_LINE);
+	if (it != NULL) {
+		it->y_of_x = render_line_i;
+		it->x_of_y = render_line_v;
+		it->ctx = &in->pb->src;
+	}
+	/* The intercepts may sit on a cell corner: mark them too. */
+	const struct source *src = &in->pb->src;
+	if (!source_is_ideal_current(src))
+		render_add_marker(d, ROLE_LINE, SHAPE_TICK, src->voc, 0.0);
+	if (!source_is_ideal_voltage(src))
+		render_add_marker(d, ROLE_LINE, SHAPE_TICK, 0.0, src->isc);
+	it = plot_desc_add(d, PLOT_CURVE, ROLE_DEVICE);
+	if (it != NULL) {
+		it->y_of_x = in->pb->dev.type->current != NULL ? render_dev_i : NULL;
+		it->x_of_y = in->pb->dev.type->voltage != NULL ? render_dev_v : NULL;
+		it->ctx = &in->pb->dev;
+	}
+
+	if (in->rows != NULL && in->nrows > 0) {
+		for (size_t k = 1; k < in->nrows; k++) {
+			it = plot_desc_add(d, PLOT_STEP,
+			                   k + 1 == in->nrows ? ROLE_NEWEST : ROLE_PATH);
+			if (it == NULL)
+				break;
+			it->x0 = in->rows[k - 1].v;
+			it->y0 = in->rows[k - 1].i;
+			it->x1 = in->rows[k].v;
+			it->y1 = in->rows[k].i;
+		}
+		render_add_marker(d, ROLE_START, SHAPE_CIRCLE, in->rows[0].v,
+		                  in->rows[0].i);
+	}
+	if (off && (it = plot_desc_add(d, PLOT_OFF, ROLE_NEWEST)) != NULL) {
+		it->x0 = in->rows[in->nrows - 2].v;
+		it->y0 = in->rows[in->nrows - 2].i;
+		it->x1 = in->rows[in->nrows - 1].v;
+		it->y1 = in->rows[in->nrows - 1].i;
+	}
+	struct stability_result sr[SOLVE_MAX_POINTS];
+	size_t npts = in->pts != NULL ? in->npts : 0;
+	if (npts > SOLVE_MAX_POINTS)
+		npts = SOLVE_MAX_POINTS;
+	for (size_t k = 0; k < npts; k++) {
+		stability_classify(in->pb, in->pts[k].rd,
+		                   notes != NULL ? notes->reactive : NULL, &sr[k]);
+		it = render_add_marker(d, ROLE_POINT, plot_shape_of(sr[k].verdict),
+		                       in->pts[k].v, in->pts[k].i);
+		if (it == NULL)
+			break;
+		snprintf(it->tag, sizeof it->tag, "%zu", k + 1);
+		snprintf(it->words, sizeof it->words, "%s",
+		         stability_name(sr[k].verdict));
+	}
+	struct render_input cin = *in;
+	cin.npts = npts;
+	render_line_caption(&cin, notes != NULL ? notes->name : NULL, sr, d);
+	return d->no_memory ? RENDER_NO_MEMORY : RENDER_OK;
+}
+
+/* Work out where the data area lies. */
+enum render_status render_layout_compute(const struct render_input *in,
+                                         const struct render_view *view,
+                                         int rows, int cols,
+                                         struct render_layout *lay)
+{
+	if (rows < RENDER_MIN_ROWS || cols < RENDER_MIN_COLS)
+		return RENDER_TOO_SMALL;
+	struct plot_desc d;
+	enum render_status st = render_desc_line(in, view, NULL, &d);
+	if (st == RENDER_OK)
+		st = render_desc_layout(&d, rows, cols, lay);
+	plot_desc_fini(&d);
+	return st;
 }
 
 /* Draw the plot of IN with VIEW into G. */
@@ -550,69 +482,21 @@ enum render_status render_plot(const struct render_input *in,
                                const struct render_view *view,
                                struct grid *g, struct render_layout *lay_out)
 {
-	struct render_layout lay;
-	struct render_ticks ty, tx;
-	enum render_status st =
-		render_layout_ticks(in, view, g->rows, g->cols, &lay, &ty, &tx);
-	if (st == RENDER_TOO_SMALL) {
+	if (g->rows < RENDER_MIN_ROWS || g->cols < RENDER_MIN_COLS) {
 		char msg[64];
 		snprintf(msg, sizeof msg, "plot needs %dx%d", RENDER_MIN_COLS,
 		         RENDER_MIN_ROWS);
 		render_message(g, msg);
-		return st;
+		return RENDER_TOO_SMALL;
 	}
-	if (st != RENDER_OK) {
+	struct plot_desc d;
+	enum render_status st = render_desc_line(in, view, NULL, &d);
+	if (st == RENDER_BAD_INPUT)
 		render_message(g, "nothing to plot: the source or device is not valid");
-		return st;
-	}
-	grid_clear(g);
-	bool u = view->unicode;
-	bool off = render_newest_off(in, &lay.win);
-	if (view->legend) {
-		struct render_legend_item items[16];
-		size_t n = render_legend_items(in, off, u, items);
-		render_legend(g, items, n, lay.top);
-	}
-	render_axes(g, &lay, &ty, &tx, u,
-	            u ? "I\xE2\x86\x91 V\xE2\x86\x92" : "I^ V>");
-
-	struct render_curve line = { render_line_i, render_line_v, &in->pb->src };
-	render_curve_draw(g, &lay, &line, render_mark(ROLE_LINE, u), ROLE_LINE);
-	/* The intercepts may sit on a cell corner: mark their cells too. */
-	const struct source *src = &in->pb->src;
-	if (!source_is_ideal_current(src))
-		render_marker(g, &lay, src->voc, 0.0, ROLE_LINE, u);
-	if (!source_is_ideal_voltage(src))
-		render_marker(g, &lay, 0.0, src->isc, ROLE_LINE, u);
-	struct render_curve dev = {
-		in->pb->dev.type->current != NULL ? render_dev_i : NULL,
-		in->pb->dev.type->voltage != NULL ? render_dev_v : NULL,
-		&in->pb->dev,
-	};
-	render_curve_draw(g, &lay, &dev, render_mark(ROLE_DEVICE, u), ROLE_DEVICE);
-
-	if (in->rows != NULL && in->nrows > 0) {
-		for (size_t k = 1; k < in->nrows; k++)
-			render_segment(g, &lay, &in->rows[k - 1], &in->rows[k],
-			               k + 1 == in->nrows ? ROLE_NEWEST : ROLE_PATH, u);
-		render_marker(g, &lay, in->rows[0].v, in->rows[0].i, ROLE_START, u);
-	}
-	if (off)
-		render_off_marker(g, &lay, &in->rows[in->nrows - 2],
-		                  &in->rows[in->nrows - 1], u);
-	for (size_t k = 0; k < in->npts && in->pts != NULL; k++) {
-		render_marker(g, &lay, in->pts[k].v, in->pts[k].i, ROLE_POINT, u);
-		int r, c;
-		if (in->labels && render_cell_of(&lay, in->pts[k].v, in->pts[k].i, &r, &c)) {
-			/* The point's number beside it, inside the data area. */
-			char tag[24];
-			snprintf(tag, sizeof tag, "%zu", k + 1);
-			int w = render_text_width(tag);
-			int tc = c + 1 + w - 1 <= lay.right ? c + 1 : c - w;
-			render_text(g, r, tc, tag, ROLE_POINT);
-		}
-	}
-	if (lay_out != NULL)
-		*lay_out = lay;
-	return RENDER_OK;
+	else if (st == RENDER_NO_MEMORY)
+		render_message(g, "out of memory");
+	else
+		st = render_desc_grid(&d, g, lay_out);
+	plot_desc_fini(&d);
+	return st;
 }

@@ -81,4 +81,13 @@ void render_axes(struct grid *g, const struct render_layout *lay,
                  const struct render_ticks *ty, const struct render_ticks *tx,
                  bool unicode, const char *names);
 
+/* raster.c: the arrow pointing DIR (0 right, 1 left, 2 up, 3 down). */
+uint32_t render_arrow(int dir, bool unicode);
+
+struct plot_desc;
+
+/* raster.c: the layout the description D takes on a ROWS x COLS grid. */
+enum render_status render_desc_layout(const struct plot_desc *d, int rows,
+                                      int cols, struct render_layout *lay);
+
 #endif
