@@ -393,3 +393,54 @@ size_t paramref_all(const struct problem *pb, struct paramref *out,
 		out[n++] = (struct paramref){ PARAMREF_DEVICE, (int)k, "" };
 	return n;
 }
+
+/*
+ * Set every R[k] to X[k]: a network source's parts are all noted first
+ * and the network reduced once (into SCRATCH when given, a copy of PB's
+ * network the caller keeps across calls: then no copy either).
+ */
+int paramref_set_all(struct problem *pb, const struct paramref *r,
+                     const double *x, size_t n, struct network *scratch)
+{
+	bool parts = false;
+	for (size_t k = 0; k < n; k++) {
+		if (r[k].kind != PARAMREF_NETWORK) {
+			if (paramref_set(pb, &r[k], x[k]) != 0)
+				return -1;
+			continue;
+		}
+		if (pb->net == NULL ||
+		    network_part(pb->net, (size_t)r[k].index) == NULL ||
+		    paramref_check(pb, &r[k], x[k], NULL, 0) != 0)
+			return -1;
+		size_t slot = 0;
+		while (slot < pb->net_nset && pb->net_part[slot] != (size_t)r[k].index)
+			slot++;
+		if (slot >= PROBLEM_NET_MAX_SET)
+			return -1;
+		pb->net_part[slot] = (size_t)r[k].index;
+		pb->net_value[slot] = x[k];
+		if (slot == pb->net_nset)
+			pb->net_nset++;
+		parts = true;
+	}
+	if (!parts)
+		return 0;
+	struct network *net = scratch != NULL ? scratch : network_copy(pb->net);
+	if (net == NULL)
+		return -1;
+	for (size_t k = 0; k < pb->net_nset; k++)
+		network_set_value(net, pb->net_part[k], pb->net_value[k]);
+	struct source_spec spec;
+	struct source src;
+	char why[8];
+	int rc = -1;
+	if (network_reduce(net, NULL, &spec, NULL) == NETWORK_OK &&
+	    source_from_spec(&spec, &src, why, sizeof why) == 0) {
+		pb->src = src;
+		rc = 0;
+	}
+	if (net != scratch)
+		network_destroy(net);
+	return rc;
+}

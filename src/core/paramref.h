@@ -90,6 +90,19 @@ bool paramref_in_range(const struct model_param *mp, double x);
 /* Set R to X in PB (after paramref_check); returns 0 or -1. */
 int paramref_set(struct problem *pb, const struct paramref *r, double x);
 
+struct network;
+
+/*
+ * Set every R[k] to X[k] (after paramref_check), K < N: as paramref_set
+ * each, but the parts of a network source are noted together and the
+ * network reduced once for all of them.  SCRATCH, when not NULL, is a
+ * copy of PB's network (network_copy) that the caller keeps for repeated
+ * calls on problems copied from PB: it is overwritten with the values, so
+ * no copy is made per call.  Returns 0, or -1 (PB may then be half set).
+ */
+int paramref_set_all(struct problem *pb, const struct paramref *r,
+                     const double *x, size_t n, struct network *scratch);
+
 /*
  * Every parameter PB can vary: vs and rs (when the resistance is finite),
  * is (when it is infinite), or for a network source its first

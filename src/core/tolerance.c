@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "kernel.h"
+#include "network.h"
 #include "safety.h"
 #include "sensitivity.h"
 #include "solve.h"
@@ -59,14 +60,41 @@ static uint64_t tol_splitmix64(uint64_t *x)
 	return z ^ (z >> 31);
 }
 
+/*
+ * The ziggurat's layers (Marsaglia & Tsang, "The Ziggurat Method for
+ * Generating Random Variables", J. Stat. Softw. 5(8), 2000): 256 strips
+ * of equal area V under exp(-x^2/2), the base one with the tail beyond
+ * R, which makes the top strip close exactly (the paper prints
+ * 3.6541528853610088, and a 40-digit root of "the top strip's area is
+ * V" agrees to 17 digits); V follows from R: r f(r) + the tail's area.
+ */
+#define TOL_ZIG_R 3.6541528853610088
+
+/* Fill R's layer table: zx[0] = V / f(R) (the base strip's width with
+ * its tail), zx[1] = R, zx[i+1] from the equal areas, zx[256] = 0. */
+static void tol_zig_init(struct tol_rng *r)
+{
+	const double rr = TOL_ZIG_R;
+	double fr = exp(-0.5 * rr * rr);
+	double v = rr * fr + sqrt(0.5 * 3.141592653589793) * erfc(rr / sqrt(2.0));
+	r->zx[0] = v / fr;
+	r->zx[1] = rr;
+	for (int i = 1; i < TOL_ZIG_LAYERS - 1; i++) {
+		double xi = r->zx[i];
+		r->zx[i + 1] = sqrt(-2.0 * log(v / xi + exp(-0.5 * xi * xi)));
+	}
+	r->zx[TOL_ZIG_LAYERS] = 0.0;
+	for (int i = 0; i <= TOL_ZIG_LAYERS; i++)
+		r->zf[i] = exp(-0.5 * r->zx[i] * r->zx[i]);
+}
+
 /* Seed R. */
 void tol_rng_seed(struct tol_rng *r, uint64_t seed)
 {
 	uint64_t x = seed;
 	for (int k = 0; k < 4; k++)
 		r->s[k] = tol_splitmix64(&x);
-	r->has_spare = false;
-	r->spare = 0.0;
+	tol_zig_init(r);
 }
 
 /* Rotate left. */
@@ -96,23 +124,42 @@ double tol_rng_uniform(struct tol_rng *r)
 	return (double)(tol_rng_next(r) >> 11) * 0x1.0p-53;
 }
 
-/* Standard normal by the polar method; the second deviate is kept. */
+/* Uniform in (0, 1]: for logarithms. */
+static double tol_rng_uniform_pos(struct tol_rng *r)
+{
+	return (double)((tol_rng_next(r) >> 11) + 1) * 0x1.0p-53;
+}
+
+/*
+ * A standard normal deviate by the ziggurat (Marsaglia & Tsang 2000).
+ * One 64-bit draw gives the layer (bits 0-7), the sign (bit 8) and the
+ * position (bits 11-63), so the three are independent (the correlation
+ * Doornik found when they share bits, "An Improved Ziggurat Method to
+ * Generate Normal Random Samples", 2005, cannot arise).  About 99 % of
+ * draws end in the first test; the wedges need one exponential, the tail
+ * Marsaglia's method (Ann. Math. Statist. 35, 1964).
+ */
 double tol_rng_normal(struct tol_rng *r)
 {
-	if (r->has_spare) {
-		r->has_spare = false;
-		return r->spare;
+	for (;;) {
+		uint64_t bits = tol_rng_next(r);
+		unsigned i = (unsigned)(bits & 0xff);
+		double sign = (bits & 0x100) ? -1.0 : 1.0;
+		double z = (double)(bits >> 11) * 0x1.0p-53 * r->zx[i];
+		if (z < r->zx[i + 1])
+			return sign * z;
+		if (i == 0) {
+			double a, b;
+			do {
+				a = -log(tol_rng_uniform_pos(r)) / TOL_ZIG_R;
+				b = -log(tol_rng_uniform_pos(r));
+			} while (b + b < a * a);
+			return sign * (TOL_ZIG_R + a);
+		}
+		double y = r->zf[i] + tol_rng_uniform(r) * (r->zf[i + 1] - r->zf[i]);
+		if (y < exp(-0.5 * z * z))
+			return sign * z;
 	}
-	double u, v, s;
-	do {
-		u = 2.0 * tol_rng_uniform(r) - 1.0;
-		v = 2.0 * tol_rng_uniform(r) - 1.0;
-		s = u * u + v * v;
-	} while (s >= 1.0 || s == 0.0);
-	double f = sqrt(-2.0 * log(s) / s);
-	r->spare = v * f;
-	r->has_spare = true;
-	return u * f;
 }
 
 /* Set up a case. */
@@ -178,18 +225,54 @@ static void tol_outputs(const struct tol_case *c, const struct problem *q,
 		out[TOL_RESISTOR_POWER] = i * i * r;
 }
 
-/* The operating point of C at X into *Q and *PT; 0 or -1. */
-static int tol_point(const struct tol_case *c, const double *x, double v_near,
-                     struct problem *q, struct op_point *pt)
+/*
+ * A run over one case: the items' references side by side, the working
+ * problem the items are set in (each evaluation sets every item, so it
+ * need not be copied again), and for a network source a copy of its
+ * network that each evaluation writes its part values into and reduces
+ * once (paramref_set_all), not once per part.
+ */
+struct tol_run {
+	const struct tol_case *c;
+	struct paramref refs[TOL_MAX_ITEMS];
+	struct network *scratch;
+	struct problem q;
+};
+
+/* Start R over C; 0, or -1 when out of memory. */
+static int tol_run_init(struct tol_run *r, const struct tol_case *c)
 {
-	*q = c->pb;
+	bool parts = false;
+	r->c = c;
+	r->q = c->pb;
+	r->scratch = NULL;
 	for (size_t k = 0; k < c->nitems; k++) {
-		const struct paramref *r = &c->items[k].param;
-		if (r->kind == PARAMREF_DEVICE)
-			q->dev.p[r->index] = x[k]; /* the common case, inline */
-		else if (paramref_set(q, r, x[k]) != 0)
+		r->refs[k] = c->items[k].param;
+		parts |= r->refs[k].kind == PARAMREF_NETWORK;
+	}
+	if (parts && c->pb.net != NULL) {
+		r->scratch = network_copy(c->pb.net);
+		if (r->scratch == NULL)
 			return -1;
 	}
+	return 0;
+}
+
+/* Free what R holds. */
+static void tol_run_fini(struct tol_run *r)
+{
+	network_destroy(r->scratch);
+	r->scratch = NULL;
+}
+
+/* The operating point with the items at X into R->q and *PT; 0 or -1. */
+static int tol_run_point(struct tol_run *r, const double *x, double v_near,
+                         struct op_point *pt)
+{
+	const struct tol_case *c = r->c;
+	struct problem *q = &r->q;
+	if (paramref_set_all(q, r->refs, x, c->nitems, r->scratch) != 0)
+		return -1;
 	const struct model_type *t = q->dev.type;
 	if (t->validate != NULL) {
 		char err[8];
@@ -211,30 +294,42 @@ static int tol_point(const struct tol_case *c, const double *x, double v_near,
 	return 0;
 }
 
+/* Outputs at X within run R. */
+static int tol_run_eval(struct tol_run *r, const double *x, double v_near,
+                        double *out)
+{
+	struct op_point pt;
+	if (tol_run_point(r, x, v_near, &pt) != 0)
+		return -1;
+	tol_outputs(r->c, &r->q, pt.v, pt.i, out);
+	return 0;
+}
+
 /* Outputs at X. */
 int tol_eval(const struct tol_case *c, const double *x, double v_near,
              double *out)
 {
-	struct problem q;
-	struct op_point pt;
-	if (tol_point(c, x, v_near, &q, &pt) != 0)
+	struct tol_run r;
+	if (tol_run_init(&r, c) != 0)
 		return -1;
-	tol_outputs(c, &q, pt.v, pt.i, out);
-	return 0;
+	int rc = tol_run_eval(&r, x, v_near, out);
+	tol_run_fini(&r);
+	return rc;
 }
 
 /* d(output O)/dx_k at X for each item into G; returns 0 or -1. */
-static int tol_gradient(const struct tol_case *c, const double *x,
-                        double v_near, enum tol_output o, double *g)
+static int tol_gradient(struct tol_run *run, const double *x, double v_near,
+                        enum tol_output o, double *g)
 {
-	struct problem q;
+	const struct tol_case *c = run->c;
 	struct op_point pt;
-	if (tol_point(c, x, v_near, &q, &pt) != 0)
+	if (tol_run_point(run, x, v_near, &pt) != 0)
 		return -1;
-	double v = pt.v, i = pt.i, r = q.src.r;
+	const struct problem *q = &run->q;
+	double v = pt.v, i = pt.i, r = q->src.r;
 	for (size_t k = 0; k < c->nitems; k++) {
 		struct sensitivity s;
-		if (sensitivity_at(&q, v, i, &c->items[k].param, &s) != 0)
+		if (sensitivity_at(q, v, i, &c->items[k].param, &s) != 0)
 			return -1;
 		enum paramref_kind kind = c->items[k].param.kind;
 		double dr = kind == PARAMREF_RS || kind == PARAMREF_RP ? 1.0 : 0.0;
@@ -262,18 +357,18 @@ static int tol_gradient(const struct tol_case *c, const double *x,
 }
 
 /* Output O at X, signed so that larger is better (SIGN = +1 max, -1 min). */
-static double tol_objective(const struct tol_case *c, const double *x,
-                            double v_near, enum tol_output o, double sign)
+static double tol_objective(struct tol_run *r, const double *x, double v_near,
+                            enum tol_output o, double sign)
 {
 	double y[TOL_NOUT];
-	if (tol_eval(c, x, v_near, y) != 0)
+	if (tol_run_eval(r, x, v_near, y) != 0)
 		return -INFINITY;
 	return sign * y[o];
 }
 
 /* The objective along parameter K from the point X, for golden section. */
 struct tol_line_ctx {
-	const struct tol_case *c;
+	struct tol_run *run;
 	const double *x;
 	size_t n, k;
 	double v_near;
@@ -290,22 +385,23 @@ static double tol_line_eval(void *ctx, double t, double *step)
 		*step = NAN;
 	memcpy(xs, lc->x, lc->n * sizeof xs[0]);
 	xs[lc->k] = t;
-	return -tol_objective(lc->c, xs, lc->v_near, lc->o, lc->sign);
+	return -tol_objective(lc->run, xs, lc->v_near, lc->o, lc->sign);
 }
 
 /*
  * From the extremum E (SIGN +1: a maximum), search inside the box along
  * every parameter whose derivative points into it, until none does.
  */
-static void tol_refine(const struct tol_case *c, double v_near,
-                       enum tol_output o, double sign, struct tol_extreme *e)
+static void tol_refine(struct tol_run *run, double v_near, enum tol_output o,
+                       double sign, struct tol_extreme *e)
 {
+	const struct tol_case *c = run->c;
 	size_t n = c->nitems;
 	double x[TOL_MAX_ITEMS], g[TOL_MAX_ITEMS];
 	memcpy(x, e->params, n * sizeof x[0]);
 	double best = sign * e->value;
 	for (size_t pass = 0; pass < 2 * n + 2; pass++) {
-		if (tol_gradient(c, x, v_near, o, g) != 0)
+		if (tol_gradient(run, x, v_near, o, g) != 0)
 			return;
 		bool moved = false;
 		for (size_t k = 0; k < n; k++) {
@@ -319,7 +415,7 @@ static void tol_refine(const struct tol_case *c, double v_near,
 			if (!inward || fabs(gk) * (hi - lo) <= 1e-12 * fabs(best))
 				continue;
 			/* Golden-section search for the best point along k. */
-			struct tol_line_ctx lc = { c, x, n, k, v_near, o, sign };
+			struct tol_line_ctx lc = { run, x, n, k, v_near, o, sign };
 			struct kernel_fn fn = { tol_line_eval, &lc };
 			struct kernel_result kr =
 				kernel_golden_solve(&fn, lo, hi, TOL_GOLDEN_REL, 0.0);
@@ -350,10 +446,16 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 		         TOL_MAX_CORNER_ITEMS, n);
 		return -1;
 	}
-	double x0[TOL_MAX_ITEMS];
+	struct tol_run run;
+	if (tol_run_init(&run, c) != 0) {
+		snprintf(err, errlen, "out of memory");
+		return -1;
+	}
+	double x0[TOL_MAX_ITEMS] = { 0 };
 	for (size_t k = 0; k < n; k++)
 		x0[k] = paramref_get(&c->pb, &c->items[k].param);
-	if (tol_eval(c, x0, NAN, out->nominal) != 0) {
+	if (tol_run_eval(&run, x0, NAN, out->nominal) != 0) {
+		tol_run_fini(&run);
 		snprintf(err, errlen, "no operating point at the nominal values");
 		return -1;
 	}
@@ -368,7 +470,7 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 		for (size_t k = 0; k < n; k++)
 			x[k] = (m >> k) & 1 ? c->items[k].hi : c->items[k].lo;
 		out->corners++;
-		if (tol_eval(c, x, v_nom, y) != 0) {
+		if (tol_run_eval(&run, x, v_nom, y) != 0) {
 			out->failed++;
 			continue;
 		}
@@ -384,6 +486,7 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 		}
 	}
 	if (out->failed == out->corners) {
+		tol_run_fini(&run);
 		snprintf(err, errlen, "no corner of the tolerance box has an "
 		         "operating point");
 		return -1;
@@ -394,9 +497,10 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 			out->min[o].value = out->max[o].value = NAN;
 			continue;
 		}
-		tol_refine(c, v_nom, (enum tol_output)o, 1.0, &out->max[o]);
-		tol_refine(c, v_nom, (enum tol_output)o, -1.0, &out->min[o]);
+		tol_refine(&run, v_nom, (enum tol_output)o, 1.0, &out->max[o]);
+		tol_refine(&run, v_nom, (enum tol_output)o, -1.0, &out->min[o]);
 	}
+	tol_run_fini(&run);
 	return 0;
 }
 
@@ -487,82 +591,226 @@ static void tol_multiselect(double *a, size_t lo, size_t hi,
 	tol_multiselect(a, k + 1, hi, ranks + right, nr - right);
 }
 
-/* Statistics and histogram of the N values in A (reordered). */
-static void tol_summarise(double *a, size_t n, size_t nbins,
-                          struct tol_stats *st, struct tol_hist *h)
+/* A mean, deviation and range kept as values arrive (tol_acc_add). */
+struct tol_acc {
+	size_t n;
+	double shift, s1, s2, mn, mx;
+};
+
+/*
+ * Take X: sums of the data shifted by the first value, which keeps the
+ * rounding of the mean and the variance small (and exact for equal
+ * values); Chan, Golub & LeVeque, Am. Stat. 37(3), 1983.
+ */
+static void tol_acc_add(struct tol_acc *a, double x)
 {
-	/* An output the device does not define (a FET's drain power on an
-	 * ideal current source: model.h, power) has no statistics. */
-	for (size_t k = 0; k < n; k++)
-		if (!isfinite(a[k])) {
-			memset(h->counts, 0, sizeof h->counts);
-			h->lo = h->hi = NAN;
-			h->nbins = nbins;
-			st->mean = st->sd = st->min = st->max = NAN;
-			for (int p = 0; p < TOL_NPCT; p++)
-				st->pct[p] = NAN;
-			return;
+	if (a->n++ == 0) {
+		a->shift = a->mn = a->mx = x;
+		a->s1 = a->s2 = 0.0;
+		return;
+	}
+	double d = x - a->shift;
+	a->s1 += d;
+	a->s2 += d * d;
+	if (x < a->mn)
+		a->mn = x;
+	if (x > a->mx)
+		a->mx = x;
+}
+
+/*
+ * The stored trials of a run: V and I of each, R of each or R0 for all,
+ * and the device power of each when the model has its own (model.h,
+ * power; else it is V I).
+ */
+struct tol_cols {
+	const double *v, *i, *r, *p;
+	double r0;
+	enum source_form form;
+	size_t n;
+};
+
+/* Output O of stored trial K, with tol_outputs' arithmetic. */
+static double tol_col(const struct tol_cols *c, enum tol_output o, size_t k)
+{
+	double v = c->v[k], i = c->i[k], r;
+	switch (o) {
+	case TOL_CURRENT:
+		return i;
+	case TOL_VOLTAGE:
+		return v;
+	case TOL_DEVICE_POWER:
+		return c->p != NULL ? c->p[k] : v * i;
+	default:
+		r = c->r != NULL ? c->r[k] : c->r0;
+		if (isinf(r) || r == 0.0)
+			return 0.0;
+		return c->form == SOURCE_NORTON ? v * v / r : i * i * r;
+	}
+}
+
+/* Bins of the histogram that locates the percentiles' order statistics. */
+#define TOL_LOCATOR_BINS 4096
+
+/*
+ * The order statistics RANK[0..NR) (increasing) of output O of C into
+ * VAL, exactly, given CNT: a fine histogram of the values over [MN, MX]
+ * (TOL_LOCATOR_BINS bins; the bin of a value is a monotone function of
+ * it, so every value of a lower bin is no larger).  One pass gathers the
+ * values of the bins that hold the wanted ranks, and selection within
+ * those few finds them.  Where the wanted bins hold most of the data (a
+ * few values repeated) the whole column is selected in place instead.
+ * Returns 0, or -1 when out of memory.
+ */
+static int tol_order_stats(const struct tol_cols *c, enum tol_output o,
+                           double mn, double mx, const size_t *cnt,
+                           const size_t *rank, size_t nr, double *val)
+{
+	size_t n = c->n;
+	if (!(mx > mn)) {
+		for (size_t j = 0; j < nr; j++)
+			val[j] = mn; /* every value is the same */
+		return 0;
+	}
+	double scale = TOL_LOCATOR_BINS / (mx - mn);
+	/* Where each wanted rank sits: its bin and the first rank of it. */
+	size_t bin[2 * TOL_NPCT], first[2 * TOL_NPCT];
+	size_t below = 0, b = 0, total = 0;
+	for (size_t j = 0; j < nr; j++) {
+		while (below + cnt[b] <= rank[j]) {
+			below += cnt[b];
+			b++;
 		}
-	/* Sums of the data shifted by the first value, which keeps the
-	 * rounding of the mean and the variance small (and exact for equal
-	 * values); Chan, Golub & LeVeque, Am. Stat. 37(3), 1983. */
-	double shift = a[0], sum = 0.0, mn = a[0], mx = a[0];
-	for (size_t k = 0; k < n; k++) {
-		double x = a[k];
-		sum += x - shift;
-		if (x < mn)
-			mn = x;
-		if (x > mx)
-			mx = x;
+		bin[j] = b;
+		first[j] = below;
+		if (j == 0 || bin[j] != bin[j - 1])
+			total += cnt[b];
 	}
-	double dmean = sum / (double)n, mean = shift + dmean, ss = 0.0;
+	double *buf = total <= n / 2 ? malloc((total + 1) * sizeof *buf) : NULL;
+	short *slot_of = buf != NULL ? malloc(TOL_LOCATOR_BINS * sizeof *slot_of)
+	                             : NULL;
+	if (slot_of == NULL) {
+		/* Few bins hold most values: select in a copy of the column. */
+		free(buf);
+		double *col = malloc(n * sizeof *col);
+		if (col == NULL)
+			return -1;
+		for (size_t k = 0; k < n; k++)
+			col[k] = tol_col(c, o, k);
+		tol_multiselect(col, 0, n, rank, nr);
+		for (size_t j = 0; j < nr; j++)
+			val[j] = col[rank[j]];
+		free(col);
+		return 0;
+	}
+	/* Gather each wanted bin's values, bin after bin, into BUF. */
+	size_t off[2 * TOL_NPCT], fill[2 * TOL_NPCT], slot[2 * TOL_NPCT];
+	size_t nb = 0, at = 0;
+	for (size_t k = 0; k < TOL_LOCATOR_BINS; k++)
+		slot_of[k] = -1;
+	for (size_t j = 0; j < nr; j++) {
+		if (j == 0 || bin[j] != bin[j - 1]) {
+			off[nb] = at;
+			fill[nb] = 0;
+			at += cnt[bin[j]];
+			slot_of[bin[j]] = (short)nb;
+			nb++;
+		}
+		slot[j] = nb - 1;
+	}
+	for (size_t k = 0; k < n; k++) {
+		double x = tol_col(c, o, k);
+		size_t bk = (size_t)((x - mn) * scale);
+		int sl = slot_of[bk < TOL_LOCATOR_BINS ? bk : TOL_LOCATOR_BINS - 1];
+		if (sl >= 0)
+			buf[off[sl] + fill[sl]++] = x;
+	}
+	for (size_t j = 0; j < nr; j++) {
+		size_t s = slot[j], len = cnt[bin[j]];
+		tol_select(buf + off[s], len, rank[j] - first[j]);
+		val[j] = buf[off[s] + rank[j] - first[j]];
+	}
+	free(slot_of);
+	free(buf);
+	return 0;
+}
+
+/*
+ * Statistics and histogram of output O of the stored trials C, whose
+ * mean and range A kept (A->n < C->n: a trial had no value for it, as a
+ * FET's drain power on an ideal current source, model.h power: then it
+ * has no statistics); 0, or -1 when out of memory.
+ */
+static int tol_summarise(const struct tol_cols *c, enum tol_output o,
+                         const struct tol_acc *a, size_t nbins,
+                         struct tol_stats *st, struct tol_hist *h)
+{
+	size_t n = c->n;
+	if (a->n < n) {
+		memset(h->counts, 0, sizeof h->counts);
+		h->lo = h->hi = NAN;
+		h->nbins = nbins;
+		st->mean = st->sd = st->min = st->max = NAN;
+		for (int p = 0; p < TOL_NPCT; p++)
+			st->pct[p] = NAN;
+		return 0;
+	}
+	double dmean = a->s1 / (double)n;
+	double ss = a->s2 - a->s1 * dmean;
+	st->mean = a->shift + dmean;
+	st->sd = n > 1 && ss > 0.0 ? sqrt(ss / (double)(n - 1)) : 0.0;
+	st->min = a->mn;
+	st->max = a->mx;
+	/* One pass: the histogram asked for, and the fine one that locates
+	 * the percentiles. */
+	size_t *cnt = calloc(TOL_LOCATOR_BINS, sizeof *cnt);
+	if (cnt == NULL)
+		return -1;
 	memset(h->counts, 0, sizeof h->counts);
-	double w = mx - mn, scale = w > 0.0 ? (double)nbins / w : 0.0;
+	double w = a->mx - a->mn, scale = w > 0.0 ? (double)nbins / w : 0.0;
+	double lscale = w > 0.0 ? TOL_LOCATOR_BINS / w : 0.0;
 	for (size_t k = 0; k < n; k++) {
-		double d = (a[k] - shift) - dmean;
-		ss += d * d;
-		size_t b = (size_t)((a[k] - mn) * scale);
+		double d = tol_col(c, o, k) - a->mn;
+		size_t b = (size_t)(d * scale), lb = (size_t)(d * lscale);
 		h->counts[b < nbins ? b : nbins - 1]++;
+		cnt[lb < TOL_LOCATOR_BINS ? lb : TOL_LOCATOR_BINS - 1]++;
 	}
-	st->mean = mean;
-	st->sd = n > 1 ? sqrt(ss / (double)(n - 1)) : 0.0;
-	st->min = mn;
-	st->max = mx;
-	h->lo = mn;
-	h->hi = mx;
+	h->lo = a->mn;
+	h->hi = a->mx;
 	h->nbins = nbins;
 	/*
-	 * Percentiles: select the order statistic below each (the ranks in
-	 * increasing order, together); the one just above it is then the
-	 * smallest value between it and the next selected rank, which
-	 * selection has already placed between the two.
+	 * Percentiles: the order statistic at or below each position h and
+	 * the one above it, x[floor h] + (h - floor h) (x[floor h + 1] -
+	 * x[floor h]) (Hyndman & Fan 1996, definition 7).
 	 */
-	size_t ranks[TOL_NPCT];
+	size_t rank[2 * TOL_NPCT], nr = 0;
 	double pos[TOL_NPCT];
+	size_t lo[TOL_NPCT];
 	for (int p = 0; p < TOL_NPCT; p++) {
 		pos[p] = (double)(n - 1) * tol_percentiles[p] / 100.0;
-		size_t lo = (size_t)floor(pos[p]);
-		ranks[p] = lo < n ? lo : n - 1;
+		lo[p] = (size_t)floor(pos[p]);
+		if (lo[p] > n - 1)
+			lo[p] = n - 1;
+		size_t want[2] = { lo[p], lo[p] + 1 < n ? lo[p] + 1 : lo[p] };
+		for (int e = 0; e < 2; e++)
+			if (nr == 0 || rank[nr - 1] < want[e])
+				rank[nr++] = want[e];
 	}
-	tol_multiselect(a, 0, n, ranks, TOL_NPCT);
+	double val[2 * TOL_NPCT];
+	int rc = tol_order_stats(c, o, a->mn, a->mx, cnt, rank, nr, val);
+	free(cnt);
+	if (rc != 0)
+		return -1;
 	for (int p = 0; p < TOL_NPCT; p++) {
-		size_t lo = ranks[p];
-		double x = a[lo];
-		if (pos[p] > (double)lo && lo + 1 < n) {
-			size_t end = n;
-			for (int q = p + 1; q < TOL_NPCT; q++)
-				if (ranks[q] > lo) {
-					end = ranks[q] + 1;
-					break;
-				}
-			double next = a[lo + 1];
-			for (size_t k = lo + 2; k < end; k++)
-				if (a[k] < next)
-					next = a[k];
-			x += (pos[p] - (double)lo) * (next - x);
-		}
+		size_t j = 0;
+		while (rank[j] != lo[p])
+			j++;
+		double x = val[j];
+		if (pos[p] > (double)lo[p] && lo[p] + 1 < n)
+			x += (pos[p] - (double)lo[p]) * (val[j + 1] - x);
 		st->pct[p] = x;
 	}
+	return 0;
 }
 
 /* One draw of item IT. */
@@ -598,21 +846,40 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 		return -1;
 	}
 	size_t n = c->nitems;
-	double x0[TOL_MAX_ITEMS], y0[TOL_NOUT];
+	struct tol_run run;
+	if (tol_run_init(&run, c) != 0) {
+		snprintf(err, errlen, "out of memory");
+		return -1;
+	}
+	double x0[TOL_MAX_ITEMS] = { 0 }, y0[TOL_NOUT];
 	for (size_t k = 0; k < n; k++)
 		x0[k] = paramref_get(&c->pb, &c->items[k].param);
-	if (tol_eval(c, x0, NAN, y0) != 0) {
+	if (tol_run_eval(&run, x0, NAN, y0) != 0) {
+		tol_run_fini(&run);
 		snprintf(err, errlen, "no operating point at the nominal values");
 		return -1;
 	}
-	double *buf = malloc(sizeof(double) * TOL_NOUT * trials);
+	/* The source resistance is kept per trial only when an item moves it. */
+	bool keep_r = false;
+	for (size_t k = 0; k < n; k++) {
+		enum paramref_kind kind = c->items[k].param.kind;
+		keep_r |= kind == PARAMREF_RS || kind == PARAMREF_RP ||
+		          kind == PARAMREF_NETWORK;
+	}
+	/* The device power too when the model has its own. */
+	bool keep_p = c->pb.dev.type->power != NULL;
+	size_t ncols = 2 + keep_r + keep_p;
+	double *buf = malloc(sizeof(double) * ncols * trials);
 	if (buf == NULL) {
+		tol_run_fini(&run);
 		snprintf(err, errlen, "out of memory for %zu trials", trials);
 		return -1;
 	}
-	double *col[TOL_NOUT];
-	for (int o = 0; o < TOL_NOUT; o++)
-		col[o] = buf + (size_t)o * trials;
+	double *cv = buf, *ci = buf + trials, *next = buf + 2 * trials;
+	double *cr = keep_r ? next : NULL;
+	double *cp = keep_p ? (keep_r ? next + trials : next) : NULL;
+	struct tol_acc acc[TOL_NOUT];
+	memset(acc, 0, sizeof acc);
 	struct tol_rng rng;
 	tol_rng_seed(&rng, seed);
 	size_t m = 0;
@@ -622,13 +889,20 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 		double x[TOL_MAX_ITEMS], y[TOL_NOUT];
 		for (size_t k = 0; k < n; k++)
 			x[k] = tol_draw(c, &c->items[k], &rng);
-		if (tol_eval(c, x, y0[TOL_VOLTAGE], y) != 0) {
+		if (tol_run_eval(&run, x, y0[TOL_VOLTAGE], y) != 0) {
 			out->failed++;
 			continue;
 		}
-		for (int o = 0; o < TOL_NOUT; o++)
-			col[o][m] = y[o];
+		cv[m] = y[TOL_VOLTAGE];
+		ci[m] = y[TOL_CURRENT];
+		if (cr != NULL)
+			cr[m] = run.q.src.r;
+		if (cp != NULL)
+			cp[m] = y[TOL_DEVICE_POWER];
 		m++;
+		for (int o = 0; o < TOL_NOUT; o++)
+			if (isfinite(y[o])) /* else the output has no statistics */
+				tol_acc_add(&acc[o], y[o]);
 		if (nw > 0) {
 			bool in = true;
 			for (size_t j = 0; j < nw && in; j++) {
@@ -638,13 +912,20 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 			out->inside += in;
 		}
 	}
+	tol_run_fini(&run);
 	if (m == 0) {
 		free(buf);
 		snprintf(err, errlen, "no trial had an operating point");
 		return -1;
 	}
+	struct tol_cols cols = { cv, ci, cr, cp, c->pb.src.r, c->form, m };
 	for (int o = 0; o < TOL_NOUT; o++)
-		tol_summarise(col[o], m, nbins, &out->stats[o], &out->hist[o]);
+		if (tol_summarise(&cols, (enum tol_output)o, &acc[o], nbins,
+		                  &out->stats[o], &out->hist[o]) != 0) {
+			free(buf);
+			snprintf(err, errlen, "out of memory for %zu trials", trials);
+			return -1;
+		}
 	out->yield = nw > 0 ? (double)out->inside / (double)trials : NAN;
 	free(buf);
 	return 0;

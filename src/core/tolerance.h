@@ -22,11 +22,14 @@
  * Monte Carlo: N trials from a seeded xoshiro256** generator (Blackman &
  * Vigna, "Scrambled linear pseudorandom number generators", ACM TOMS 47,
  * 2021) seeded by splitmix64 (Steele, Lea & Flood, OOPSLA 2014), so a seed
- * gives the same numbers on every platform; normal deviates by Marsaglia's
- * polar method (Marsaglia & Bray, SIAM Review 6, 1964).  Reported: mean,
- * standard deviation, percentiles (linear interpolation between order
- * statistics, Hyndman & Fan 1996 definition 7), a histogram as data and,
- * with a spec window, the yield.
+ * gives the same numbers on every platform; normal deviates by the
+ * ziggurat (Marsaglia & Tsang, J. Stat. Softw. 5(8), 2000).  Reported:
+ * mean, standard deviation, percentiles (linear interpolation between
+ * order statistics, Hyndman & Fan 1996 definition 7), a histogram as data
+ * and, with a spec window, the yield.  Mean, deviation and extremes are
+ * kept as the trials run; only the voltage and current of each trial are
+ * stored (and the source resistance when a tolerance moves it), and the
+ * percentiles are found from a fine histogram of those.
  */
 #ifndef BIASLINE_TOLERANCE_H
 #define BIASLINE_TOLERANCE_H
@@ -127,11 +130,14 @@ struct tol_mc {
 	double yield;           /* inside / trials (NaN without a window) */
 };
 
-/* The generator state. */
+/* Layers of the ziggurat the normal deviates come from. */
+#define TOL_ZIG_LAYERS 256
+
+/* The generator state, and the ziggurat's layer table (tol_rng_seed). */
 struct tol_rng {
 	uint64_t s[4];
-	bool has_spare;
-	double spare;
+	double zx[TOL_ZIG_LAYERS + 1];   /* layer edges, zx[0] > zx[1] = r */
+	double zf[TOL_ZIG_LAYERS + 1];   /* exp(-zx^2 / 2) */
 };
 
 /* Output name: "current", "voltage", "device_power", "resistor_power". */
@@ -150,7 +156,7 @@ uint64_t tol_rng_next(struct tol_rng *r);
 /* A uniform deviate in [0, 1) with 53 random bits. */
 double tol_rng_uniform(struct tol_rng *r);
 
-/* A standard normal deviate (polar method). */
+/* A standard normal deviate (ziggurat). */
 double tol_rng_normal(struct tol_rng *r);
 
 /*

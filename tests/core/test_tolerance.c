@@ -313,6 +313,123 @@ static void test_rng_distributions(void **state)
 	free(x);
 }
 
+/*
+ * The ziggurat's normal deviates over every branch: 2e5 of them against
+ * the normal distribution (Kolmogorov-Smirnov at the 1 % level, Massey
+ * 1951), and 4e6 for the tail beyond the base layer's edge r = 3.6541529
+ * (Marsaglia & Tsang 2000), whose share is erfc(r / sqrt 2) = 2.58e-4,
+ * and for the moments (mean 0, variance 1, fourth moment 3), each within
+ * five standard errors; both signs equally often.
+ */
+static void test_ziggurat(void **state)
+{
+	(void)state;
+	const size_t n = 200000;
+	double *x = malloc(n * sizeof *x);
+	assert_non_null(x);
+	struct tol_rng r;
+	tol_rng_seed(&r, 0x5eed2385u);
+	for (size_t k = 0; k < n; k++)
+		x[k] = tol_rng_normal(&r);
+	qsort(x, n, sizeof *x, cmp_double);
+	double d = ks_stat(x, n, gsl_cdf_ugaussian_P);
+	print_message("# ziggurat: KS %.3g (1 %% level %.3g)\n", d,
+	              1.63 / sqrt((double)n));
+	assert_true(d < 1.63 / sqrt((double)n));
+	free(x);
+	const double edge = 3.6541528853610088;
+	const size_t big = 4000000;
+	size_t tail = 0, neg = 0;
+	double s1 = 0.0, s2 = 0.0, s4 = 0.0;
+	for (size_t k = 0; k < big; k++) {
+		double z = tol_rng_normal(&r);
+		tail += fabs(z) > edge;
+		neg += z < 0.0;
+		s1 += z;
+		s2 += z * z;
+		s4 += z * z * z * z;
+	}
+	double p = erfc(edge / sqrt(2.0)), nb = (double)big;
+	double want = p * nb, se = sqrt(nb * p * (1.0 - p));
+	print_message("# ziggurat: %zu beyond r, expected %.1f +- %.1f\n", tail,
+	              want, se);
+	assert_true(fabs((double)tail - want) < 5.0 * se);
+	assert_true(fabs((double)neg - 0.5 * nb) < 5.0 * sqrt(0.25 * nb));
+	assert_true(fabs(s1 / nb) < 5.0 / sqrt(nb));
+	assert_true(fabs(s2 / nb - 1.0) < 5.0 * sqrt(2.0 / nb));
+	assert_true(fabs(s4 / nb - 3.0) < 5.0 * sqrt(96.0 / nb));
+}
+
+/*
+ * Every output's percentiles, extremes and mean against the trials done
+ * one by one: two uniform tolerances (VS and RS of a power-law load), so
+ * the generator's stream gives each trial's parameters, and each trial
+ * solved on its own; the percentiles of the sorted outputs by Hyndman &
+ * Fan's definition 7, exactly (the device power and the resistor power
+ * are found from the stored voltage, current and resistance).
+ */
+static void test_percentiles_every_output(void **state)
+{
+	(void)state;
+	struct problem pb = { .net = NULL };
+	struct source_spec sp;
+	char err[200];
+	source_spec_thevenin(&sp, 12.5, 100.0);
+	assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+	device_init(&pb.dev, &model_power_law);
+	pb.dev.p[POWER_LAW_VREF] = 9.37;
+	pb.dev.p[POWER_LAW_IREF] = 0.0913;
+	pb.dev.p[POWER_LAW_ALPHA] = 2.3;
+	struct solve_options o;
+	solve_options_init(&o);
+	struct tol_case c;
+	tol_case_init(&c, &pb, SOURCE_THEVENIN, &o);
+	assert_int_equal(tol_case_add(&c, "vs", 11.3, 13.7, TOL_UNIFORM, err,
+	                              sizeof err), 0);
+	assert_int_equal(tol_case_add(&c, "rs", 87.0, 113.0, TOL_UNIFORM, err,
+	                              sizeof err), 0);
+	const size_t n = 30011;
+	struct tol_mc mc;
+	assert_int_equal(tol_monte_carlo(&c, n, 7707, 17, NULL, 0, &mc, err,
+	                                 sizeof err), 0);
+	assert_int_equal(mc.failed, 0);
+	double *col[TOL_NOUT];
+	for (int k = 0; k < TOL_NOUT; k++) {
+		col[k] = malloc(n * sizeof *col[k]);
+		assert_non_null(col[k]);
+	}
+	struct tol_rng rng;
+	tol_rng_seed(&rng, 7707);
+	for (size_t t = 0; t < n; t++) {
+		/* lo + (hi - lo) u, as a uniform item draws. */
+		double x[2] = { 11.3 + (13.7 - 11.3) * tol_rng_uniform(&rng),
+		                87.0 + (113.0 - 87.0) * tol_rng_uniform(&rng) };
+		double y[TOL_NOUT];
+		assert_int_equal(tol_eval(&c, x, NAN, y), 0);
+		for (int k = 0; k < TOL_NOUT; k++)
+			col[k][t] = y[k];
+	}
+	for (int k = 0; k < TOL_NOUT; k++) {
+		qsort(col[k], n, sizeof *col[k], cmp_double);
+		const struct tol_stats *st = &mc.stats[k];
+		assert_true(st->min == col[k][0] && st->max == col[k][n - 1]);
+		double sum = 0.0;
+		for (size_t t = 0; t < n; t++)
+			sum += col[k][t];
+		assert_true(fabs(st->mean - sum / (double)n) <= 1e-13 * fabs(st->mean));
+		for (int p = 0; p < TOL_NPCT; p++) {
+			double h = (double)(n - 1) * tol_percentiles[p] / 100.0;
+			size_t lo = (size_t)floor(h);
+			double want = col[k][lo] + (h - (double)lo) *
+			                               (col[k][lo + 1] - col[k][lo]);
+			if (st->pct[p] != want)
+				fail_msg("%s p%g: %.17g, sorted %.17g", tol_output_name(k),
+				         tol_percentiles[p], st->pct[p], want);
+		}
+		free(col[k]);
+	}
+}
+
 /* Percentiles, histogram and yield of an exactly uniform output. */
 static void test_uniform_output(void **state)
 {
@@ -474,6 +591,8 @@ int main(void)
 		cmocka_unit_test(test_monte_carlo_gum),
 		cmocka_unit_test(test_monte_carlo_seed),
 		cmocka_unit_test(test_rng_distributions),
+		cmocka_unit_test(test_ziggurat),
+		cmocka_unit_test(test_percentiles_every_output),
 		cmocka_unit_test(test_uniform_output),
 		cmocka_unit_test(test_all_equal),
 		cmocka_unit_test(test_bad),
