@@ -26,10 +26,16 @@
 #include <stdlib.h>
 #include <string.h>
 
-/* The network: nodes by name, parts in the order given, the terminals. */
+/*
+ * The network: nodes by name (with a hash index of the names: open
+ * addressing, linear probing, at most half full; each slot holds a node
+ * index + 1, 0 when empty), parts in the order given, the terminals.
+ */
 struct network {
 	char **node_names;
 	size_t nnodes, node_cap;
+	size_t *node_index;
+	size_t index_cap;       /* a power of two, or 0 */
 	struct network_part *parts;
 	size_t nparts, part_cap;
 	bool has_terminals;
@@ -85,6 +91,8 @@ static char *network_strdup(const char *s)
 	return d;
 }
 
+static int network_index_grow(struct network *net);
+
 /* Allocate an empty network. */
 struct network *network_create(void)
 {
@@ -101,6 +109,7 @@ void network_destroy(struct network *net)
 	for (size_t k = 0; k < net->nparts; k++)
 		free(net->parts[k].name);
 	free(net->node_names);
+	free(net->node_index);
 	free(net->parts);
 	free(net);
 }
@@ -139,18 +148,64 @@ struct network *network_copy(const struct network *net)
 			c->nparts = k + 1;
 		}
 	}
+	if (c->nnodes > 0 && network_index_grow(c) != 0)
+		goto fail;
 	return c;
 fail:
 	network_destroy(c);
 	return NULL;
 }
 
+/* FNV-1a of NAME (Fowler, Noll & Vo; common practice for short keys). */
+static uint64_t network_hash(const char *name)
+{
+	uint64_t h = UINT64_C(0xcbf29ce484222325);
+	for (const unsigned char *p = (const unsigned char *)name; *p; p++) {
+		h ^= *p;
+		h *= UINT64_C(0x100000001b3);
+	}
+	return h;
+}
+
+/* Put node K into NET's index (which has room). */
+static void network_index_put(struct network *net, size_t k)
+{
+	size_t mask = net->index_cap - 1;
+	size_t at = (size_t)network_hash(net->node_names[k]) & mask;
+	while (net->node_index[at] != 0)
+		at = (at + 1) & mask;
+	net->node_index[at] = k + 1;
+}
+
+/* Rebuild the index with room for at least 2 (nodes + 1); 0 or -1. */
+static int network_index_grow(struct network *net)
+{
+	size_t cap = net->index_cap ? net->index_cap : 16;
+	while (cap < 2 * (net->nnodes + 1))
+		cap *= 2;
+	size_t *idx = calloc(cap, sizeof *idx);
+	if (idx == NULL)
+		return -1;
+	free(net->node_index);
+	net->node_index = idx;
+	net->index_cap = cap;
+	for (size_t k = 0; k < net->nnodes; k++)
+		network_index_put(net, k);
+	return 0;
+}
+
 /* Index of the node called NAME, or -1. */
 long network_find_node(const struct network *net, const char *name)
 {
-	for (size_t k = 0; k < net->nnodes; k++)
+	if (net->index_cap == 0)
+		return -1;
+	size_t mask = net->index_cap - 1;
+	for (size_t at = (size_t)network_hash(name) & mask;
+	     net->node_index[at] != 0; at = (at + 1) & mask) {
+		size_t k = net->node_index[at] - 1;
 		if (strcmp(net->node_names[k], name) == 0)
 			return (long)k;
+	}
 	return -1;
 }
 
@@ -170,11 +225,15 @@ int network_node(struct network *net, const char *name, size_t *idx)
 		net->node_names = p;
 		net->node_cap = cap;
 	}
+	if (2 * (net->nnodes + 1) > net->index_cap &&
+	    network_index_grow(net) != 0)
+		return -1;
 	char *copy = network_strdup(name);
 	if (copy == NULL)
 		return -1;
 	net->node_names[net->nnodes] = copy;
 	*idx = net->nnodes++;
+	network_index_put(net, *idx);
 	return 0;
 }
 
