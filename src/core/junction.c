@@ -155,6 +155,8 @@ double junction_shockley_voltage(double is, double nvt, double i)
 struct junction_ctx {
 	const struct model_type *t;  /* NULL: the Shockley junction is, nvt */
 	const double *p;
+	bool has_k;                  /* the model's derived constants are in K */
+	double k[MODEL_MAX_DERIVED];
 	double is, nvt;
 	double voc, r;
 	bool log_step;               /* the last step was the log-domain one */
@@ -166,6 +168,8 @@ static double junction_current(const struct junction_ctx *c, double v)
 	const struct model_type *t = c->t;
 	if (t == NULL)
 		return junction_shockley_current(c->is, c->nvt, v);
+	if (c->has_k)
+		return t->current_k(c->p, c->k, v);
 	return t->intrinsic_current ? t->intrinsic_current(c->p, v)
 	                            : t->current(c->p, v);
 }
@@ -176,6 +180,8 @@ static double junction_conductance(const struct junction_ctx *c, double v)
 	const struct model_type *t = c->t;
 	if (t == NULL)
 		return junction_shockley_conductance(c->is, c->nvt, v);
+	if (c->has_k)
+		return t->conductance_k(c->p, c->k, v);
 	return t->intrinsic_conductance ? t->intrinsic_conductance(c->p, v)
 	                                : t->conductance(c->p, v);
 }
@@ -443,6 +449,7 @@ struct junction_result junction_solve(const struct model_type *t,
 	if (t->shockley != NULL && t->shockley(p, &sk) == 0)
 		return junction_solve_shockley(sk.is, sk.nvt, voc, r, tol);
 	struct junction_ctx c = { .t = t, .p = p, .voc = voc, .r = r };
+	c.has_k = t->prepare != NULL && t->prepare(p, c.k) == 0;
 	if (r == 0.0 || voc == 0.0)
 		return junction_direct(&c);
 	return junction_newton(&c, tol);

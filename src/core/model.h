@@ -44,6 +44,9 @@ struct model_shockley {
 	double rs;     /* the series resistance (series_resistance's value) */
 };
 
+/* Most constants a model derives from its parameters (model_type.prepare). */
+#define MODEL_MAX_DERIVED 8
+
 #define MODEL_MAX_EXTRA 8
 
 /* One labelled result a model reports beside V and I. */
@@ -119,6 +122,22 @@ struct model_type {
 	 * (junction.h).
 	 */
 	int (*shockley)(const double *p, struct model_shockley *out);
+
+	/*
+	 * Optional: constants the model derives from its parameters by a
+	 * solve of their own (a tunnel diode's excess-current constants, a
+	 * zener's breakdown amplitude and series resistance).  PREPARE fills
+	 * K (MODEL_MAX_DERIVED values) from P and returns 0, or -1 when P
+	 * gives none; CURRENT_K and CONDUCTANCE_K are the current and
+	 * conductance the junction view evaluates (problem.h: the intrinsic
+	 * ones of a model with a series split, else current and conductance)
+	 * given K.  A caller that evaluates one parameter set many times (the
+	 * scan, a stepped Newton, an inner junction solve) derives once;
+	 * current() and conductance() derive on every call.
+	 */
+	int (*prepare)(const double *p, double *k);
+	double (*current_k)(const double *p, const double *k, double v);
+	double (*conductance_k)(const double *p, const double *k, double v);
 
 	/*
 	 * Optional starting estimate of the intrinsic voltage at which the

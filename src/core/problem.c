@@ -43,6 +43,8 @@ void problem_junction_init(struct problem_junction *j,
 	j->pb = pb;
 	j->t = pb->dev.type;
 	j->p = pb->dev.p;
+	/* The model's derived constants once, for every evaluation after. */
+	j->has_k = j->t->prepare != NULL && j->t->prepare(j->p, j->k) == 0;
 	j->rser = j->t->series_resistance ? j->t->series_resistance(j->p) : 0.0;
 	j->rt = pb->src.r + j->rser;
 }
@@ -50,6 +52,8 @@ void problem_junction_init(struct problem_junction *j,
 /* Intrinsic current at X. */
 double problem_junction_current(const struct problem_junction *j, double x)
 {
+	if (j->has_k)
+		return j->t->current_k(j->p, j->k, x);
 	return j->t->intrinsic_current ? j->t->intrinsic_current(j->p, x)
 	                               : j->t->current(j->p, x);
 }
@@ -58,6 +62,8 @@ double problem_junction_current(const struct problem_junction *j, double x)
 double problem_junction_conductance(const struct problem_junction *j,
                                     double x)
 {
+	if (j->has_k)
+		return j->t->conductance_k(j->p, j->k, x);
 	return j->t->intrinsic_conductance ? j->t->intrinsic_conductance(j->p, x)
 	                                   : j->t->conductance(j->p, x);
 }

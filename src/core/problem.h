@@ -81,6 +81,8 @@ struct problem_junction {
 	const double *p;
 	double rser;     /* Rs */
 	double rt;       /* r + Rs */
+	bool has_k;      /* the model's derived constants are in K */
+	double k[MODEL_MAX_DERIVED];
 };
 
 /* Set J up for PB (PB's device must have current(V)). */

@@ -88,27 +88,55 @@ static int tunnel_derive(const double *p, struct tunnel_k *k)
 	return 0;
 }
 
-/* Current at V. */
+/*
+ * Derive the constants into K: Ix0, A, n Vt and exp(-A Vv), the excess
+ * current's shift (model_type.prepare).
+ */
+static int tunnel_prepare(const double *p, double *k)
+{
+	struct tunnel_k tk;
+	if (tunnel_derive(p, &tk) != 0)
+		return -1;
+	k[0] = tk.ix0;
+	k[1] = tk.a;
+	k[2] = tk.nvt;
+	k[3] = exp(-tk.a * p[TUNNEL_VV]);
+	return 0;
+}
+
+/* Current at V given the derived constants K. */
+static double tunnel_current_k(const double *p, const double *k, double v)
+{
+	double vv = p[TUNNEL_VV];
+	double ix = k[0] * (exp(k[1] * (v - vv)) - k[3]);
+	return tunnel_it(p, v, NULL) + ix + tunnel_id(p, k[2], v, NULL);
+}
+
+/* dI/dV at V given K. */
+static double tunnel_conductance_k(const double *p, const double *k, double v)
+{
+	double st, sd;
+	tunnel_it(p, v, &st);
+	tunnel_id(p, k[2], v, &sd);
+	return st + k[0] * k[1] * exp(k[1] * (v - p[TUNNEL_VV])) + sd;
+}
+
+/* Current at V (derives the constants: see tunnel_prepare). */
 static double tunnel_current(const double *p, double v)
 {
-	struct tunnel_k k;
-	if (tunnel_derive(p, &k) != 0)
+	double k[MODEL_MAX_DERIVED];
+	if (tunnel_prepare(p, k) != 0)
 		return NAN;
-	double vv = p[TUNNEL_VV];
-	double ix = k.ix0 * (exp(k.a * (v - vv)) - exp(-k.a * vv));
-	return tunnel_it(p, v, NULL) + ix + tunnel_id(p, k.nvt, v, NULL);
+	return tunnel_current_k(p, k, v);
 }
 
 /* dI/dV at V. */
 static double tunnel_conductance(const double *p, double v)
 {
-	struct tunnel_k k;
-	if (tunnel_derive(p, &k) != 0)
+	double k[MODEL_MAX_DERIVED];
+	if (tunnel_prepare(p, k) != 0)
 		return NAN;
-	double st, sd;
-	tunnel_it(p, v, &st);
-	tunnel_id(p, k.nvt, v, &sd);
-	return st + k.ix0 * k.a * exp(k.a * (v - p[TUNNEL_VV])) + sd;
+	return tunnel_conductance_k(p, k, v);
 }
 
 /* From a little reverse bias past the valley up the diffusion branch. */
@@ -120,43 +148,50 @@ static void tunnel_range(const double *p, double *vmin, double *vmax)
 	*vmin = -0.5 * p[TUNNEL_VP];
 }
 
+/* The parameters and derived constants, for the kernel. */
+struct tunnel_ctx {
+	const double *p;
+	double k[MODEL_MAX_DERIVED];
+};
+
 /* dI/dV for the kernel. */
 static double tunnel_conductance_eval(void *ctx, double v, double *step)
 {
+	const struct tunnel_ctx *c = ctx;
 	if (step != NULL)
 		*step = NAN;
-	return tunnel_conductance(ctx, v);
+	return tunnel_conductance_k(c->p, c->k, v);
 }
 
 /* Peak and valley where the curve has them (see models.h). */
 int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
                    double *ivl)
 {
-	struct tunnel_k k;
-	if (tunnel_derive(p, &k) != 0)
+	struct tunnel_ctx c = { .p = p };
+	if (tunnel_prepare(p, c.k) != 0)
 		return -1;
 	/* I' changes sign from + to - near Vp and from - to + at Vv: find the
 	 * first sign change down on a grid between 0 and Vv, then its root by
 	 * Brent-Dekker. */
 	double vv = p[TUNNEL_VV];
 	enum { N = 400 };
-	double a = 0.0, ga = tunnel_conductance(p, a);
-	struct kernel_fn fn = { tunnel_conductance_eval, (void *)p };
+	double a = 0.0, ga = tunnel_conductance_k(p, c.k, a);
+	struct kernel_fn fn = { tunnel_conductance_eval, &c };
 	int found = -1;
 	for (int j = 1; j <= N; j++) {
-		double b = vv * j / N, gb = tunnel_conductance(p, b);
+		double b = vv * j / N, gb = tunnel_conductance_k(p, c.k, b);
 		if (ga > 0.0 && gb <= 0.0) {
 			struct kernel_result r =
 				kernel_brent_solve(&fn, a, ga, b, gb, 1e-15, 0.0);
 			*vpk = r.x;
-			*ipk = tunnel_current(p, *vpk);
+			*ipk = tunnel_current_k(p, c.k, *vpk);
 			found = 0;
 			break;
 		}
 		a = b, ga = gb;
 	}
 	*vvl = vv;
-	*ivl = tunnel_current(p, vv);
+	*ivl = tunnel_current_k(p, c.k, vv);
 	return found;
 }
 
@@ -225,4 +260,7 @@ const struct model_type model_tunnel = {
 	.resistance = NULL,
 	.range = tunnel_range,
 	.validate = tunnel_validate,
+	.prepare = tunnel_prepare,
+	.current_k = tunnel_current_k,
+	.conductance_k = tunnel_conductance_k,
 };

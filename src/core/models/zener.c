@@ -78,6 +78,44 @@ static double zener_kconductance(const struct zener_k *k, double vj)
 	       k->ir / k->a * exp(-(vj + k->vj0) / k->a);
 }
 
+/* The constants into K (model_type.prepare), in struct zener_k's order. */
+static int zener_prepare(const double *p, double *k)
+{
+	struct zener_k z;
+	zener_derive(p, &z);
+	k[0] = z.is;
+	k[1] = z.nvt;
+	k[2] = z.a;
+	k[3] = z.ir;
+	k[4] = z.vj0;
+	k[5] = z.e0;
+	k[6] = z.rs;
+	return 0;
+}
+
+/* The constants K as a struct zener_k. */
+static struct zener_k zener_unpack(const double *k)
+{
+	return (struct zener_k){ .is = k[0], .nvt = k[1], .a = k[2], .ir = k[3],
+	                         .vj0 = k[4], .e0 = k[5], .rs = k[6] };
+}
+
+/* Junction current at VJ given K. */
+static double zener_current_k(const double *p, const double *k, double vj)
+{
+	(void)p;
+	struct zener_k z = zener_unpack(k);
+	return zener_kcurrent(&z, vj);
+}
+
+/* Junction conductance at VJ given K. */
+static double zener_conductance_k(const double *p, const double *k, double vj)
+{
+	(void)p;
+	struct zener_k z = zener_unpack(k);
+	return zener_kconductance(&z, vj);
+}
+
 /* Junction current at VJ. */
 static double zener_intrinsic_current(const double *p, double vj)
 {
@@ -281,4 +319,7 @@ const struct model_type model_zener = {
 	.intrinsic_conductance = zener_intrinsic_conductance,
 	.limit = zener_limit,
 	.intrinsic_voltage = zener_intrinsic_voltage,
+	.prepare = zener_prepare,
+	.current_k = zener_current_k,
+	.conductance_k = zener_conductance_k,
 };
