@@ -231,10 +231,11 @@ static int solve_refine_current(const struct problem *pb,
 /* Scan for every crossing and refine each one with safeguarded Newton. */
 static enum solve_status solve_scan(const struct problem *pb,
                                     const struct solve_options *o,
-                                    struct solve_result *out)
+                                    struct solve_result *out,
+                                    struct bracket *br, size_t *nbr)
 {
-	struct bracket br[SOLVE_MAX_POINTS];
 	size_t nb = stepper_scan(pb, br, SOLVE_MAX_POINTS);
+	*nbr = nb;
 	struct stepper *st = stepper_create();
 	if (st == NULL) {
 		snprintf(out->message, sizeof out->message, "out of memory");
@@ -344,6 +345,18 @@ enum solve_status solve_problem_valid(const struct problem *pb,
                                       const struct solve_options *o,
                                       struct solve_result *out)
 {
+	struct bracket br[SOLVE_MAX_POINTS];
+	size_t nb;
+	return solve_problem_valid_brackets(pb, o, out, br, &nb);
+}
+
+/* solve_problem_valid that hands back the scan's brackets (see solve.h). */
+enum solve_status solve_problem_valid_brackets(const struct problem *pb,
+                                               const struct solve_options *o,
+                                               struct solve_result *out,
+                                               struct bracket *br, size_t *nb)
+{
+	*nb = 0;
 	out->status = SOLVE_OK;
 	out->n = 0;
 	out->message[0] = '\0';
@@ -379,5 +392,5 @@ enum solve_status solve_problem_valid(const struct problem *pb,
 			return out->status = SOLVE_OK;
 		}
 	}
-	return solve_scan(pb, o, out);
+	return solve_scan(pb, o, out, br, nb);
 }

@@ -62,6 +62,18 @@ enum solve_status solve_problem_valid(const struct problem *pb,
                                       struct solve_result *out);
 
 /*
+ * solve_problem_valid with METHOD_AUTO that also hands back the brackets
+ * of the every-root scan it ran (BR, room for SOLVE_MAX_POINTS; *NB of
+ * them, 0 when the answer came without a scan), for a caller that looks
+ * further at the same problem (a sweep's continuation) without scanning
+ * again.
+ */
+enum solve_status solve_problem_valid_brackets(const struct problem *pb,
+                                               const struct solve_options *o,
+                                               struct solve_result *out,
+                                               struct bracket *br, size_t *nb);
+
+/*
  * The fast path for one operating point of a monotone device with a finite
  * source resistance (or any source): safeguarded Newton in the bracket.
  * Returns 0 and fills *PT, or -1.

@@ -58,17 +58,16 @@ static int sweep_cmp(const void *a, const void *b)
 }
 
 /*
- * Refine with Brent-Dekker every crossing of the every-root scan that RES
- * lacks.  (The scan's Newton refinement can lose a crossing where the
- * residual falls through zero, the middle point of an N-shaped curve;
- * Brent keeps any sign-change bracket.)
+ * Refine with Brent-Dekker every crossing of the every-root scan (its
+ * brackets BR, NB of them) that RES lacks.  (The scan's Newton refinement
+ * can lose a crossing where the residual falls through zero, the middle
+ * point of an N-shaped curve; Brent keeps any sign-change bracket.)
  */
 static void sweep_fill_missing(const struct problem *pb,
                                const struct solve_options *o,
+                               const struct bracket *br, size_t nb,
                                struct solve_result *res)
 {
-	struct bracket br[SOLVE_MAX_POINTS];
-	size_t nb = stepper_scan(pb, br, SOLVE_MAX_POINTS);
 	if (nb <= res->n)
 		return;
 	const struct model_type *t = pb->dev.type;
@@ -80,7 +79,7 @@ static void sweep_fill_missing(const struct problem *pb,
 	no.method = METHOD_BRENT;
 	no.start_v = NAN;
 	for (size_t k = 0; k < nb && res->n < SOLVE_MAX_POINTS; k++) {
-		if (br[k].tangent)
+		if (br[k].tangent || br[k].in_current)
 			continue;
 		/* Already found: a point whose bracket variable is inside. */
 		bool have = false;
@@ -107,39 +106,43 @@ static void sweep_fill_missing(const struct problem *pb,
 
 /*
  * All operating points of PB, continuing from the PREV points (NPREV of
- * them; none at the first step).
+ * them; none at the first step).  A monotone device has one, which the
+ * default solve finds directly (in closed form for a junction); any other
+ * gets one every-root scan, whose brackets then also serve to find what
+ * neither its refinement nor the continuation reached.
  */
 static void sweep_solve(const struct problem *pb, const struct solve_options *o,
                         const struct op_point *prev, size_t nprev,
                         struct solve_result *res)
 {
 	struct solve_options no = *o;
-	bool monotone = pb->dev.type->monotone;
-	if (monotone && nprev == 1) {
-		/* Newton from the previous point's voltage. */
-		no.method = METHOD_NEWTON;
-		no.start_v = prev[0].v;
-		if (solve_problem(pb, &no, res) == SOLVE_OK && res->n == 1)
-			return;
-	}
-	no = *o;
 	no.method = METHOD_AUTO;
-	solve_problem(pb, &no, res);
-	if (monotone || res->status == SOLVE_BAD_INPUT)
+	no.start_v = NAN;
+	char err[200];
+	if (device_validate(&pb->dev, err, sizeof err) != 0) {
+		res->n = 0;
+		snprintf(res->message, sizeof res->message, "%s", err);
+		res->status = SOLVE_BAD_INPUT;
+		return;
+	}
+	struct bracket br[SOLVE_MAX_POINTS];
+	size_t nb;
+	solve_problem_valid_brackets(pb, &no, res, br, &nb);
+	if (pb->dev.type->monotone)
 		return;
 	/* Continue each previous point; keep the ones the scan missed. */
 	for (size_t k = 0; k < nprev && res->n < SOLVE_MAX_POINTS; k++) {
 		struct solve_result one;
 		no.method = METHOD_NEWTON;
 		no.start_v = prev[k].v;
-		if (solve_problem(pb, &no, &one) != SOLVE_OK || one.n != 1)
+		if (solve_problem_valid(pb, &no, &one) != SOLVE_OK || one.n != 1)
 			continue;
 		if (sweep_has_point(res, one.pts[0].v))
 			continue;
 		res->pts[res->n++] = one.pts[0];
 		res->status = SOLVE_OK;
 	}
-	sweep_fill_missing(pb, o, res);
+	sweep_fill_missing(pb, o, br, nb, res);
 	qsort(res->pts, res->n, sizeof res->pts[0], sweep_cmp);
 }
 
