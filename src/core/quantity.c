@@ -19,6 +19,8 @@
 
 #include <errno.h>
 #include <math.h>
+#include <stdbool.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -642,6 +644,326 @@ char *qty_format(char *buf, size_t n, double value, enum qty_kind kind,
 	return buf;
 }
 
+/* ---------------------------------------------------------------------- */
+/* Shortest round-trip digits: Grisu3                                      */
+
+/*
+ * Loitsch's Grisu3 ("Printing Floating-Point Numbers Quickly and
+ * Accurately with Integers", PLDI 2010): the boundaries of the interval
+ * that reads back to the double, scaled by a cached power of ten into a
+ * 64-bit window, then digits of the upper boundary until the rest lies
+ * inside the interval, and the last digit weeded towards the value.  It
+ * gives the shortest digits that read back, closest to the value, or
+ * says it cannot be sure (about 0.5 % of doubles), and then the exact
+ * but slow search below runs.
+ */
+
+/* A 64-bit significand and a binary exponent: f 2^e. */
+struct qty_fp {
+	uint64_t f;
+	int e;
+};
+
+/*
+ * 10^k for k = -348, -340, ..., 340 as a rounded 64-bit significand and
+ * binary exponent (f 2^e, 2^63 <= f < 2^64), made with exact rational
+ * arithmetic (a Python script: Fraction(10)**k scaled and rounded to
+ * nearest, ties to even).
+ */
+static const struct {
+	uint64_t f;
+	int e, k;
+} qty_pow10[] = {
+{ UINT64_C(0xfa8fd5a0081c0288), -1220, -348 },
+	{ UINT64_C(0xbaaee17fa23ebf76), -1193, -340 },
+	{ UINT64_C(0x8b16fb203055ac76), -1166, -332 },
+	{ UINT64_C(0xcf42894a5dce35ea), -1140, -324 },
+	{ UINT64_C(0x9a6bb0aa55653b2d), -1113, -316 },
+	{ UINT64_C(0xe61acf033d1a45df), -1087, -308 },
+	{ UINT64_C(0xab70fe17c79ac6ca), -1060, -300 },
+	{ UINT64_C(0xff77b1fcbebcdc4f), -1034, -292 },
+	{ UINT64_C(0xbe5691ef416bd60c), -1007, -284 },
+	{ UINT64_C(0x8dd01fad907ffc3c), -980, -276 },
+	{ UINT64_C(0xd3515c2831559a83), -954, -268 },
+	{ UINT64_C(0x9d71ac8fada6c9b5), -927, -260 },
+	{ UINT64_C(0xea9c227723ee8bcb), -901, -252 },
+	{ UINT64_C(0xaecc49914078536d), -874, -244 },
+	{ UINT64_C(0x823c12795db6ce57), -847, -236 },
+	{ UINT64_C(0xc21094364dfb5637), -821, -228 },
+	{ UINT64_C(0x9096ea6f3848984f), -794, -220 },
+	{ UINT64_C(0xd77485cb25823ac7), -768, -212 },
+	{ UINT64_C(0xa086cfcd97bf97f4), -741, -204 },
+	{ UINT64_C(0xef340a98172aace5), -715, -196 },
+	{ UINT64_C(0xb23867fb2a35b28e), -688, -188 },
+	{ UINT64_C(0x84c8d4dfd2c63f3b), -661, -180 },
+	{ UINT64_C(0xc5dd44271ad3cdba), -635, -172 },
+	{ UINT64_C(0x936b9fcebb25c996), -608, -164 },
+	{ UINT64_C(0xdbac6c247d62a584), -582, -156 },
+	{ UINT64_C(0xa3ab66580d5fdaf6), -555, -148 },
+	{ UINT64_C(0xf3e2f893dec3f126), -529, -140 },
+	{ UINT64_C(0xb5b5ada8aaff80b8), -502, -132 },
+	{ UINT64_C(0x87625f056c7c4a8b), -475, -124 },
+	{ UINT64_C(0xc9bcff6034c13053), -449, -116 },
+	{ UINT64_C(0x964e858c91ba2655), -422, -108 },
+	{ UINT64_C(0xdff9772470297ebd), -396, -100 },
+	{ UINT64_C(0xa6dfbd9fb8e5b88f), -369, -92 },
+	{ UINT64_C(0xf8a95fcf88747d94), -343, -84 },
+	{ UINT64_C(0xb94470938fa89bcf), -316, -76 },
+	{ UINT64_C(0x8a08f0f8bf0f156b), -289, -68 },
+	{ UINT64_C(0xcdb02555653131b6), -263, -60 },
+	{ UINT64_C(0x993fe2c6d07b7fac), -236, -52 },
+	{ UINT64_C(0xe45c10c42a2b3b06), -210, -44 },
+	{ UINT64_C(0xaa242499697392d3), -183, -36 },
+	{ UINT64_C(0xfd87b5f28300ca0e), -157, -28 },
+	{ UINT64_C(0xbce5086492111aeb), -130, -20 },
+	{ UINT64_C(0x8cbccc096f5088cc), -103, -12 },
+	{ UINT64_C(0xd1b71758e219652c), -77, -4 },
+	{ UINT64_C(0x9c40000000000000), -50, 4 },
+	{ UINT64_C(0xe8d4a51000000000), -24, 12 },
+	{ UINT64_C(0xad78ebc5ac620000), 3, 20 },
+	{ UINT64_C(0x813f3978f8940984), 30, 28 },
+	{ UINT64_C(0xc097ce7bc90715b3), 56, 36 },
+	{ UINT64_C(0x8f7e32ce7bea5c70), 83, 44 },
+	{ UINT64_C(0xd5d238a4abe98068), 109, 52 },
+	{ UINT64_C(0x9f4f2726179a2245), 136, 60 },
+	{ UINT64_C(0xed63a231d4c4fb27), 162, 68 },
+	{ UINT64_C(0xb0de65388cc8ada8), 189, 76 },
+	{ UINT64_C(0x83c7088e1aab65db), 216, 84 },
+	{ UINT64_C(0xc45d1df942711d9a), 242, 92 },
+	{ UINT64_C(0x924d692ca61be758), 269, 100 },
+	{ UINT64_C(0xda01ee641a708dea), 295, 108 },
+	{ UINT64_C(0xa26da3999aef774a), 322, 116 },
+	{ UINT64_C(0xf209787bb47d6b85), 348, 124 },
+	{ UINT64_C(0xb454e4a179dd1877), 375, 132 },
+	{ UINT64_C(0x865b86925b9bc5c2), 402, 140 },
+	{ UINT64_C(0xc83553c5c8965d3d), 428, 148 },
+	{ UINT64_C(0x952ab45cfa97a0b3), 455, 156 },
+	{ UINT64_C(0xde469fbd99a05fe3), 481, 164 },
+	{ UINT64_C(0xa59bc234db398c25), 508, 172 },
+	{ UINT64_C(0xf6c69a72a3989f5c), 534, 180 },
+	{ UINT64_C(0xb7dcbf5354e9bece), 561, 188 },
+	{ UINT64_C(0x88fcf317f22241e2), 588, 196 },
+	{ UINT64_C(0xcc20ce9bd35c78a5), 614, 204 },
+	{ UINT64_C(0x98165af37b2153df), 641, 212 },
+	{ UINT64_C(0xe2a0b5dc971f303a), 667, 220 },
+	{ UINT64_C(0xa8d9d1535ce3b396), 694, 228 },
+	{ UINT64_C(0xfb9b7cd9a4a7443c), 720, 236 },
+	{ UINT64_C(0xbb764c4ca7a44410), 747, 244 },
+	{ UINT64_C(0x8bab8eefb6409c1a), 774, 252 },
+	{ UINT64_C(0xd01fef10a657842c), 800, 260 },
+	{ UINT64_C(0x9b10a4e5e9913129), 827, 268 },
+	{ UINT64_C(0xe7109bfba19c0c9d), 853, 276 },
+	{ UINT64_C(0xac2820d9623bf429), 880, 284 },
+	{ UINT64_C(0x80444b5e7aa7cf85), 907, 292 },
+	{ UINT64_C(0xbf21e44003acdd2d), 933, 300 },
+	{ UINT64_C(0x8e679c2f5e44ff8f), 960, 308 },
+	{ UINT64_C(0xd433179d9c8cb841), 986, 316 },
+	{ UINT64_C(0x9e19db92b4e31ba9), 1013, 324 },
+	{ UINT64_C(0xeb96bf6ebadf77d9), 1039, 332 },
+	{ UINT64_C(0xaf87023b9bf0ee6b), 1066, 340 },
+};
+
+#define QTY_POW10_FIRST (-348)
+#define QTY_POW10_STEP 8
+
+/* The product rounded to 64 bits (the upper half of 128, rounded). */
+static struct qty_fp qty_fp_mul(struct qty_fp x, struct qty_fp y)
+{
+	const uint64_t m32 = UINT64_C(0xffffffff);
+	uint64_t a = x.f >> 32, b = x.f & m32, c = y.f >> 32, d = y.f & m32;
+	uint64_t ac = a * c, bc = b * c, ad = a * d, bd = b * d;
+	uint64_t tmp = (bd >> 32) + (ad & m32) + (bc & m32) + (UINT64_C(1) << 31);
+	return (struct qty_fp){ ac + (ad >> 32) + (bc >> 32) + (tmp >> 32),
+	                        x.e + y.e + 64 };
+}
+
+/* Shift X left until its top bit is set. */
+static struct qty_fp qty_fp_normalize(struct qty_fp x)
+{
+	while (!(x.f & (UINT64_C(1) << 63))) {
+		x.f <<= 1;
+		x.e--;
+	}
+	return x;
+}
+
+/* The largest power of ten not above N (< 2^32), and its digit count. */
+static void qty_biggest_pow10(uint32_t n, uint32_t *power, int *digits)
+{
+	uint32_t p = 1;
+	int k = 1;
+	while (k < 10 && n / p >= 10) {
+		p *= 10;
+		k++;
+	}
+	*power = p;
+	*digits = k;
+}
+
+/*
+ * Move the last digit of BUF towards the value while it stays inside the
+ * interval, and say whether the result is safely the closest (Grisu3's
+ * round_weed: all distances are in units of the scaled exponent).
+ */
+static bool qty_round_weed(char *buf, int len, uint64_t dist_high_w,
+                           uint64_t unsafe, uint64_t rest, uint64_t ten_kappa,
+                           uint64_t unit)
+{
+	uint64_t small = dist_high_w - unit, big = dist_high_w + unit;
+	while (rest < small && unsafe - rest >= ten_kappa &&
+	       (rest + ten_kappa < small ||
+	        small - rest >= rest + ten_kappa - small)) {
+		buf[len - 1]--;
+		rest += ten_kappa;
+	}
+	if (rest < big && unsafe - rest >= ten_kappa &&
+	    (rest + ten_kappa < big || big - rest > rest + ten_kappa - big))
+		return false;
+	return 2 * unit <= rest && rest <= unsafe - 4 * unit;
+}
+
+/*
+ * The digits of the scaled upper boundary HIGH until the rest is inside
+ * the interval [LOW, HIGH] (W the scaled value; all of one exponent in
+ * [-60, -32]); *KAPPA gets the decimal exponent of the last digit.
+ */
+static bool qty_digit_gen(struct qty_fp low, struct qty_fp w,
+                          struct qty_fp high, char *buf, int *len, int *kappa)
+{
+	uint64_t unit = 1;
+	struct qty_fp too_low = { low.f - unit, low.e };
+	struct qty_fp too_high = { high.f + unit, high.e };
+	uint64_t unsafe = too_high.f - too_low.f;
+	int shift = -w.e;
+	uint64_t one = UINT64_C(1) << shift;
+	uint32_t integrals = (uint32_t)(too_high.f >> shift);
+	uint64_t fractionals = too_high.f & (one - 1);
+	uint32_t divisor;
+	int digits;
+	qty_biggest_pow10(integrals, &divisor, &digits);
+	*kappa = digits;
+	*len = 0;
+	while (*kappa > 0) {
+		buf[(*len)++] = (char)('0' + integrals / divisor);
+		integrals %= divisor;
+		(*kappa)--;
+		uint64_t rest = ((uint64_t)integrals << shift) + fractionals;
+		if (rest < unsafe)
+			return qty_round_weed(buf, *len, too_high.f - w.f, unsafe, rest,
+			                      (uint64_t)divisor << shift, unit);
+		divisor /= 10;
+	}
+	for (;;) {
+		fractionals *= 10;
+		unit *= 10;
+		unsafe *= 10;
+		buf[(*len)++] = (char)('0' + (fractionals >> shift));
+		fractionals &= one - 1;
+		(*kappa)--;
+		if (fractionals < unsafe)
+			return qty_round_weed(buf, *len, (too_high.f - w.f) * unit, unsafe,
+			                      fractionals, one, unit);
+	}
+}
+
+/*
+ * The shortest digits of |V| (positive, finite, normal or subnormal) that
+ * read back to V, into BUF (no terminator), *LEN of them, the first at
+ * decimal exponent *X; false when Grisu3 cannot vouch for them.
+ */
+static bool qty_grisu3(double v, char *buf, int *len, int *x)
+{
+	uint64_t bits;
+	memcpy(&bits, &v, sizeof bits);
+	uint64_t frac = bits & UINT64_C(0x000fffffffffffff);
+	int bexp = (int)((bits >> 52) & 0x7ff);
+	struct qty_fp w;
+	if (bexp == 0)
+		w = (struct qty_fp){ frac, -1074 };
+	else
+		w = (struct qty_fp){ frac | (UINT64_C(1) << 52), bexp - 1075 };
+	/* The boundaries halfway to the neighbours; the lower one is nearer
+	 * when the significand is a power of two (the gap below halves). */
+	struct qty_fp mplus = qty_fp_normalize((struct qty_fp){ (w.f << 1) + 1,
+	                                                         w.e - 1 });
+	struct qty_fp mminus;
+	if (frac == 0 && bexp > 1)
+		mminus = (struct qty_fp){ (w.f << 2) - 1, w.e - 2 };
+	else
+		mminus = (struct qty_fp){ (w.f << 1) - 1, w.e - 1 };
+	mminus.f <<= mminus.e - mplus.e;
+	mminus.e = mplus.e;
+	w = qty_fp_normalize(w);
+	/* A cached 10^-k putting the product's exponent in [-60, -32]. */
+	int want = -60 - (w.e + 64);            /* lowest acceptable exponent */
+	double kd = ceil((want + 63) * 0.30102999566398114);
+	int idx = ((int)kd - QTY_POW10_FIRST + QTY_POW10_STEP - 1) / QTY_POW10_STEP;
+	if (idx < 0 || idx >= (int)(sizeof qty_pow10 / sizeof qty_pow10[0]))
+		return false;
+	while (idx > 0 && qty_pow10[idx - 1].e + w.e + 64 >= -60)
+		idx--;
+	while (qty_pow10[idx].e + w.e + 64 < -60)
+		idx++;
+	if (qty_pow10[idx].e + w.e + 64 > -32)
+		return false;
+	struct qty_fp c = { qty_pow10[idx].f, qty_pow10[idx].e };
+	int mk = qty_pow10[idx].k;
+	struct qty_fp sw = qty_fp_mul(w, c);
+	struct qty_fp slow = qty_fp_mul(mminus, c);
+	struct qty_fp shigh = qty_fp_mul(mplus, c);
+	int kappa;
+	if (!qty_digit_gen(slow, sw, shigh, buf, len, &kappa))
+		return false;
+	/* value = digits 10^(kappa - mk): the first digit's exponent. */
+	*x = kappa - mk + *len - 1;
+	return true;
+}
+
+/*
+ * Lay out the digits D[0..LEN) (no trailing zeros), the first at decimal
+ * exponent X, as "%.<LEN>g" would, into OUT (room for 32): positional for
+ * -4 <= X < LEN, else d.ddde+XX.
+ */
+static void qty_layout_g(char *out, bool neg, const char *d, int len, int x)
+{
+	size_t k = 0;
+	if (neg)
+		out[k++] = '-';
+	if (x < len && x >= -4) {
+		if (x >= 0) {
+			for (int i = 0; i <= x; i++)
+				out[k++] = d[i];
+			if (len > x + 1) {
+				out[k++] = '.';
+				for (int i = x + 1; i < len; i++)
+					out[k++] = d[i];
+			}
+		} else {
+			out[k++] = '0';
+			out[k++] = '.';
+			for (int i = 0; i < -x - 1; i++)
+				out[k++] = '0';
+			for (int i = 0; i < len; i++)
+				out[k++] = d[i];
+		}
+	} else {
+		out[k++] = d[0];
+		if (len > 1) {
+			out[k++] = '.';
+			for (int i = 1; i < len; i++)
+				out[k++] = d[i];
+		}
+		out[k++] = 'e';
+		out[k++] = x < 0 ? '-' : '+';
+		int ax = x < 0 ? -x : x;
+		if (ax >= 100)
+			out[k++] = (char)('0' + ax / 100);
+		out[k++] = (char)('0' + ax / 10 % 10);
+		out[k++] = (char)('0' + ax % 10);
+	}
+	out[k] = '\0';
+}
+
 /* Format VALUE with the fewest digits that read back bit-for-bit. */
 char *qty_format_exact(char *buf, size_t n, double value)
 {
@@ -651,6 +973,14 @@ char *qty_format_exact(char *buf, size_t n, double value)
 		return buf;
 	if (!isfinite(value))
 		return qty_format(buf, n, value, QTY_NUMBER, 17, 1);
+	char d[24];
+	int len, x;
+	if (value != 0.0 && qty_grisu3(fabs(value), d, &len, &x)) {
+		qty_layout_g(out, signbit(value), d, len, x);
+		qty_copy_out(buf, n, out);
+		return buf;
+	}
+	/* The exact search: the first precision whose "%g" reads back. */
 	for (int p = 1; p <= 17; p++) {
 		size_t k = 0;
 		double back;
