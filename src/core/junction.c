@@ -344,26 +344,35 @@ static struct junction_result junction_omega(double is, double nvt, double voc,
 	double inv_nvt = 1.0 / nvt, nvt_r = nvt / r;
 	double a = is * r * inv_nvt, b0 = voc * inv_nvt;
 	double u;
+	/* Halley's step where the start is rough, Newton's where it is good
+	 * to 5e-8 (the expansion from x = 60, or deep reverse). */
+	bool halley = true;
 	if (a <= 1.0 && b0 + a < -40.0) {
 		/* Deep reverse: w = a e^u < e^-40 is below the rounding of u,
 		 * so u = b0 + a already; the correction below confirms it. */
 		u = b0 + a;
+		halley = false;
 	} else {
 		/* The start: omega of x = ln a + b0 + a. */
 		double x = log(a) + (b0 + a);
-		double w = x > 2.5 ? junction_omega_asymptotic(x)
-		                   : junction_wright_omega(x);
+		double w;
+		if (x > 2.5) {
+			w = junction_omega_asymptotic(x);
+			halley = x < 60.0;
+		} else {
+			w = junction_wright_omega(x);
+		}
 		u = b0 - (w - a);
 	}
 	/*
-	 * Halley corrections on F(u) = u + a expm1(u) - b0, F' = 1 + a e^u,
-	 * F'' = a e^u: after a correction du the error is about du^3 / 12
-	 * (Halley's cubic convergence; Traub, Iterative Methods for the
+	 * Corrections on F(u) = u + a expm1(u) - b0, F' = 1 + a e^u, F'' =
+	 * a e^u: Newton's, after which the error is about du^2 / 2, or
+	 * Halley's, about du^3 / 12 (Traub, Iterative Methods for the
 	 * Solution of Equations, 1964, sec. 5.2): once that is below the
 	 * rounding of u, u is as good as a double can hold.  One correction
 	 * normally does it, and it is the check: one exponential.
 	 */
-	double e = NAN, ex = NAN, du = NAN;
+	double e = NAN, ex = NAN, du = NAN, left = NAN;
 	bool settled = false;
 	for (unsigned k = 1; k <= 4 && !settled; k++) {
 		if (u < JUNCTION_EXP_UNDERFLOW) {
@@ -378,13 +387,20 @@ static struct junction_result junction_omega(double is, double nvt, double voc,
 		}
 		double ae = a * ex;
 		double f = (u - b0) + a * e, fp = 1.0 + ae;
-		/* Halley: (f / f') / (1 - f f'' / (2 f'^2)), one division. */
-		du = f * fp / (fp * fp - 0.5 * f * ae);
+		if (halley) {
+			/* (f / f') / (1 - f f'' / (2 f'^2)), one division. */
+			du = f * fp / (fp * fp - 0.5 * f * ae);
+			left = fabs(du * du * du);
+		} else {
+			du = f / fp;
+			left = du * du;
+		}
 		u -= du;
 		res.iters = k;
 		if (!isfinite(u) || !isfinite(ae))
 			return res; /* e^u overflows: let Newton decide */
-		settled = fabs(du * du * du) <= DBL_EPSILON * fabs(u);
+		settled = left <= DBL_EPSILON * fabs(u);
+		halley = true; /* a second correction was not expected */
 	}
 	if (!settled)
 		return res;
@@ -394,19 +410,18 @@ static struct junction_result junction_omega(double is, double nvt, double voc,
 	/*
 	 * The current from the side whose error is smaller: the line's grows
 	 * with |b0| / |b0 - u|, the device's with 1 + |u| e^u / |expm1(u)|
-	 * (compared multiplied out).
+	 * (compared multiplied out; both computed, one kept).
 	 */
 	double au = fabs(u), ae_ = fabs(e);
-	if ((fabs(b0) + au) * ae_ < (ae_ + au * ex) * fabs(b0 - u))
-		res.ij = (b0 - u) * nvt_r;
-	else
-		res.ij = is * (e - ex * shrink);
+	double i_line = (b0 - u) * nvt_r, i_dev = is * (e - ex * shrink);
+	bool line = (fabs(b0) + au) * ae_ < (ae_ + au * ex) * fabs(b0 - u);
+	res.ij = line ? i_line : i_dev;
 	res.vj = nvt * u;
 	/* Is e^u / nVt; e^u near the bottom of the range has lost bits. */
 	res.gj = exc > 1e-290 || exc == 0.0 ? is * exc * inv_nvt
 	                                    : exp(u + log(is)) * inv_nvt;
-	/* The distance left: Halley's error estimate plus rounding. */
-	res.dvj = nvt * (fabs(du * du * du) + 2.0 * DBL_EPSILON * au);
+	/* The distance left: the correction's error estimate plus rounding. */
+	res.dvj = nvt * (left + 2.0 * DBL_EPSILON * au);
 	double rel = tol > 4.0 * DBL_EPSILON ? tol : 4.0 * DBL_EPSILON;
 	res.ok = isfinite(res.ij) && isfinite(res.gj) &&
 	         res.dvj <= rel * fabs(res.vj) + DBL_MIN;
@@ -430,13 +445,17 @@ struct junction_result junction_solve_shockley(double is, double nvt,
                                                double voc, double r,
                                                double tol)
 {
+	if (r != 0.0 && voc != 0.0 && is * r / nvt > DBL_MIN) {
+		struct junction_result res = junction_omega(is, nvt, voc, r, tol);
+		if (res.ok)
+			return res;
+	}
+	/* The fallbacks build their context only here: the hot path above
+	 * would pay for clearing it. */
 	struct junction_ctx c = { .t = NULL, .is = is, .nvt = nvt, .voc = voc,
 	                          .r = r };
 	if (r == 0.0 || voc == 0.0 || !(is * r / nvt > DBL_MIN))
 		return junction_direct(&c);
-	struct junction_result res = junction_omega(is, nvt, voc, r, tol);
-	if (res.ok)
-		return res;
 	return junction_newton(&c, tol);
 }
 

@@ -325,6 +325,27 @@ static enum solve_status solve_method(const struct problem *pb,
 	return out->status;
 }
 
+/*
+ * The hot path of the default solve: one Shockley junction behind a
+ * finite resistance, in closed form, into OUT.  True when it answered.
+ */
+static bool solve_try_shockley(const struct problem *pb,
+                               const struct solve_options *o,
+                               struct solve_result *out)
+{
+	const struct model_type *t = pb->dev.type;
+	struct model_shockley sk;
+	if (o->method != METHOD_AUTO || t->shockley == NULL ||
+	    !isfinite(pb->src.r) || t->shockley(pb->dev.p, &sk) != 0 ||
+	    solve_shockley(pb, &sk, o->tol, &out->pts[0]) != 0)
+		return false;
+	out->status = SOLVE_OK;
+	out->n = 1;
+	out->message[0] = '\0';
+	out->stop = STEP_CONVERGED;
+	return true;
+}
+
 /* Solve PB with O (see solve.h). */
 enum solve_status solve_problem(const struct problem *pb,
                                 const struct solve_options *o,
@@ -337,6 +358,8 @@ enum solve_status solve_problem(const struct problem *pb,
 		snprintf(out->message, sizeof out->message, "%s", err);
 		return out->status = SOLVE_BAD_INPUT;
 	}
+	if (solve_try_shockley(pb, o, out))
+		return SOLVE_OK;
 	return solve_problem_valid(pb, o, out);
 }
 
@@ -345,6 +368,8 @@ enum solve_status solve_problem_valid(const struct problem *pb,
                                       const struct solve_options *o,
                                       struct solve_result *out)
 {
+	if (solve_try_shockley(pb, o, out))
+		return SOLVE_OK;
 	struct bracket br[SOLVE_MAX_POINTS];
 	size_t nb;
 	return solve_problem_valid_brackets(pb, o, out, br, &nb);
@@ -364,15 +389,8 @@ enum solve_status solve_problem_valid_brackets(const struct problem *pb,
 	if (o->method != METHOD_AUTO)
 		return solve_method(pb, o, out);
 	const struct model_type *t = pb->dev.type;
-	struct model_shockley sk;
-	/* The hot path: one Shockley junction behind a finite resistance. */
-	if (t->shockley != NULL && isfinite(pb->src.r) &&
-	    t->shockley(pb->dev.p, &sk) == 0 &&
-	    solve_shockley(pb, &sk, o->tol, &out->pts[0]) == 0) {
-		out->n = 1;
-		out->stop = STEP_CONVERGED;
+	if (solve_try_shockley(pb, o, out))
 		return SOLVE_OK;
-	}
 	struct op_point pt;
 	/* A monotone device has one point; so does any V(I) curve fed by an
 	 * ideal current source (the point is V(isc)). */

@@ -10,9 +10,9 @@
  *
  * Usage: bench_solve [circuits [trials]]   (default 1000000 and 200000)
  *
- * The machine may be shared, so the work is cut into blocks of 4096
- * circuits (small enough to stay in cache: a problem struct is about
- * 470 bytes), each timing every method on the same circuits in turn (CPU
+ * The machine may be shared, so the work is cut into blocks of 1024
+ * circuits (small enough to stay in a core's cache: a problem struct is
+ * about 470 bytes), each timing every method on the same circuits in turn (CPU
  * time of this thread), and each ratio is the median over the blocks of
  * the ratio within a block; the Monte Carlo trials run in 9 blocks.  The
  * output ends with lines "ratio NAME VALUE".
@@ -96,11 +96,11 @@ static double bench_log_rough(double x)
 /*
  * omega(x), w + ln w = x, to a few ulp: e^x below -37.5; else a start
  * (the series of W(e^x) below -2, the Taylor series about 1, or the
- * asymptotic expansion through 1/x^4 above 2.5; Corless et al., Adv.
- * Comput. Math. 5, 1996) and Fritsch-Shafer-Crowley steps (CACM 16(2),
- * 1973), one where the start is good to 1e-4, which from x = 5 it is
- * (two below); none from x = 400, where the expansion alone is good to
- * 1e-13 (checked against a 40-digit Lambert W).
+ * asymptotic expansion through 1/x^4 above 2.5 with a rough ln x;
+ * Corless et al., Adv. Comput. Math. 5, 1996) and Fritsch-Shafer-Crowley
+ * steps (CACM 16(2), 1973): one where the start is good to 1e-4, which
+ * from x = 5 it is, two below.  The step is what makes the closed form
+ * good to 1e-15: the expansion alone is 1e-13 at x = 400.
  */
 static double bench_omega(double x)
 {
@@ -118,13 +118,10 @@ static double bench_omega(double x)
 		                                           d * (-1.0 / 3072 + d * 13.0 / 61440))));
 		steps = 2;
 	} else {
-		/* Exact ln x where the expansion is the answer, else rough. */
-		double l = x >= 400.0 ? log(x) : bench_log_rough(x), ix = 1.0 / x;
+		double l = bench_log_rough(x), ix = 1.0 / x;
 		w = x - l + l * ix * (1.0 + ix * ((l - 2.0) * 0.5 +
 		     ix * ((6.0 + l * (-9.0 + 2.0 * l)) / 6.0 +
 		           ix * (-12.0 + l * (36.0 + l * (-22.0 + 3.0 * l))) / 12.0)));
-		if (x >= 400.0)
-			return w;
 		steps = x < 5.0 ? 2 : 1;
 	}
 	for (int k = 0; k < steps; k++) {
@@ -135,12 +132,21 @@ static double bench_omega(double x)
 	return w;
 }
 
-/* The omega closed form of the current: nVt / R (omega(x) - a). */
+/*
+ * The omega closed form of the current, nVt / R (omega(x) - a), from the
+ * same problem struct the solver reads (so both pay for the same memory):
+ * Is, n and T of the diode (no reference temperature in these circuits),
+ * the source's voc and r and the diode's Rs.
+ */
 static double bench_omega_current(const struct bench_case *c)
 {
-	double a = c->is * c->r / c->nvt;
-	double x = log(a) + (c->vs / c->nvt + a);
-	return c->nvt / c->r * (bench_omega(x) - a);
+	const double *p = c->pb.dev.p;
+	double nvt = p[DIODE_N] * (1.380649e-23 * (p[DIODE_TEMP] + 273.15) /
+	                           1.602176634e-19);
+	double r = c->pb.src.r + p[DIODE_RS], is = p[DIODE_IS];
+	double a = is * r / nvt;
+	double x = log(a) + (c->pb.src.voc / nvt + a);
+	return nvt / r * (bench_omega(x) - a);
 }
 
 /* ---------------------------------------------------------------------- */
@@ -390,7 +396,7 @@ int main(int argc, char **argv)
 		total = 1000000L;
 	if (trials < 9)
 		trials = 200000L;
-	size_t bn = 4096;
+	size_t bn = 1024;
 	long nblocks = (total + (long)bn - 1) / (long)bn;
 	if (nblocks < 3)
 		nblocks = 3;
