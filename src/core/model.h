@@ -37,6 +37,12 @@ struct model_param {
 
 struct source;
 
+/* A key a model used to take, and what to do instead (model_type.retired). */
+struct model_retired {
+	const char *key;
+	const char *why;
+};
+
 /* A junction that is one Shockley exponential behind a series resistance. */
 struct model_shockley {
 	double is;     /* saturation current, A */
@@ -188,6 +194,13 @@ struct model_type {
 	 */
 	double (*power)(const double *p, const struct source *src, double v,
 	                double i);
+
+	/*
+	 * Optional: keys this model took in earlier versions, each with what
+	 * to do instead, so that an old file is refused with that advice
+	 * rather than as a misspelling.  Ends with { NULL, NULL }.
+	 */
+	const struct model_retired *retired;
 };
 
 struct curve_data;

@@ -67,6 +67,15 @@ static void device_unknown_key(struct load_ctx *c, const struct model_type *type
 		cands[n++] = type->params[j].key;
 	char found[96];
 	ytree_describe(k, found, sizeof found);
+	/* A key an earlier version took: say what to do instead. */
+	for (const struct model_retired *r = type->retired;
+	     r != NULL && r->key != NULL; r++)
+		if (strcmp(k->text, r->key) == 0) {
+			ytree_error(c->err, c->name, k, path,
+			            "%s is no longer a key of the %s model: %s", found,
+			            type->name, r->why);
+			return;
+		}
 	const char *near = section_suggest(k->text, cands, n);
 	if (near != NULL) {
 		ytree_error(c->err, c->name, k, path,

@@ -2,23 +2,39 @@
  * bjt.c - a bipolar transistor in a base-bias stage, seen from its base
  * loop.  The source is the Thevenin equivalent of the base bias (VBB
  * behind RB, e.g. a divider R1/R2 from the supply: VBB = VCC R2/(R1+R2),
- * RB = R1 || R2); the device voltage V is the base voltage VB and the
- * device current I the base current IB.  In the active region
+ * RB = R1 || R2); the device voltage V is the base voltage VB (from the
+ * rail the emitter resistor returns to) and the device current I the base
+ * current IB.
  *
- *     IC = Is (exp(VBE / (n Vt)) - 1),   IB = IC / beta,
- *     VB = VBE + IE RE = VBE + (beta + 1) IB RE
+ * The transistor is the transport form of the Ebers-Moll model (Ebers &
+ * Moll, Proc. IRE 42, 1954), both junctions with the ideality n:
  *
- * (Ebers & Moll, Proc. IRE 42, 1954, in the forward-active region), so the
- * base loop is a junction with saturation current Is/beta behind the
- * emitter resistor reflected as (beta + 1) RE: the diode model does the
- * work.  The collector side follows from the point found:
+ *     a = exp(VBE / n Vt) - 1,   c = exp(VBC / n Vt) - 1
+ *     IC = Is (a - c) - (Is / betaR) c
+ *     IB = (Is / betaF) a + (Is / betaR) c
+ *     IE = IC + IB
  *
- *     IC = beta IB,  VCE = VCC - IC RC - IE RE,
+ * and the stage closes both loops: VB = VBE + IE RE, and the collector
+ * sits at VC = VCC - IC RC, so VBC = VB - VC.  Eliminating VB and VC, for
+ * a given VBE the base-collector voltage u = VBC solves
  *
- * and when that leaves VCE below the saturation voltage the transistor is
- * saturated: VCE = VCE(sat) and IC = (VCC - VCE(sat) - IB RE) / (RC + RE)
- * < beta IB.  The base loop keeps its active-region form there, so in
- * saturation the values are an approximation and the report says so.
+ *     u + B (exp(u / n Vt) - 1) = A,
+ *     A = VBE - VCC + Is a (RE (1 + 1/betaF) + RC),
+ *     B = Is (RE + RC (1 + 1/betaR)),
+ *
+ * whose left side rises strictly with u, so it has one root (found by
+ * safeguarded Newton in a bracket).  VB(VBE) = VBE + IE RE rises strictly
+ * with VBE, and so does IB: the base-loop curve IB(VB) is single-valued
+ * and increasing, and current(VB) inverts VB(VBE) the same way.
+ *
+ * In the forward-active region c is -1 (to within exp(VBC / n Vt)) and
+ * the curve is the familiar junction with saturation current Is / betaF
+ * behind (betaF + 1) RE.  In saturation the base-collector junction
+ * conducts too: IC falls below betaF IB and VCE(sat), VBE and the forced
+ * gain IC/IB follow from both junctions rather than from a fixed
+ * VCE(sat).  The region is the junctions' (Ebers & Moll's four modes):
+ * forward active (BE forward, BC not), saturation (both forward), cut off
+ * (neither) and reverse active (BC only).
  *
  * "pnp" is the mirror image, every quantity a magnitude measured from the
  * supply rail the emitter returns to: V is the drop from that rail to the
@@ -28,121 +44,313 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "../junction.h"
 #include "../source.h"
 #include "models.h"
 
-/* The equivalent base-loop diode of P. */
-static void bjt_to_diode(const double *p, double *d)
+/* The constants of one parameter set. */
+struct bjt_k {
+	double is, s;        /* saturation current, n Vt */
+	double bf, br;       /* forward and reverse current gains */
+	double re, rc, vcc;
+	double k1, k2;       /* RE (1 + 1/bf) + RC, RE + RC (1 + 1/br) */
+};
+
+/* The transistor at one base-emitter voltage. */
+struct bjt_state {
+	double vbe, vbc;     /* junction voltages */
+	double ib, ic, ie;   /* terminal currents */
+	double vb;           /* base voltage VBE + IE RE */
+	double dib, dvb;     /* dIB/dVBE and dVB/dVBE */
+};
+
+/* The constants of P. */
+static struct bjt_k bjt_constants(const double *p)
 {
-	d[DIODE_IS] = p[BJT_IS] / p[BJT_BETA];
-	d[DIODE_N] = p[BJT_N];
-	d[DIODE_RS] = (p[BJT_BETA] + 1.0) * p[BJT_RE];
-	d[DIODE_TEMP] = p[BJT_TEMP];
-	d[DIODE_TREF] = -273.15;
-	d[DIODE_EG] = 0.0;
-	d[DIODE_XTI] = 0.0;
+	struct bjt_k k;
+	k.is = p[BJT_IS];
+	k.s = p[BJT_N] * diode_thermal_voltage(p[BJT_TEMP]);
+	k.bf = p[BJT_BETA];
+	k.br = p[BJT_BETAR];
+	k.re = p[BJT_RE];
+	k.rc = p[BJT_RC];
+	k.vcc = p[BJT_VCC];
+	k.k1 = k.re * (1.0 + 1.0 / k.bf) + k.rc;
+	k.k2 = k.re + k.rc * (1.0 + 1.0 / k.br);
+	return k;
+}
+
+/* u + B expm1(u / s) for Q = { B, s }. */
+static double bjt_vbc_lhs(const double *q, double u)
+{
+	return u + q[0] * expm1(u / q[1]);
+}
+
+/* Its derivative. */
+static double bjt_vbc_dlhs(const double *q, double u)
+{
+	return 1.0 + q[0] / q[1] * exp(u / q[1]);
+}
+
+/*
+ * The base-collector voltage u with u + B expm1(u / s) = A.  Where A - u
+ * is many n Vt (the collector junction well forward biased) the equation
+ * is solved in its logarithmic form u = s ln(1 + (A - u) / B), a
+ * contraction with rate s / (A - u + B) that keeps every digit of u even
+ * when A is far larger than u; elsewhere by safeguarded Newton on the
+ * equation itself.
+ */
+static double bjt_solve_vbc(double a, double b, double s)
+{
+	if (b == 0.0 || !isfinite(a))
+		return a;
+	/* Reverse biased by 40 n Vt or more: expm1 is -1 to the last bit. */
+	if (a + b < -40.0 * s)
+		return a + b;
+	if (a + b > 8.0 * s) {
+		double u = s * log1p(a / b);
+		for (int it = 0; it < 100; it++) {
+			double un = s * log1p((a - u) / b);
+			if (!(fabs(un - u) > 1e-16 * fabs(un))) {
+				u = un;
+				break;
+			}
+			u = un;
+		}
+		if (a - u + b > 4.0 * s && isfinite(u))
+			return u;
+	}
+	double lo, hi;
+	if (a >= 0.0) {
+		/* f(0) = 0 <= A, and u >= 0 gives B expm1(u/s) <= A. */
+		lo = 0.0;
+		hi = fmin(a, s * log1p(a / b));
+	} else {
+		/* f(A) = A + B expm1(A/s) < A and f(0) = 0 > A. */
+		lo = a;
+		hi = 0.0;
+	}
+	double q[2] = { b, s }, u;
+	if (model_invert(bjt_vbc_lhs, bjt_vbc_dlhs, q, a, lo, hi, &u) != 0)
+		return NAN;
+	return u;
+}
+
+/* The transistor K at base-emitter voltage T. */
+static struct bjt_state bjt_at(const struct bjt_k *k, double t)
+{
+	struct bjt_state st;
+	st.vbe = t;
+	double a = expm1(t / k->s);
+	if (!isfinite(a)) {
+		/* Beyond the exponential's range: every current unbounded. */
+		st.vbc = st.ib = st.ic = st.ie = st.vb = INFINITY;
+		st.dib = st.dvb = INFINITY;
+		return st;
+	}
+	double ap = k->is * exp(t / k->s) / k->s; /* d(Is a)/dVBE */
+	double big_a = t - k->vcc + k->is * a * k->k1;
+	double b = k->is * k->k2;
+	double u = bjt_solve_vbc(big_a, b, k->s);
+	double c = expm1(u / k->s);
+	double gp = k->is * exp(u / k->s) / k->s; /* d(Is c)/dVBC */
+	st.vbc = u;
+	st.ic = k->is * (a - c) - k->is / k->br * c;
+	st.ib = k->is / k->bf * a + k->is / k->br * c;
+	st.ie = st.ic + st.ib;
+	st.vb = t + k->re * st.ie;
+	/* dVBC/dVBE from the implicit equation, then the chain rule. */
+	double du = (1.0 + ap * k->k1) / (1.0 + gp * k->k2);
+	if (b == 0.0)
+		du = 1.0 + ap * k->k1;
+	st.dib = ap / k->bf + gp / k->br * du;
+	double die = ap * (1.0 + 1.0 / k->bf) - gp * du;
+	st.dvb = 1.0 + k->re * die;
+	return st;
+}
+
+/* VB at VBE = T for Q = P (the model's own parameters). */
+static double bjt_vb_of(const double *p, double t)
+{
+	struct bjt_k k = bjt_constants(p);
+	return bjt_at(&k, t).vb;
+}
+
+/* dVB/dVBE. */
+static double bjt_dvb_of(const double *p, double t)
+{
+	struct bjt_k k = bjt_constants(p);
+	return bjt_at(&k, t).dvb;
+}
+
+/* IB at VBE = T. */
+static double bjt_ib_of(const double *p, double t)
+{
+	struct bjt_k k = bjt_constants(p);
+	return bjt_at(&k, t).ib;
+}
+
+/* dIB/dVBE. */
+static double bjt_dib_of(const double *p, double t)
+{
+	struct bjt_k k = bjt_constants(p);
+	return bjt_at(&k, t).dib;
+}
+
+/*
+ * The VBE at which F (increasing in VBE) equals TARGET, into *T: a bracket
+ * grown from GUESS by doubling steps, then safeguarded Newton.
+ */
+static int bjt_invert(double (*f)(const double *, double),
+                      double (*df)(const double *, double), const double *p,
+                      double target, double guess, double *t)
+{
+	double s = p[BJT_N] * diode_thermal_voltage(p[BJT_TEMP]);
+	double lo = guess - s, hi = guess + s;
+	for (int k = 0; k < 60 && !(f(p, lo) <= target); k++)
+		lo -= (guess - lo);
+	for (int k = 0; k < 60 && !(f(p, hi) >= target); k++)
+		hi += (hi - guess);
+	return model_invert(f, df, p, target, lo, hi, t);
+}
+
+/* True when ST's collector junction is reverse biased by 40 n Vt or more:
+ * exp(VBC / n Vt) - 1 is then -1 to the last bit (the active region). */
+static bool bjt_is_active(const struct bjt_k *k, const struct bjt_state *st)
+{
+	return st->vbc < -40.0 * k->s;
+}
+
+/*
+ * The transistor at base voltage V.  In the active region c = -1 exactly,
+ * so VB = VBE + RE (Is (1 + 1/betaF) a + Is): a Shockley junction behind
+ * RE, solved in closed form (junction.h).  When that puts the collector
+ * junction within 40 n Vt of conducting, the stage is near or in
+ * saturation and VB(VBE) is inverted by safeguarded Newton; the active
+ * answer bounds it from below, as the base-collector junction only takes
+ * emitter current away.
+ */
+static int bjt_at_vb(const double *p, double v, struct bjt_state *st)
+{
+	if (!isfinite(v))
+		return -1;
+	struct bjt_k k = bjt_constants(p);
+	double t;
+	if (k.re > 0.0) {
+		struct junction_result jr = junction_solve_shockley(
+		        k.is * (1.0 + 1.0 / k.bf), k.s, v - k.re * k.is, k.re, 1e-15);
+		t = jr.vj;
+	} else {
+		t = v;
+	}
+	if (isfinite(t)) {
+		*st = bjt_at(&k, t);
+		if (bjt_is_active(&k, st))
+			return isfinite(st->ib) && isfinite(st->vb) ? 0 : -1;
+	}
+	double guess = isfinite(t) ? t : v;
+	if (bjt_invert(bjt_vb_of, bjt_dvb_of, p, v, guess, &t) != 0)
+		return -1;
+	*st = bjt_at(&k, t);
+	return isfinite(st->ib) && isfinite(st->vb) ? 0 : -1;
 }
 
 /* Base current at base voltage V. */
 static double bjt_current(const double *p, double v)
 {
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.current(d, v);
+	struct bjt_state st;
+	if (bjt_at_vb(p, v, &st) != 0)
+		return v > 0.0 ? INFINITY : NAN;
+	return st.ib;
 }
 
 /* dIB/dVB. */
 static double bjt_conductance(const double *p, double v)
 {
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.conductance(d, v);
+	struct bjt_state st;
+	if (bjt_at_vb(p, v, &st) != 0)
+		return NAN;
+	return st.dib / st.dvb;
+}
+
+/*
+ * The transistor at base current I: IB(VBE) rises strictly from
+ * -Is (1/betaF + 1/betaR) (both junctions reverse biased) without bound.
+ */
+static int bjt_at_ib(const double *p, double i, struct bjt_state *st)
+{
+	double is = p[BJT_IS];
+	if (!(i > -is * (1.0 / p[BJT_BETA] + 1.0 / p[BJT_BETAR])) || !isfinite(i))
+		return -1;
+	struct bjt_k k = bjt_constants(p);
+	/* In the active region IB = (Is/betaF) a - Is/betaR: a closed form. */
+	double guess = k.s * log1p(k.bf * (i + is / k.br) / is);
+	if (isfinite(guess)) {
+		*st = bjt_at(&k, guess);
+		if (bjt_is_active(&k, st))
+			return 0;
+	}
+	double t;
+	if (bjt_invert(bjt_ib_of, bjt_dib_of, p, i, isfinite(guess) ? guess : 0.0,
+	               &t) != 0)
+		return -1;
+	*st = bjt_at(&k, t);
+	return 0;
 }
 
 /* Base voltage at base current I. */
 static int bjt_voltage(const double *p, double i, double *v)
 {
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.voltage(d, i, v);
+	struct bjt_state st;
+	if (bjt_at_ib(p, i, &st) != 0 || !isfinite(st.vb))
+		return -1;
+	*v = st.vb;
+	return 0;
 }
 
 /* dVB/dIB. */
 static double bjt_resistance(const double *p, double i)
 {
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.resistance(d, i);
-}
-
-/* The reflected emitter resistance. */
-static double bjt_series_resistance(const double *p)
-{
-	return (p[BJT_BETA] + 1.0) * p[BJT_RE];
-}
-
-/* Base current at base-emitter voltage VJ. */
-static double bjt_intrinsic_current(const double *p, double vj)
-{
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.intrinsic_current(d, vj);
-}
-
-/* dIB/dVBE. */
-static double bjt_intrinsic_conductance(const double *p, double vj)
-{
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.intrinsic_conductance(d, vj);
-}
-
-/* VBE at base current I. */
-static double bjt_intrinsic_voltage(const double *p, double i)
-{
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.intrinsic_voltage(d, i);
-}
-
-/* Junction limiting of the base-emitter junction. */
-static double bjt_limit(const double *p, double vnew, double vold)
-{
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	return model_diode.limit(d, vnew, vold);
-}
-
-/* The base-emitter junction seen from the base: Is / beta and n Vt
- * behind the reflected emitter resistance. */
-static int bjt_shockley(const double *p, struct model_shockley *out)
-{
-	out->is = p[BJT_IS] / p[BJT_BETA];
-	out->nvt = p[BJT_N] * diode_thermal_voltage(p[BJT_TEMP]);
-	out->rs = (p[BJT_BETA] + 1.0) * p[BJT_RE];
-	return 0;
+	struct bjt_state st;
+	if (bjt_at_ib(p, i, &st) != 0)
+		return NAN;
+	return st.dvb / st.dib;
 }
 
 /*
- * From a little reverse bias to the base voltage that drives the collector
- * current to twice its saturation value (or 1 A), kept below 600 n Vt so
- * that the junction's exponential stays finite across the range.
+ * From a little reverse bias to the base voltage at which the collector
+ * would carry twice what its circuit can (or 1 A), with VBE kept below
+ * 600 n Vt so that the junction's exponential stays finite.
  */
 static void bjt_range(const double *p, double *vmin, double *vmax)
 {
-	double d[DIODE_NPARAMS];
-	bjt_to_diode(p, d);
-	double beta = p[BJT_BETA];
-	double ib = 1.0 / beta;
-	double rl = p[BJT_RC] + p[BJT_RE];
-	if (rl > 0.0 && p[BJT_VCC] > 0.0)
-		ib = fmin(ib, 2.0 * p[BJT_VCC] / (beta * rl));
-	double v1;
-	if (model_diode.voltage(d, ib, &v1) != 0 || !isfinite(v1))
-		v1 = 1.0;
-	double cap = 600.0 * p[BJT_N] * diode_thermal_voltage(p[BJT_TEMP]);
-	*vmax = fmin(v1, cap);
+	struct bjt_k k = bjt_constants(p);
+	double ic = 1.0, rl = k.rc + k.re;
+	if (rl > 0.0 && k.vcc > 0.0)
+		ic = fmin(ic, 2.0 * k.vcc / rl);
+	double t = fmin(k.s * log1p(ic / k.is), 600.0 * k.s);
+	double v1 = bjt_at(&k, t).vb;
+	*vmax = isfinite(v1) ? v1 : t;
 	*vmin = -0.25 * fmin(*vmax, 1.0);
+}
+
+/* VCE at the state ST (magnitude for a pnp). */
+static double bjt_vce(const struct bjt_k *k, const struct bjt_state *st)
+{
+	return k->vcc - st->ic * k->rc - st->ie * k->re;
+}
+
+/* The power the transistor dissipates: IC VCE + IB VBE. */
+static double bjt_power(const double *p, const struct source *src, double v,
+                        double i)
+{
+	(void)src;
+	(void)i;
+	struct bjt_state st;
+	if (bjt_at_vb(p, v, &st) != 0)
+		return NAN;
+	struct bjt_k k = bjt_constants(p);
+	return st.ic * bjt_vce(&k, &st) + st.ib * st.vbe;
 }
 
 /* Append a labelled value to OUT. */
@@ -153,49 +361,51 @@ static void bjt_put(struct model_extra *out, const char *key,
 		out->v[out->n++] = (struct model_extra_value){ key, label, kind, value };
 }
 
-/* The collector side at base voltage V and base current I. */
+/* The collector side at base voltage V (base current I on the curve). */
 static int bjt_secondary_common(const double *p, double v, double i,
                                 struct model_extra *out, bool pnp)
 {
-	double beta = p[BJT_BETA], re = p[BJT_RE], rc = p[BJT_RC];
-	double vcc = p[BJT_VCC], vsat = p[BJT_VCESAT];
-	double ic = beta * i, ie = (beta + 1.0) * i;
-	double vce = vcc - ic * rc - ie * re;
+	(void)i;
+	struct bjt_state st;
+	if (bjt_at_vb(p, v, &st) != 0)
+		return -1;
+	struct bjt_k k = bjt_constants(p);
+	double vce = bjt_vce(&k, &st);
+	bool be = st.vbe > 0.0, bc = st.vbc > 0.0;
 	out->warn = false;
 	out->note[0] = '\0';
-	if (!(i > 0.0)) {
-		out->region = "cut off";
-		ic = 0.0;
-		ie = i;
-		vce = vcc - ie * re;
-		snprintf(out->note, sizeof out->note,
-		         "the base-emitter junction is not forward biased: no "
-		         "collector current");
-	} else if (vce < vsat) {
-		out->region = "saturated";
-		out->warn = true;
-		ic = (vcc - vsat - i * re) / (rc + re);
-		if (!(ic > 0.0))
-			ic = 0.0;
-		ie = ic + i;
-		vce = vsat;
-		snprintf(out->note, sizeof out->note,
-		         "saturated: the supply cannot carry beta x IB; IC is set by "
-		         "RC and RE, and the base loop's active-region form makes "
-		         "these values approximate");
-	} else {
+	if (be && !bc) {
 		out->region = "active";
+	} else if (be && bc) {
+		out->region = "saturation";
+		snprintf(out->note, sizeof out->note,
+		         "both junctions conduct (%s %.4g V): the collector circuit "
+		         "cannot take beta x IB, so IC/IB = %.4g is below beta = %.4g",
+		         pnp ? "VCB" : "VBC", st.vbc, st.ic / st.ib, k.bf);
+	} else if (!be && !bc) {
+		out->region = "cut off";
+		snprintf(out->note, sizeof out->note,
+		         "neither junction is forward biased: only leakage flows "
+		         "(IC = %.3g A)", st.ic);
+	} else {
+		out->region = "reverse active";
+		out->warn = true;
+		snprintf(out->note, sizeof out->note,
+		         "only the base-collector junction conducts: the transistor "
+		         "runs backwards with gain betaR; check the supply and the "
+		         "bias");
 	}
-	bjt_put(out, "collector_current", "IC", QTY_CURRENT, ic);
-	bjt_put(out, "emitter_current", "IE", QTY_CURRENT, ie);
+	bjt_put(out, "collector_current", "IC", QTY_CURRENT, st.ic);
+	bjt_put(out, "emitter_current", "IE", QTY_CURRENT, st.ie);
 	bjt_put(out, pnp ? "emitter_collector_voltage" : "collector_emitter_voltage",
 	        pnp ? "VEC" : "VCE", QTY_VOLTAGE, vce);
 	bjt_put(out, pnp ? "emitter_base_voltage" : "base_emitter_voltage",
-	        pnp ? "VEB" : "VBE", QTY_VOLTAGE, v - ie * re);
-	bjt_put(out, "emitter_voltage", "VE", QTY_VOLTAGE, ie * re);
-	bjt_put(out, "collector_voltage", "VC", QTY_VOLTAGE, vcc - ic * rc);
-	bjt_put(out, "collector_power", "PC", QTY_POWER, ic * vce);
-	bjt_put(out, "forced_gain", "IC/IB", QTY_NUMBER, i > 0.0 ? ic / i : NAN);
+	        pnp ? "VEB" : "VBE", QTY_VOLTAGE, st.vbe);
+	bjt_put(out, "emitter_voltage", "VE", QTY_VOLTAGE, st.ie * k.re);
+	bjt_put(out, "collector_voltage", "VC", QTY_VOLTAGE, k.vcc - st.ic * k.rc);
+	bjt_put(out, "collector_power", "PC", QTY_POWER, st.ic * vce);
+	bjt_put(out, "forced_gain", "IC/IB", QTY_NUMBER,
+	        st.ib != 0.0 ? st.ic / st.ib : NAN);
 	return 0;
 }
 
@@ -217,22 +427,31 @@ static int bjt_pnp_secondary(const double *p, const struct source *src,
 
 static const struct model_param bjt_params[BJT_NPARAMS] = {
 	[BJT_IS] = { "saturation_current", "Is", QTY_CURRENT, NAN, 0.0, 1.0, true,
-	             false, true, "transistor saturation current (IC = Is e^(VBE/nVt))" },
+	             false, true,
+	             "transport saturation current (IC = Is e^(VBE/nVt), active)" },
 	[BJT_N] = { "ideality", "n", QTY_NUMBER, 1.0, 0.0, 100.0, true, false,
-	            false, "base-emitter ideality factor" },
+	            false, "ideality factor of both junctions" },
 	[BJT_BETA] = { "current_gain", "beta", QTY_NUMBER, NAN, 0.0, 1e6, true,
-	               false, true, "DC current gain IC/IB in the active region" },
+	               false, true, "forward current gain IC/IB when active" },
 	[BJT_RE] = { "emitter_resistance", "RE", QTY_RESISTANCE, 0.0, 0.0, 1e9,
 	             false, false, true, "emitter resistor to the rail, 0 for none" },
 	[BJT_RC] = { "collector_resistance", "RC", QTY_RESISTANCE, 0.0, 0.0, 1e9,
 	             false, false, true, "collector resistor from the supply" },
 	[BJT_VCC] = { "supply_voltage", "VCC", QTY_VOLTAGE, NAN, 0.0, 1e4, false,
 	              false, false, "collector supply (magnitude)" },
-	[BJT_VCESAT] = { "saturation_voltage", "VCEsat", QTY_VOLTAGE, 0.2, 0.0,
-	                 10.0, false, false, false,
-	                 "VCE below which the transistor is saturated" },
+	[BJT_BETAR] = { "reverse_current_gain", "betaR", QTY_NUMBER, 1.0, 0.0,
+	                1e6, true, false, true,
+	                "reverse current gain, sets VCE(sat) in saturation" },
 	[BJT_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15, 1000.0,
 	               true, false, false, "junction temperature in degrees Celsius" },
+};
+
+/* Keys the model no longer takes, and why. */
+static const struct model_retired bjt_retired[] = {
+	{ "saturation_voltage",
+	  "VCE(sat) now follows from both junctions (Ebers-Moll): remove the "
+	  "line, and give reverse_current_gain to shape saturation" },
+	{ NULL, NULL },
 };
 
 const struct model_type model_npn = {
@@ -247,13 +466,9 @@ const struct model_type model_npn = {
 	.voltage = bjt_voltage,
 	.resistance = bjt_resistance,
 	.range = bjt_range,
-	.series_resistance = bjt_series_resistance,
-	.intrinsic_current = bjt_intrinsic_current,
-	.intrinsic_conductance = bjt_intrinsic_conductance,
-	.limit = bjt_limit,
-	.shockley = bjt_shockley,
-	.intrinsic_voltage = bjt_intrinsic_voltage,
 	.secondary = bjt_npn_secondary,
+	.power = bjt_power,
+	.retired = bjt_retired,
 };
 
 const struct model_type model_pnp = {
@@ -268,11 +483,7 @@ const struct model_type model_pnp = {
 	.voltage = bjt_voltage,
 	.resistance = bjt_resistance,
 	.range = bjt_range,
-	.series_resistance = bjt_series_resistance,
-	.intrinsic_current = bjt_intrinsic_current,
-	.intrinsic_conductance = bjt_intrinsic_conductance,
-	.limit = bjt_limit,
-	.shockley = bjt_shockley,
-	.intrinsic_voltage = bjt_intrinsic_voltage,
 	.secondary = bjt_pnp_secondary,
+	.power = bjt_power,
+	.retired = bjt_retired,
 };

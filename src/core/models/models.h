@@ -96,7 +96,7 @@ enum bjt_param {
 	BJT_RE,         /* emitter_resistance, ohm */
 	BJT_RC,         /* collector_resistance, ohm */
 	BJT_VCC,        /* supply_voltage, V */
-	BJT_VCESAT,     /* saturation_voltage, V */
+	BJT_BETAR,      /* reverse_current_gain */
 	BJT_TEMP,       /* temperature, degC */
 	BJT_NPARAMS
 };
