@@ -90,6 +90,12 @@ static void pane_header(struct app *a, int row, int col, int w, const char *titl
 {
 	char buf[128];
 	snprintf(buf, sizeof buf, "%s %s ", app_unicode(a) ? "\xE2\x94\x80" : "-", title);
+	/* Too wide: the parenthesis goes, whole, rather than a cut word. */
+	char *paren = strstr(buf, " (");
+	if (render_text_width(buf) - 1 > w && paren != NULL) {
+		paren[0] = ' ';
+		paren[1] = '\0';
+	}
 	int n = term_text(&a->term, row, col, buf, w, TS_HEADER);
 	for (int k = n; k < w; k++)
 		term_put(&a->term, row, col + k, app_unicode(a) ? 0x2500 : '-', TS_HEADER);
@@ -558,6 +564,10 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 		snprintf(ctitle, sizeof ctitle, "Convergence (%zu projection%s%s)",
 		         nt > 0 ? nt - 1 : 0, nt == 2 ? "" : "s",
 		         a->running ? ", running" : "");
+		/* Narrow: the count by the table's own column name. */
+		if (render_text_width(ctitle) + 3 > w)
+			snprintf(ctitle, sizeof ctitle, "Convergence (k = %zu%s)",
+			         nt > 0 ? nt - 1 : 0, a->running ? ", running" : "");
 		pane_header(a, y++, x, w, ctitle);
 		pane_conv_table(a, y, x, w, end - y);
 	}
