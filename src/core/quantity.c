@@ -58,6 +58,13 @@ static const struct qty_symbol qty_symbols[] = {
 	{ "%", QTY_PERCENT, 0 },
 	{ "F", QTY_CAPACITANCE, 0 },
 	{ "H", QTY_INDUCTANCE, 0 },
+	{ "K/W", QTY_THERMAL_RES, 0 },
+	{ "\xc2\xb0\x43/W", QTY_THERMAL_RES, 0 }, /* U+00B0, C/W */
+	{ "degC/W", QTY_THERMAL_RES, 0 },
+	{ "C/W", QTY_THERMAL_RES, 0 },
+	{ "V/K", QTY_TEMPCO, 0 },
+	{ "V/\xc2\xb0\x43", QTY_TEMPCO, 0 }, /* V/U+00B0 C */
+	{ "V/degC", QTY_TEMPCO, 0 },
 };
 
 /* An SI prefix as typed and its power of ten. */
@@ -76,17 +83,19 @@ static const struct qty_prefix qty_prefixes[] = {
 
 static const char *const qty_units[QTY_KIND_COUNT] = {
 	"", "V", "A", "\xce\xa9", "S", "W", "\xc2\xb0\x43", "eV", "W/K", "%",
-	"F", "H",
+	"F", "H", "K/W", "V/K",
 };
 
 static const char *const qty_units_ascii[QTY_KIND_COUNT] = {
-	"", "V", "A", "ohm", "S", "W", "degC", "eV", "W/K", "%", "F", "H",
+	"", "V", "A", "ohm", "S", "W", "degC", "eV", "W/K", "%", "F", "H", "K/W",
+	"V/K",
 };
 
 static const char *const qty_nouns[QTY_KIND_COUNT] = {
 	"a number", "a voltage", "a current", "a resistance", "a conductance",
 	"a power", "a temperature", "an energy", "a thermal conductance",
-	"a percentage", "a capacitance", "an inductance",
+	"a percentage", "a capacitance", "an inductance", "a thermal resistance",
+	"a temperature coefficient",
 };
 
 /* Return the canonical unit symbol of KIND. */

@@ -24,6 +24,8 @@ enum qty_kind {
 	QTY_PERCENT,      /* % (value stored as a fraction: "5%" -> 0.05) */
 	QTY_CAPACITANCE,  /* F */
 	QTY_INDUCTANCE,   /* H */
+	QTY_THERMAL_RES,  /* K/W (junction-to-ambient thermal resistance) */
+	QTY_TEMPCO,       /* V/K (temperature coefficient of a voltage) */
 	QTY_KIND_COUNT
 };
 
@@ -54,7 +56,9 @@ enum qty_status {
  * - prefixes: f p n u µ (U+00B5 or U+03BC) m k M G T.  Not allowed for
  *   QTY_NUMBER, QTY_TEMPERATURE or QTY_PERCENT.
  * - units: V; A; Ω (U+03A9 or U+2126), ohm, ohms, R; S; W; °C, ℃ (U+2103),
- *   degC, C, K (kelvin, converted: 300 K -> 26.85); eV; W/K; %.
+ *   degC, C, K (kelvin, converted: 300 K -> 26.85); eV; W/K; %; K/W,
+ *   °C/W, degC/W, C/W (a thermal resistance: a kelvin and a degree
+ *   Celsius are the same step); V/K, V/°C, V/degC (so "-2 mV/K").
  * - "4k7" = 4.7k, "4R7" = 4.7 Ω: a prefix or R between integer digits
  *   stands for the decimal point.
  * - QTY_PERCENT reads the number as percent with or without the "%" sign:

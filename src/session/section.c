@@ -27,6 +27,8 @@ static const char *section_noun(enum qty_kind kind)
 	case QTY_PERCENT: return "a percentage";
 	case QTY_CAPACITANCE: return "a capacitance";
 	case QTY_INDUCTANCE: return "an inductance";
+	case QTY_THERMAL_RES: return "a thermal resistance";
+	case QTY_TEMPCO: return "a temperature coefficient";
 	case QTY_NUMBER:
 	case QTY_KIND_COUNT:
 	default: return "a number";
