@@ -39,6 +39,14 @@
  * "pnp" is the mirror image, every quantity a magnitude measured from the
  * supply rail the emitter returns to: V is the drop from that rail to the
  * base, I the current out of the base.
+ *
+ * Temperature.  With a reference temperature Is is stated there and carried
+ * to the junction temperature by the diode's law (diode.c: band gap and
+ * exponent, silicon defaults), which gives VBE at a fixed collector current
+ * the familiar drift of about -2 mV/K.  Self-heating (thermal.h) needs it:
+ * the heat is the transistor's own IC VCE + IB VBE (bjt_power; the emitter
+ * and collector resistors are outside the package), and the junction
+ * temperature is solved.
  */
 #include <math.h>
 #include <stdio.h>
@@ -68,7 +76,10 @@ struct bjt_state {
 static struct bjt_k bjt_constants(const double *p)
 {
 	struct bjt_k k;
-	k.is = p[BJT_IS];
+	k.is = p[BJT_TREF] > -273.15
+	       ? diode_scaled_saturation(p[BJT_IS], p[BJT_TEMP], p[BJT_TREF],
+	                                 p[BJT_EG], p[BJT_XTI], p[BJT_N])
+	       : p[BJT_IS];
 	k.s = p[BJT_N] * diode_thermal_voltage(p[BJT_TEMP]);
 	k.bf = p[BJT_BETA];
 	k.br = p[BJT_BETAR];
@@ -444,7 +455,33 @@ static const struct model_param bjt_params[BJT_NPARAMS] = {
 	                "reverse current gain, sets VCE(sat) in saturation" },
 	[BJT_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15, 1000.0,
 	               true, false, false, "junction temperature in degrees Celsius" },
+	[BJT_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE, -273.15,
+	               -273.15, 1000.0, false, false, false,
+	               "temperature Is was stated at; 0 K (default): no scaling" },
+	[BJT_EG] = { "bandgap", "Eg", QTY_ENERGY_EV, 1.12, 0.0, 10.0, false, false,
+	             false, "band gap for Is scaling, 1.12 eV for silicon" },
+	[BJT_XTI] = { "saturation_exponent", "m", QTY_NUMBER, 3.0, 0.0, 10.0,
+	              false, false, false,
+	              "temperature exponent of Is, 3 for an ideal junction" },
+	/* 150 degC: the usual rating of silicon transistors in plastic
+	 * packages (common practice; metal cans often 175-200 degC). */
+	MODEL_THERMAL_PARAMS(BJT_THETA, BJT_TAMB, BJT_TJMAX, 150.0,
+	                     "rated maximum junction temperature (150 degC: "
+	                     "plastic silicon parts, common practice)"),
 };
+
+/* Self-heating needs Is at a stated temperature to carry it to Tj. */
+static int bjt_validate(const double *p, char *err, size_t errlen)
+{
+	if (p[BJT_THETA] > 0.0 && !(p[BJT_TREF] > -273.15)) {
+		snprintf(err, errlen,
+		         "reference_temperature: with thermal_resistance the junction "
+		         "temperature is solved, so give the temperature "
+		         "saturation_current was stated at (say 25 degC)");
+		return -1;
+	}
+	return model_thermal_check(p, BJT_THETA, BJT_TAMB, BJT_TJMAX, err, errlen);
+}
 
 /* Keys the model no longer takes, and why. */
 static const struct model_retired bjt_retired[] = {
@@ -467,6 +504,7 @@ const struct model_type model_npn = {
 	.resistance = bjt_resistance,
 	.range = bjt_range,
 	.secondary = bjt_npn_secondary,
+	.validate = bjt_validate,
 	.power = bjt_power,
 	.retired = bjt_retired,
 };
@@ -484,6 +522,7 @@ const struct model_type model_pnp = {
 	.resistance = bjt_resistance,
 	.range = bjt_range,
 	.secondary = bjt_pnp_secondary,
+	.validate = bjt_validate,
 	.power = bjt_power,
 	.retired = bjt_retired,
 };

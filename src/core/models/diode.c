@@ -22,6 +22,11 @@
  * ch. 1 (intrinsic density) and ch. 2 (p-n junction current)).  Eg is
  * taken as constant over the range; 1.12 eV is silicon at room
  * temperature (Sze & Ng 2007, ch. 1).
+ *
+ * Self-heating.  With a thermal resistance the junction temperature is not
+ * given but solved (thermal.h): the curve is the one at that temperature,
+ * so Is must be stated at a reference temperature for the law above to
+ * carry it there; the validator asks for one.
  */
 #include <math.h>
 #include <stdio.h>
@@ -175,7 +180,26 @@ static const struct model_param diode_params[DIODE_NPARAMS] = {
 	[DIODE_XTI] = { "saturation_exponent", "m", QTY_NUMBER, 3.0, 0.0, 10.0,
 	                false, false, false,
 	                "temperature exponent of Is, 3 for an ideal junction" },
+	/* 150 degC: the usual rating of silicon signal and rectifier diodes
+	 * in plastic packages (common practice; glass parts often 175-200). */
+	MODEL_THERMAL_PARAMS(DIODE_THETA, DIODE_TAMB, DIODE_TJMAX, 150.0,
+	                     "rated maximum junction temperature (150 degC: "
+	                     "silicon diodes, common practice)"),
 };
+
+/* Self-heating needs Is at a stated temperature to carry it to Tj. */
+static int diode_validate(const double *p, char *err, size_t errlen)
+{
+	if (p[DIODE_THETA] > 0.0 && !(p[DIODE_TREF] > -ZERO_CELSIUS)) {
+		snprintf(err, errlen,
+		         "reference_temperature: with thermal_resistance the junction "
+		         "temperature is solved, so give the temperature "
+		         "saturation_current was stated at (say 25 degC)");
+		return -1;
+	}
+	return model_thermal_check(p, DIODE_THETA, DIODE_TAMB, DIODE_TJMAX, err,
+	                           errlen);
+}
 
 const struct model_type model_diode = {
 	.name = "diode",
@@ -188,7 +212,7 @@ const struct model_type model_diode = {
 	.voltage = diode_voltage,
 	.resistance = diode_resistance,
 	.range = diode_range,
-	.validate = NULL,
+	.validate = diode_validate,
 	.series_resistance = diode_series_resistance,
 	.intrinsic_current = diode_intrinsic_current,
 	.intrinsic_conductance = diode_intrinsic_conductance,

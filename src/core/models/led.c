@@ -8,7 +8,16 @@
  *
  * Presets per colour family fill typical values (see led_presets below).
  * forward_voltage is taken at the stated temperature: changing the
- * temperature moves the knee's shape (n Vt), not the stated point.
+ * temperature moves the knee's shape (n Vt), not the stated point --
+ * unless a temperature coefficient is given, the way LED datasheets state
+ * the drift (dVf/dT at the test current, typically -1.5 to -4 mV/K;
+ * common practice): then the stated point itself moves,
+ *
+ *     Vf(T) = Vf + tc (T - T0),   T0 = reference_temperature.
+ *
+ * With a thermal resistance (thermal.h) T is the solved junction
+ * temperature; all the electrical power is taken as heat (the light
+ * carried away is neglected, which errs on the hot side).
  */
 #include <math.h>
 #include <stdio.h>
@@ -16,17 +25,28 @@
 
 #include "models.h"
 
+/* The forward voltage at the test current at the junction temperature. */
+static double led_vf(const double *p)
+{
+	if (p[LED_TC] == 0.0)
+		return p[LED_VF];
+	return p[LED_VF] + p[LED_TC] * (p[LED_TEMP] - p[LED_TREF]);
+}
+
 /* The diode parameters equivalent to the LED parameters P. */
 static void led_to_diode(const double *p, double *d)
 {
 	double nvt = p[LED_N] * diode_thermal_voltage(p[LED_TEMP]);
-	d[DIODE_IS] = p[LED_IF] / expm1((p[LED_VF] - p[LED_IF] * p[LED_RS]) / nvt);
+	d[DIODE_IS] = p[LED_IF] / expm1((led_vf(p) - p[LED_IF] * p[LED_RS]) / nvt);
 	d[DIODE_N] = p[LED_N];
 	d[DIODE_RS] = p[LED_RS];
 	d[DIODE_TEMP] = p[LED_TEMP];
 	d[DIODE_TREF] = -273.15; /* Is is derived at the junction temperature */
 	d[DIODE_EG] = 0.0;
 	d[DIODE_XTI] = 0.0;
+	d[DIODE_THETA] = 0.0;
+	d[DIODE_TAMB] = p[LED_TAMB];
+	d[DIODE_TJMAX] = p[LED_TJMAX];
 }
 
 /* The saturation current the stated point implies (for the side pane). */
@@ -124,10 +144,18 @@ static void led_range(const double *p, double *vmin, double *vmax)
 	*vmin = -0.25 * *vmax;
 }
 
-/* The stated point must leave a positive junction voltage. */
-static int led_validate(const double *p, char *err, size_t errlen)
+/* The stated point at the junction temperature of P (see led_validate). */
+static int led_validate_at(const double *p, char *err, size_t errlen)
 {
-	double vj = p[LED_VF] - p[LED_IF] * p[LED_RS];
+	double vf = led_vf(p);
+	double vj = vf - p[LED_IF] * p[LED_RS];
+	if (!(vj > 0.0) && p[LED_TC] != 0.0) {
+		snprintf(err, errlen,
+		         "temperature_coefficient: %.4g V/K leaves %.4g V at %.4g degC, "
+		         "below the %.4g V series_resistance drops at the test current",
+		         p[LED_TC], vf, p[LED_TEMP], p[LED_IF] * p[LED_RS]);
+		return -1;
+	}
 	if (!(vj > 0.0)) {
 		snprintf(err, errlen,
 		         "series_resistance: %.4g ohm drops %.4g V at the test current, "
@@ -140,10 +168,31 @@ static int led_validate(const double *p, char *err, size_t errlen)
 		snprintf(err, errlen,
 		         "forward_voltage: %.4g V is out of reach for ideality %.4g "
 		         "(the implied saturation current underflows); raise ideality",
-		         p[LED_VF], p[LED_N]);
+		         vf, p[LED_N]);
 		return -1;
 	}
 	return 0;
+}
+
+/*
+ * The stated point must leave a positive junction voltage: at the given
+ * temperature, or with a thermal resistance at the ambient and at the
+ * maximum junction temperature, the ends of the range the junction
+ * temperature is solved in.
+ */
+static int led_validate(const double *p, char *err, size_t errlen)
+{
+	if (p[LED_THETA] <= 0.0)
+		return led_validate_at(p, err, errlen);
+	if (model_thermal_check(p, LED_THETA, LED_TAMB, LED_TJMAX, err, errlen))
+		return -1;
+	model_values q;
+	memcpy(q, p, sizeof q);
+	q[LED_TEMP] = p[LED_TAMB];
+	if (led_validate_at(q, err, errlen) != 0)
+		return -1;
+	q[LED_TEMP] = p[LED_TJMAX];
+	return led_validate_at(q, err, errlen);
 }
 
 /*
@@ -213,6 +262,17 @@ static const struct model_param led_params[LED_NPARAMS] = {
 	             false, false, true, "series resistance of die and leads" },
 	[LED_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15, 1000.0,
 	               true, false, false, "junction temperature in degrees Celsius" },
+	[LED_TC] = { "temperature_coefficient", "dVf/dT", QTY_TEMPCO, 0.0, -1.0,
+	             1.0, false, false, false,
+	             "dVf/dT at the test current; 0: Vf stays put (-2 mV/K typical)" },
+	[LED_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE, 25.0,
+	               -273.15, 1000.0, true, false, false,
+	               "temperature forward_voltage is stated at" },
+	/* 100 degC: a common rating of indicator LEDs (from memory of common
+	 * datasheets; power LEDs are often rated 125 to 150 degC). */
+	MODEL_THERMAL_PARAMS(LED_THETA, LED_TAMB, LED_TJMAX, 100.0,
+	                     "rated maximum junction temperature (100 degC: "
+	                     "indicator LEDs, from memory)"),
 };
 
 const struct model_type model_led = {

@@ -1,11 +1,26 @@
 /*
  * model_util.c - helpers the model files share: the inverse of a strictly
- * increasing function, by the kernel's safeguarded Newton-Raphson.
+ * increasing function, by the kernel's safeguarded Newton-Raphson; and the
+ * self-heating keys' rules.
  */
 #include <math.h>
+#include <stdio.h>
 
 #include "../kernel.h"
 #include "models.h"
+
+/* The shared self-heating rules (see models.h). */
+int model_thermal_check(const double *p, int theta, int tamb, int tjmax,
+                        char *err, size_t errlen)
+{
+	if (p[theta] > 0.0 && !(p[tjmax] > p[tamb])) {
+		snprintf(err, errlen,
+		         "maximum_junction_temperature: %.4g degC must lie above "
+		         "ambient_temperature %.4g degC", p[tjmax], p[tamb]);
+		return -1;
+	}
+	return 0;
+}
 
 /* F(x) - target and its Newton step, for model_invert. */
 struct model_invert_ctx {

@@ -30,6 +30,9 @@ enum diode_param {
 	DIODE_TREF,     /* reference_temperature, degC; 0 K = no scaling */
 	DIODE_EG,       /* bandgap, eV */
 	DIODE_XTI,      /* saturation_exponent */
+	DIODE_THETA,    /* thermal_resistance, K/W; 0 = no self-heating */
+	DIODE_TAMB,     /* ambient_temperature, degC (with thermal_resistance) */
+	DIODE_TJMAX,    /* maximum_junction_temperature, degC */
 	DIODE_NPARAMS
 };
 
@@ -50,6 +53,11 @@ enum zener_param {
 	ZENER_N,        /* ideality */
 	ZENER_NB,       /* breakdown_ideality */
 	ZENER_TEMP,     /* temperature, degC */
+	ZENER_TC,       /* temperature_coefficient of Vz, V/K */
+	ZENER_TREF,     /* reference_temperature of Vz, degC */
+	ZENER_THETA,    /* thermal_resistance, K/W; 0 = no self-heating */
+	ZENER_TAMB,     /* ambient_temperature, degC */
+	ZENER_TJMAX,    /* maximum_junction_temperature, degC */
 	ZENER_NPARAMS
 };
 
@@ -60,6 +68,11 @@ enum led_param {
 	LED_N,          /* ideality */
 	LED_RS,         /* series_resistance, ohm */
 	LED_TEMP,       /* temperature, degC */
+	LED_TC,         /* temperature_coefficient of Vf, V/K */
+	LED_TREF,       /* reference_temperature of Vf, degC */
+	LED_THETA,      /* thermal_resistance, K/W; 0 = no self-heating */
+	LED_TAMB,       /* ambient_temperature, degC */
+	LED_TJMAX,      /* maximum_junction_temperature, degC */
 	LED_NPARAMS
 };
 
@@ -98,6 +111,12 @@ enum bjt_param {
 	BJT_VCC,        /* supply_voltage, V */
 	BJT_BETAR,      /* reverse_current_gain */
 	BJT_TEMP,       /* temperature, degC */
+	BJT_TREF,       /* reference_temperature of Is, degC; 0 K = none */
+	BJT_EG,         /* bandgap, eV */
+	BJT_XTI,        /* saturation_exponent */
+	BJT_THETA,      /* thermal_resistance, K/W; 0 = no self-heating */
+	BJT_TAMB,       /* ambient_temperature, degC */
+	BJT_TJMAX,      /* maximum_junction_temperature, degC */
 	BJT_NPARAMS
 };
 
@@ -183,6 +202,30 @@ double diode_thermal_voltage(double temp_c);
  */
 double diode_scaled_saturation(double is_ref, double t_c, double tref_c,
                                double eg_ev, double m, double n);
+
+/*
+ * The self-heating keys of a junction model's table (thermal.h reads them
+ * by key): thermal_resistance, ambient_temperature and
+ * maximum_junction_temperature with default TJMAX and its help line HELP.
+ * THETA, TAMB and TJMAX_I are the model's indices of the three.
+ */
+#define MODEL_THERMAL_PARAMS(THETA, TAMB, TJMAX_I, TJMAX, HELP)                 \
+	[THETA] = { "thermal_resistance", "Rth", QTY_THERMAL_RES, 0.0, 0.0, 1e5,   \
+	            false, false, false,                                           \
+	            "junction-to-ambient thermal resistance; 0: no self-heating" },\
+	[TAMB] = { "ambient_temperature", "Ta", QTY_TEMPERATURE, 25.0, -273.15,    \
+	           1000.0, true, false, false,                                     \
+	           "ambient temperature (used with thermal_resistance)" },         \
+	[TJMAX_I] = { "maximum_junction_temperature", "Tjmax", QTY_TEMPERATURE,    \
+	              TJMAX, -273.15, 1000.0, true, false, false, HELP }
+
+/*
+ * The rules every self-heated junction shares: with a thermal resistance
+ * above 0 the maximum junction temperature must lie above the ambient.
+ * Returns 0, or -1 with a message naming the key in ERR.
+ */
+int model_thermal_check(const double *p, int theta, int tamb, int tjmax,
+                        char *err, size_t errlen);
 
 /*
  * Solve F(X) = TARGET for X in [LO, HI] where F is increasing with

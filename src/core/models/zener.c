@@ -23,9 +23,17 @@
  * Rs depends on Vj0 only through terms of order exp(-Vz/Vt), so a few
  * substitutions settle it to rounding.  rz must exceed the junction's own
  * nb Vt / Iz; the breakdown ideality nb sets how sharp the knee is.
+ *
+ * Temperature.  Datasheets state how Vz drifts at the test current (about
+ * -2 mV/K for low-voltage parts, near zero around 5 to 6 V, positive and
+ * growing above; common practice).  With a temperature coefficient tc
+ * the stated point moves: Vz(T) = Vz + tc (T - T0), T0 the reference
+ * temperature.  With a thermal resistance (thermal.h) T is the solved
+ * junction temperature.
  */
 #include <math.h>
 #include <stdio.h>
+#include <string.h>
 
 #include "../junction.h"
 #include "models.h"
@@ -39,9 +47,18 @@ struct zener_k {
 	double rs;         /* series resistance */
 };
 
+/* The breakdown voltage at the test current at the junction temperature. */
+static double zener_vz(const double *p)
+{
+	if (p[ZENER_TC] == 0.0)
+		return p[ZENER_VZ];
+	return p[ZENER_VZ] + p[ZENER_TC] * (p[ZENER_TEMP] - p[ZENER_TREF]);
+}
+
 /* Derive the constants of P (see the top of the file). */
 static void zener_derive(const double *p, struct zener_k *k)
 {
+	double vz = zener_vz(p);
 	double vt = diode_thermal_voltage(p[ZENER_TEMP]);
 	double iz = p[ZENER_IZT];
 	k->is = p[ZENER_IS];
@@ -49,7 +66,7 @@ static void zener_derive(const double *p, struct zener_k *k)
 	k->a = p[ZENER_NB] * vt;
 	k->rs = p[ZENER_RZ] - k->a / iz;
 	for (int it = 0; it < 6; it++) {
-		k->vj0 = p[ZENER_VZ] - iz * k->rs;
+		k->vj0 = vz - iz * k->rs;
 		k->e0 = exp(-k->vj0 / k->a);
 		k->ir = (iz + k->is * expm1(-k->vj0 / k->nvt)) / -expm1(-k->vj0 / k->a);
 		double gj = k->is / k->nvt * exp(-k->vj0 / k->nvt) + k->ir / k->a;
@@ -59,7 +76,7 @@ static void zener_derive(const double *p, struct zener_k *k)
 		k->rs = rs;
 	}
 	/* Keep Vj0 and Ir consistent with the final Rs: V(-Iz) = -Vz exactly. */
-	k->vj0 = p[ZENER_VZ] - iz * k->rs;
+	k->vj0 = vz - iz * k->rs;
 	k->e0 = exp(-k->vj0 / k->a);
 	k->ir = (iz + k->is * expm1(-k->vj0 / k->nvt)) / -expm1(-k->vj0 / k->a);
 }
@@ -242,26 +259,37 @@ static void zener_range(const double *p, double *vmin, double *vmax)
 {
 	double iz = p[ZENER_IZT];
 	if (zener_voltage(p, -10.0 * iz, vmin) != 0 || !isfinite(*vmin))
-		*vmin = -1.5 * p[ZENER_VZ];
+		*vmin = -1.5 * zener_vz(p);
 	if (zener_voltage(p, 10.0 * iz, vmax) != 0 || !isfinite(*vmax))
 		*vmax = 1.0;
 }
 
-/* The stated dynamic resistance must leave room for the junction's own. */
-static int zener_validate(const double *p, char *err, size_t errlen)
+/*
+ * The stated dynamic resistance must leave room for the junction's own,
+ * at the temperature of P.
+ */
+static int zener_validate_at(const double *p, char *err, size_t errlen)
 {
 	struct zener_k k;
 	double vt = diode_thermal_voltage(p[ZENER_TEMP]);
 	double a = p[ZENER_NB] * vt, iz = p[ZENER_IZT];
+	double vz = zener_vz(p);
 	if (!(iz > p[ZENER_IS])) {
 		snprintf(err, errlen, "test_current: must exceed saturation_current");
 		return -1;
 	}
-	if (!(p[ZENER_VZ] - iz * (p[ZENER_RZ] - a / iz) > 20.0 * a)) {
-		snprintf(err, errlen,
-		         "breakdown_voltage: %.4g V is too low for a test current of "
-		         "%.4g A and a dynamic resistance of %.4g ohm",
-		         p[ZENER_VZ], iz, p[ZENER_RZ]);
+	if (!(vz - iz * (p[ZENER_RZ] - a / iz) > 20.0 * a)) {
+		if (p[ZENER_TC] != 0.0)
+			snprintf(err, errlen,
+			         "temperature_coefficient: %.4g V/K leaves a breakdown "
+			         "voltage of %.4g V at %.4g degC, too low for a test "
+			         "current of %.4g A and a dynamic resistance of %.4g ohm",
+			         p[ZENER_TC], vz, p[ZENER_TEMP], iz, p[ZENER_RZ]);
+		else
+			snprintf(err, errlen,
+			         "breakdown_voltage: %.4g V is too low for a test current "
+			         "of %.4g A and a dynamic resistance of %.4g ohm",
+			         vz, iz, p[ZENER_RZ]);
 		return -1;
 	}
 	zener_derive(p, &k);
@@ -276,10 +304,31 @@ static int zener_validate(const double *p, char *err, size_t errlen)
 	if (!(k.vj0 > 20.0 * k.a) || !isfinite(k.ir) || !(k.ir > 0.0)) {
 		snprintf(err, errlen,
 		         "breakdown_voltage: %.4g V is too low for a test current of "
-		         "%.4g A through %.4g ohm", p[ZENER_VZ], p[ZENER_IZT], k.rs);
+		         "%.4g A through %.4g ohm", vz, p[ZENER_IZT], k.rs);
 		return -1;
 	}
 	return 0;
+}
+
+/*
+ * The rules of zener_validate_at at the given temperature, or with a
+ * thermal resistance at the ambient and at the maximum junction
+ * temperature, the ends of the range the junction temperature is solved in.
+ */
+static int zener_validate(const double *p, char *err, size_t errlen)
+{
+	if (p[ZENER_THETA] <= 0.0)
+		return zener_validate_at(p, err, errlen);
+	if (model_thermal_check(p, ZENER_THETA, ZENER_TAMB, ZENER_TJMAX, err,
+	                        errlen) != 0)
+		return -1;
+	model_values q;
+	memcpy(q, p, sizeof q);
+	q[ZENER_TEMP] = p[ZENER_TAMB];
+	if (zener_validate_at(q, err, errlen) != 0)
+		return -1;
+	q[ZENER_TEMP] = p[ZENER_TJMAX];
+	return zener_validate_at(q, err, errlen);
 }
 
 static const struct model_param zener_params[ZENER_NPARAMS] = {
@@ -300,6 +349,17 @@ static const struct model_param zener_params[ZENER_NPARAMS] = {
 	               "knee sharpness: breakdown current e-folds every nb kT/q" },
 	[ZENER_TEMP] = { "temperature", "T", QTY_TEMPERATURE, 25.0, -273.15, 1000.0,
 	                 true, false, false, "junction temperature in degrees Celsius" },
+	[ZENER_TC] = { "temperature_coefficient", "dVz/dT", QTY_TEMPCO, 0.0, -1.0,
+	               1.0, false, false, false,
+	               "dVz/dT at the test current; 0: Vz stays put" },
+	[ZENER_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE, 25.0,
+	                 -273.15, 1000.0, true, false, false,
+	                 "temperature breakdown_voltage is stated at" },
+	/* 150 degC: a common rating of small plastic zeners (from memory of
+	 * common datasheets; glass parts are often rated 175 to 200 degC). */
+	MODEL_THERMAL_PARAMS(ZENER_THETA, ZENER_TAMB, ZENER_TJMAX, 150.0,
+	                     "rated maximum junction temperature (150 degC: "
+	                     "small zeners, from memory)"),
 };
 
 const struct model_type model_zener = {
