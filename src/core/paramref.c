@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "network.h"
+#include "thermal.h"
 
 static const char *const paramref_source_keys[] = { "vs", "rs", "is", "rp" };
 
@@ -140,6 +141,15 @@ int paramref_find(const struct problem *pb, const char *key,
 		return 0;
 	}
 	int idx = model_param_index(pb->dev.type, key);
+	struct thermal_keys tk;
+	if (idx >= 0 && thermal_active(&pb->dev) &&
+	    thermal_keys_of(pb->dev.type, &tk) && idx == tk.temp) {
+		if (err != NULL)
+			snprintf(err, errlen, "%s cannot vary: with thermal_resistance "
+			         "the junction temperature is solved; vary "
+			         "ambient_temperature instead", key);
+		return -1;
+	}
 	if (idx >= 0) {
 		out->kind = PARAMREF_DEVICE;
 		out->index = idx;
@@ -389,8 +399,13 @@ size_t paramref_all(const struct problem *pb, struct paramref *out,
 	for (int k = 0; k < 4 && n < max; k++)
 		if (paramref_source_ok(pb, (enum paramref_kind)k))
 			out[n++] = (struct paramref){ (enum paramref_kind)k, -1, "" };
+	/* A self-heated junction's temperature is solved, not a parameter. */
+	struct thermal_keys tk;
+	int skip = thermal_active(&pb->dev) && thermal_keys_of(pb->dev.type, &tk)
+	           ? tk.temp : -1;
 	for (size_t k = 0; k < pb->dev.type->nparams && n < max; k++)
-		out[n++] = (struct paramref){ PARAMREF_DEVICE, (int)k, "" };
+		if ((int)k != skip)
+			out[n++] = (struct paramref){ PARAMREF_DEVICE, (int)k, "" };
 	return n;
 }
 

@@ -6,7 +6,9 @@
  *   rs  the source's series resistance (VS kept)
  *   is  the source's short-circuit current (RP kept)
  *   rp  the source's parallel resistance (IS kept)
- *   any key of the device model's parameter table ("temperature", ...)
+ *   any key of the device model's parameter table ("temperature", ...;
+ *       not "temperature" when the device heats itself, thermal.h: the
+ *       junction temperature is then solved, and the ambient varies)
  *   source.network.<part name>  a part's value, when the source is a
  *       network (problem.h: pb->net); the network is reduced again with
  *       the new value

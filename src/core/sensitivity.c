@@ -8,6 +8,8 @@
 #include <stdbool.h>
 #include <string.h>
 
+#include "thermal.h"
+
 /* Relative difference step: about the cube root of the double epsilon,
  * which balances truncation and rounding for a central difference. */
 #define SENS_REL_STEP 6e-6
@@ -186,6 +188,16 @@ int sensitivity_at(const struct problem *pb, double v, double i,
 	out->param = *r;
 	out->value = paramref_get(pb, r);
 	if (pb->dev.type->current == NULL)
+		return -1;
+	/* A self-heated part moves with its junction temperature too. */
+	if (thermal_active(&pb->dev))
+		return thermal_sensitivity(pb, v, i, r, out);
+	/* A thermal resistance of 0 switches self-heating off: the point
+	 * jumps from the given temperature to the ambient as it leaves 0, so
+	 * there is no derivative there. */
+	struct thermal_keys tk;
+	if (r->kind == PARAMREF_DEVICE && thermal_keys_of(pb->dev.type, &tk) &&
+	    r->index == tk.theta)
 		return -1;
 	const struct source *s = &pb->src;
 	bool amps = isinf(s->r); /* the residual is in amperes */

@@ -25,6 +25,10 @@
  * central difference of its power along the point's tangent
  * (p + t, V + t dV/dp, I + t dI/dp).
  *
+ * A device that heats itself (thermal.h) moves with its junction
+ * temperature as well: see thermal_sensitivity.  Its thermal resistance
+ * has no derivative at 0 (self-heating off), so it is refused there.
+ *
  * Normalised sensitivities are (p / y) dy/dp: the per-cent change of y per
  * per-cent change of p.  They are NaN where y is 0, and mean little for a
  * parameter whose zero is arbitrary (a temperature in degrees Celsius):

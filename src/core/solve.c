@@ -12,6 +12,7 @@
 #include "diagnose.h"
 #include "junction.h"
 #include "kernel.h"
+#include "thermal.h"
 
 /* Relative tolerance of the independent check of a reported point. */
 #define VERIFY_TOL 1e-8
@@ -48,6 +49,12 @@ bool solve_verify(const struct problem *pb, double v, double i, double tol)
 {
 	if (!isfinite(v) || !isfinite(i))
 		return false;
+	/* A self-heated part: check the circuit at the point's own Tj. */
+	struct problem at;
+	if (thermal_active(&pb->dev)) {
+		thermal_problem_at(pb, thermal_point_temperature(pb, v, i), &at);
+		pb = &at;
+	}
 	double rtol = fmax(tol, VERIFY_TOL);
 	const struct source *s = &pb->src;
 	/* On the load line, relative to the terms of its equation. */
@@ -145,6 +152,9 @@ int solve_fast(const struct problem *pb, double tol, struct op_point *pt)
 	const struct source *s = &pb->src;
 	memset(pt, 0, sizeof *pt);
 	pt->method = METHOD_NEWTON;
+	/* A self-heated part may have no balance or several: no fast path. */
+	if (thermal_active(&pb->dev))
+		return -1;
 	if (isinf(s->r)) {
 		/* Ideal current source: the device voltage at that current. */
 		if (t->voltage == NULL || t->voltage(pb->dev.p, s->isc, &pt->v) != 0)
@@ -386,6 +396,9 @@ enum solve_status solve_problem_valid_brackets(const struct problem *pb,
 	out->n = 0;
 	out->message[0] = '\0';
 	out->stop = STEP_CONTINUE;
+	/* A self-heated part: the electrical solve inside the heat balance. */
+	if (thermal_active(&pb->dev))
+		return thermal_solve_points(pb, o, out);
 	if (o->method != METHOD_AUTO)
 		return solve_method(pb, o, out);
 	const struct model_type *t = pb->dev.type;

@@ -46,6 +46,10 @@ struct solve_result {
  * (or takes the unique bracket of a monotone device) and refines each with
  * safeguarded Newton; any other method runs that stepper from O's start
  * point and reports the one point it reaches.  Points are sorted by voltage.
+ * A device that heats itself (thermal.h: thermal_resistance > 0) is solved
+ * with its junction temperature: every heat balance up to its maximum
+ * junction temperature, each an electrical solve at its Tj, whatever the
+ * method; SOLVE_NONE with the reason when it runs away.
  */
 enum solve_status solve_problem(const struct problem *pb,
                                 const struct solve_options *o,
@@ -76,7 +80,7 @@ enum solve_status solve_problem_valid_brackets(const struct problem *pb,
 /*
  * The fast path for one operating point of a monotone device with a finite
  * source resistance (or any source): safeguarded Newton in the bracket.
- * Returns 0 and fills *PT, or -1.
+ * Returns 0 and fills *PT, or -1 (always for a device that heats itself).
  */
 int solve_fast(const struct problem *pb, double tol, struct op_point *pt);
 
@@ -85,7 +89,8 @@ void solve_finish_point(const struct problem *pb, struct op_point *pt);
 
 /*
  * Check that (V, I) is an operating point of PB to relative tolerance TOL:
- * finite, on the device curve and on the load line.
+ * finite, on the device curve and on the load line (for a device that
+ * heats itself, the curve at the point's own junction temperature).
  */
 bool solve_verify(const struct problem *pb, double v, double i, double tol);
 

@@ -3,6 +3,9 @@
  * registry, and the other keys are that model's own parameter table
  * (key, unit, range, default, help), so a new model needs no loader code.
  * A model with named presets also takes preset:, applied before the keys.
+ * A junction model with thermal_resistance above 0 heats itself
+ * (core/thermal.h): its temperature is solved from ambient_temperature,
+ * so temperature: is then an error and is not written back.
  * The measured model has no parameters but a table: points:, a list of
  * [V, I] pairs (see device_load_points), or points_file:, a two-column
  * V,I text file beside the session (points_file.h).
@@ -14,6 +17,7 @@
 #include <string.h>
 
 #include "core/models/models.h"
+#include "core/thermal.h"
 #include "session/points_file.h"
 #include "session/section.h"
 
@@ -444,6 +448,20 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 		            "file)", type->name);
 		return -1;
 	}
+	/* A self-heated junction: its temperature is solved from the
+	 * ambient, so a given one is a mistake, not a second opinion. */
+	struct thermal_keys tk;
+	if (thermal_active(&c->s->device) && thermal_keys_of(type, &tk)) {
+		if (seen[tk.temp] != NULL) {
+			section_path(sub, sizeof sub, path, "temperature");
+			ytree_error(c->err, c->name, seen[tk.temp], sub,
+			            "found a junction temperature with thermal_resistance "
+			            "given: the junction temperature is then solved, so "
+			            "give ambient_temperature instead");
+			return -1;
+		}
+		thermal_normalise(&c->s->device);
+	}
 	char why[256];
 	if (device_validate(&c->s->device, why, sizeof why) != 0) {
 		ytree_error(c->err, c->name, key != NULL ? key : map, path, "%s", why);
@@ -467,9 +485,14 @@ static int device_save(struct emit_ctx *e, const struct session_section *sec,
 	if (emit_mapping_start(e, false) != 0 || emit_scalar(e, "model", true) != 0 ||
 	    emit_scalar(e, type->name, true) != 0)
 		return -1;
+	/* A self-heated junction's temperature is solved: not written. */
+	struct thermal_keys tk;
+	int solved = thermal_active(&s->device) && thermal_keys_of(type, &tk)
+	             ? tk.temp : -1;
 	for (size_t j = 0; j < type->nparams; j++)
-		if (emit_scalar(e, type->params[j].key, true) != 0 ||
-		    emit_number(e, s->device.p[j]) != 0)
+		if ((int)j != solved &&
+		    (emit_scalar(e, type->params[j].key, true) != 0 ||
+		     emit_number(e, s->device.p[j]) != 0))
 			return -1;
 	const struct curve_data *cv = s->device.curve;
 	if (device_has_points(type) && cv != NULL) {

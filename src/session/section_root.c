@@ -9,6 +9,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "core/thermal.h"
 #include "session/section.h"
 #include "session/section_analysis.h"
 
@@ -103,8 +104,9 @@ static bool root_present_always(const struct session_field *f,
 
 /*
  * Fold conditions.temperature into the device's temperature parameter
- * when the model has one; both given and different is an error naming
- * both lines.
+ * when the model has one (its ambient_temperature when the device heats
+ * itself: the junction temperature is then solved); both given and
+ * different is an error naming both lines.
  */
 static int root_finish(struct load_ctx *c, const struct session_section *sec,
                        const struct ynode *key, const struct ynode *map,
@@ -120,25 +122,37 @@ static int root_finish(struct load_ctx *c, const struct session_section *sec,
 	struct session *s = c->s;
 	if (isnan(s->conditions.temperature))
 		return 0;
-	int k = model_param_index(s->device.type, "temperature");
+	struct thermal_keys tk;
+	bool heated = thermal_active(&s->device) &&
+	              thermal_keys_of(s->device.type, &tk);
+	const char *dkey = heated ? "ambient_temperature" : "temperature";
+	int k = model_param_index(s->device.type, dkey);
 	if (k < 0)
 		return 0;
 	const struct ynode *cond = ytree_get(ytree_get(map, "conditions"),
 	                                     "temperature");
-	const struct ynode *dev = ytree_get(ytree_get(map, "device"),
-	                                    "temperature");
+	const struct ynode *dev = ytree_get(ytree_get(map, "device"), dkey);
 	if (dev != NULL && s->device.p[k] != s->conditions.temperature) {
 		char a[96], b[96];
 		ytree_describe(cond, a, sizeof a);
 		ytree_describe(dev, b, sizeof b);
 		ytree_error(c->err, c->name, cond, "conditions.temperature",
-		            "found %s, which differs from device.temperature %s on "
-		            "line %u: expected one temperature (give it in one place)",
-		            a, b, dev->line);
+		            "found %s, which differs from device.%s %s on line %u: "
+		            "expected one temperature (give it in one place)", a,
+		            dkey, b, dev->line);
 		return -1;
 	}
 	s->device.p[k] = s->conditions.temperature;
 	s->conditions.temperature = NAN;
+	if (!heated)
+		return 0;
+	thermal_normalise(&s->device);
+	char why[256];
+	if (device_validate(&s->device, why, sizeof why) != 0) {
+		ytree_error(c->err, c->name, cond, "conditions.temperature", "%s",
+		            why);
+		return -1;
+	}
 	return 0;
 }
 
