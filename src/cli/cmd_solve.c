@@ -9,6 +9,7 @@
 
 #include "biasline_version.h"
 #include "cli_analysis.h"
+#include "cli_thermal.h"
 #include "commands.h"
 #include "csv.h"
 #include "core/diagnose.h"
@@ -384,22 +385,32 @@ static void solve_print_text(const char *file, const struct session *se,
 		if (sr.verdict != STABILITY_STABLE)
 			printf("      %s: %s\n", stability_name(sr.verdict), sr.reason);
 		solve_print_extra(pb, p);
+		cli_thermal_print_point(pb, p, "      ");
 	}
 	solve_print_verdict(se, pb, res);
-	/* How the projections would behave at the (first) point. */
+	/* How the projections would behave at the (first) point, on the
+	 * curve through it (a self-heated part's, at its junction temperature). */
 	if (res->n > 0) {
 		struct diagnosis d;
-		diagnose_at(pb, o->order, res->pts[0].v, o->tol, 1.0, &d);
+		struct problem at;
+		thermal_problem_at_point(pb, res->pts[0].v, res->pts[0].i, &at);
+		diagnose_at(&at, o->order, res->pts[0].v, o->tol, 1.0, &d);
 		printf("\n  projections (%s): %s\n", projection_order_name(o->order),
 		       d.verdict);
 		if (d.advice[0] != '\0')
 			printf("  advice: %s\n", d.advice);
 	}
+	struct cli_thermal th;
+	cli_thermal_init(&th, pb, o);
+	cli_thermal_print_report(&th, pb, o, res);
 	unsigned flags = 0;
 	for (size_t k = 0; k < res->n; k++)
 		flags |= safety_check(pb, res->pts[k].v, res->pts[k].i);
 	if (res->n == 0)
 		flags |= safety_check(pb, 0.0, 0.0);
+	/* A part that runs away gets hot, whatever the cold point says. */
+	if (th.active && res->n == 0 && res->status == SOLVE_NONE)
+		flags |= SAFETY_HOT_SURFACE;
 	if (flags != 0) {
 		char msg[320];
 		safety_message(flags, msg, sizeof msg);
@@ -423,8 +434,11 @@ static bool solve_extra_keys(const struct problem *pb,
 
 /* Print RES as CSV; returns the table's exit status. */
 static int solve_print_csv(const struct session *se, const struct problem *pb,
+                           const struct solve_options *o,
                            const struct solve_result *res)
 {
+	struct cli_thermal th;
+	cli_thermal_init(&th, pb, o);
 	/* The model's extra results follow as columns. */
 	struct model_extra ex;
 	bool extra = solve_extra_keys(pb, res, &ex);
@@ -441,6 +455,7 @@ static int solve_print_csv(const struct session *se, const struct problem *pb,
 		csv_column(&w, "region");
 		csv_column(&w, "flagged");
 	}
+	cli_thermal_csv_columns(&th, pb, &w);
 	csv_end_row(&w);
 	for (size_t k = 0; k < res->n; k++) {
 		const struct op_point *p = &res->pts[k];
@@ -467,6 +482,7 @@ static int solve_print_csv(const struct session *se, const struct problem *pb,
 					csv_empty(&w);
 			}
 		}
+		cli_thermal_csv_fields(&th, pb, p, &w);
 		csv_end_row(&w);
 	}
 	return csv_finish(&w, "solve");
@@ -557,7 +573,7 @@ int cmd_solve(int argc, char **argv)
 	else if (a.csv && a.sensitivity)
 		out = solve_print_sensitivity(&pb, &res, true);
 	else if (a.csv)
-		out = solve_print_csv(&se, &pb, &res);
+		out = solve_print_csv(&se, &pb, &o, &res);
 	else
 		solve_print_text(a.file, &se, &pb, &o, &res, unreached);
 	if (a.trace && !a.csv && out == EXIT_OK_CODE)

@@ -10,6 +10,7 @@
 
 #include "biasline_version.h"
 #include "cli_analysis.h"
+#include "cli_thermal.h"
 #include "commands.h"
 #include "csv.h"
 #include "core/safety.h"
@@ -143,17 +144,44 @@ static int sweep_parse_args(int argc, char **argv, struct sweep_args *a,
 	return 0;
 }
 
-/* Print the folds of RES to OUT. */
+/*
+ * Print the folds of RES to OUT; for a self-heated PB (with O and the
+ * swept R) what each fold is.
+ */
 static void sweep_print_folds(FILE *out, const char *prefix, const char *key,
-                              enum qty_kind unit, const struct sweep_result *res)
+                              enum qty_kind unit, const struct sweep_result *res,
+                              const struct problem *pb,
+                              const struct solve_options *o,
+                              const struct paramref *r)
 {
 	for (size_t k = 0; k < res->nfolds; k++) {
 		const struct sweep_fold *f = &res->folds[k];
-		char v[48];
+		char v[48], what[160];
 		fprintf(out, "%sfold: %zu -> %zu operating point%s at %s = %s "
 		        "(between steps %zu and %zu)\n", prefix, f->n_before,
 		        f->n_after, f->n_after == 1 ? "" : "s", key,
 		        cli_fmt(v, sizeof v, f->value, unit, 6), f->step - 1, f->step);
+		cli_thermal_fold_words(pb, o, r, f->lo, f->hi, what, sizeof what);
+		if (what[0] != '\0')
+			fprintf(out, "%s  (%s)\n", prefix, what);
+	}
+}
+
+/*
+ * Tj and G of sweep row R of PB (the swept parameter P set to the row's
+ * value) into *EV (NaN when not known).
+ */
+static void sweep_thermal_row(const struct problem *pb,
+                              const struct paramref *p,
+                              const struct sweep_row *r,
+                              struct thermal_eval *ev)
+{
+	struct problem q = *pb;
+	if (paramref_set(&q, p, r->value) != 0 ||
+	    thermal_point_info(&q, r->v, r->i, ev) != 0) {
+		ev->tj = NAN;
+		ev->gain = NAN;
+		ev->p = NAN;
 	}
 }
 
@@ -231,6 +259,7 @@ int cmd_sweep(int argc, char **argv)
 		return EXIT_USAGE;
 	}
 	const char *key = paramref_key(&pb, &sp.param);
+	bool heated = thermal_active(&pb.dev);
 	unsigned flags = 0;
 	if (a.csv) {
 		struct csv w;
@@ -242,6 +271,11 @@ int cmd_sweep(int argc, char **argv)
 		csv_column(&w, "voltage_V");
 		csv_column(&w, "current_A");
 		csv_column(&w, "power_W");
+		if (heated) {
+			csv_column(&w, "heat_W");
+			csv_column(&w, "junction_temperature_C");
+			csv_column(&w, "thermal_loop_gain");
+		}
 		csv_end_row(&w);
 		for (size_t k = 0; k < res.nrows; k++) {
 			const struct sweep_row *r = &res.rows[k];
@@ -252,10 +286,18 @@ int cmd_sweep(int argc, char **argv)
 			csv_number(&w, r->v);
 			csv_number(&w, r->i);
 			csv_number(&w, r->p);
+			if (heated) {
+				struct thermal_eval ev;
+				sweep_thermal_row(&pb, &sp.param, r, &ev);
+				csv_number(&w, ev.p);
+				csv_number(&w, ev.tj);
+				csv_number(&w, ev.gain);
+			}
 			csv_end_row(&w);
 		}
 		code = csv_finish(&w, "sweep");
-		sweep_print_folds(stderr, "biasline sweep: ", key, unit, &res);
+		sweep_print_folds(stderr, "biasline sweep: ", key, unit, &res, &pb,
+		                  &se.solver, &sp.param);
 		sweep_print_jumps(stderr, "biasline sweep: ", key, unit, &pb, &se, &sp,
 		                  &res);
 	} else {
@@ -266,18 +308,30 @@ int cmd_sweep(int argc, char **argv)
 		       a.log ? "logarithmic" : "linear");
 		int w = strlen(key) > 14 ? (int)strlen(key) : 14;
 		printf("  %-5s %-*s %-5s %-13s %-13s %s\n", "step", w, key, "point",
-		       "voltage", "current", "power");
+		       "voltage", "current", heated ? "heat        Tj          G"
+		                                     : "power");
 		for (size_t k = 0; k < res.nrows; k++) {
 			const struct sweep_row *r = &res.rows[k];
-			printf("  %-5zu %-*s %zu/%-3zu %-13s %-13s %s\n", r->step, w,
+			struct thermal_eval ev;
+			if (heated)
+				sweep_thermal_row(&pb, &sp.param, r, &ev);
+			printf("  %-5zu %-*s %zu/%-3zu %-13s %-13s %s", r->step, w,
 			       cli_fmt(a1, sizeof a1, r->value, unit, 5), r->index + 1,
 			       r->count, cli_fmt(v, sizeof v, r->v, QTY_VOLTAGE, 6),
 			       cli_fmt(i, sizeof i, r->i, QTY_CURRENT, 6),
-			       cli_fmt(p, sizeof p, r->p, QTY_POWER, 4));
+			       cli_fmt(p, sizeof p, heated ? ev.p : r->p, QTY_POWER, 4));
+			if (heated) {
+				char t[32], g[32];
+				printf("%*s%-11s %s", 12 - (int)strlen(p), "",
+				       cli_fmt(t, sizeof t, ev.tj, QTY_TEMPERATURE, 5),
+				       cli_fmt_number(g, sizeof g, ev.gain, 3, false));
+			}
+			printf("\n");
 		}
 		if (res.nfolds > 0)
 			printf("\n");
-		sweep_print_folds(stdout, "  ", key, unit, &res);
+		sweep_print_folds(stdout, "  ", key, unit, &res, &pb, &se.solver,
+		                  &sp.param);
 		sweep_print_jumps(stdout, "  ", key, unit, &pb, &se, &sp, &res);
 	}
 	if (res.failed > 0)

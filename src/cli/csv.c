@@ -82,6 +82,10 @@ const char *csv_column_name(char *buf, size_t n, const char *key,
 		snprintf(buf, n, "%s_percent", key);
 	else if (strcmp(u, "W/K") == 0)
 		snprintf(buf, n, "%s_W_per_K", key);
+	else if (strcmp(u, "K/W") == 0)
+		snprintf(buf, n, "%s_K_per_W", key);
+	else if (strcmp(u, "V/K") == 0)
+		snprintf(buf, n, "%s_V_per_K", key);
 	else
 		snprintf(buf, n, "%s_%s", key, u);
 	return buf;

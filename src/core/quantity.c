@@ -458,7 +458,7 @@ enum qty_status qty_parse(const char *text, enum qty_kind kind, double *out,
 		return QTY_WRONG_UNIT;
 	}
 	if (sc.prefix && (kind == QTY_NUMBER || kind == QTY_TEMPERATURE ||
-	                  kind == QTY_PERCENT)) {
+	                  kind == QTY_PERCENT || kind == QTY_THERMAL_RES)) {
 		if (say)
 			snprintf(err, errlen, "\"%s\": %s takes no SI prefix, "
 			         "expected %s", q, qty_noun(kind), want);
@@ -618,7 +618,8 @@ char *qty_format(char *buf, size_t n, double value, enum qty_kind kind,
 	} else if (value == 0.0) {
 		qty_put(out, sizeof out, &k, "0 ");
 		qty_put(out, sizeof out, &k, unit);
-	} else if (kind == QTY_TEMPERATURE || kind == QTY_PERCENT) {
+	} else if (kind == QTY_TEMPERATURE || kind == QTY_PERCENT ||
+	           kind == QTY_THERMAL_RES) {
 		/* No prefix: positional with SIG digits, e-notation far out. */
 		double v = kind == QTY_PERCENT ? value * 100.0 : value;
 		qty_digits(v, sig, d, &x);

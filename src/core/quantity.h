@@ -54,7 +54,7 @@ enum qty_status {
  *   whole text is ignored.  Between number and prefix/unit: space, tab,
  *   U+00A0, U+2009 or U+202F; none between prefix and unit.
  * - prefixes: f p n u µ (U+00B5 or U+03BC) m k M G T.  Not allowed for
- *   QTY_NUMBER, QTY_TEMPERATURE or QTY_PERCENT.
+ *   QTY_NUMBER, QTY_TEMPERATURE, QTY_PERCENT or QTY_THERMAL_RES.
  * - units: V; A; Ω (U+03A9 or U+2126), ohm, ohms, R; S; W; °C, ℃ (U+2103),
  *   degC, C, K (kelvin, converted: 300 K -> 26.85); eV; W/K; %; K/W,
  *   °C/W, degC/W, C/W (a thermal resistance: a kelvin and a degree
@@ -87,8 +87,9 @@ const char *qty_noun(enum qty_kind kind);
  *
  * Details: SIG digits are always shown (no trimming: "1.000 V"); zero
  * prints as "0 V".  Prefixes f..T; beyond them the mantissa keeps an
- * exponent that is a multiple of 3 ("22e-18 A").  Temperatures and percents
- * take no prefix ("25.0 °C", "5.00 %"; percent shows VALUE * 100).
+ * exponent that is a multiple of 3 ("22e-18 A").  Temperatures, percents
+ * and thermal resistances take no prefix ("25.0 °C", "5.00 %", "2155 K/W";
+ * percent shows VALUE * 100).
  * QTY_NUMBER prints like "%.*g".  A truncated result is cut between UTF-8
  * sequences.
  */

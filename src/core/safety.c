@@ -6,6 +6,8 @@
 #include <math.h>
 #include <stdio.h>
 
+#include "thermal.h"
+
 /* Which cautions apply at (V, I). */
 unsigned safety_check(const struct problem *pb, double v, double i)
 {
@@ -25,6 +27,9 @@ unsigned safety_check(const struct problem *pb, double v, double i)
 			if (ex.v[k].kind == QTY_VOLTAGE &&
 			    fabs(ex.v[k].value) > SAFETY_DC_VOLTAGE)
 				f |= SAFETY_HIGH_VOLTAGE;
+	if (thermal_active(&pb->dev) &&
+	    thermal_point_temperature(pb, v, i) > SAFETY_HOT_SURFACE_C)
+		f |= SAFETY_HOT_SURFACE;
 	if (isfinite(s->r) && s->r > 0.0 && s->r * i * i > SAFETY_HOT_POWER)
 		f |= SAFETY_HOT_RESISTOR;
 	return f;
@@ -39,10 +44,17 @@ void safety_message(unsigned flags, char *buf, size_t n)
 		return;
 	}
 	const char *what;
-	if ((flags & SAFETY_HIGH_VOLTAGE) && (flags & (SAFETY_HOT_DEVICE | SAFETY_HOT_RESISTOR)))
+	unsigned hot = SAFETY_HOT_DEVICE | SAFETY_HOT_RESISTOR | SAFETY_HOT_SURFACE;
+	if ((flags & SAFETY_HIGH_VOLTAGE) && (flags & hot))
 		what = "hazardous voltage and hot parts";
 	else if (flags & SAFETY_HIGH_VOLTAGE)
 		what = "a voltage above the extra-low-voltage range (60 V DC)";
+	else if (flags == SAFETY_HOT_SURFACE)
+		what = "a junction above 60 degC: its case and heat sink get hot "
+		       "enough to burn";
+	else if (flags & SAFETY_HOT_SURFACE)
+		what = "parts dissipating more than 2 W and a junction above 60 "
+		       "degC (hot enough to burn)";
 	else
 		what = "parts dissipating more than 2 W (they get hot enough to burn)";
 	snprintf(buf, n,

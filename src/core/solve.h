@@ -47,9 +47,10 @@ struct solve_result {
  * safeguarded Newton; any other method runs that stepper from O's start
  * point and reports the one point it reaches.  Points are sorted by voltage.
  * A device that heats itself (thermal.h: thermal_resistance > 0) is solved
- * with its junction temperature: every heat balance up to its maximum
- * junction temperature, each an electrical solve at its Tj, whatever the
- * method; SOLVE_NONE with the reason when it runs away.
+ * with its junction temperature: every thermally stable heat balance up to
+ * its maximum junction temperature, each an electrical solve at its Tj,
+ * whatever the method; SOLVE_NONE with the reason when it runs away
+ * (thermal.h has the unstable balances too).
  */
 enum solve_status solve_problem(const struct problem *pb,
                                 const struct solve_options *o,

@@ -63,6 +63,17 @@ void thermal_problem_at(const struct problem *pb, double tj, struct problem *q)
 	q->dev.p[k.temp] = tj;
 }
 
+/* PB at its point's own junction temperature. */
+void thermal_problem_at_point(const struct problem *pb, double v, double i,
+                              struct problem *q)
+{
+	if (!thermal_active(&pb->dev)) {
+		*q = *pb;
+		return;
+	}
+	thermal_problem_at(pb, thermal_point_temperature(pb, v, i), q);
+}
+
 /* Tj of the point (V, I). */
 double thermal_point_temperature(const struct problem *pb, double v, double i)
 {
@@ -371,11 +382,19 @@ enum solve_status thermal_solve_points(const struct problem *pb,
 	out->stop = STEP_CONTINUE;
 	snprintf(out->message, sizeof out->message, "%.*s",
 	         (int)sizeof out->message - 1, tr.message);
-	for (size_t k = 0; k < tr.n && k < SOLVE_MAX_POINTS; k++)
-		out->pts[out->n++] = tr.pts[k].pt;
+	for (size_t k = 0; k < tr.n && out->n < SOLVE_MAX_POINTS; k++)
+		if (tr.pts[k].stable)
+			out->pts[out->n++] = tr.pts[k].pt;
 	qsort(out->pts, out->n, sizeof out->pts[0], thermal_cmp_v);
 	switch (tr.status) {
 	case THERMAL_OK:
+		if (out->n == 0) {
+			snprintf(out->message, sizeof out->message,
+			         "no thermally stable balance up to the maximum "
+			         "junction temperature %.4g degC (only one with G >= 1)",
+			         tr.tjmax);
+			return out->status = SOLVE_NONE;
+		}
 		out->stop = STEP_CONVERGED;
 		return out->status = SOLVE_OK;
 	case THERMAL_RUNAWAY:

@@ -91,6 +91,15 @@ void thermal_problem_at(const struct problem *pb, double tj,
                         struct problem *q);
 
 /*
+ * PB as it stands at its operating point (V, I): the isothermal problem at
+ * the point's junction temperature (thermal_point_temperature) when PB
+ * heats itself, else PB itself, into *Q.  The electrical curve through
+ * the point, for diagnoses and plots.
+ */
+void thermal_problem_at_point(const struct problem *pb, double v, double i,
+                              struct problem *q);
+
+/*
  * The junction temperature of PB's operating point (V, I): Ta + theta
  * P(V, I) when PB heats itself, else the device's temperature parameter,
  * or NaN when the model has none.
@@ -173,9 +182,11 @@ enum thermal_status thermal_solve(const struct problem *pb,
                                   struct thermal_result *out);
 
 /*
- * thermal_solve as a solve_result (solve.h): the balances as operating
- * points sorted by voltage, SOLVE_NONE with the runaway message.  The
- * solver calls it for a device that heats itself.
+ * thermal_solve as a solve_result (solve.h): the thermally stable balances
+ * as operating points sorted by voltage (an unstable one is no state the
+ * part stays in: heated past it, it runs away; cooled, it falls back to
+ * the cool one), SOLVE_NONE with the runaway message.  The solver calls it
+ * for a device that heats itself.
  */
 enum solve_status thermal_solve_points(const struct problem *pb,
                                        const struct solve_options *o,

@@ -10,6 +10,7 @@
 #include <string.h>
 
 #include "network.h"
+#include "thermal.h"
 
 /* VALUE of KIND for a sentence ("34.5 mW"). */
 static const char *verdict_fmt(char *buf, size_t n, double value,
@@ -96,6 +97,46 @@ static void verdict_device(struct verdict *out, double p, double i,
 		snprintf(l->words, sizeof l->words, "device carries %s%s, %s %% of "
 		         "its %s maximum: within rating", a, worst,
 		         verdict_pct(c, sizeof c, l->use), b);
+}
+
+/*
+ * The junction of PB at (V, I) against its maximum junction temperature:
+ * always for a part that heats itself, else only when the given
+ * temperature is above the maximum.
+ */
+static void verdict_junction(struct verdict *out, const struct problem *pb,
+                             double v, double i)
+{
+	struct thermal_keys k;
+	if (!thermal_keys_of(pb->dev.type, &k))
+		return;
+	const double *p = pb->dev.p;
+	bool heated = thermal_active(&pb->dev);
+	double tj = thermal_point_temperature(pb, v, i), tjmax = p[k.tjmax];
+	if (!heated && !(tj > tjmax))
+		return;
+	struct verdict_line *l = verdict_add(out, VERDICT_JUNCTION, "junction",
+	                                     QTY_TEMPERATURE, tj);
+	if (l == NULL)
+		return;
+	l->rating = tjmax;
+	l->verdict = ratings_compare(tj, tjmax, NAN);
+	if (heated && tjmax > p[k.tamb]) {
+		l->use = (tj - p[k.tamb]) / (tjmax - p[k.tamb]);
+		l->margin = 1.0 - l->use;
+	}
+	if (l->verdict > out->worst)
+		out->worst = l->verdict;
+	char a[48], b[48], c[48];
+	verdict_fmt(a, sizeof a, tj, QTY_TEMPERATURE);
+	verdict_fmt(b, sizeof b, tjmax, QTY_TEMPERATURE);
+	snprintf(c, sizeof c, "%.3g K", fabs(tjmax - tj));
+	if (l->verdict == RATINGS_OVER)
+		snprintf(l->words, sizeof l->words, "junction at %s, %s above its %s "
+		         "maximum: over rating", a, c, b);
+	else
+		snprintf(l->words, sizeof l->words, "junction at %s, %s below its %s "
+		         "maximum: within rating", a, c, b);
 }
 
 /* A resistor NAME dissipating P, held to R's resistor rating. */
@@ -261,6 +302,7 @@ void verdict_at(const struct problem *pb, enum source_form form, double v,
 	verdict_start(out, r);
 	verdict_device(out, device_dissipation(&pb->dev, &pb->src, v, i), i, r,
 	               "");
+	verdict_junction(out, pb, v, i);
 	if (pb->net != NULL) {
 		verdict_network(pb, v, i, r, out);
 	} else {

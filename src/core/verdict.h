@@ -36,6 +36,8 @@ enum verdict_part {
 	VERDICT_DEVICE_CURRENT,  /* the device's current (only with a rating) */
 	VERDICT_RESISTOR,        /* the source resistor or a network resistor */
 	VERDICT_SOURCE,          /* the ideal source or a network source part */
+	VERDICT_JUNCTION,        /* the junction temperature against its
+	                            maximum (a self-heated part: thermal.h) */
 };
 
 /* Room for a line's name: a network part's name. */
@@ -46,12 +48,15 @@ struct verdict_line {
 	enum verdict_part part;
 	char name[VERDICT_NAME_MAX]; /* "device", "RS", "RP", "source", or the
 	                                network part's name */
-	enum qty_kind unit;     /* QTY_POWER, or QTY_CURRENT for the current */
+	enum qty_kind unit;     /* QTY_POWER, QTY_CURRENT for the current,
+	                           QTY_TEMPERATURE for the junction */
 	double value;           /* the power in W (absorbed; delivered for a
 	                           source) or the current's magnitude in A */
 	double rating;          /* what it is held to (a resistor's derated
 	                           rating), NaN when none */
-	double use;             /* value / rating, NaN when none */
+	double use;             /* value / rating, NaN when none (the junction:
+	                           its rise over the ambient against the rise
+	                           its maximum allows) */
 	double margin;          /* 1 - use: the fraction of the rating left
 	                           (negative when over), NaN when none */
 	double suggested;       /* resistors: the smallest standard rating that
@@ -61,9 +66,9 @@ struct verdict_line {
 	char words[224];        /* the line as the CLI prints it */
 };
 
-/* Most lines: device power and current, the source's resistor and
- * source, and a network's parts. */
-#define VERDICT_MAX_LINES (4 + PARAMREF_MAX_PARTS)
+/* Most lines: device power, current and junction, the source's resistor
+ * and source, and a network's parts. */
+#define VERDICT_MAX_LINES (5 + PARAMREF_MAX_PARTS)
 
 /* The target and how far the point is from it. */
 struct verdict_target {
@@ -88,7 +93,11 @@ struct verdict {
 };
 
 /*
- * The verdict at the point (V, I) of PB: the device, then for a plain
+ * The verdict at the point (V, I) of PB: the device (its power is the heat
+ * it turns out: a transistor's own collector dissipation; and for a part
+ * that heats itself, or one given a temperature above its
+ * maximum_junction_temperature, the junction against that maximum), then
+ * for a plain
  * source its resistor (RS in series for FORM Thevenin, RP across for
  * Norton) and the ideal source, or for a network source (PB->net) each
  * resistor and each source part from the node voltages at the point (the

@@ -302,6 +302,7 @@ static const struct parse_err_case parse_err_cases[] = {
 	  "a temperature takes no SI prefix" },
 	{ "3 m%", QTY_PERCENT, QTY_BAD_SUFFIX, "takes no SI prefix" },
 	{ "3 mK", QTY_TEMPERATURE, QTY_BAD_SUFFIX, "takes no SI prefix" },
+	{ "1.2 kK/W", QTY_THERMAL_RES, QTY_BAD_SUFFIX, "takes no SI prefix" },
 	{ "1\x01V", QTY_VOLTAGE, QTY_BAD_SUFFIX, "\"1?V\"" },
 };
 
@@ -437,6 +438,7 @@ static const struct format_case format_cases[] = {
 	{ 1.12, QTY_ENERGY_EV, 3, 0, "1.12 eV" },
 	{ 0.00317, QTY_THERMAL_COND, 3, 0, "3.17 mW/K" },
 	{ 38.5, QTY_THERMAL_RES, 3, 0, "38.5 K/W" },
+	{ 2154.6, QTY_THERMAL_RES, 5, 0, "2154.6 K/W" },
 	{ -0.00213, QTY_TEMPCO, 3, 0, "-2.13 mV/K" },
 	{ 25.0, QTY_TEMPERATURE, 2, 0, "25 \xc2\xb0" "C" },
 	{ 25.0, QTY_TEMPERATURE, 4, 1, "25.00 degC" },

@@ -1,8 +1,8 @@
 #!/bin/sh
 # Every sample as a script sees it: 'biasline check' accepts it, 'biasline
 # solve --format csv' gives the operating point its "# expect:" line states
-# (to 4 significant digits), and 'biasline tidy' is idempotent and keeps the
-# top comment block.  Then check's and tidy's exit statuses and message
+# (to 4 significant digits; "# expect: runaway": none, a thermal runaway),
+# and 'biasline tidy' is idempotent and keeps the top comment block.  Then check's and tidy's exit statuses and message
 # format on bad input.  Prints TAP.
 # Usage: samples_cli.sh BIASLINE SAMPLES_DIR
 set -u
@@ -66,6 +66,20 @@ for f in "$dir"/*.yaml; do
 	[ -n "$line" ]
 	report $? "$name states its expected point in a '# expect:' line"
 	[ -n "$line" ] || continue
+	# A sample that runs away thermally states it so: no point, exit 3.
+	if [ "$line" = "# expect: runaway" ]; then
+		"$bl" solve --format csv --method auto "$f" >"$tmp/csv" 2>"$tmp/err"
+		[ $? -eq 3 ]
+		report $? "solve finds no point for $name (exit 3)"
+		grep -q 'thermal runaway' "$tmp/err"
+		report $? "$name: the message says thermal runaway"
+		[ "$(awk 'END { print NR }' "$tmp/csv")" -eq 1 ]
+		report $? "$name: the CSV holds the header alone"
+		"$bl" tidy "$f" >"$tmp/t1.yaml" && "$bl" tidy "$tmp/t1.yaml" >"$tmp/t2.yaml" &&
+			cmp -s "$tmp/t1.yaml" "$tmp/t2.yaml"
+		report $? "tidy of $name is idempotent"
+		continue
+	fi
 	vtext=$(echo "$line" | sed -n 's/^# expect: *V=\([^,]*\),.*$/\1/p')
 	itext=$(echo "$line" | sed -n 's/^# expect:.*I=\(.*\)$/\1/p')
 	want_v=$(si_value "$vtext")

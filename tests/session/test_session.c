@@ -1013,6 +1013,44 @@ static void test_samples(void **state)
 	assert_true(count >= 6);
 }
 
+/*
+ * A self-heated junction: conditions.temperature sets its ambient, its
+ * temperature follows the ambient, and saving leaves the (solved)
+ * temperature out, so the file loads again unchanged.
+ */
+static void test_self_heated(void **state)
+{
+	(void)state;
+	const char *text =
+		"source: {vs: 12.75, rs: 1.385k}\n"
+		"device:\n  model: diode\n  saturation_current: 2.385e-12\n"
+		"  ideality: 1.87\n  reference_temperature: 25\n"
+		"  thermal_resistance: 41.5 degC/W\n"
+		"conditions:\n  temperature: 47.25\n";
+	struct session s;
+	struct session_error serr;
+	assert_int_equal(session_load_buffer(&s, "h.yaml", text, strlen(text),
+	                                     &serr), SESSION_OK);
+	assert_true(s.device.p[DIODE_THETA] == 41.5);
+	assert_true(s.device.p[DIODE_TAMB] == 47.25);
+	assert_true(s.device.p[DIODE_TEMP] == 47.25);
+	assert_true(isnan(s.conditions.temperature));
+	char *y = NULL;
+	size_t n;
+	assert_int_equal(session_save_buffer(&s, &y, &n, &serr), SESSION_OK);
+	assert_null(strstr(y, "\n  temperature:"));
+	assert_non_null(strstr(y, "\n  ambient_temperature: 47.25\n"));
+	assert_non_null(strstr(y, "\n  thermal_resistance: 41.5\n"));
+	check_round_trip(&s);
+	/* the same device without a thermal resistance keeps its temperature */
+	s.device.p[DIODE_THETA] = 0.0;
+	free(y);
+	assert_int_equal(session_save_buffer(&s, &y, &n, &serr), SESSION_OK);
+	assert_non_null(strstr(y, "\n  temperature: 47.25\n"));
+	free(y);
+	session_fini(&s);
+}
+
 /* A preset fills the model's values; keys in the file override it. */
 static void test_preset(void **state)
 {
@@ -1099,6 +1137,7 @@ int main(void)
 		cmocka_unit_test(test_measured_point_cap),
 		cmocka_unit_test(test_measured_points_file),
 		cmocka_unit_test(test_preset),
+		cmocka_unit_test(test_self_heated),
 		cmocka_unit_test(test_save_refuses_bad_text),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
