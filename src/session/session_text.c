@@ -22,6 +22,7 @@
 #include <string.h>
 
 #include "core/quantity.h"
+#include "core/thermal.h"
 #include "session/atomic.h"
 #include "session/ytree.h"
 
@@ -579,6 +580,12 @@ struct stext_ctx {
 	int step;                /* the file's indentation step */
 	char why[384];           /* why the text cannot be patched */
 	bool nomem;
+	/* the device key conditions.temperature stands for in the session
+	 * read from the text (A) and in the one saved (B): "temperature", or
+	 * "ambient_temperature" for a device that heats itself */
+	const char *cond_a, *cond_b;
+	bool cond_done;          /* conditions.temperature has been rewritten */
+	const struct ynode *ta_root; /* A's canonical tree */
 };
 
 /* Record why the text cannot be patched (the first reason wins); -1. */
@@ -932,6 +939,25 @@ static void stext_path(char *buf, size_t n, const char *path, const char *key)
 	snprintf(buf, n, "%s%s%s", path, path[0] ? "." : "", key);
 }
 
+/* The user's conditions.temperature node, or NULL. */
+static const struct ynode *stext_cond_node(const struct stext_ctx *c)
+{
+	long jc = stext_find(c->uroot, "conditions");
+	const struct ynode *cond = jc >= 0 ? c->uroot->kids[jc + 1] : NULL;
+	long jt = stext_find(cond, "temperature");
+	return jt >= 0 ? cond->kids[jt + 1] : NULL;
+}
+
+/* The value of device.KEY in the canonical tree ROOT, or NULL. */
+static const struct ynode *stext_device_node(const struct ynode *root,
+                                             const char *key)
+{
+	long jd = stext_find(root, "device");
+	const struct ynode *dev = jd >= 0 ? root->kids[jd + 1] : NULL;
+	long jk = stext_find(dev, key);
+	return jk >= 0 ? dev->kids[jk + 1] : NULL;
+}
+
 /*
  * Carry the differences between canonical mappings TA and TB into the
  * user's mapping UM at PATH.
@@ -950,27 +976,45 @@ static int stext_map(struct stext_ctx *c, const struct ynode *ta,
 		stext_path(sub, sizeof sub, path, kb->text);
 		long ju = stext_find(um, kb->text);
 		const struct ynode *vu = ju >= 0 ? um->kids[ju + 1] : NULL;
+		bool cond = strcmp(path, "device") == 0 &&
+		            strcmp(kb->text, c->cond_b) == 0;
 		/* a device temperature the file gives under conditions: */
-		if (vu == NULL && strcmp(sub, "device.temperature") == 0) {
-			long jc = stext_find(c->uroot, "conditions");
-			const struct ynode *cond = jc >= 0 ? c->uroot->kids[jc + 1] : NULL;
-			long jt = stext_find(cond, "temperature");
-			vu = jt >= 0 ? cond->kids[jt + 1] : NULL;
+		if (vu == NULL && cond) {
+			vu = stext_cond_node(c);
+			/* the conditions line held A's value of its own key */
+			if (vu != NULL) {
+				va = stext_device_node(c->ta_root, c->cond_a);
+				c->cond_done = true;
+			}
 		}
 		int rc = vu == NULL ? stext_insert(c, um, tb, kb, va, vb, path)
 		                    : stext_value(c, va, vb, vu, sub);
 		if (rc != 0)
 			return -1;
 		/* the file's other spelling of the same temperature changes too */
-		if (ju >= 0 && strcmp(sub, "device.temperature") == 0) {
-			long jc = stext_find(c->uroot, "conditions");
-			const struct ynode *cond = jc >= 0 ? c->uroot->kids[jc + 1] : NULL;
-			long jt = stext_find(cond, "temperature");
-			if (jt >= 0 &&
-			    stext_value(c, va, vb, cond->kids[jt + 1],
-			                "conditions.temperature") != 0)
-				return -1;
+		if (ju >= 0 && cond) {
+			const struct ynode *vc = stext_cond_node(c);
+			if (vc != NULL) {
+				c->cond_done = true;
+				if (stext_value(c, va, vb, vc, "conditions.temperature") != 0)
+					return -1;
+			}
 		}
+	}
+	/*
+	 * A device that starts or stops heating itself: conditions.temperature
+	 * now stands for another key, so it must say that key's value.
+	 */
+	if (strcmp(path, "device") == 0 && !c->cond_done &&
+	    strcmp(c->cond_a, c->cond_b) != 0 && stext_find(um, c->cond_b) < 0) {
+		const struct ynode *vc = stext_cond_node(c);
+		const struct ynode *va = stext_device_node(c->ta_root, c->cond_a);
+		long jb = stext_find(tb, c->cond_b);
+		const struct ynode *vb = jb >= 0 ? tb->kids[jb + 1] : NULL;
+		c->cond_done = true;
+		if (vc != NULL && vb != NULL && !stext_equal(va, vb) &&
+		    stext_value(c, va, vb, vc, "conditions.temperature") != 0)
+			return -1;
 	}
 	for (size_t k = 0; ta != NULL && k + 1 < ta->nkids; k += 2) {
 		const char *key = ta->kids[k]->text;
@@ -1132,7 +1176,12 @@ static int stext_patch(const struct session *s, const struct session_text *base,
 	c->buf = base->buf;
 	c->len = base->len;
 	c->uroot = tu->root;
+	c->ta_root = ta->root;
 	c->step = stext_step(tu->root);
+	c->cond_a = thermal_active(&a.device) ? "ambient_temperature"
+	                                      : "temperature";
+	c->cond_b = thermal_active(&s->device) ? "ambient_temperature"
+	                                       : "temperature";
 	if (stext_map(c, ta->root, tb->root, tu->root, "") != 0 ||
 	    stext_apply(c, out) != 0)
 		goto done;

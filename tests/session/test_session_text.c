@@ -29,6 +29,7 @@
 #include <cmocka.h>
 
 #include "core/models/models.h"
+#include "core/thermal.h"
 #include "session/atomic.h"
 #include "session/section_network.h"
 #include "session/session.h"
@@ -381,6 +382,13 @@ static void mutate(uint64_t *st, struct session *s, struct changes *c)
 			tl->a = v;
 			changes_add(c, "tolerances/%s", tl->key);
 		}
+	}
+	/* A self-heated junction's temperature is solved: the session keeps
+	 * it at the ambient, as loading does, and the file cannot give it, so
+	 * its line goes (core/thermal.h). */
+	if (thermal_active(&s->device)) {
+		thermal_normalise(&s->device);
+		changes_add(c, "device/temperature");
 	}
 }
 
