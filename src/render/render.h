@@ -21,6 +21,8 @@
 #include "core/problem.h"
 #include "core/solve.h"
 #include "core/stepper.h"
+#include "core/thermal.h"
+#include "core/thermal_stepper.h"
 
 /* What a cell shows (decides its colour in the TUI). */
 enum cell_role {
@@ -176,6 +178,33 @@ struct render_xy {
  */
 enum render_status render_xy_plot(const struct render_xy *in, struct grid *g,
                                   struct render_layout *lay_out);
+
+/* The thermal plane of a part that heats itself (core/thermal.h). */
+struct render_thermal {
+	const struct problem *pb;          /* must heat itself */
+	const struct solve_options *o;     /* tolerance of the electrical solves */
+	const struct thermal_point *pts;   /* the balances (may be NULL) */
+	size_t npts;
+	const struct thermal_row *rows;    /* the thermal path (may be NULL) */
+	size_t nrows;
+	bool unicode;
+	bool legend;                       /* the legend line at the top */
+};
+
+/*
+ * Draw the thermal plane of IN into G: junction temperature across (in
+ * layout terms the v axis), heat up (the i axis); the heat-removal line
+ * from (Ta, 0) with slope 1/theta (ROLE_LINE), the heat made P(Tj), one
+ * electrical solve per column (ROLE_DEVICE), the maximum junction
+ * temperature as a dotted column, the path (ROLE_PATH, ROLE_NEWEST, its
+ * start ROLE_START) and the balances (ROLE_POINT).  LAY (may be NULL)
+ * gets the layout.  Returns RENDER_OK, RENDER_TOO_SMALL, RENDER_NO_MEMORY
+ * or RENDER_BAD_INPUT (a device that does not heat itself), with a
+ * message in G for the last three.
+ */
+enum render_status render_thermal_plot(const struct render_thermal *in,
+                                       struct grid *g,
+                                       struct render_layout *lay_out);
 
 /* Fill V with the defaults: whole-line frame, zoom 1, ASCII, legend on. */
 void render_view_init(struct render_view *v);

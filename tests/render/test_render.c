@@ -759,6 +759,151 @@ static void test_xy_plot(void **state)
 	grid_fini(&g);
 }
 
+/* A self-heated LED (260 K/W, -3.1 mV/K) or npn stage for the plane. */
+static void make_heated(struct problem *pb, bool npn, double theta)
+{
+	struct source_spec sp;
+	char err[256];
+	memset(pb, 0, sizeof *pb);
+	if (npn) {
+		source_spec_thevenin(&sp, 0.655, 33.0);
+		device_init(&pb->dev, &model_npn);
+		pb->dev.p[BJT_IS] = 150e-15;
+		pb->dev.p[BJT_BETA] = 90.0;
+		pb->dev.p[BJT_RC] = 2.2;
+		pb->dev.p[BJT_VCC] = 12.0;
+		pb->dev.p[BJT_TREF] = 25.0;
+		pb->dev.p[BJT_THETA] = theta;
+		pb->dev.p[BJT_TAMB] = 40.0;
+	} else {
+		source_spec_thevenin(&sp, 12.0, 1e3);
+		device_init(&pb->dev, &model_led);
+		pb->dev.p[LED_TC] = -3.1e-3;
+		pb->dev.p[LED_THETA] = theta;
+		pb->dev.p[LED_TAMB] = 45.0;
+	}
+	assert_int_equal(source_from_spec(&sp, &pb->src, err, sizeof err), 0);
+	thermal_normalise(&pb->dev);
+	if (device_validate(&pb->dev, err, sizeof err) != 0)
+		fail_msg("%s", err);
+}
+
+/* The role at the cell of (T, P) under LAY (ROLE_NONE outside). */
+static enum cell_role role_at(const struct grid *g,
+                              const struct render_layout *lay, double t,
+                              double p)
+{
+	int r, c;
+	if (!render_cell_of(lay, t, p, &r, &c))
+		return ROLE_NONE;
+	return (enum cell_role)grid_at(g, r, c)->role;
+}
+
+/*
+ * The highest role at the cell of (T, P) or the cells above and below it:
+ * a line drawn one sample per cell may cross the point's column a row off
+ * where it falls between two samples.
+ */
+static enum cell_role role_near(const struct grid *g,
+                                const struct render_layout *lay, double t,
+                                double p)
+{
+	int r, c;
+	if (!render_cell_of(lay, t, p, &r, &c))
+		return ROLE_NONE;
+	enum cell_role best = ROLE_NONE;
+	for (int d = -1; d <= 1; d++) {
+		const struct cell *x = grid_at(g, r + d, c);
+		if (x != NULL && x->role > best && x->role != ROLE_LEGEND)
+			best = (enum cell_role)x->role;
+	}
+	return best;
+}
+
+/*
+ * The thermal plane: the heat-removal line through (Ta, 0) with slope
+ * 1/theta (checked at cells of its own equation), the heat made at cells
+ * of electrical solves, each balance and the path's ends where the inputs
+ * put them, Tjmax marked when it is in the window, and refusals.
+ */
+static void test_thermal_plane(void **state)
+{
+	(void)state;
+	struct solve_options o;
+	solve_options_init(&o);
+	const double thetas[][2] = { { 0, 260.0 }, { 1, 33.0 }, { 1, 28.0 } };
+	for (size_t k = 0; k < 3; k++) {
+		struct problem pb;
+		make_heated(&pb, thetas[k][0] != 0.0, thetas[k][1]);
+		struct thermal_result tr;
+		thermal_solve(&pb, &o, &tr);
+		struct thermal_stepper *st = thermal_stepper_create();
+		assert_int_equal(thermal_stepper_init(st, &pb, &o, NAN), 0);
+		for (int j = 0; j < 9; j++)
+			thermal_stepper_step(st);
+		size_t n;
+		const struct thermal_row *rows = thermal_stepper_trace(st, &n);
+		int key = model_param_index(pb.dev.type, "ambient_temperature");
+		double ta = pb.dev.p[key], theta = thetas[k][1];
+		for (size_t z = 0; z < NSIZES; z++) {
+			struct grid g;
+			assert_int_equal(grid_init(&g, sizes[z][0], sizes[z][1]), 0);
+			struct render_thermal in = { &pb, &o, tr.pts, tr.n, rows, n,
+			                             z == 1, true };
+			struct render_layout lay;
+			assert_int_equal(render_thermal_plot(&in, &g, &lay), RENDER_OK);
+			show(&g);
+			const struct render_window *w = &lay.win;
+			/* the heat line, at a few temperatures inside the window */
+			for (int j = 1; j < 8; j++) {
+				double t = ta + j * (w->v_hi - ta) / 8.0;
+				double pl = (t - ta) / theta;
+				if (pl < w->i_hi)
+					assert_true(role_near(&g, &lay, t, pl) >= ROLE_LINE);
+			}
+			assert_true(role_at(&g, &lay, ta, 0.0) >= ROLE_LINE);
+			/* the heat made: one electrical solve at each column */
+			for (int j = 1; j < 6; j++) {
+				double t = w->v_lo + j * (w->v_hi - w->v_lo) / 6.0;
+				struct thermal_eval ev;
+				assert_int_equal(thermal_eval_at(&pb, &o, t, false, &ev), 0);
+				if (ev.p < w->i_hi)
+					assert_true(role_near(&g, &lay, t, ev.p) >= ROLE_LINE);
+			}
+			for (size_t j = 0; j < tr.n; j++)
+				assert_int_equal(role_at(&g, &lay, tr.pts[j].tj, tr.pts[j].p),
+				                 ROLE_POINT);
+			assert_true(role_at(&g, &lay, rows[0].tj, rows[0].p) >= ROLE_START);
+			assert_true(role_at(&g, &lay, rows[n - 1].tj, rows[n - 1].p) >=
+			            ROLE_NEWEST);
+			char buf[2048];
+			grid_row_text(&g, 0, buf, sizeof buf);
+			assert_non_null(strstr(buf, "balance"));
+			/* Tjmax in the window is named on the data area's top row */
+			grid_row_text(&g, lay.top, buf, sizeof buf);
+			assert_true((strstr(buf, "Tjmax") != NULL) ==
+			            (150.0 < w->v_hi && 150.0 > w->v_lo));
+			grid_fini(&g);
+		}
+		thermal_stepper_destroy(st);
+	}
+	/* a device that does not heat itself, and a grid below the minimum */
+	struct problem cold;
+	make_heated(&cold, false, 0.0);
+	struct render_thermal in = { &cold, &o, NULL, 0, NULL, 0, false, true };
+	struct grid g;
+	assert_int_equal(grid_init(&g, 24, 80), 0);
+	assert_int_equal(render_thermal_plot(&in, &g, NULL), RENDER_BAD_INPUT);
+	char buf[256];
+	grid_row_text(&g, 0, buf, sizeof buf);
+	assert_non_null(strstr(buf, "does not heat itself"));
+	grid_fini(&g);
+	make_heated(&cold, false, 260.0);
+	assert_int_equal(grid_init(&g, 5, 20), 0);
+	assert_int_equal(render_thermal_plot(&in, &g, NULL), RENDER_TOO_SMALL);
+	grid_fini(&g);
+}
+
 /* Run every render test. */
 /* True when grid row ROW holds the text T. */
 static bool row_has(const struct grid *g, int row, const char *t)
@@ -941,6 +1086,7 @@ int main(void)
 		cmocka_unit_test(test_off_plot),
 		cmocka_unit_test(test_frame_magnifies),
 		cmocka_unit_test(test_labels_80x24),
+		cmocka_unit_test(test_thermal_plane),
 	};
 	return cmocka_run_group_tests_name("render", tests, NULL, NULL);
 }
