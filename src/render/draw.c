@@ -67,10 +67,12 @@ void render_segment(struct grid *g, const struct render_layout *lay,
 	int nr = lay->bottom - lay->top + 1, nc = lay->right - lay->left + 1;
 	double x0 = render_fx(lay, v0), y0 = render_fy(lay, i0);
 	double x1 = render_fx(lay, v1), y1 = render_fy(lay, i1);
+	/* Two samples per cell along the longer axis: with one, a sample
+	 * that lands a rounding below a cell edge skips that cell. */
 	double len = fmax(fabs(x1 - x0), fabs(y1 - y0));
-	int n = (int)ceil(len);
-	if (n > 4 * (nr + nc))
-		n = 4 * (nr + nc);
+	int n = (int)ceil(2.0 * len);
+	if (n > 8 * (nr + nc))
+		n = 8 * (nr + nc);
 	for (int k = 0; k <= n; k++) {
 		double t = n > 0 ? (double)k / n : 0.0;
 		int c = render_cell_index(x0 + t * (x1 - x0), nc);

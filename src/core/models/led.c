@@ -127,13 +127,13 @@ static double led_limit(const double *p, double vnew, double vold)
 	return model_diode.limit(d, vnew, vold);
 }
 
-/* The junction is the diode's: one Shockley exponential. */
+/* The junction is the diode's: one Shockley exponential (through the
+ * stated point at the junction temperature: led_vf). */
 static int led_shockley(const double *p, struct model_shockley *out)
 {
-	out->nvt = p[LED_N] * diode_thermal_voltage(p[LED_TEMP]);
-	out->is = p[LED_IF] / expm1((p[LED_VF] - p[LED_IF] * p[LED_RS]) / out->nvt);
-	out->rs = p[LED_RS];
-	return 0;
+	double d[DIODE_NPARAMS];
+	led_to_diode(p, d);
+	return model_diode.shockley(d, out);
 }
 
 /* From a little reverse bias to five times the test current. */
