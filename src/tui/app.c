@@ -16,6 +16,7 @@
 #include <sys/stat.h>
 #include <time.h>
 
+#include "core/thermal.h"
 #include "session/recovery.h"
 
 /* Copy the string S into new memory (NULL when S is NULL or no memory). */
@@ -47,7 +48,11 @@ int app_init(struct app *a, const struct tui_options *opt, char *err,
 	memset(a, 0, sizeof *a);
 	a->opt = *opt;
 	a->st = stepper_create();
-	if (a->st == NULL) {
+	a->tst = thermal_stepper_create();
+	a->tstart = NAN;
+	if (a->st == NULL || a->tst == NULL) {
+		stepper_destroy(a->st);
+		thermal_stepper_destroy(a->tst);
 		snprintf(err, errlen, "out of memory");
 		return -1;
 	}
@@ -58,6 +63,7 @@ int app_init(struct app *a, const struct tui_options *opt, char *err,
 		if (ss != SESSION_OK) {
 			session_error_format(&serr, err, errlen);
 			stepper_destroy(a->st);
+			thermal_stepper_destroy(a->tst);
 			return ss == SESSION_NO_INPUT ? 66 : 65;
 		}
 		a->path = app_strdup(opt->path);
@@ -75,6 +81,8 @@ void app_fini(struct app *a)
 {
 	stepper_destroy(a->st);
 	a->st = NULL;
+	thermal_stepper_destroy(a->tst);
+	a->tst = NULL;
 	session_fini(&a->s);
 	session_text_fini(&a->text);
 	free(a->path);
@@ -190,7 +198,27 @@ static struct solve_options app_path_options(const struct app *a)
 	return o;
 }
 
-/* Solve again and restart the path. */
+/*
+ * The circuit the load line shows: PB, or a self-heated device at its
+ * coolest operating point's junction temperature (the ambient when it
+ * has none).
+ */
+static void app_shown_problem(struct app *a)
+{
+	a->epb = a->pb;
+	if (!thermal_active(&a->pb.dev))
+		return;
+	double tj = thermal_point_temperature(&a->pb, 0.0, 0.0);
+	for (size_t k = 0; k < a->res.n; k++) {
+		double t = thermal_point_temperature(&a->pb, a->res.pts[k].v,
+		                                     a->res.pts[k].i);
+		if (k == 0 || t < tj)
+			tj = t;
+	}
+	thermal_problem_at(&a->pb, tj, &a->epb);
+}
+
+/* Solve again and restart the paths. */
 void app_resolve(struct app *a)
 {
 	app_touch(a);
@@ -199,18 +227,46 @@ void app_resolve(struct app *a)
 	a->res.status = SOLVE_BAD_INPUT;
 	a->res.message[0] = '\0';
 	a->pb_ok = session_problem(&a->s, &a->pb, a->pb_err, sizeof a->pb_err) == 0;
+	a->epb = a->pb;
 	if (a->pb_ok) {
 		struct solve_options so = a->s.solver;
 		so.method = METHOD_AUTO;
 		if (solve_problem(&a->pb, &so, &a->res) != SOLVE_OK)
 			a->res.n = 0;
+		app_shown_problem(a);
 		struct solve_options po = app_path_options(a);
-		stepper_init(a->st, &a->pb, &po);
+		stepper_init(a->st, &a->epb, &po);
+		if (thermal_active(&a->pb.dev))
+			thermal_stepper_init(a->tst, &a->pb, &a->s.solver, a->tstart);
+	}
+	if (a->thermal && !(a->pb_ok && thermal_active(&a->pb.dev))) {
+		a->thermal = false;
+		app_message(a, false, "the device no longer heats itself: back to "
+		            "the load line");
 	}
 	if (a->point >= a->res.n)
 		a->point = 0;
 	struct action changed = { .kind = ACT_CHANGED };
 	app_post(a, &changed);
+}
+
+/* Open or close the thermal view. */
+void app_thermal_view(struct app *a, bool open)
+{
+	a->running = false;
+	if (open && !(a->pb_ok && thermal_active(&a->pb.dev))) {
+		app_message(a, true, "no thermal loop: the device does not heat "
+		            "itself (give it thermal_resistance and "
+		            "ambient_temperature)");
+		return;
+	}
+	a->thermal = open;
+	app_touch(a);
+	if (open)
+		app_message(a, false, "thermal plane: Space steps the thermal loop, "
+		            "g runs it; H or Esc goes back");
+	else
+		app_message(a, false, "back to the load line");
 }
 
 /* Set KEY to VALUE, remembering the old value. */
@@ -223,6 +279,9 @@ int app_param_set(struct app *a, const char *key, double value, char *err,
 		return -1;
 	}
 	double old = params_get(&a->s, &p);
+	int ti = a->s.device.type != NULL
+	         ? model_param_index(a->s.device.type, "temperature") : -1;
+	double temp = ti >= 0 ? a->s.device.p[ti] : NAN;
 	if (params_set(&a->s, &p, value, err, errlen) != 0)
 		return -1;
 	if (a->nundo == APP_UNDO) {
@@ -232,6 +291,8 @@ int app_param_set(struct app *a, const char *key, double value, char *err,
 	struct app_change *c = &a->undo[a->nundo++];
 	snprintf(c->key, sizeof c->key, "%s", key);
 	c->old = old;
+	/* the temperature a self-heated device's ambient carried along */
+	c->temp_old = ti >= 0 && a->s.device.p[ti] != temp ? temp : NAN;
 	a->dirty = true;
 	app_resolve(a);
 	return 0;
@@ -248,6 +309,9 @@ int app_undo(struct app *a)
 		if (params_find(&a->s, c.key, &p) != 0 ||
 		    params_set(&a->s, &p, c.old, err, sizeof err) != 0)
 			continue;
+		struct param t;
+		if (!isnan(c.temp_old) && params_find(&a->s, "temperature", &t) == 0)
+			params_set(&a->s, &t, c.temp_old, err, sizeof err);
 		char buf[64];
 		params_format(&a->s, &p, !app_unicode(a), buf, sizeof buf);
 		a->dirty = true;
@@ -392,9 +456,45 @@ int app_save(struct app *a, const char *path)
 	return 0;
 }
 
-/* Step the path once. */
+/* Say on the status line why the thermal path stopped (ST). */
+static void app_thermal_stopped(struct app *a, enum step_status st)
+{
+	size_t n;
+	thermal_stepper_trace(a->tst, &n);
+	const struct thermal_row *last = thermal_stepper_last(a->tst);
+	char t[48];
+	qty_format_short(t, sizeof t, last != NULL ? last->tj : NAN,
+	                 QTY_TEMPERATURE, 4, app_unicode(a) ? 0 : 1);
+	switch (st) {
+	case STEP_CONVERGED:
+		app_message(a, false, "thermal loop converged: Tj = %s after %zu "
+		            "projections", t, n - 1);
+		break;
+	case STEP_DIVERGING:
+		app_message(a, true, "thermal runaway: the junction passed its "
+		            "maximum at %s (r restarts)", t);
+		break;
+	default:
+		app_message(a, true, "the thermal path has stopped at %s: %s (r "
+		            "restarts it)", t, step_status_name(st));
+		break;
+	}
+}
+
+/* Step the path once (the thermal path while the thermal view is open). */
 void app_step(struct app *a)
 {
+	if (a->thermal) {
+		enum step_status st = thermal_stepper_status(a->tst);
+		if (st == STEP_CONTINUE)
+			st = thermal_stepper_step(a->tst);
+		if (st != STEP_CONTINUE)
+			app_thermal_stopped(a, st);
+		else
+			a->status[0] = '\0';
+		app_touch(a);
+		return;
+	}
 	enum step_status st = stepper_status(a->st);
 	if (!a->pb_ok) {
 		app_message(a, true, "%s", a->pb_err);
@@ -414,6 +514,19 @@ void app_run_chunk(struct app *a)
 	if (!a->pb_ok) {
 		a->running = false;
 		app_message(a, true, "%s", a->pb_err);
+		return;
+	}
+	if (a->thermal) {
+		for (int k = 0; k < APP_RUN_CHUNK; k++)
+			if (thermal_stepper_status(a->tst) != STEP_CONTINUE ||
+			    thermal_stepper_step(a->tst) != STEP_CONTINUE)
+				break;
+		app_touch(a);
+		enum step_status st = thermal_stepper_status(a->tst);
+		if (st != STEP_CONTINUE) {
+			a->running = false;
+			app_thermal_stopped(a, st);
+		}
 		return;
 	}
 	for (int k = 0; k < APP_RUN_CHUNK; k++)

@@ -18,6 +18,7 @@
 #include "core/solve.h"
 #include "core/stability.h"
 #include "core/stepper.h"
+#include "core/thermal_stepper.h"
 #include "render/render.h"
 #include "session/session.h"
 #include "session/session_text.h"
@@ -55,6 +56,9 @@ struct key_help {
 struct app_change {
 	char key[PARAMREF_KEY_MAX];
 	double old;
+	/* a self-heated device's temperature, which follows its ambient
+	 * (params.c), had TEMP_OLD before the change: NaN when it did not move */
+	double temp_old;
 };
 
 /* What the panes share. */
@@ -71,8 +75,18 @@ struct app {
 	bool pb_ok;
 	char pb_err[256];
 	struct solve_result res;
+	/* the circuit the load line shows and the path runs on: PB, or for a
+	 * device that heats itself PB with the junction at the (coolest)
+	 * operating point's temperature (core/thermal.h) */
+	struct problem epb;
 	struct stepper *st;
 	size_t point;           /* the selected operating point (p) */
+	/* the thermal loop of a device that heats itself: its path, started
+	 * at TSTART (degC; NaN: the ambient), and whether the thermal view is
+	 * open, when Space, g, b, r and a act on it instead */
+	struct thermal_stepper *tst;
+	double tstart;
+	bool thermal;
 	bool running;           /* g: the loop steps until stopped or a key */
 	unsigned gen;           /* counts changes of what the plot shows */
 
@@ -215,5 +229,11 @@ void app_step(struct app *a);
 
 /* Take up to APP_RUN_CHUNK steps of a run; stops the run at its end. */
 void app_run_chunk(struct app *a);
+
+/*
+ * Open (OPEN) or close the thermal view; it opens only for a device that
+ * heats itself (else the status line says what it needs).
+ */
+void app_thermal_view(struct app *a, bool open);
 
 #endif

@@ -55,6 +55,17 @@ static unsigned key_run(struct app *a)
 static unsigned key_back(struct app *a)
 {
 	size_t n;
+	if (a->thermal) {
+		thermal_stepper_trace(a->tst, &n);
+		if (n <= 1) {
+			app_message(a, false, "already at the start point");
+			return APP_HANDLED | APP_REDRAW;
+		}
+		thermal_stepper_rewind(a->tst, n - 2);
+		a->status[0] = '\0';
+		app_touch(a);
+		return APP_HANDLED | APP_REDRAW;
+	}
 	stepper_trace(a->st, &n);
 	if (n <= 1) {
 		app_message(a, false, "already at the start point");
@@ -88,9 +99,22 @@ static unsigned key_order(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Start the path at the newest iterate's voltage. */
+/* Start the path at the newest iterate's voltage (thermal: its Tj). */
 static unsigned key_anchor(struct app *a)
 {
+	if (a->thermal) {
+		const struct thermal_row *t = thermal_stepper_last(a->tst);
+		if (t == NULL || !isfinite(t->tj)) {
+			app_message(a, true, "no iterate to start from");
+			return APP_HANDLED | APP_REDRAW;
+		}
+		a->tstart = t->tj;
+		thermal_stepper_init(a->tst, &a->pb, &a->s.solver, a->tstart);
+		app_touch(a);
+		app_message(a, false, "the thermal path now starts at the newest "
+		            "junction temperature");
+		return APP_HANDLED | APP_REDRAW;
+	}
 	const struct trace_row *last = stepper_last(a->st);
 	if (last == NULL || !isfinite(last->v)) {
 		app_message(a, true, "no iterate to start from");
@@ -122,6 +146,13 @@ static unsigned key_point(struct app *a)
 	struct stability_result sr = app_stability(a, a->point);
 	app_message(a, false, "point %zu of %zu: %s, %s, %s", a->point + 1,
 	            a->res.n, v, i, stability_name(sr.verdict));
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* Show or hide the thermal plane of a device that heats itself. */
+static unsigned key_thermal(struct app *a)
+{
+	app_thermal_view(a, !a->thermal);
 	return APP_HANDLED | APP_REDRAW;
 }
 
@@ -217,6 +248,7 @@ static const struct key_binding key_table[] = {
 	{ { 0 }, "m", "(tolerance) Monte Carlo", DOC },
 	{ { 'S' }, "S", "sensitivities, % per %", OPEN(pane_sens) },
 	{ { 'W' }, "W", "sweep: I against RS/RP", OPEN(pane_sweep) },
+	{ { 'H' }, "H", "thermal plane: self-heating", RUN(key_thermal) },
 	{ { 0 }, "Up/Down", "(view) choose a row", DOC },
 	{ { 0 }, "Enter", "(view) apply the row", DOC },
 	{ { 0 }, "t", "(design) new target", DOC },

@@ -56,7 +56,8 @@ static void pane_plot_input(struct app *a, struct render_input *in)
 	bool heading;
 	size_t focus = app_focus_point(a, &heading);
 	*in = (struct render_input){
-		.pb = &a->pb, .pts = a->res.pts, .npts = a->res.n,
+		/* epb: a self-heated device's curve at its junction temperature */
+		.pb = &a->epb, .pts = a->res.pts, .npts = a->res.n,
 		.focus = focus == (size_t)-1 ? 0 : focus,
 		.labels = a->res.n > 1,
 	};

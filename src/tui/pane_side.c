@@ -2,7 +2,10 @@
  * pane_side.c - the side pane: the operating points, the parameter list
  * with the selection shown inverted, the diagnosis from diagnose.h and
  * the convergence table with the newest row at the bottom.  Every number
- * shown comes from the core; nothing here computes physics.
+ * shown comes from the core; nothing here computes physics.  For a device
+ * that heats itself the points carry their junction temperature and loop
+ * gain, and while the thermal view is open the diagnosis and the table
+ * are the thermal loop's (core/thermal.h, thermal_stepper.h).
  */
 #include <math.h>
 #include <stdbool.h>
@@ -14,6 +17,7 @@
 #include "core/diagnose.h"
 #include "core/remedy.h"
 #include "core/eseries.h"
+#include "core/thermal.h"
 #include "tui/app.h"
 #include "tui/panes.h"
 
@@ -276,6 +280,30 @@ static int pane_extra(struct app *a, int row, int col, int w, int max)
 	return used;
 }
 
+/*
+ * Draw the junction temperature and loop gain of the first point of a
+ * device that heats itself (or why it has none); returns rows used.
+ */
+static int pane_junction(struct app *a, int row, int col, int w, int max)
+{
+	if (!a->pb_ok || max <= 0 || !thermal_active(&a->pb.dev))
+		return 0;
+	if (a->res.n == 0)
+		return 0; /* pane_points shows the runaway message */
+	struct thermal_eval ev;
+	if (thermal_point_info(&a->pb, a->res.pts[0].v, a->res.pts[0].i,
+	                       &ev) != 0)
+		return 0;
+	char t[48], g[48], line[160];
+	qty_format(t, sizeof t, ev.tj, QTY_TEMPERATURE, 4, app_unicode(a) ? 0 : 1);
+	snprintf(g, sizeof g, "%.3g", ev.gain + 0.0);
+	snprintf(line, sizeof line, "Tj %s  G %s  %s", t, g,
+	         ev.gain < 1.0 ? "stable" : "unstable");
+	term_text(&a->term, row, col, line, w,
+	          ev.gain < 1.0 ? TS_NORMAL : TS_ERROR);
+	return 1;
+}
+
 /* Draw the core's safety caution for this case, if any; returns rows used. */
 static int pane_caution(struct app *a, int row, int col, int w, int max)
 {
@@ -328,6 +356,60 @@ struct pane_diag {
 	int optional;     /* index of the paragraph to drop first, or -1 */
 };
 
+/*
+ * Build the thermal loop's diagnosis into D: G and what it means at the
+ * balance (or the runaway), the path's state with G at its newest step,
+ * and the remedy.
+ */
+static void pane_diag_thermal(struct app *a, struct pane_diag *d)
+{
+	struct thermal_diagnosis at, live;
+	bool have = a->res.n > 0;
+	double tcool = NAN;
+	for (size_t k = 0; k < a->res.n; k++) {
+		double t = thermal_point_temperature(&a->pb, a->res.pts[k].v,
+		                                     a->res.pts[k].i);
+		if (isnan(tcool) || t < tcool)
+			tcool = t;
+	}
+	if (have) {
+		thermal_diagnose(&a->pb, &a->s.solver, tcool, &at);
+		snprintf(d->text[d->n], sizeof d->text[0], "balance: %s", at.verdict);
+		d->style[d->n++] = at.stable ? TS_GOOD : TS_ERROR;
+	} else {
+		struct thermal_keys k;
+		double tjmax = thermal_keys_of(a->pb.dev.type, &k)
+		               ? a->pb.dev.p[k.tjmax] : NAN;
+		snprintf(d->text[d->n], sizeof d->text[0], "no heat balance up to "
+		         "Tjmax %.4g degC: it runs away", tjmax);
+		d->style[d->n++] = TS_ERROR;
+	}
+	enum step_status st = thermal_stepper_status(a->tst);
+	const struct thermal_row *last = thermal_stepper_last(a->tst);
+	size_t n;
+	thermal_stepper_trace(a->tst, &n);
+	char g[48] = "-";
+	if (last != NULL && isfinite(last->tj)) {
+		thermal_diagnose(&a->pb, &a->s.solver, last->tj, &live);
+		if (isfinite(live.gain))
+			snprintf(g, sizeof g, "%.3g", live.gain + 0.0);
+	}
+	snprintf(d->text[d->n], sizeof d->text[0], "k=%zu %s: G %s at the "
+	         "newest step", n > 0 ? n - 1 : 0, step_status_name(st), g);
+	d->style[d->n++] = st == STEP_CONVERGED ? TS_GOOD
+	                   : st == STEP_CONTINUE ? TS_NORMAL : TS_ERROR;
+	const char *advice = have ? at.advice : "";
+	if (!have || st == STEP_DIVERGING)
+		advice = "lower the thermal resistance (a larger heat sink), add "
+		         "series or emitter resistance, or drive with a current "
+		         "source";
+	if (advice[0] != '\0') {
+		snprintf(d->text[d->n], sizeof d->text[0], "%s", advice);
+		d->optional = d->n;
+		d->style[d->n++] = TS_DIM;
+	}
+}
+
 /* Build the diagnosis paragraphs of A into D. */
 static void pane_diag_build(struct app *a, struct pane_diag *d)
 {
@@ -335,13 +417,22 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 	d->optional = -1;
 	if (!a->pb_ok)
 		return;
+	if (a->thermal) {
+		pane_diag_thermal(a, d);
+		return;
+	}
 	enum projection_order order = a->s.solver.order;
 	struct diagnosis at;
 	bool heading = false;
 	size_t focus = app_focus_point(a, &heading);
 	bool have = focus != (size_t)-1;
 	if (have) {
-		diagnose_at(&a->pb, order, a->res.pts[focus].v, a->s.solver.tol, 1.0,
+		/* on the curve through the point (a self-heated part's, at
+		 * the point's own junction temperature) */
+		struct problem fq;
+		thermal_problem_at_point(&a->pb, a->res.pts[focus].v,
+		                         a->res.pts[focus].i, &fq);
+		diagnose_at(&fq, order, a->res.pts[focus].v, a->s.solver.tol, 1.0,
 		            &at);
 		char which[64] = "";
 		if (a->res.n > 1)
@@ -353,7 +444,7 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 		size_t nr;
 		const struct trace_row *rows = stepper_trace(a->st, &nr);
 		if (nr > 0 && fabs(at.gprime) < 1.0) {
-			double p = diagnose_projections(&a->pb, order, a->res.pts[focus].v,
+			double p = diagnose_projections(&fq, order, a->res.pts[focus].v,
 			                                a->res.pts[focus].i, rows[0].i,
 			                                a->s.solver.tol);
 			if (isfinite(p))
@@ -383,7 +474,7 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 	struct diagnosis live;
 	const struct diagnosis *dp = NULL;
 	if (st != STEP_CONTINUE && last != NULL && isfinite(last->v)) {
-		diagnose_at(&a->pb, order, last->v, a->s.solver.tol, 1.0, &live);
+		diagnose_at(&a->epb, order, last->v, a->s.solver.tol, 1.0, &live);
 		dp = &live;
 	}
 	if (st != STEP_CONTINUE && st != STEP_CONVERGED) {
@@ -446,11 +537,58 @@ static int pane_diagnosis(struct app *a, const struct pane_diag *d, int row,
 	return used;
 }
 
+/*
+ * Draw the thermal path's table, newest last: k, Tj, heat, step and ratio
+ * (the ratio tends to G), or without the step when narrow.
+ */
+static void pane_thermal_table(struct app *a, int row, int col, int w, int max)
+{
+	bool wide = w >= 38;
+	char line[256];
+	if (wide)
+		snprintf(line, sizeof line, "%3s %8s %8s %7s %6s", "k", "Tj", "P",
+		         "step", "ratio");
+	else
+		snprintf(line, sizeof line, "%3s %8s %8s %6s", "k", "Tj", "P", "ratio");
+	term_text(&a->term, row, col, line, w, TS_HEADER);
+	size_t n;
+	const struct thermal_row *rows = thermal_stepper_trace(a->tst, &n);
+	size_t show = (size_t)(max - 1);
+	size_t first = n > show ? n - show : 0;
+	for (size_t k = first; k < n; k++) {
+		const struct thermal_row *r = &rows[k];
+		char t[48], p[48], step[48], ratio[48];
+		snprintf(t, sizeof t, "%.5g", r->tj);
+		pane_side_eng(p, sizeof p, r->p, 4);
+		if (isnan(r->step))
+			snprintf(step, sizeof step, "-");
+		else
+			pane_side_eng(step, sizeof step, r->step, 3);
+		if (!isfinite(r->ratio))
+			snprintf(ratio, sizeof ratio, "-");
+		else if (fabs(r->ratio) < 10.0)
+			snprintf(ratio, sizeof ratio, "%+.3f", r->ratio);
+		else
+			pane_side_eng(ratio, sizeof ratio, r->ratio, 3);
+		if (wide)
+			snprintf(line, sizeof line, "%3u %8s %8s %7s %6s", r->k, t, p,
+			         step, ratio);
+		else
+			snprintf(line, sizeof line, "%3u %8s %8s %6s", r->k, t, p, ratio);
+		term_text(&a->term, row + 1 + (int)(k - first), col, line, w,
+		          k + 1 == n ? TS_HEADER : TS_NORMAL);
+	}
+}
+
 /* Draw the convergence table with the newest row at the bottom. */
 static void pane_conv_table(struct app *a, int row, int col, int w, int max)
 {
 	if (max < 2)
 		return;
+	if (a->thermal) {
+		pane_thermal_table(a, row, col, w, max);
+		return;
+	}
 	bool wide = w >= 42;
 	char line[256];
 	/* Units in the header: the residual is a current or a voltage
@@ -512,6 +650,7 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 	if (a->res.n > 1 && pmax > 2 + rows / 6)
 		pmax = 2 + rows / 6;
 	y += pane_points(a, y, x, w, pmax);
+	y += pane_junction(a, y, x, w, 1);
 	y += pane_extra(a, y, x, w, 7);
 	y += pane_caution(a, y, x, w, 9);
 
@@ -549,8 +688,12 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 	y += pane_params(a, sd, y, x, w, plines);
 	if (y < end) {
 		char dtitle[64];
-		snprintf(dtitle, sizeof dtitle, "Diagnosis (V from %s)",
-		         a->s.solver.order == ORDER_VOLTAGE_FROM_LINE ? "line" : "device");
+		if (a->thermal)
+			snprintf(dtitle, sizeof dtitle, "Diagnosis (thermal loop)");
+		else
+			snprintf(dtitle, sizeof dtitle, "Diagnosis (V from %s)",
+			         a->s.solver.order == ORDER_VOLTAGE_FROM_LINE ? "line"
+			                                                      : "device");
 		pane_header(a, y++, x, w, dtitle);
 		int dl = end - y - 3 < diag ? end - y - 3 : diag;
 		if (dl > 0)
@@ -561,7 +704,10 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 		size_t nt;
 		stepper_trace(a->st, &nt);
 		char ctitle[64];
-		snprintf(ctitle, sizeof ctitle, "Convergence (%zu projection%s%s)",
+		if (a->thermal)
+			thermal_stepper_trace(a->tst, &nt);
+		snprintf(ctitle, sizeof ctitle, "%s (%zu projection%s%s)",
+		         a->thermal ? "Thermal loop" : "Convergence",
 		         nt > 0 ? nt - 1 : 0, nt == 2 ? "" : "s",
 		         a->running ? ", running" : "");
 		/* Narrow: the count by the table's own column name. */

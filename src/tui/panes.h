@@ -13,6 +13,7 @@
 extern const struct pane pane_title;   /* the title bar */
 extern const struct pane pane_plot;    /* the load-line plot */
 extern const struct pane pane_sweep;   /* the sweep plot (in the plot's place) */
+extern const struct pane pane_thermal; /* the thermal plane (in the plot's place) */
 extern const struct pane pane_side;    /* point, parameters, diagnosis, table */
 extern const struct pane pane_design;  /* the design view */
 extern const struct pane pane_tol;     /* the tolerance view */

@@ -7,6 +7,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "core/thermal.h"
 #include "session/section_network.h"
 
 /* Start a row for KEY labelled LABEL in UNIT. */
@@ -203,12 +204,23 @@ int params_set(struct session *s, const struct param *p, double value,
 		snprintf(err, errlen, "%s: no such parameter in this session", p->key);
 		return -1;
 	}
+	struct thermal_keys tk;
+	if (thermal_active(&s->device) && thermal_keys_of(s->device.type, &tk) &&
+	    slot == &s->device.p[tk.temp]) {
+		snprintf(err, errlen, "%s is solved when the device heats itself: "
+		         "change ambient_temperature (or thermal_resistance)",
+		         p->label);
+		return -1;
+	}
 	double old = *slot;
 	*slot = value;
 	if (params_check(s, err, errlen) != 0) {
 		*slot = old;
 		return -1;
 	}
+	/* a self-heated junction's temperature follows its ambient, as a
+	 * loaded session's does (core/thermal.h) */
+	thermal_normalise(&s->device);
 	return 0;
 }
 

@@ -503,6 +503,44 @@ sweep)
 	wait_gone "I vs RS"
 	echo "ok: sweep mark at $frac of the 1k-10k decade; } moved it to 3.6k; Esc back"
 	;;
+thermal)
+	# The runaway sample: H shows the thermal plane, g runs the thermal
+	# loop past the 150 degC maximum (G > 1 on the way); an emitter resistor
+	# of 1 ohm typed in makes it converge, with G below 1, and the load line
+	# below follows the junction; Esc goes back to the load line.
+	start 100 30 "$samples/npn-fixed-base-runaway.yaml"
+	wait_for "Convergence"
+	wait_for "thermal runaway"
+	keys H
+	wait_for "heat removed"
+	wait_for "Diagnosis (thermal loop)"
+	wait_for "load line at Tj 40 degC"
+	keys Space Space Space
+	wait_for "   3 "
+	keys g
+	wait_for "thermal runaway: the junction passed its maximum"
+	wait_for "diverging"
+	screen | grep -qE 'diverging: G [0-9.]+ at the newest' ||
+		fail "no G at the newest step"
+	g=$(screen | grep -oE 'diverging: G [0-9.]+' | awk '{ print $3 }')
+	awk -v g="$g" 'BEGIN { exit !(g > 1) }' || fail "G $g is not above 1"
+	keys Down Down Down Down Down
+	keys e
+	wait_for "RE ="
+	keys 1 Enter
+	wait_for "RE       1 ohm"
+	wait_for "Tj "
+	keys g
+	wait_for "thermal loop converged"
+	screen | grep -qE 'balance: G = 0\.[0-9]+ at' || fail "no stable balance"
+	tj=$(screen | grep -oE 'converged: Tj = [0-9.]+' | awk '{ print $4 }')
+	wait_for "load line at Tj $tj degC"
+	keys Escape
+	wait_for "I^ V>"
+	wait_for "Convergence"
+	wait_gone "heat removed"
+	echo "ok: ran away with G $g; RE = 1 ohm converged at $tj degC"
+	;;
 network)
 	# A network source lists its parts first; typing a part's value reduces
 	# the network again.  Upper divider 68k -> 56k with 22k below it from
