@@ -85,8 +85,8 @@ double thermal_point_temperature(const struct problem *pb, double v, double i)
 	const double *p = pb->dev.p;
 	if (!(p[k.theta] > 0.0))
 		return p[k.temp];
-	return p[k.tamb] + p[k.theta] * device_dissipation(&pb->dev, v, i, NULL,
-	                                                   NULL);
+	return p[k.tamb] + p[k.theta] * device_dissipation(&pb->dev, &pb->src,
+	                                                   v, i);
 }
 
 /* V(I) of Q's device with the junction at T; 0 or -1. */
@@ -134,6 +134,30 @@ static double thermal_drift(const struct problem *q, int itemp, double tj,
 }
 
 /*
+ * The heat of Q's device at (V, I) (model.h, device_dissipation) and its
+ * partial derivatives at a fixed temperature into *PV and *PI: I and V for
+ * a part whose heat is V I; else central differences of the model's own
+ * power, with steps of 1e-5 of V and I (a transistor's IC VCE + IB VBE is
+ * at most quadratic in them, so the difference errs only by rounding).
+ */
+static double thermal_heat(const struct problem *q, double v, double i,
+                           double *pv, double *pi)
+{
+	double p = device_dissipation(&q->dev, &q->src, v, i);
+	if (q->dev.type->power == NULL) {
+		*pv = i;
+		*pi = v;
+		return p;
+	}
+	double hv = 1e-5 * fmax(fabs(v), 1e-6), hi = 1e-5 * fmax(fabs(i), 1e-15);
+	*pv = (device_dissipation(&q->dev, &q->src, v + hv, i) -
+	       device_dissipation(&q->dev, &q->src, v - hv, i)) / (2.0 * hv);
+	*pi = (device_dissipation(&q->dev, &q->src, v, i + hi) -
+	       device_dissipation(&q->dev, &q->src, v, i - hi)) / (2.0 * hi);
+	return p;
+}
+
+/*
  * The slopes of OUT's point (PT filled, Q the isothermal problem at its
  * Tj, THETA the thermal resistance) into OUT (see thermal.h).
  */
@@ -143,7 +167,7 @@ static void thermal_fill_slopes(const struct problem *q,
 {
 	double v = out->pt.v, i = out->pt.i, rd = out->pt.rd;
 	double pv, pi;
-	out->p = device_dissipation(&q->dev, v, i, &pv, &pi);
+	out->p = thermal_heat(q, v, i, &pv, &pi);
 	out->vt = thermal_drift(q, k->temp, out->tj, v, i, rd);
 	double r = q->src.r;
 	if (isinf(r)) {
@@ -176,7 +200,7 @@ int thermal_eval_at(const struct problem *pb, const struct solve_options *o,
 		return -1;
 	out->pt = res.pts[0];
 	if (!slopes) {
-		out->p = device_dissipation(&q.dev, out->pt.v, out->pt.i, NULL, NULL);
+		out->p = device_dissipation(&q.dev, &q.src, out->pt.v, out->pt.i);
 		return isfinite(out->p) ? 0 : -1;
 	}
 	thermal_fill_slopes(&q, &k, pb->dev.p[k.theta], out);
@@ -766,7 +790,7 @@ static double thermal_norm(double p, double y, double dy)
 static double thermal_diss_partial(const struct problem *q, int index,
                                    double v, double i)
 {
-	if (q->dev.type->dissipation == NULL)
+	if (q->dev.type->power == NULL)
 		return 0.0;
 	const struct model_param *mp = &q->dev.type->params[index];
 	double p = q->dev.p[index];
@@ -777,17 +801,17 @@ static double thermal_diss_partial(const struct problem *q, int index,
 	bool up = paramref_in_range(mp, p + h), down = paramref_in_range(mp, p - h);
 	if (up && down) {
 		d.p[index] = p + h;
-		double a = device_dissipation(&d, v, i, NULL, NULL);
+		double a = device_dissipation(&d, &q->src, v, i);
 		d.p[index] = p - h;
-		double b = device_dissipation(&d, v, i, NULL, NULL);
+		double b = device_dissipation(&d, &q->src, v, i);
 		return (a - b) / (2.0 * h);
 	}
 	double st = up ? h : -h;
-	double f0 = device_dissipation(&d, v, i, NULL, NULL);
+	double f0 = device_dissipation(&d, &q->src, v, i);
 	d.p[index] = p + st;
-	double f1 = device_dissipation(&d, v, i, NULL, NULL);
+	double f1 = device_dissipation(&d, &q->src, v, i);
 	d.p[index] = p + 2.0 * st;
-	double f2 = device_dissipation(&d, v, i, NULL, NULL);
+	double f2 = device_dissipation(&d, &q->src, v, i);
 	return (-3.0 * f0 + 4.0 * f1 - f2) / (2.0 * st);
 }
 
@@ -807,7 +831,7 @@ int thermal_sensitivity(const struct problem *pb, double v, double i,
 	struct problem q;
 	thermal_problem_at(pb, ev.tj, &q);
 	double pv, pi;
-	device_dissipation(&q.dev, v, i, &pv, &pi);
+	thermal_heat(&q, v, i, &pv, &pi);
 	bool dev = r->kind == PARAMREF_DEVICE;
 	double vp = 0.0, ip = 0.0, direct = 0.0;
 	if (dev && r->index == k.tamb) {

@@ -72,7 +72,8 @@ static void pane_thermal_elec(struct app *a, struct thermal_view *v,
 	struct thermal_eval ev;
 	if (thermal_eval_at(&a->pb, &a->s.solver, tj, false, &ev) == 0)
 		pt = ev.pt;
-	struct render_input in = { &q, &pt, isfinite(pt.v) ? 1 : 0, NULL, 0 };
+	struct render_input in = { .pb = &q, .pts = &pt,
+	                           .npts = isfinite(pt.v) ? 1 : 0 };
 	struct render_view view;
 	render_view_init(&view);
 	view.unicode = app_unicode(a);
