@@ -131,7 +131,8 @@ static int solve_shockley(const struct problem *pb,
 		return -1;
 	pt->i = jr.ij;
 	pt->v = jr.vj + sk->rs * jr.ij;
-	pt->power = pt->v * pt->i;
+	/* the heat: a transistor's own IC VCE + IB VBE (model.h) */
+	pt->power = device_dissipation(&pb->dev, &pb->src, pt->v, pt->i);
 	pt->rd = 1.0 / jr.gj + sk->rs; /* no exponential: gj came with it */
 	pt->residual = fabs(pt->v + s->r * pt->i - s->voc);
 	pt->steps = jr.iters;
