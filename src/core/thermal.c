@@ -37,11 +37,23 @@ bool thermal_keys_of(const struct model_type *type, struct thermal_keys *k)
 	       type->voltage != NULL && type->current != NULL && type->monotone;
 }
 
-/* True when DEV heats itself. */
+/*
+ * True when DEV heats itself.  Every solve asks, so the usual answer is
+ * quick: the self-heating keys end a model's table (MODEL_THERMAL_PARAMS,
+ * models.h), and a model whose third-last key is not thermal_resistance,
+ * or whose thermal resistance is 0, does not heat itself.
+ */
 bool thermal_active(const struct device *dev)
 {
+	const struct model_type *t = dev->type;
+	if (t == NULL || t->nparams < 4)
+		return false;
+	size_t j = t->nparams - 3;
+	if (!(dev->p[j] > 0.0) ||
+	    strcmp(t->params[j].key, "thermal_resistance") != 0)
+		return false;
 	struct thermal_keys k;
-	return thermal_keys_of(dev->type, &k) && dev->p[k.theta] > 0.0;
+	return thermal_keys_of(t, &k);
 }
 
 /* The temperature parameter of a self-heated DEV at its ambient. */

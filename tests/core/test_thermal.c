@@ -897,9 +897,43 @@ static void test_sensitivities(void **state)
 	}
 }
 
+/*
+ * Every model with the self-heating keys lists them last, in order (the
+ * solver's quick test relies on it), and the quick test agrees with the
+ * full lookup.
+ */
+static void test_keys_last(void **state)
+{
+	(void)state;
+	size_t heated = 0;
+	for (size_t m = 0; model_registry[m] != NULL; m++) {
+		const struct model_type *t = model_registry[m];
+		struct thermal_keys k;
+		bool has = thermal_keys_of(t, &k);
+		int theta = model_param_index(t, "thermal_resistance");
+		if (theta < 0) {
+			assert_false(has);
+			continue;
+		}
+		heated++;
+		assert_int_equal(theta, (int)t->nparams - 3);
+		assert_int_equal(model_param_index(t, "ambient_temperature"),
+		                 (int)t->nparams - 2);
+		assert_int_equal(model_param_index(t, "maximum_junction_temperature"),
+		                 (int)t->nparams - 1);
+		struct device d;
+		device_init(&d, t);
+		assert_false(thermal_active(&d));
+		d.p[theta] = 17.3;
+		assert_true(thermal_active(&d) == has);
+	}
+	assert_int_equal(heated, 5); /* diode, zener, led, npn, pnp */
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_keys_last),
 		cmocka_unit_test(test_diodes_against_reference),
 		cmocka_unit_test(test_transistors_against_reference),
 		cmocka_unit_test(test_gain_against_differences),

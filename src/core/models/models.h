@@ -207,7 +207,9 @@ double diode_scaled_saturation(double is_ref, double t_c, double tref_c,
  * The self-heating keys of a junction model's table (thermal.h reads them
  * by key): thermal_resistance, ambient_temperature and
  * maximum_junction_temperature with default TJMAX and its help line HELP.
- * THETA, TAMB and TJMAX_I are the model's indices of the three.
+ * THETA, TAMB and TJMAX_I are the model's indices of the three, which must
+ * be the last three of the table in this order (the solver's quick test
+ * of whether a device heats itself looks there).
  */
 #define MODEL_THERMAL_PARAMS(THETA, TAMB, TJMAX_I, TJMAX, HELP)                 \
 	[THETA] = { "thermal_resistance", "Rth", QTY_THERMAL_RES, 0.0, 0.0, 1e5,   \
