@@ -346,8 +346,10 @@ static bool solve_try_shockley(const struct problem *pb,
 {
 	const struct model_type *t = pb->dev.type;
 	struct model_shockley sk;
+	/* a self-heated part goes through the heat balance (thermal.h) */
 	if (o->method != METHOD_AUTO || t->shockley == NULL ||
-	    !isfinite(pb->src.r) || t->shockley(pb->dev.p, &sk) != 0 ||
+	    !isfinite(pb->src.r) || thermal_active(&pb->dev) ||
+	    t->shockley(pb->dev.p, &sk) != 0 ||
 	    solve_shockley(pb, &sk, o->tol, &out->pts[0]) != 0)
 		return false;
 	out->status = SOLVE_OK;

@@ -17,6 +17,8 @@
 /* How far above Tjmax a runaway is followed, K (and never past this). */
 #define THERMAL_RUNAWAY_SPAN 250.0
 #define THERMAL_T_CEILING 990.0
+/* Substitutions that settle a point's Tj under a heat that moves with T. */
+#define THERMAL_TJ_ITERS 60
 /* Samples of G between the ambient and Tjmax when nothing balances. */
 #define THERMAL_GAIN_SAMPLES 32
 /* Grid steps of the margin continuation. */
@@ -86,7 +88,13 @@ void thermal_problem_at_point(const struct problem *pb, double v, double i,
 	thermal_problem_at(pb, thermal_point_temperature(pb, v, i), q);
 }
 
-/* Tj of the point (V, I). */
+/*
+ * Tj of the point (V, I): Ta + theta P(V, I), with P the heat of the
+ * device at Tj itself.  A heat V I does not depend on the temperature, and
+ * a transistor's (read off its curve at its base current) barely does, so
+ * a few substitutions settle it; the result is the junction temperature
+ * of a heat balance the point belongs to.
+ */
 double thermal_point_temperature(const struct problem *pb, double v, double i)
 {
 	struct thermal_keys k;
@@ -97,8 +105,20 @@ double thermal_point_temperature(const struct problem *pb, double v, double i)
 	const double *p = pb->dev.p;
 	if (!(p[k.theta] > 0.0))
 		return p[k.temp];
-	return p[k.tamb] + p[k.theta] * device_dissipation(&pb->dev, &pb->src,
-	                                                   v, i);
+	struct device d = pb->dev;
+	double t = p[k.tamb] + p[k.theta] * device_dissipation(&d, &pb->src, v, i);
+	if (d.type->power == NULL)
+		return t;
+	for (int it = 0; it < THERMAL_TJ_ITERS && isfinite(t); it++) {
+		d.p[k.temp] = t;
+		double tn = p[k.tamb] + p[k.theta] *
+		            device_dissipation(&d, &pb->src, v, i);
+		double step = tn - t;
+		t = tn;
+		if (!(fabs(step) > 1e-15 * fabs(t - HEAT_ZERO_C)))
+			break;
+	}
+	return t;
 }
 
 /* V(I) of Q's device with the junction at T; 0 or -1. */
@@ -170,6 +190,29 @@ static double thermal_heat(const struct problem *q, double v, double i,
 }
 
 /*
+ * The heat's own drift with the junction temperature at a fixed (V, I),
+ * for Q at TJ: 0 for a part whose heat is V I; else Richardson-extrapolated
+ * central differences of the model's power (a transistor's power hook
+ * finds its collector side from V through its curve, which moves with T).
+ */
+static double thermal_heat_dt(const struct problem *q, int itemp, double tj,
+                              double v, double i)
+{
+	if (q->dev.type->power == NULL)
+		return 0.0;
+	const double h = THERMAL_DT_STEP;
+	struct device d = q->dev;
+	double f[4];
+	const double at[4] = { tj + h, tj - h, tj + 0.5 * h, tj - 0.5 * h };
+	for (int k = 0; k < 4; k++) {
+		d.p[itemp] = at[k];
+		f[k] = device_dissipation(&d, &q->src, v, i);
+	}
+	double d1 = (f[0] - f[1]) / (2.0 * h), d2 = (f[2] - f[3]) / h;
+	return (4.0 * d2 - d1) / 3.0;
+}
+
+/*
  * The slopes of OUT's point (PT filled, Q the isothermal problem at its
  * Tj, THETA the thermal resistance) into OUT (see thermal.h).
  */
@@ -189,7 +232,8 @@ static void thermal_fill_slopes(const struct problem *q,
 		out->di_dt = -out->vt / (rd + r);
 		out->dv_dt = -r * out->di_dt;
 	}
-	out->dp_dt = pv * out->dv_dt + pi * out->di_dt;
+	out->dp_dt = pv * out->dv_dt + pi * out->di_dt +
+	             thermal_heat_dt(q, k->temp, out->tj, v, i);
 	out->gain = theta * out->dp_dt;
 }
 

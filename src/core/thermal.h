@@ -26,7 +26,11 @@
  *
  *     dI/dTj = -vT / (r_d + r),  dV/dTj = -r dI/dTj   (finite r)
  *     dI/dTj = 0,                dV/dTj = vT          (ideal current source)
- *     dP/dTj = dP/dV dV/dTj + dP/dI dI/dTj.
+ *     dP/dTj = dP/dV dV/dTj + dP/dI dI/dTj + dP/dT|V,I
+ *
+ * (the last term 0 for a heat V I; a transistor's power hook reads its
+ * collector side off its curve, which moves with T: central differences
+ * of the model's power).
  *
  * With no balance at or below the maximum junction temperature the part
  * runs away; the report says what the heat path can take there and where,

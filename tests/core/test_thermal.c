@@ -2,8 +2,9 @@
  * test_thermal.c - the self-heated junction (core/thermal.h, core/heat.h,
  * core/thermal_stepper.h) against an independent solve of the coupled
  * equations, written here from the documented models (Shockley's junction
- * with the Is(T) law of diode.c, the base-bias stage of bjt.c) and solved
- * with GSL's Brent root finder (Brent, Algorithms for Minimization without
+ * with the Is(T) law of diode.c; the base-bias stage of bjt.c, the
+ * transport Ebers-Moll transistor of Ebers & Moll, Proc. IRE 42, 1954) and
+ * solved with GSL's Brent root finder (Brent, Algorithms for Minimization without
  * Derivatives, 1973) on a fine grid: every balance, Tj, V and I to 1e-9.
  * Then the loop gain against differences of P(Tj), runaway exactly where G
  * crosses 1 (the criterion dP/dT < 1/theta: Millman & Halkias, Integrated
@@ -60,7 +61,7 @@ struct ref_case {
 	bool bjt;
 	double is0, n, eg, m, t0;  /* the junction, Is at t0 */
 	double rsd;                /* diode: bulk resistance */
-	double beta, re, rc, vcc, vsat; /* transistor */
+	double beta, re, rc, vcc, betar; /* transistor */
 	double vs, rs;             /* Thevenin source; rs = INFINITY: is = vs */
 	double theta, ta, tjmax;
 };
@@ -100,15 +101,78 @@ static double ref_brent(gsl_function *f, double lo, double hi)
 	return x;
 }
 
+/* The transistor of C at junction temperature TC and base-emitter VBE. */
+struct ref_em {
+	const struct ref_case *c;
+	double is, s, t;     /* Is(T), n Vt, VBE */
+	double ic, ib, ie;   /* the currents once VBC is solved */
+};
+
+/* The Ebers-Moll currents at VBE = E->t and VBC = U into E. */
+static void ref_em_currents(struct ref_em *e, double u)
+{
+	const struct ref_case *c = e->c;
+	double a = expm1(e->t / e->s), cc = expm1(u / e->s);
+	e->ic = e->is * (a - cc) - e->is / c->betar * cc;
+	e->ib = e->is / c->beta * a + e->is / c->betar * cc;
+	e->ie = e->ic + e->ib;
+}
+
+/*
+ * VBC = VB - VC with VB = VBE + RE IE and VC = VCC - RC IC: its residual,
+ * increasing in VBC (both IE and IC fall as VBC rises).
+ */
+static double ref_em_vbc_f(double u, void *params)
+{
+	struct ref_em *e = params;
+	ref_em_currents(e, u);
+	return u - (e->t + e->c->re * e->ie) + (e->c->vcc - e->c->rc * e->ic);
+}
+
+/* Solve VBC for E->t (GSL Brent, the bracket grown upward). */
+static double ref_em_vbc(struct ref_em *e)
+{
+	gsl_function f = { ref_em_vbc_f, e };
+	double lo = e->t - e->c->vcc - 1.0, hi = e->t;
+	for (int k = 0; k < 200 && !(ref_em_vbc_f(hi, e) > 0.0); k++)
+		hi += 0.25;
+	double u = ref_brent(&f, lo, hi);
+	ref_em_currents(e, u);
+	return u;
+}
+
+/* What the base loop solves for: VB + RS IB - VS, or IB - I (ideal source). */
+static double ref_em_loop_f(double t, void *params)
+{
+	struct ref_em *e = params;
+	e->t = t;
+	ref_em_vbc(e);
+	if (isinf(e->c->rs))
+		return e->ib - e->c->vs;
+	return t + e->c->re * e->ie + e->c->rs * e->ib - e->c->vs;
+}
+
 /* The electrical point of C with the junction at TC. */
 static struct ref_point ref_electrical(const struct ref_case *c, double tc)
 {
 	struct ref_point pt;
 	double nvt = c->n * ref_vt(tc);
 	double is = ref_is(c->is0, tc, c->t0, c->eg, c->m, c->n);
-	if (c->bjt)
-		is /= c->beta; /* the base loop: IB = Is/beta (e^(VBE/nVt) - 1) */
-	double rser = c->bjt ? (c->beta + 1.0) * c->re : c->rsd;
+	if (c->bjt) {
+		struct ref_em e = { .c = c, .is = is, .s = nvt };
+		gsl_function f = { ref_em_loop_f, &e };
+		double lo = -1.0, hi = fmax(0.1, isinf(c->rs) ? 1.0 : c->vs);
+		for (int k = 0; k < 200 && !(ref_em_loop_f(hi, &e) > 0.0); k++)
+			hi += 0.05;
+		double t = ref_brent(&f, lo, hi);
+		ref_em_loop_f(t, &e);
+		pt.i = e.ib;
+		pt.v = t + c->re * e.ie;
+		double vce = c->vcc - e.ic * c->rc - e.ie * c->re;
+		pt.p = e.ic * vce + e.ib * t;
+		return pt;
+	}
+	double rser = c->rsd;
 	if (isinf(c->rs)) {
 		/* an ideal current source: the junction voltage at that current */
 		pt.i = c->vs;
@@ -125,19 +189,7 @@ static struct ref_point ref_electrical(const struct ref_case *c, double tc)
 		pt.i = is * expm1(vj / nvt);
 		pt.v = vj + rser * pt.i;
 	}
-	if (!c->bjt) {
-		pt.p = pt.v * pt.i;
-		return pt;
-	}
-	/* The collector side (bjt.c): active, else saturated. */
-	double ib = pt.i, ic = c->beta * ib, ie = (c->beta + 1.0) * ib;
-	double vce = c->vcc - ic * c->rc - ie * c->re;
-	if (vce < c->vsat) {
-		ic = (c->vcc - c->vsat - ib * c->re) / (c->rc + c->re);
-		ie = ic + ib;
-		vce = c->vsat;
-	}
-	pt.p = ic * vce + ib * (pt.v - ie * c->re);
+	pt.p = pt.v * pt.i;
 	return pt;
 }
 
@@ -148,7 +200,10 @@ static double ref_heat_f(double tc, void *params)
 	return tc - c->ta - c->theta * ref_electrical(c, tc).p;
 }
 
+/* Grid of the reference scan (finer than the solver's 96 intervals): the
+ * transistor's nested solves are dearer, so its grid is coarser. */
 #define REF_GRID 3000
+#define REF_GRID_BJT 800
 
 /* Every balance of C in [Ta, Tjmax] into T (rising); how many. */
 static size_t ref_balances(const struct ref_case *c, double *t, size_t max)
@@ -158,8 +213,9 @@ static size_t ref_balances(const struct ref_case *c, double *t, size_t max)
 	double a = c->ta, fa = ref_heat_f(a, (void *)c);
 	if (fa == 0.0)
 		t[n++] = a;
-	for (int k = 1; k <= REF_GRID && n < max; k++) {
-		double b = c->ta + (c->tjmax - c->ta) * k / REF_GRID;
+	int grid = c->bjt ? REF_GRID_BJT : REF_GRID;
+	for (int k = 1; k <= grid && n < max; k++) {
+		double b = c->ta + (c->tjmax - c->ta) * k / grid;
 		double fb = ref_heat_f(b, (void *)c);
 		if (fb == 0.0)
 			t[n++] = b;
@@ -193,7 +249,7 @@ static void case_problem(const struct ref_case *c, struct problem *pb)
 		p[BJT_RE] = c->re;
 		p[BJT_RC] = c->rc;
 		p[BJT_VCC] = c->vcc;
-		p[BJT_VCESAT] = c->vsat;
+		p[BJT_BETAR] = c->betar;
 		p[BJT_TREF] = c->t0;
 		p[BJT_EG] = c->eg;
 		p[BJT_XTI] = c->m;
@@ -257,7 +313,7 @@ static void draw_bjt(struct check_rng *r, struct ref_case *c)
 	c->re = (check_rng_next(r) & 1u) ? check_rng_log_uniform(r, 0.05, 4.7) : 0.0;
 	c->rc = check_rng_uniform(r, 0.0, 12.0);
 	c->vcc = check_rng_uniform(r, 4.5, 36.0);
-	c->vsat = 0.2;
+	c->betar = check_rng_log_uniform(r, 0.5, 5.0);
 	c->rs = check_rng_log_uniform(r, 2.2, 470.0);
 	double ic0 = check_rng_log_uniform(r, 3e-3, 0.6);
 	double vbe = c->n * ref_vt(25.0) * log(ic0 / c->is0);
@@ -307,6 +363,11 @@ static int compare_case(const struct ref_case *c, size_t k, size_t *points)
 			fail_msg("case %zu balance %zu: G %.10g, difference %.10g", k,
 			         j, t->gain, g);
 		assert_true(t->stable == (t->gain < 1.0));
+		/* the point alone gives its junction temperature back */
+		double tb = thermal_point_temperature(&pb, t->pt.v, t->pt.i);
+		if (!(fabs(tb - t->tj) <= 1e-9 * ts))
+			fail_msg("case %zu balance %zu: Tj %.12g from the point, %.12g "
+			         "solved", k, j, tb, t->tj);
 	}
 	*points += nref;
 	return nref > 0;
@@ -412,7 +473,7 @@ static void test_gain_against_differences(void **state)
 	case_problem(&c, &pbs[2]);
 	struct ref_case b = { .bjt = true, .is0 = 2.3e-14, .n = 1.0, .eg = 1.12,
 	                      .m = 3.0, .t0 = 25.0, .beta = 117.0, .re = 0.47,
-	                      .rc = 3.3, .vcc = 14.1, .vsat = 0.2, .vs = 0.83,
+	                      .rc = 3.3, .vcc = 14.1, .betar = 1.0, .vs = 0.83,
 	                      .rs = 27.0, .theta = 21.0, .ta = 41.0, .tjmax = 150 };
 	case_problem(&b, &pbs[3]);
 	pbs[3].dev.type = &model_pnp; /* the same stage in magnitudes */
@@ -561,7 +622,7 @@ static void stage_case(struct ref_case *c, double re, double ic0,
 {
 	*c = (struct ref_case){ .bjt = true, .is0 = 1.7e-13, .n = 1.0,
 	                        .eg = 1.12, .m = 3.0, .t0 = 25.0, .beta = 93.0,
-	                        .re = re, .rc = 0.0, .vcc = 14.7, .vsat = 0.2,
+	                        .re = re, .rc = 0.0, .vcc = 14.7, .betar = 1.0,
 	                        .rs = 27.0, .theta = theta, .ta = 38.0,
 	                        .tjmax = 150.0 };
 	c->vs = c->n * ref_vt(25.0) * log(ic0 / c->is0) +
@@ -930,10 +991,44 @@ static void test_keys_last(void **state)
 	assert_int_equal(heated, 5); /* diode, zener, led, npn, pnp */
 }
 
+/*
+ * The operating-point solver sends a self-heated part through the heat
+ * balance (no fast path may skip it): solve_problem gives the stable
+ * balances of thermal_solve, and solve_fast declines.
+ */
+static void test_solver_route(void **state)
+{
+	(void)state;
+	struct problem pbs[3];
+	led_problem(&pbs[0], 12.7, 390.0, 410.0, 38.5);
+	struct ref_case c = { .bjt = false, .is0 = 3.7e-12, .n = 1.41, .eg = 1.12,
+	                      .m = 3.0, .t0 = 25.0, .rsd = 0.37, .vs = 5.3,
+	                      .rs = 18.7, .theta = 71.0, .ta = 33.0, .tjmax = 150 };
+	case_problem(&c, &pbs[1]);
+	struct ref_case b;
+	stage_case(&b, 0.1, 0.015, 22.0);
+	case_problem(&b, &pbs[2]);
+	struct solve_options o;
+	solve_options_init(&o);
+	for (size_t k = 0; k < 3; k++) {
+		struct thermal_result tr;
+		struct solve_result res;
+		assert_int_equal(thermal_solve(&pbs[k], &o, &tr), THERMAL_OK);
+		assert_int_equal(solve_problem(&pbs[k], &o, &res), SOLVE_OK);
+		assert_int_equal(res.n, 1);
+		assert_true(tr.pts[0].stable);
+		assert_memory_equal(&res.pts[0].v, &tr.pts[0].pt.v, sizeof(double));
+		assert_memory_equal(&res.pts[0].i, &tr.pts[0].pt.i, sizeof(double));
+		struct op_point pt;
+		assert_int_equal(solve_fast(&pbs[k], o.tol, &pt), -1);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_keys_last),
+		cmocka_unit_test(test_solver_route),
 		cmocka_unit_test(test_diodes_against_reference),
 		cmocka_unit_test(test_transistors_against_reference),
 		cmocka_unit_test(test_gain_against_differences),

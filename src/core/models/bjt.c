@@ -290,7 +290,7 @@ static double bjt_conductance(const double *p, double v)
  */
 static int bjt_at_ib(const double *p, double i, struct bjt_state *st)
 {
-	double is = p[BJT_IS];
+	double is = bjt_constants(p).is;
 	if (!(i > -is * (1.0 / p[BJT_BETA] + 1.0 / p[BJT_BETAR])) || !isfinite(i))
 		return -1;
 	struct bjt_k k = bjt_constants(p);
@@ -351,14 +351,18 @@ static double bjt_vce(const struct bjt_k *k, const struct bjt_state *st)
 	return k->vcc - st->ic * k->rc - st->ie * k->re;
 }
 
-/* The power the transistor dissipates: IC VCE + IB VBE. */
+/*
+ * The power the transistor dissipates: IC VCE + IB VBE, from the state at
+ * the base current I (the same as from V on the curve; from I it barely
+ * moves with the junction temperature, which the self-heating solve
+ * relies on: thermal.h), or from V when I is outside the curve.
+ */
 static double bjt_power(const double *p, const struct source *src, double v,
                         double i)
 {
 	(void)src;
-	(void)i;
 	struct bjt_state st;
-	if (bjt_at_vb(p, v, &st) != 0)
+	if (bjt_at_ib(p, i, &st) != 0 && bjt_at_vb(p, v, &st) != 0)
 		return NAN;
 	struct bjt_k k = bjt_constants(p);
 	return st.ic * bjt_vce(&k, &st) + st.ib * st.vbe;
