@@ -8,6 +8,8 @@
 #include <string.h>
 
 #include "models/models.h"
+#include "problem.h"
+#include "thermal.h"
 
 /* Every model, in the order help screens list them. */
 const struct model_type *const model_registry[] = {
@@ -165,7 +167,17 @@ int device_secondary(const struct device *dev, const struct source *src,
 	memset(out, 0, sizeof *out);
 	if (dev->type->secondary == NULL)
 		return -1;
-	if (dev->type->secondary(dev->p, src, v, i, out) != 0) {
+	/* A device that heats itself reports at the point's own junction
+	 * temperature (a transistor reads its collector side off the curve
+	 * there: thermal.h). */
+	const double *p = dev->p;
+	struct problem at;
+	if (src != NULL && thermal_active(dev)) {
+		struct problem q = { .src = *src, .dev = *dev };
+		thermal_problem_at_point(&q, v, i, &at);
+		p = at.dev.p;
+	}
+	if (dev->type->secondary(p, src, v, i, out) != 0) {
 		memset(out, 0, sizeof *out);
 		return -1;
 	}

@@ -257,8 +257,9 @@ void device_range(const struct device *dev, double *vmin, double *vmax);
 
 /*
  * The model's extra results at (V, I) with source SRC into OUT (see
- * model_type.secondary).  Returns 0, or -1 (OUT then has n = 0) when the
- * model has none.
+ * model_type.secondary), for a device that heats itself at the point's own
+ * junction temperature (thermal.h).  Returns 0, or -1 (OUT then has n = 0)
+ * when the model has none.
  */
 int device_secondary(const struct device *dev, const struct source *src,
                      double v, double i, struct model_extra *out);

@@ -372,16 +372,22 @@ static void pane_diag_thermal(struct app *a, struct pane_diag *d)
 		if (isnan(tcool) || t < tcool)
 			tcool = t;
 	}
+	int ascii = app_unicode(a) ? 0 : 1;
+	char t[48];
+	/* First the short verdict, which fits the narrowest pane. */
 	if (have) {
 		thermal_diagnose(&a->pb, &a->s.solver, tcool, &at);
-		snprintf(d->text[d->n], sizeof d->text[0], "balance: %s", at.verdict);
+		qty_format_short(t, sizeof t, tcool, QTY_TEMPERATURE, 4, ascii);
+		snprintf(d->text[d->n], sizeof d->text[0], "G %.3g at %s: %s",
+		         at.gain + 0.0, t, at.stable ? "stable" : "runaway");
 		d->style[d->n++] = at.stable ? TS_GOOD : TS_ERROR;
 	} else {
 		struct thermal_keys k;
 		double tjmax = thermal_keys_of(a->pb.dev.type, &k)
 		               ? a->pb.dev.p[k.tjmax] : NAN;
-		snprintf(d->text[d->n], sizeof d->text[0], "no heat balance up to "
-		         "Tjmax %.4g degC: it runs away", tjmax);
+		qty_format_short(t, sizeof t, tjmax, QTY_TEMPERATURE, 4, ascii);
+		snprintf(d->text[d->n], sizeof d->text[0], "runs away: no balance "
+		         "up to Tjmax %s", t);
 		d->style[d->n++] = TS_ERROR;
 	}
 	enum step_status st = thermal_stepper_status(a->tst);
@@ -394,17 +400,18 @@ static void pane_diag_thermal(struct app *a, struct pane_diag *d)
 		if (isfinite(live.gain))
 			snprintf(g, sizeof g, "%.3g", live.gain + 0.0);
 	}
-	snprintf(d->text[d->n], sizeof d->text[0], "k=%zu %s: G %s at the "
-	         "newest step", n > 0 ? n - 1 : 0, step_status_name(st), g);
+	snprintf(d->text[d->n], sizeof d->text[0], "k=%zu %s: G %s here",
+	         n > 0 ? n - 1 : 0, step_status_name(st), g);
 	d->style[d->n++] = st == STEP_CONVERGED ? TS_GOOD
 	                   : st == STEP_CONTINUE ? TS_NORMAL : TS_ERROR;
-	const char *advice = have ? at.advice : "";
+	/* Then what it means, or the remedy for a runaway (dropped first). */
+	const char *more = have ? at.verdict : "";
 	if (!have || st == STEP_DIVERGING)
-		advice = "lower the thermal resistance (a larger heat sink), add "
-		         "series or emitter resistance, or drive with a current "
-		         "source";
-	if (advice[0] != '\0') {
-		snprintf(d->text[d->n], sizeof d->text[0], "%s", advice);
+		more = "lower the thermal resistance (a larger heat sink), add "
+		       "series or emitter resistance, or drive with a current "
+		       "source";
+	if (more[0] != '\0') {
+		snprintf(d->text[d->n], sizeof d->text[0], "%s", more);
 		d->optional = d->n;
 		d->style[d->n++] = TS_DIM;
 	}
@@ -712,7 +719,8 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 		         a->running ? ", running" : "");
 		/* Narrow: the count by the table's own column name. */
 		if (render_text_width(ctitle) + 3 > w)
-			snprintf(ctitle, sizeof ctitle, "Convergence (k = %zu%s)",
+			snprintf(ctitle, sizeof ctitle, "%s (k = %zu%s)",
+			         a->thermal ? "Thermal loop" : "Convergence",
 			         nt > 0 ? nt - 1 : 0, a->running ? ", running" : "");
 		pane_header(a, y++, x, w, ctitle);
 		pane_conv_table(a, y, x, w, end - y);

@@ -520,7 +520,7 @@ thermal)
 	keys g
 	wait_for "thermal runaway: the junction passed its maximum"
 	wait_for "diverging"
-	screen | grep -qE 'diverging: G [0-9.]+ at the newest' ||
+	screen | grep -qE 'diverging: G [0-9.]+ here' ||
 		fail "no G at the newest step"
 	g=$(screen | grep -oE 'diverging: G [0-9.]+' | awk '{ print $3 }')
 	awk -v g="$g" 'BEGIN { exit !(g > 1) }' || fail "G $g is not above 1"
@@ -532,7 +532,8 @@ thermal)
 	wait_for "Tj "
 	keys g
 	wait_for "thermal loop converged"
-	screen | grep -qE 'balance: G = 0\.[0-9]+ at' || fail "no stable balance"
+	screen | grep -qE 'G 0\.[0-9]+ at [0-9.]+ degC: stable' ||
+		fail "no stable balance"
 	tj=$(screen | grep -oE 'converged: Tj = [0-9.]+' | awk '{ print $4 }')
 	wait_for "load line at Tj $tj degC"
 	keys Escape
