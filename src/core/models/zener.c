@@ -331,6 +331,33 @@ static int zener_validate(const double *p, char *err, size_t errlen)
 	return zener_validate_at(q, err, errlen);
 }
 
+/*
+ * The derived constants beside the point, so that every number can be
+ * reproduced from biasline-models(7): the series resistance Rs, which
+ * both branches carry (forward conduction too drops I Rs), the breakdown
+ * junction's shift Vj0 and its current scale Ir.  No region: the curve is
+ * one smooth junction.
+ */
+static int zener_secondary(const double *p, const struct source *src,
+                           double v, double i, struct model_extra *out)
+{
+	(void)src;
+	(void)v;
+	(void)i;
+	struct zener_k k;
+	zener_derive(p, &k);
+	out->region = NULL;
+	out->warn = false;
+	out->note[0] = '\0';
+	out->v[out->n++] = (struct model_extra_value){
+		"derived_series_resistance", "Rs", QTY_RESISTANCE, k.rs };
+	out->v[out->n++] = (struct model_extra_value){
+		"breakdown_shift_voltage", "Vj0", QTY_VOLTAGE, k.vj0 };
+	out->v[out->n++] = (struct model_extra_value){
+		"breakdown_scale_current", "Ir", QTY_CURRENT, k.ir };
+	return 0;
+}
+
 static const struct model_param zener_params[ZENER_NPARAMS] = {
 	[ZENER_VZ] = { "breakdown_voltage", "Vz", QTY_VOLTAGE, NAN, 0.0, 1e4, true,
 	               false, false, "reverse voltage at the test current, positive" },
@@ -382,4 +409,5 @@ const struct model_type model_zener = {
 	.prepare = zener_prepare,
 	.current_k = zener_current_k,
 	.conductance_k = zener_conductance_k,
+	.secondary = zener_secondary,
 };
