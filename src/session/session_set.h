@@ -4,9 +4,9 @@
  * line, and any front end that edits a value by key.
  *
  * Keys:
- *   vs, rs, is, rp          the source (paramref.h: either pair moves the
- *                           load line whatever form the file used; the
- *                           session keeps its form)
+ *   vs, rs or is, rp        the source: the pair of the form the file
+ *                           uses (paramref.h; the other pair is refused
+ *                           with the keys the source has)
  *   a device parameter key  saturation_current, temperature, ...
  *   source.network.<part>   a part of a network source
  *   target.<key>            current, voltage, power, current_min, ...
