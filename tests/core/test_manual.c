@@ -144,20 +144,22 @@ static ld zener_f(const ld *c, ld vj)
 static void test_zener(void **state)
 {
 	(void)state;
-	/* Vz, Izt, rz, Is, n, nb, T */
-	static const double sets[][7] = {
-		{ 5.1, 5e-3, 17.0, 1e-14, 1.0, 1.0, 25.0 },
-		{ 3.37, 2.15e-2, 4.81, 2.7e-13, 1.43, 1.21, 47.3 },
-		{ 12.4, 1.03e-3, 61.9, 8.1e-15, 1.07, 2.3, -11.6 },
+	/* Vz, Izt, rz, Is, n, nb, T, TC, Tref */
+	static const double sets[][9] = {
+		{ 5.1, 5e-3, 17.0, 1e-14, 1.0, 1.0, 25.0, 0.0, 25.0 },
+		{ 3.37, 2.15e-2, 4.81, 2.7e-13, 1.43, 1.21, 47.3, 0.0, 25.0 },
+		{ 12.4, 1.03e-3, 61.9, 8.1e-15, 1.07, 2.3, -11.6, 8.3e-3, 21.7 },
 	};
 	static const double vs[] = { -13.0, -5.2, -3.4, -1.0, 0.0, 0.4, 0.72 };
 	for (size_t s = 0; s < sizeof sets / sizeof sets[0]; s++) {
 		const double *p = sets[s];
 		struct device d;
 		device_init(&d, &model_zener);
-		memcpy(d.p, p, 7 * sizeof p[0]);
+		memcpy(d.p, p, 9 * sizeof p[0]);
 		ld vt = page_vt(p[6]), nvt = p[4] * vt, a = p[5] * vt;
-		ld vz = p[0], izt = p[1], rz = p[2], is = p[3];
+		/* Vz(T) = Vz + TC (T - Tref) */
+		ld vz = (ld)p[0] + (ld)p[7] * ((ld)p[6] - p[8]);
+		ld izt = p[1], rz = p[2], is = p[3];
 		/* Rs from rz - a/Izt, substituted in the page's order. */
 		ld rs = rz - a / izt, vj0, ir;
 		for (int round = 0; round < 6; round++) {
@@ -192,24 +194,27 @@ static void test_zener(void **state)
 static void test_led(void **state)
 {
 	(void)state;
-	/* Vf, If, n, Rs, T */
-	static const double sets[][5] = { { 2.0, 20e-3, 2.0, 6.0, 25.0 },
-	                                  { 3.217, 3.5e-1, 3.41, 1.37, 61.8 },
-	                                  { 1.283, 1.03e-1, 1.47, 0.93, -17.2 } };
+	/* Vf, If, n, Rs, T, TC, Tref */
+	static const double sets[][7] = {
+		{ 2.0, 20e-3, 2.0, 6.0, 25.0, 0.0, 25.0 },
+		{ 3.217, 3.5e-1, 3.41, 1.37, 61.8, -2.1e-3, 25.0 },
+		{ 1.283, 1.03e-1, 1.47, 0.93, -17.2, -1.7e-3, 31.0 },
+	};
 	static const double vs[] = { -1.2, 0.0, 1.1, 1.9, 2.6, 3.3 };
 	for (size_t s = 0; s < sizeof sets / sizeof sets[0]; s++) {
 		const double *p = sets[s];
 		struct device d;
 		device_init(&d, &model_led);
-		memcpy(d.p, p, 5 * sizeof p[0]);
+		memcpy(d.p, p, 7 * sizeof p[0]);
 		ld nvt = p[2] * page_vt(p[4]);
-		ld is = p[1] / (expl(((ld)p[0] - (ld)p[1] * p[3]) / nvt) - 1.0L);
+		ld vf = (ld)p[0] + (ld)p[5] * ((ld)p[4] - p[6]); /* Vf(T) */
+		ld is = p[1] / (expl((vf - (ld)p[1] * p[3]) / nvt) - 1.0L);
 		for (size_t k = 0; k < sizeof vs / sizeof vs[0]; k++)
 			page_close("led", vs[k], device_current(&d, vs[k]),
 			           page_junction_current(is, nvt, p[3], vs[k]), is, 1e-10);
-		/* The stated point itself. */
-		page_close("led at Vf", p[0], device_current(&d, p[0]), p[1], 0.0L,
-		           1e-12);
+		/* The stated point itself, at Vf(T). */
+		page_close("led at Vf", p[0], device_current(&d, (double)vf), p[1],
+		           0.0L, 1e-12);
 	}
 }
 
@@ -295,11 +300,13 @@ static ld bjt_vb_f(const ld *b, ld t)
 static void test_bjt(void **state)
 {
 	(void)state;
-	/* Is, n, beta, RE, RC, VCC, betaR, T */
-	static const double sets[][8] = {
-		{ 1.2e-14, 1.0, 147.0, 470.0, 2.2e3, 12.0, 1.0, 25.0 },
-		{ 6.8e-15, 1.03, 283.0, 820.0, 39e3, 15.3, 0.37, 41.7 },
-		{ 2.3e-14, 1.0, 96.0, 0.0, 8.2e3, 9.1, 4.3, 25.0 },
+	/* Is, n, beta, RE, RC, VCC, betaR, T, Tref, Eg, m */
+	static const double sets[][11] = {
+		{ 1.2e-14, 1.0, 147.0, 470.0, 2.2e3, 12.0, 1.0, 25.0, -273.15, 1.12,
+		  3.0 },
+		{ 6.8e-15, 1.03, 283.0, 820.0, 39e3, 15.3, 0.37, 41.7, -273.15, 1.12,
+		  3.0 },
+		{ 2.3e-14, 1.0, 96.0, 0.0, 8.2e3, 9.1, 4.3, 61.3, 25.0, 1.12, 3.0 },
 	};
 	static const double vs[] = { -0.4, 0.31, 0.62, 0.9, 1.3, 2.2, 3.1 };
 	for (int pol = 0; pol < 2; pol++)
@@ -307,8 +314,16 @@ static void test_bjt(void **state)
 			const double *p = sets[s];
 			struct device d;
 			device_init(&d, pol ? &model_pnp : &model_npn);
-			memcpy(d.p, p, 8 * sizeof p[0]);
-			ld b[B_N] = { p[0], p[1] * page_vt(p[7]), p[2], p[6], p[3], p[4],
+			memcpy(d.p, p, 11 * sizeof p[0]);
+			/* Is carried to T by the diode's law when Tref is given. */
+			ld is = p[0];
+			if (p[8] != -273.15) {
+				ld t = (ld)p[7] + 273.15L, t0 = (ld)p[8] + 273.15L;
+				is = p[0] * powl(t / t0, p[10]) *
+				     expl((PAGE_Q * p[9] / (p[1] * PAGE_K)) *
+				          (1.0L / t0 - 1.0L / t));
+			}
+			ld b[B_N] = { is, p[1] * page_vt(p[7]), p[2], p[6], p[3], p[4],
 			              p[5], 0.0L };
 			for (size_t k = 0; k < sizeof vs / sizeof vs[0]; k++) {
 				b[B_VB] = vs[k];
