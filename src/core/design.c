@@ -554,9 +554,14 @@ static int design_general(const struct problem *pb,
 }
 
 /* Whether RQ needs the general design (see design.h). */
-static bool design_is_general(const struct design_request *rq)
+static bool design_is_general(const struct problem *pb,
+                              const struct design_request *rq)
 {
-	return rq->target == DESIGN_RESULT ||
+	/* A curve bound to the source (model_type.bind: a FET's drain loop
+	 * carries r) moves with a change of r, so the device point at the
+	 * target does not give the value in closed form. */
+	bool bound = pb->dev.type->bind != NULL && rq->unknown != DESIGN_FOR_VS;
+	return bound || rq->target == DESIGN_RESULT ||
 	       (rq->unknown == DESIGN_FOR_PART &&
 	        rq->part.kind == PARAMREF_DEVICE);
 }
@@ -771,7 +776,7 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 			return -1;
 		}
 	}
-	if (design_is_general(rq)) {
+	if (design_is_general(pb, rq)) {
 		if (design_general(pb, o, rq, &exact, out) != 0)
 			return -1;
 		v = out->v_target;
@@ -783,7 +788,7 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 		out->v_target = v;
 		out->i_target = i;
 	}
-	if (design_is_general(rq)) {
+	if (design_is_general(pb, rq)) {
 		/* found above */
 	} else if (rq->unknown == DESIGN_FOR_PART) {
 		if (design_part_value(pb, rq, v, i, &exact, out->message,

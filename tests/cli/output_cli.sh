@@ -90,6 +90,7 @@ csv_case "design csv of rs" "$bl" design -f csv --current 7m \
 	"$samples/indicator-led-24v.yaml"
 csv_case "sweep csv of rs" "$bl" sweep -f csv --param rs --from 1k \
 	--to 3k --points 5 "$samples/indicator-led-24v.yaml"
+csv_case "fit csv" "$bl" fit -f csv -m led -p "$samples/amber-panel-led.csv"
 
 # Every model has a sample, and each sample's CSV outputs are strict, so
 # every model's header is unique.
@@ -152,7 +153,9 @@ if [ -w /dev/full ]; then
 	            "reduce -f csv --nodes $tmp/net.yaml" \
 	            "design --current 7m $led" \
 	            "sweep --param rs --from 1k --to 3k $led" \
-	            "tolerance -n 100 $tmp/net.yaml" "--help" "--version" \
+	            "tolerance -n 100 $tmp/net.yaml" \
+	            "fit -m led -p $samples/amber-panel-led.csv" \
+	            "--help" "--version" \
 	            "solve --help" "plot --help"; do
 		n=$((n + 1))
 		# shellcheck disable=SC2086

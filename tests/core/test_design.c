@@ -899,6 +899,58 @@ static void test_design_stage(void **state)
 	}
 }
 
+/*
+ * A FET whose drain loop carries the source resistor (models/fet.c):
+ * changing RS moves the transfer curve too, so the exact RS must be
+ * found with the curve bound to each trial RS.  In the triode region the
+ * point of the exact row meets the target current to the solver's
+ * accuracy, and by the closed form of the square law with the bias line
+ * and VDS = VDD - ID (RD + RS) (Shichman & Hodges, IEEE JSSC 1968):
+ * ID = k ((VGS - Vth) VDS - VDS^2/2) with VGS = VG - ID RS.
+ */
+static void test_design_bound_fet(void **state)
+{
+	(void)state;
+	static const double targets[] = { 0.9e-3, 1.1e-3 };
+	for (size_t k = 0; k < 2; k++) {
+		struct problem pb;
+		memset(&pb, 0, sizeof pb);
+		device_init(&pb.dev, &model_nmos);
+		pb.dev.p[FET_K] = 2.2e-3;
+		pb.dev.p[FET_VTH] = 1.35;
+		pb.dev.p[FET_VDD] = 12.0;
+		pb.dev.p[FET_RD] = 10e3;
+		struct source_spec sp;
+		char err[128];
+		source_spec_thevenin(&sp, 4.7, 1.5e3);
+		assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+		problem_bind(&pb);
+		struct solve_options o;
+		solve_options_init(&o);
+		struct design_request rq = { .target = DESIGN_CURRENT,
+		                             .value = targets[k],
+		                             .unknown = DESIGN_FOR_RS,
+		                             .series = ESERIES_E24 };
+		struct design_result res;
+		if (design_solve(&pb, &o, &rq, NULL, &res) != 0)
+			fail_msg("target %g A: %s", targets[k], res.message);
+		const struct design_row *r = &res.rows[0];
+		assert_int_equal(r->kind, DESIGN_ROW_EXACT);
+		assert_true(r->solved);
+		if (!(fabs(r->pt.i / targets[k] - 1.0) < 1e-9))
+			fail_msg("exact RS %.9g ohm gives %.12g A, target %.12g A",
+			         r->value, r->pt.i, targets[k]);
+		double id = targets[k], rs = r->value;
+		double vgs = 4.7 - id * rs, vds = 12.0 - id * (10e3 + rs);
+		double vov = vgs - 1.35;
+		double law = vds < vov ? 2.2e-3 * (vov * vds - 0.5 * vds * vds)
+		                       : 1.1e-3 * vov * vov;
+		if (!(fabs(law / id - 1.0) < 1e-8))
+			fail_msg("exact RS %.9g ohm: the square law gives %.12g A there",
+			         rs, law);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -911,6 +963,7 @@ int main(void)
 		cmocka_unit_test(test_design_worst_brute),
 		cmocka_unit_test(test_design_stage),
 		cmocka_unit_test(test_design_worst_part),
+		cmocka_unit_test(test_design_bound_fet),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
