@@ -394,9 +394,9 @@ static int bjt_secondary_common(const double *p, double v, double i,
 	} else if (be && bc) {
 		out->region = "saturation";
 		snprintf(out->note, sizeof out->note,
-		         "both junctions conduct (%s %.4g V): the collector circuit "
-		         "cannot take beta x IB, so IC/IB = %.4g is below beta = %.4g",
-		         pnp ? "VCB" : "VBC", st.vbc, st.ic / st.ib, k.bf);
+		         "both junctions conduct (%s %.3g V): IC/IB = %.4g, below "
+		         "beta %.4g", pnp ? "VCB" : "VBC", st.vbc, st.ic / st.ib,
+		         k.bf);
 	} else if (!be && !bc) {
 		out->region = "cut off";
 		snprintf(out->note, sizeof out->note,
