@@ -188,6 +188,20 @@ int device_secondary(const struct device *dev, const struct source *src,
 double device_dissipation(const struct device *dev, const struct source *src,
                           double v, double i)
 {
+	/* A device that heats itself: its power at the point's own Tj. */
+	if (src != NULL && dev->type != NULL && dev->type->power != NULL &&
+	    thermal_active(dev)) {
+		struct problem q = { .src = *src, .dev = *dev }, at;
+		thermal_problem_at_point(&q, v, i, &at);
+		return device_heat(&at.dev, src, v, i);
+	}
+	return device_heat(dev, src, v, i);
+}
+
+/* The model's power at its own temperature parameter (see model.h). */
+double device_heat(const struct device *dev, const struct source *src,
+                   double v, double i)
+{
 	if (dev->type != NULL && dev->type->power != NULL)
 		return dev->type->power(dev->p, src, v, i);
 	return v * i;

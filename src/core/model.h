@@ -269,10 +269,19 @@ static inline double device_power(double v, double i) { return v * i; }
 
 /*
  * The power DEV dissipates at (V, I) with source SRC: the model's own
- * (model_type.power) or V I.  Ratings, tolerances, cautions and every
- * printed device power use this.
+ * (model_type.power) or V I; for a device that heats itself, at the
+ * point's own junction temperature (thermal.h).  Ratings, tolerances,
+ * cautions and every printed device power use this.
  */
 double device_dissipation(const struct device *dev, const struct source *src,
                           double v, double i);
+
+/*
+ * The same at the temperature DEV's parameters give, even for a device
+ * that heats itself (device_dissipation takes the point's own junction
+ * temperature then, and the heat balance itself needs this one).
+ */
+double device_heat(const struct device *dev, const struct source *src,
+                   double v, double i);
 
 #endif

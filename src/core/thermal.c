@@ -106,13 +106,13 @@ double thermal_point_temperature(const struct problem *pb, double v, double i)
 	if (!(p[k.theta] > 0.0))
 		return p[k.temp];
 	struct device d = pb->dev;
-	double t = p[k.tamb] + p[k.theta] * device_dissipation(&d, &pb->src, v, i);
+	double t = p[k.tamb] + p[k.theta] * device_heat(&d, &pb->src, v, i);
 	if (d.type->power == NULL)
 		return t;
 	for (int it = 0; it < THERMAL_TJ_ITERS && isfinite(t); it++) {
 		d.p[k.temp] = t;
 		double tn = p[k.tamb] + p[k.theta] *
-		            device_dissipation(&d, &pb->src, v, i);
+		            device_heat(&d, &pb->src, v, i);
 		double step = tn - t;
 		t = tn;
 		if (!(fabs(step) > 1e-15 * fabs(t - HEAT_ZERO_C)))
