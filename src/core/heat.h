@@ -19,8 +19,9 @@
  * thermal runaway past it).
  *
  * The caller gives P(T) as a function.  A junction (thermal.h) makes each
- * value an electrical solve at T; a thermistor's P is I^2 R(T) at a fixed
- * current.  The scan finds every balance in an interval like the
+ * value an electrical solve at T; a thermistor (models/thermistor.c) finds
+ * its body temperature at each current with heat_refine, its P being
+ * I^2 R(T) and its thermal resistance 1/delta.  The scan finds every balance in an interval like the
  * electrical every-root scan: sign changes of H on a grid plus the
  * extrema of H between grid points that reach zero (a cool and a hot
  * balance close together).  Each is refined by safeguarded Newton-Raphson

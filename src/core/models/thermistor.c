@@ -28,6 +28,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "../heat.h"
 #include "../kernel.h"
 #include "models.h"
 
@@ -70,42 +71,47 @@ static double therm_r(const double *p, bool sh, double t, double *dr)
 	return r;
 }
 
-/* Heat balance h(T) = delta (T - Ta) - I^2 R(T); q carries P and I. */
-static double therm_h(const double *q, double t, bool sh)
+/* What the heat balance at one current needs: the parameters and I. */
+struct therm_heat {
+	const double *p;
+	bool sh;
+	double i;
+};
+
+/* The heat I^2 R(T) at T_C degrees Celsius and its slope I^2 dR/dT. */
+static int therm_heat_power(void *ctx, double t_c, double *pw, double *dp)
 {
+	const struct therm_heat *c = ctx;
 	double dr;
-	double i = q[MODEL_MAX_PARAMS];
-	return q[THERM_DELTA] * (t - (q[THERM_TAMB] + ZERO_C)) -
-	       i * i * therm_r(q, sh, t, &dr);
+	double r = therm_r(c->p, c->sh, t_c + ZERO_C, &dr);
+	*pw = c->i * c->i * r;
+	if (dp != NULL)
+		*dp = c->i * c->i * dr;
+	return isfinite(*pw) ? 0 : -1;
 }
 
-/* dh/dT. */
-static double therm_dh(const double *q, double t, bool sh)
-{
-	double dr;
-	double i = q[MODEL_MAX_PARAMS];
-	therm_r(q, sh, t, &dr);
-	return q[THERM_DELTA] - i * i * dr;
-}
-
-static double therm_h_beta(const double *q, double t) { return therm_h(q, t, false); }
-static double therm_dh_beta(const double *q, double t) { return therm_dh(q, t, false); }
-static double therm_h_sh(const double *q, double t) { return therm_h(q, t, true); }
-static double therm_dh_sh(const double *q, double t) { return therm_dh(q, t, true); }
-
-/* Body temperature (kelvin) at current I; 0 or -1 outside the domain. */
+/*
+ * Body temperature (kelvin) at current I; 0 or -1 outside the domain.  The
+ * balance I^2 R(T) = delta (T - Ta) is the heat balance every self-heated
+ * part shares (heat.h), with the thermal resistance 1/delta; the heat
+ * falls as the body warms (an NTC part), so there is one balance between
+ * the ambient and the rated maximum, or none.
+ */
 static int therm_temperature(const double *p, bool sh, double i, double *t)
 {
-	double ta = p[THERM_TAMB] + ZERO_C, tmax = p[THERM_TMAX] + ZERO_C;
+	double ta = p[THERM_TAMB] + ZERO_C;
 	if (i == 0.0) {
 		*t = ta;
 		return 0;
 	}
-	double q[MODEL_MAX_PARAMS + 1];
-	memcpy(q, p, MODEL_MAX_PARAMS * sizeof q[0]);
-	q[MODEL_MAX_PARAMS] = i;
-	return model_invert(sh ? therm_h_sh : therm_h_beta,
-	                    sh ? therm_dh_sh : therm_dh_beta, q, 0.0, ta, tmax, t);
+	struct therm_heat c = { p, sh, i };
+	struct heat_curve hc = { therm_heat_power, &c };
+	struct heat_root r;
+	if (heat_refine(&hc, p[THERM_TAMB], 1.0 / p[THERM_DELTA], p[THERM_TAMB],
+	                p[THERM_TMAX], 4e-16, &r) != 0)
+		return -1;
+	*t = r.t + ZERO_C;
+	return 0;
 }
 
 /* V at I. */
