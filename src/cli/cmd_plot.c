@@ -1,7 +1,8 @@
 /*
- * cmd_plot.c - 'biasline plot': print the load-line plot of a session file
- * as text, with the first N projections of the session's stepper drawn, for
- * reports and tests.
+ * cmd_plot.c - 'biasline plot': the load-line plot of a session file, with
+ * the first N projections of the session's stepper drawn, or the sweep or
+ * Monte Carlo histogram view, as text (the character grid the front end
+ * shows) or as an SVG or PNG picture of the same plot description.
  */
 #include <errno.h>
 #include <getopt.h>
@@ -11,14 +12,21 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "biasline_version.h"
 #include "cli_analysis.h"
+#include "cli_plot.h"
 #include "commands.h"
 #include "core/safety.h"
 #include "core/solve.h"
 #include "core/stepper.h"
+#include "core/tolerance.h"
+#include "render/plot.h"
 #include "render/render.h"
+#include "render/vector.h"
+#include "session/analysis.h"
+#include "session/atomic.h"
 #include "session/session.h"
 
 /* Largest plot the command draws. */
@@ -27,30 +35,56 @@
 /* Most projections --steps accepts. */
 #define PLOT_MAX_STEPS 100000
 
+/* The views 'plot' draws. */
+enum plot_view {
+	VIEW_LOAD_LINE,
+	VIEW_SWEEP,
+	VIEW_HISTOGRAM,
+};
+
+/* The views' names, by enum plot_view. */
+static const char *const plot_view_names[] = { "load-line", "sweep",
+                                               "histogram" };
+
 /* Print the command's usage to OUT. */
 static void plot_usage(FILE *out)
 {
 	fprintf(out,
 	        "Usage: biasline plot [OPTIONS] FILE\n"
 	        "\n"
-	        "Print the load-line plot of the session FILE as text: V across,\n"
-	        "I up, the load line (#), the device curve (*), every operating\n"
-	        "point (@), and the first N projections of the session's solver\n"
-	        "from its start point (o), the newest one marked (=).\n"
+	        "Draw the load-line plot of the session FILE: V across, I up, the\n"
+	        "load line (#), the device curve (*), every operating point (@),\n"
+	        "and the first N projections of the session's solver from its\n"
+	        "start point (o), the newest one marked (=).  As text it is the\n"
+	        "front end's picture; as SVG or PNG the same plot with a legend,\n"
+	        "each point's stability and a caption naming FILE, the source and\n"
+	        "the points.\n"
 	        "\n"
 	        "Options:\n"
-	        "  -w, --width=COLS    plot width in characters (default 80, min %d)\n"
-	        "  -H, --height=ROWS   plot height in lines (default 24, min %d)\n"
+	        "  -f, --format=FMT    text (default), svg or png\n"
+	        "  -v, --view=VIEW     load-line (default); sweep: the current\n"
+	        "                      against RS (RP) from a tenth to ten times it;\n"
+	        "                      histogram: the device current over %d Monte\n"
+	        "                      Carlo trials of the session's tolerances\n"
+	        "                      (seed %d, %d bins, as 'tolerance' runs them)\n"
+	        "  -o, --output=FILE   write FILE (replaced atomically) instead of\n"
+	        "                      standard output (PNG needs it on a terminal)\n"
+	        "  -w, --width=N       width: characters for text (default 80, min\n"
+	        "                      %d), pixels for svg and png (default %d)\n"
+	        "  -H, --height=N      height: lines for text (default 24, min %d),\n"
+	        "                      pixels for svg and png (default %d)\n"
 	        "  -n, --steps=N       draw the first N projections (default 0)\n"
-	        "  -u, --unicode       use line-drawing and symbol characters\n"
+	        "  -u, --unicode       text: line-drawing and symbol characters\n"
 	        "  -p, --zoom-point    frame the first operating point instead of\n"
 	        "                      the whole load line\n"
 	        CLI_SET_HELP
 	        "  -h, --help          show this help and exit\n"
 	        "  -V, --version       show the version and exit\n",
-	        RENDER_MIN_COLS, RENDER_MIN_ROWS);
-	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
-	                                        EXIT_DATA, EXIT_NO_INPUT,
+	        CLI_MC_TRIALS, CLI_MC_SEED, CLI_MC_BINS,
+	        RENDER_MIN_COLS, VECTOR_WIDTH, RENDER_MIN_ROWS, VECTOR_HEIGHT);
+	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
+	                                        EXIT_USAGE, EXIT_DATA,
+	                                        EXIT_NO_INPUT, EXIT_CANT_CREATE,
 	                                        EXIT_IO };
 	exit_status_usage(out, codes, sizeof codes / sizeof codes[0]);
 }
@@ -107,20 +141,23 @@ static void plot_cautions(const struct problem *pb, const struct solve_result *r
 }
 
 /*
- * Print G to stdout, one line per row (a failed write is reported by
- * cli_finish_output).  Returns -1 when out of memory.
+ * G as text, one line per row, into a new buffer *OUT of *LEN bytes.
+ * Returns -1 when out of memory.
  */
-static int plot_print(const struct grid *g)
+static int plot_grid_text(const struct grid *g, char **out, size_t *len)
 {
-	size_t n = (size_t)g->cols * 4 + 1;
-	char *buf = malloc(n);
+	size_t row = (size_t)g->cols * 4 + 2;
+	char *buf = malloc(row * (size_t)g->rows + 1);
 	if (buf == NULL)
 		return -1;
+	size_t n = 0;
 	for (int r = 0; r < g->rows; r++) {
-		grid_row_text(g, r, buf, n);
-		puts(buf);
+		n += grid_row_text(g, r, buf + n, row - 1);
+		buf[n++] = '\n';
 	}
-	free(buf);
+	buf[n] = '\0';
+	*out = buf;
+	*len = n;
 	return 0;
 }
 
@@ -137,10 +174,74 @@ static void plot_view_from_session(struct render_view *v, const struct session *
 		v->zoom = sv->zoom;
 }
 
-/* Entry point of 'biasline plot'. */
-int cmd_plot(int argc, char **argv)
+/* The histogram description of the device current of MC. */
+int cli_plot_hist(const struct session *s, const struct solve_result *res,
+                  const struct tol_mc *mc, bool unicode, struct plot_desc *d)
+{
+	struct tol_window win[2];
+	size_t nwin = session_target_windows(s, win);
+	struct render_hist in = {
+		.h = &mc->hist[TOL_CURRENT], .kind = QTY_CURRENT,
+		.x_title = "device current",
+		.nominal = res != NULL && res->n == 1 ? res->pts[0].i : NAN,
+		.lo_limit = NAN, .hi_limit = NAN, .unicode = unicode,
+	};
+	for (size_t k = 0; k < nwin; k++)
+		if (win[k].output == TOL_CURRENT) {
+			in.lo_limit = win[k].lo;
+			in.hi_limit = win[k].hi;
+		}
+	char title[160];
+	snprintf(title, sizeof title, "device current over %zu Monte Carlo trials",
+	         mc->trials);
+	in.title = title;
+	if (render_desc_hist(&in, d) != RENDER_OK)
+		return -1;
+	if (mc->failed > 0)
+		plot_desc_caption(d, "%zu trials without an operating point are not "
+		                  "drawn", mc->failed);
+	return 0;
+}
+
+/* Run the default Monte Carlo trials of S's tolerances into MC. */
+int cli_plot_monte_carlo(const struct session *s, const struct problem *pb,
+                         struct tol_mc *mc, char *err, size_t errlen)
+{
+	struct tol_case c;
+	if (s->analysis.ntol == 0) {
+		snprintf(err, errlen, "no tolerances: section (e.g. tolerances: "
+		         "{rs: 5%%, vs: 10%%})");
+		return -1;
+	}
+	if (session_tolerance_case(s, pb, &c, err, errlen) != 0)
+		return -1;
+	struct tol_window win[2];
+	size_t nwin = session_target_windows(s, win);
+	return tol_monte_carlo(&c, CLI_MC_TRIALS, CLI_MC_SEED, CLI_MC_BINS, win,
+	                       nwin, mc, err, errlen);
+}
+
+/* What the command line asked for. */
+struct plot_args {
+	long cols, rows, nsteps;
+	bool have_cols, have_rows;
+	bool zoom_point, unicode;
+	enum plot_view view;
+	bool vector;
+	enum vector_format format;
+	const char *output;
+	struct cli_sets sets;
+	const char *file;
+};
+
+/* Parse the command line into A; returns -1 to exit with *CODE. */
+static int plot_parse_args(int argc, char **argv, struct plot_args *a,
+                           int *code)
 {
 	static const struct option longopts[] = {
+		{ "format", required_argument, NULL, 'f' },
+		{ "view", required_argument, NULL, 'v' },
+		{ "output", required_argument, NULL, 'o' },
 		{ "width", required_argument, NULL, 'w' },
 		{ "height", required_argument, NULL, 'H' },
 		{ "steps", required_argument, NULL, 'n' },
@@ -151,79 +252,195 @@ int cmd_plot(int argc, char **argv)
 		{ "version", no_argument, NULL, 'V' },
 		{ NULL, 0, NULL, 0 },
 	};
-	long cols = 80, rows = 24, nsteps = 0;
-	bool zoom_point = false;
-	struct cli_sets sets = { 0 };
-	struct render_view view;
-	render_view_init(&view);
+	memset(a, 0, sizeof *a);
+	a->view = VIEW_LOAD_LINE;
+	*code = EXIT_USAGE;
 	optind = 1;
 	opterr = 0;
 	int ch;
-	while ((ch = getopt_long(argc, argv, ":w:H:n:uphV", longopts, NULL)) != -1) {
+	while ((ch = getopt_long(argc, argv, ":f:v:o:w:H:n:uphV", longopts,
+	                         NULL)) != -1) {
 		switch (ch) {
-		case 'w':
-			if (plot_parse_int(optarg, RENDER_MIN_COLS, PLOT_MAX_COLS, &cols) != 0) {
-				fprintf(stderr, "biasline: plot: --width wants a whole number "
-				        "from %d to %d, not '%s'\n", RENDER_MIN_COLS,
-				        PLOT_MAX_COLS, optarg);
-				return EXIT_USAGE;
+		case 'f':
+			if (strcmp(optarg, "text") == 0)
+				a->vector = false;
+			else if (vector_format_from_name(optarg, &a->format) == 0)
+				a->vector = true;
+			else {
+				fprintf(stderr, "biasline: plot: --format: '%s' is not one of "
+				        "text, svg, png\n", optarg);
+				return -1;
 			}
+			break;
+		case 'v': {
+			size_t k, nv = sizeof plot_view_names / sizeof plot_view_names[0];
+			for (k = 0; k < nv; k++)
+				if (strcmp(optarg, plot_view_names[k]) == 0)
+					break;
+			if (k == nv) {
+				fprintf(stderr, "biasline: plot: --view: '%s' is not one of "
+				        "load-line, sweep, histogram\n", optarg);
+				return -1;
+			}
+			a->view = (enum plot_view)k;
+			break;
+		}
+		case 'o':
+			a->output = optarg;
+			break;
+		case 'w':
+			if (plot_parse_int(optarg, 1, VECTOR_MAX, &a->cols) != 0) {
+				fprintf(stderr, "biasline: plot: --width wants a whole number, "
+				        "not '%s'\n", optarg);
+				return -1;
+			}
+			a->have_cols = true;
 			break;
 		case 'H':
-			if (plot_parse_int(optarg, RENDER_MIN_ROWS, PLOT_MAX_ROWS, &rows) != 0) {
-				fprintf(stderr, "biasline: plot: --height wants a whole number "
-				        "from %d to %d, not '%s'\n", RENDER_MIN_ROWS,
-				        PLOT_MAX_ROWS, optarg);
-				return EXIT_USAGE;
+			if (plot_parse_int(optarg, 1, VECTOR_MAX, &a->rows) != 0) {
+				fprintf(stderr, "biasline: plot: --height wants a whole number, "
+				        "not '%s'\n", optarg);
+				return -1;
 			}
+			a->have_rows = true;
 			break;
 		case 'n':
-			if (plot_parse_int(optarg, 0, PLOT_MAX_STEPS, &nsteps) != 0) {
+			if (plot_parse_int(optarg, 0, PLOT_MAX_STEPS, &a->nsteps) != 0) {
 				fprintf(stderr, "biasline: plot: --steps wants a whole number "
 				        "from 0 to %d, not '%s'\n", PLOT_MAX_STEPS, optarg);
-				return EXIT_USAGE;
+				return -1;
 			}
 			break;
 		case 'u':
-			view.unicode = true;
+			a->unicode = true;
 			break;
 		case 'p':
-			zoom_point = true;
+			a->zoom_point = true;
 			break;
 		case CLI_OPT_SET:
-			if (cli_add_set("plot", &sets, optarg) != 0)
-				return EXIT_USAGE;
+			if (cli_add_set("plot", &a->sets, optarg) != 0)
+				return -1;
 			break;
 		case 'h':
 			plot_usage(stdout);
-			return EXIT_OK_CODE;
+			*code = EXIT_OK_CODE;
+			return -1;
 		case 'V':
 			printf("biasline %s\n", BIASLINE_VERSION);
-			return EXIT_OK_CODE;
+			*code = EXIT_OK_CODE;
+			return -1;
 		case ':':
 			fprintf(stderr, "biasline: plot: option '%s' needs a value\n",
 			        argv[optind - 1]);
-			return EXIT_USAGE;
+			return -1;
 		default:
 			fprintf(stderr, "biasline: plot: unknown option '%s' "
 			        "(try 'biasline plot --help')\n", argv[optind - 1]);
-			return EXIT_USAGE;
+			return -1;
 		}
 	}
 	if (argc - optind != 1) {
 		fprintf(stderr, "biasline: plot: give exactly one session FILE "
 		        "(try 'biasline plot --help')\n");
-		return EXIT_USAGE;
+		return -1;
 	}
+	a->file = argv[optind];
+	/* The size: characters for text, pixels for a picture. */
+	long wlo = a->vector ? VECTOR_MIN : RENDER_MIN_COLS;
+	long whi = a->vector ? VECTOR_MAX : PLOT_MAX_COLS;
+	long hlo = a->vector ? VECTOR_MIN : RENDER_MIN_ROWS;
+	long hhi = a->vector ? VECTOR_MAX : PLOT_MAX_ROWS;
+	if (!a->have_cols)
+		a->cols = a->vector ? VECTOR_WIDTH : 80;
+	if (!a->have_rows)
+		a->rows = a->vector ? VECTOR_HEIGHT : 24;
+	if (a->cols < wlo || a->cols > whi) {
+		fprintf(stderr, "biasline: plot: --width wants a whole number from %ld "
+		        "to %ld for %s, not %ld\n", wlo, whi,
+		        a->vector ? "a picture (pixels)" : "text", a->cols);
+		return -1;
+	}
+	if (a->rows < hlo || a->rows > hhi) {
+		fprintf(stderr, "biasline: plot: --height wants a whole number from %ld "
+		        "to %ld for %s, not %ld\n", hlo, hhi,
+		        a->vector ? "a picture (pixels)" : "text", a->rows);
+		return -1;
+	}
+	if (a->vector && a->format == VECTOR_PNG && a->output == NULL &&
+	    isatty(STDOUT_FILENO)) {
+		fprintf(stderr, "biasline: plot: a PNG is binary: give --output FILE "
+		        "or redirect standard output\n");
+		return -1;
+	}
+	return 0;
+}
 
+/* Write LEN bytes of BUF to A's output file (atomically) or stdout. */
+static int plot_write(const struct plot_args *a, const char *buf, size_t len)
+{
+	if (a->output != NULL) {
+		char err[512];
+		if (atomic_write_file(a->output, buf, len, err, sizeof err) != 0) {
+			fprintf(stderr, "biasline: plot: %s\n", err);
+			return EXIT_CANT_CREATE;
+		}
+		return EXIT_OK_CODE;
+	}
+	if (fwrite(buf, 1, len, stdout) != len || fflush(stdout) != 0) {
+		fprintf(stderr, "biasline: plot: writing the plot failed\n");
+		return EXIT_IO;
+	}
+	return EXIT_OK_CODE;
+}
+
+/* Draw D as A asks into a new buffer; returns 0 or an exit status. */
+static int plot_draw(const struct plot_args *a, const struct plot_desc *d,
+                     char **buf, size_t *len)
+{
+	if (a->vector) {
+		if (render_vector(d, a->format, (int)a->cols, (int)a->rows, buf, len,
+		                  NULL) != 0) {
+			fprintf(stderr, "biasline: plot: %s: the picture could not be "
+			        "drawn\n", a->file);
+			return EXIT_SOFTWARE;
+		}
+		return 0;
+	}
+	struct grid g;
+	if (grid_init(&g, (int)a->rows, (int)a->cols) != 0) {
+		fprintf(stderr, "biasline: plot: out of memory\n");
+		return EXIT_SOFTWARE;
+	}
+	int rc = 0;
+	if (render_desc_grid(d, &g, NULL) != RENDER_OK) {
+		fprintf(stderr, "biasline: plot: %s: nothing to plot\n", a->file);
+		rc = EXIT_DATA;
+	} else if (plot_grid_text(&g, buf, len) != 0) {
+		fprintf(stderr, "biasline: plot: out of memory\n");
+		rc = EXIT_SOFTWARE;
+	}
+	grid_fini(&g);
+	return rc;
+}
+
+/* Entry point of 'biasline plot'. */
+int cmd_plot(int argc, char **argv)
+{
+	struct plot_args a;
+	int code;
+	if (plot_parse_args(argc, argv, &a, &code) != 0)
+		return code;
 	struct session s;
 	struct problem pb;
-	int code = cli_load_with("plot", argv[optind], &sets, &s, &pb);
+	code = cli_load_with("plot", a.file, &a.sets, &s, &pb);
 	if (code != 0)
 		return code;
 
+	struct render_view view;
+	render_view_init(&view);
+	view.unicode = a.unicode;
 	plot_view_from_session(&view, &s);
-	if (zoom_point) {
+	if (a.zoom_point) {
 		view.frame = FRAME_POINT;
 		view.zoom = 1.0;
 	}
@@ -236,28 +453,69 @@ int cmd_plot(int argc, char **argv)
 		res.n = 0;
 	}
 	plot_cautions(&pb, &res);
-	struct stepper *st = plot_run_path(&pb, &s.solver, nsteps);
-	struct render_input in = { &pb, res.pts, res.n, NULL, 0, 0, false };
-	if (st != NULL)
-		in.rows = stepper_trace(st, &in.nrows);
 
-	int rc = EXIT_OK_CODE;
-	struct grid g;
-	if (grid_init(&g, (int)rows, (int)cols) != 0) {
-		fprintf(stderr, "biasline: plot: out of memory\n");
-		rc = EXIT_SOFTWARE;
-	} else {
-		enum render_status rs = render_plot(&in, &view, &g, NULL);
-		if (rs != RENDER_OK) {
-			fprintf(stderr, "biasline: plot: %s: nothing to plot\n", argv[optind]);
-			rc = EXIT_DATA;
-		} else if (plot_print(&g) != 0) {
-			fprintf(stderr, "biasline: plot: out of memory\n");
-			rc = EXIT_SOFTWARE;
+	struct plot_desc d;
+	struct stepper *st = NULL;
+	enum render_status rs = RENDER_OK;
+	char err[600];
+	code = EXIT_OK_CODE;
+	if (a.view == VIEW_LOAD_LINE) {
+		st = plot_run_path(&pb, &s.solver, a.nsteps);
+		struct render_input in = { &pb, res.pts, res.n, NULL, 0, 0, false };
+		if (st != NULL)
+			in.rows = stepper_trace(st, &in.nrows);
+		struct render_notes notes = { a.file, &s.reactive };
+		rs = render_desc_line(&in, &view, &notes, &d);
+	} else if (a.view == VIEW_SWEEP) {
+		struct sweep_view *sv = malloc(sizeof *sv);
+		if (sv == NULL) {
+			plot_desc_init(&d);
+			rs = RENDER_NO_MEMORY;
+		} else {
+			sweep_view_run(&pb, &s.solver, &s.reactive,
+			               s.source.form != SOURCE_THEVENIN, sv);
+			if (!sv->ok) {
+				fprintf(stderr, "biasline: plot: %s: %s\n", a.file, sv->msg);
+				code = EXIT_DATA;
+			}
+			rs = render_desc_sweep(sv, a.unicode || a.vector, &d);
+			if (rs == RENDER_OK)
+				plot_desc_caption(&d, "%s", a.file);
+			free(sv);
 		}
-		grid_fini(&g);
+	} else {
+		struct tol_mc *mc = malloc(sizeof *mc);
+		plot_desc_init(&d);
+		if (mc == NULL) {
+			rs = RENDER_NO_MEMORY;
+		} else if (cli_plot_monte_carlo(&s, &pb, mc, err, sizeof err) != 0) {
+			fprintf(stderr, "biasline: plot: %s: %s\n", a.file, err);
+			code = EXIT_DATA;
+		} else {
+			plot_desc_fini(&d);
+			if (cli_plot_hist(&s, &res, mc, a.unicode || a.vector, &d) != 0)
+				rs = RENDER_BAD_INPUT;
+			else
+				plot_desc_caption(&d, "%s", a.file);
+		}
+		free(mc);
 	}
+	if (code == EXIT_OK_CODE && rs == RENDER_NO_MEMORY) {
+		fprintf(stderr, "biasline: plot: out of memory\n");
+		code = EXIT_SOFTWARE;
+	} else if (code == EXIT_OK_CODE && rs != RENDER_OK) {
+		fprintf(stderr, "biasline: plot: %s: nothing to plot\n", a.file);
+		code = EXIT_DATA;
+	}
+	char *buf = NULL;
+	size_t len = 0;
+	if (code == EXIT_OK_CODE)
+		code = plot_draw(&a, &d, &buf, &len);
+	if (code == EXIT_OK_CODE)
+		code = plot_write(&a, buf, len);
+	free(buf);
+	plot_desc_fini(&d);
 	stepper_destroy(st);
 	session_fini(&s);
-	return rc;
+	return code;
 }

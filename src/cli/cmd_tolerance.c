@@ -11,6 +11,7 @@
 
 #include "biasline_version.h"
 #include "cli_analysis.h"
+#include "cli_plot.h"
 #include "commands.h"
 #include "csv.h"
 #include "core/safety.h"
@@ -76,9 +77,9 @@ static int tolerance_parse_args(int argc, char **argv, struct tolerance_args *a,
 		{ NULL, 0, NULL, 0 },
 	};
 	memset(a, 0, sizeof *a);
-	a->trials = 10000;
-	a->seed = 1;
-	a->bins = 20;
+	a->trials = CLI_MC_TRIALS;
+	a->seed = CLI_MC_SEED;
+	a->bins = CLI_MC_BINS;
 	optind = 1;
 	opterr = 0;
 	*code = EXIT_USAGE;

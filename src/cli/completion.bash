@@ -28,7 +28,14 @@ _biasline_options()
 _biasline_choices()
 {
 	case $1 in
-	--format) if [ "$2" = fit ]; then echo "text csv yaml"; else echo "text csv"; fi ;;
+	--format)
+		case $2 in
+		fit) echo "text csv yaml" ;;
+		plot) echo "text svg png" ;;
+		*) echo "text csv" ;;
+		esac
+		;;
+	--view) echo "load-line sweep histogram" ;;
 	--weight) echo "relative absolute" ;;
 	--method) echo "auto projection relaxed newton brent" ;;
 	--order) echo "voltage-from-line voltage-from-device" ;;

@@ -179,6 +179,41 @@ enum render_status render_desc_line(const struct render_input *in,
 enum render_status render_desc_xy(const struct render_xy *in,
                                   struct plot_desc *d);
 
+/* Points of the sweep view, RS/10 to RS*10 on a log scale. */
+#define SWEEP_VIEW_POINTS 61
+
+/* The sweep view's data: the device current against RS (or RP). */
+struct sweep_view {
+	bool ok;                /* X, Y hold the sweep (else MSG says why) */
+	bool norton;            /* RP is swept (a Norton source) */
+	double r;               /* the present RS or RP (the mark) */
+	size_t n;
+	double x[SWEEP_VIEW_POINTS], y[SWEEP_VIEW_POINTS];
+	size_t multi;           /* steps with several operating points */
+	size_t folds;
+	double jump_up, jump_down; /* where the followed stable point jumps
+	                              going up and going down (NaN: none) */
+	char msg[256];
+};
+
+/*
+ * Sweep RS (RP when NORTON) of PB from a tenth to ten times its value on a
+ * log scale with the solver options O, keeping the lowest-voltage point of
+ * each step, and where the circuit (with the reactive parts RP, may be
+ * NULL) jumps each way, into SV (SV->ok false with SV->msg saying why).
+ */
+void sweep_view_run(const struct problem *pb, const struct solve_options *o,
+                    const struct reactive_parts *rp, bool norton,
+                    struct sweep_view *sv);
+
+/*
+ * The description of the sweep view SV into D (initialised by the call):
+ * titled "I vs RS (log) @ value", the present value marked.  Returns
+ * RENDER_OK, RENDER_BAD_INPUT (SV holds no sweep) or RENDER_NO_MEMORY.
+ */
+enum render_status render_desc_sweep(const struct sweep_view *sv, bool unicode,
+                                     struct plot_desc *d);
+
 /* A histogram to describe: a Monte Carlo run's bins (core/tolerance.h). */
 struct render_hist {
 	const struct tol_hist *h;

@@ -1,8 +1,9 @@
 /*
  * pane_sweep.c - the sweep view: the device current against the source
  * resistance RS (RP for a Norton source) from a tenth to ten times its
- * value on a log scale, swept by the core (sweep_run) and drawn by the
- * renderer's x-y plot in the plot's place.  The sweep runs when the view
+ * value on a log scale, swept and described by the renderer's sweep view
+ * (render/plot_sweep.c, which 'biasline plot --view sweep' draws too) and
+ * drawn into the plot's place.  The sweep runs when the view
  * opens and when the session changes while it is open.
  */
 #include <math.h>
@@ -13,24 +14,14 @@
 
 #include "core/stability.h"
 #include "core/sweep.h"
+#include "render/plot.h"
 #include "tui/app.h"
 #include "tui/panes.h"
-
-/* Points of the sweep, RS/10 to RS*10 on a log scale. */
-#define SWEEP_POINTS 61
 
 /* The sweep view's own state. */
 struct sweep_state {
 	bool open;
-	bool ok;                /* X, Y hold the sweep (else MSG says why) */
-	double r;               /* the present RS or RP (the mark) */
-	size_t n;
-	double x[SWEEP_POINTS], y[SWEEP_POINTS];
-	size_t multi;           /* steps with several operating points */
-	size_t folds;
-	double jump_up, jump_down; /* where the followed stable point jumps
-	                              going up and going down (NaN: none) */
-	char msg[256];
+	struct sweep_view sv;   /* the sweep (render/plot.h) */
 	struct grid grid;
 	bool valid;             /* the grid shows the sweep */
 };
@@ -38,58 +29,14 @@ struct sweep_state {
 /* Run the sweep again for the present session. */
 static void pane_sweep_refresh(struct app *a, struct sweep_state *v)
 {
-	v->ok = false;
-	v->n = 0;
-	v->multi = v->folds = 0;
-	v->msg[0] = '\0';
 	v->valid = false;
 	if (!a->pb_ok) {
-		snprintf(v->msg, sizeof v->msg, "%.200s", a->pb_err);
+		v->sv.ok = false;
+		snprintf(v->sv.msg, sizeof v->sv.msg, "%.200s", a->pb_err);
 		return;
 	}
-	bool norton = a->s.source.form != SOURCE_THEVENIN;
-	struct sweep_spec sp = { .points = SWEEP_POINTS, .scale = SWEEP_LOG };
-	char err[256];
-	if (paramref_find(&a->pb, norton ? "rp" : "rs", &sp.param, err,
-	                  sizeof err) != 0 || !(a->pb.src.r > 0.0) ||
-	    !isfinite(a->pb.src.r)) {
-		snprintf(v->msg, sizeof v->msg, "no sweep: the source has no finite, "
-		         "non-zero %s to vary", norton ? "RP" : "RS");
-		return;
-	}
-	v->r = a->pb.src.r;
-	sp.from = v->r / 10.0;
-	sp.to = v->r * 10.0;
-	struct sweep_result res;
-	if (sweep_run(&a->pb, &a->s.solver, &sp, &res) != 0) {
-		snprintf(v->msg, sizeof v->msg, "no sweep: %.200s", res.message);
-		sweep_result_fini(&res);
-		return;
-	}
-	/* One value per step: the lowest-voltage point; NaN where none. */
-	v->n = SWEEP_POINTS;
-	for (size_t k = 0; k < v->n; k++) {
-		v->x[k] = sweep_value(&sp, k);
-		v->y[k] = NAN;
-	}
-	for (size_t k = 0; k < res.nrows; k++) {
-		const struct sweep_row *r = &res.rows[k];
-		if (r->step >= v->n)
-			continue;
-		if (r->index == 0)
-			v->y[r->step] = r->i;
-		if (r->index == 1)
-			v->multi++;
-	}
-	v->folds = res.nfolds;
-	/* Where the circuit jumps each way: the ends of the hysteresis. */
-	struct stability_jump j;
-	v->jump_up = stability_jumps(&a->pb, &a->s.reactive, &sp, &res, true,
-	                             &j, 1) > 0 ? j.value : NAN;
-	v->jump_down = stability_jumps(&a->pb, &a->s.reactive, &sp, &res, false,
-	                               &j, 1) > 0 ? j.value : NAN;
-	sweep_result_fini(&res);
-	v->ok = true;
+	sweep_view_run(&a->pb, &a->s.solver, &a->s.reactive,
+	               a->s.source.form != SOURCE_THEVENIN, &v->sv);
 }
 
 /* Show or hide the sweep view. */
@@ -100,11 +47,11 @@ static void pane_sweep_toggle(struct app *a, struct sweep_state *v)
 	if (v->open) {
 		pane_sweep_refresh(a, v);
 		char jumps[160] = "";
-		if (isfinite(v->jump_up) && isfinite(v->jump_down)) {
+		if (isfinite(v->sv.jump_up) && isfinite(v->sv.jump_down)) {
 			char u[48], d[48];
-			qty_format_short(u, sizeof u, v->jump_up, QTY_RESISTANCE, 3,
+			qty_format_short(u, sizeof u, v->sv.jump_up, QTY_RESISTANCE, 3,
 			                 app_unicode(a) ? 0 : 1);
-			qty_format_short(d, sizeof d, v->jump_down, QTY_RESISTANCE, 3,
+			qty_format_short(d, sizeof d, v->sv.jump_down, QTY_RESISTANCE, 3,
 			                 app_unicode(a) ? 0 : 1);
 			snprintf(jumps, sizeof jumps, "; the circuit jumps at %s going up "
 			         "and at %s going down (hysteresis)", u, d);
@@ -120,8 +67,8 @@ static void pane_sweep_toggle(struct app *a, struct sweep_state *v)
 static void pane_sweep_draw(struct app *a, void *self, const struct rect *box)
 {
 	struct sweep_state *v = self;
-	if (!v->ok) {
-		term_text(&a->term, box->row + 1, box->col + 1, v->msg, box->cols - 2,
+	if (!v->sv.ok) {
+		term_text(&a->term, box->row + 1, box->col + 1, v->sv.msg, box->cols - 2,
 		          TS_ERROR);
 		term_text(&a->term, box->row + 3, box->col + 1, "W or Esc closes the "
 		          "sweep", box->cols - 2, TS_DIM);
@@ -136,22 +83,16 @@ static void pane_sweep_draw(struct app *a, void *self, const struct rect *box)
 		v->valid = false;
 	}
 	if (!v->valid) {
-		bool norton = a->s.source.form != SOURCE_THEVENIN;
-		char title[256], now[48];
-		qty_format_short(now, sizeof now, v->r, QTY_RESISTANCE, 5,
-		                 app_unicode(a) ? 0 : 1);
-		snprintf(title, sizeof title, "I vs %s (log) @ %s%s", norton ? "RP" : "RS",
-		         now, v->multi || v->folds ? ", folds: lowest V drawn" : "");
-		struct render_xy in = {
-			.x = v->x, .y = v->y, .n = v->n, .log_x = true,
-			.x_kind = QTY_RESISTANCE, .y_kind = QTY_CURRENT,
-			.title = title,
-			.names = app_unicode(a) ? (norton ? "I\xE2\x86\x91 RP\xE2\x86\x92"
-			                                   : "I\xE2\x86\x91 RS\xE2\x86\x92")
-			                         : (norton ? "I^ RP>" : "I^ RS>"),
-			.x_mark = v->r, .unicode = app_unicode(a),
-		};
-		render_xy_plot(&in, &v->grid, NULL);
+		struct plot_desc d;
+		enum render_status st = render_desc_sweep(&v->sv, app_unicode(a), &d);
+		if (st == RENDER_OK)
+			render_desc_grid(&d, &v->grid, NULL);
+		plot_desc_fini(&d);
+		if (st != RENDER_OK) {
+			term_text(&a->term, box->row + 1, box->col + 1,
+			          "nothing to plot: no points", box->cols - 2, TS_ERROR);
+			return;
+		}
 		v->valid = true;
 	}
 	term_blit(&a->term, &v->grid, box->row, box->col);

@@ -108,6 +108,13 @@ for f in $(PATH="$(dirname "$bl"):$PATH" complete_words biasline solve --format 
 	done
 	check "some command accepts --format $f" '[ $acc = 1 ]'
 done
+for f in $(PATH="$(dirname "$bl"):$PATH" complete_words biasline plot --format ""); do
+	expect_exit 0 "$bl" plot --format "$f" --output "$tmp/plot.$f" "$sample"
+done
+for v in $(PATH="$(dirname "$bl"):$PATH" complete_words biasline plot --view ""); do
+	[ "$v" = histogram ] && continue   # needs tolerances: tests/render/pictures.sh
+	expect_exit 0 "$bl" plot --view "$v" "$sample"
+done
 
 # --- meson install puts everything in its place --------------------------
 if command -v meson >/dev/null 2>&1 && [ -d "$build/meson-private" ]; then
