@@ -19,5 +19,6 @@ int cmd_tolerance(int argc, char **argv);
 int cmd_fit(int argc, char **argv);
 /* The terminal front end: biasline [options] [FILE]. */
 int cmd_tui(int argc, char **argv);
+int cmd_report(int argc, char **argv);
 
 #endif

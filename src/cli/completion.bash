@@ -32,6 +32,7 @@ _biasline_choices()
 		case $2 in
 		fit) echo "text csv yaml" ;;
 		plot) echo "text svg png" ;;
+		report) echo "html markdown" ;;
 		*) echo "text csv" ;;
 		esac
 		;;

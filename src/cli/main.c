@@ -20,12 +20,13 @@ static const struct command commands[] = {
 	{ "solve", cmd_solve, "find the operating point(s) of a session file" },
 	{ "check", cmd_check, "validate session files" },
 	{ "tidy", cmd_tidy, "print a session file in canonical form" },
-	{ "plot", cmd_plot, "print the load-line plot as text" },
+	{ "plot", cmd_plot, "draw the load-line plot as text, SVG or PNG" },
 	{ "reduce", cmd_reduce, "reduce a network source to its Thevenin equivalent" },
 	{ "design", cmd_design, "choose RS (or VS) for a target current, voltage or power" },
 	{ "sweep", cmd_sweep, "solve along a sweep of one parameter" },
 	{ "tolerance", cmd_tolerance, "worst case and Monte Carlo over the tolerances" },
 	{ "fit", cmd_fit, "fit a device model's parameters to measured points" },
+	{ "report", cmd_report, "one HTML (or Markdown) file for a design review" },
 };
 
 /* Print the program's usage to OUT. */

@@ -16,6 +16,7 @@
 
 #include <cairo.h>
 #include <cairo-svg.h>
+#include <fontconfig/fontconfig.h>
 
 #include "render/render_int.h"
 #include "render/vector.h"
@@ -896,6 +897,11 @@ int render_vector(const struct plot_desc *d, enum vector_format format, int w,
 		rc = -1;
 	if (rc == 0 && format == VECTOR_SVG && vec_svg_annotate(&b, d, &f) != 0)
 		rc = -1;
+	/* Every cairo object is gone: let cairo and fontconfig free their
+	 * font caches, so a picture leaves nothing behind (a front end that
+	 * writes one now and then pays a font lookup each time). */
+	cairo_debug_reset_static_data();
+	FcFini();
 	if (rc != 0) {
 		free(b.p);
 		return -1;

@@ -111,6 +111,9 @@ done
 for f in $(PATH="$(dirname "$bl"):$PATH" complete_words biasline plot --format ""); do
 	expect_exit 0 "$bl" plot --format "$f" --output "$tmp/plot.$f" "$sample"
 done
+for f in $(PATH="$(dirname "$bl"):$PATH" complete_words biasline report --format ""); do
+	expect_exit 0 "$bl" report --format "$f" --output "$tmp/report.$f" "$sample"
+done
 for v in $(PATH="$(dirname "$bl"):$PATH" complete_words biasline plot --view ""); do
 	[ "$v" = histogram ] && continue   # needs tolerances: tests/render/pictures.sh
 	expect_exit 0 "$bl" plot --view "$v" "$sample"
