@@ -17,6 +17,7 @@
 #include <time.h>
 
 #include "core/thermal.h"
+#include "session/atomic.h"
 #include "session/recovery.h"
 
 /* Copy the string S into new memory (NULL when S is NULL or no memory). */
@@ -87,6 +88,8 @@ void app_fini(struct app *a)
 	session_text_fini(&a->text);
 	free(a->path);
 	a->path = NULL;
+	free(a->picture);
+	a->picture = NULL;
 }
 
 /* Clear an overlay's box and its ring, and draw the side borders. */
@@ -375,10 +378,19 @@ bool app_is_own_file(const struct app *a, const char *path)
 	return x.st_dev == y.st_dev && x.st_ino == y.st_ino;
 }
 
-/* Ask for a file name to save to. */
+/* Ask for a file name for what is being written (the session or a
+ * picture). */
+static void app_ask_name(struct app *a, const char *initial, const char *error)
+{
+	app_ask(a, NULL, APP_ASK_SAVE_AS, false,
+	        a->writing_picture ? "write SVG as: " : "save as: ", initial, error);
+}
+
+/* Ask for a file name to save the session to. */
 void app_ask_save_as(struct app *a, const char *initial, const char *error)
 {
-	app_ask(a, NULL, APP_ASK_SAVE_AS, false, "save as: ", initial, error);
+	a->writing_picture = false;
+	app_ask_name(a, initial, error);
 }
 
 /* True when PATH is the own file and changed since it was read. */
@@ -581,16 +593,38 @@ static unsigned app_restore(struct app *a, bool yes)
 	return APP_HANDLED | APP_REDRAW;
 }
 
-/* Save to the name PATH the user confirmed (TYPED as typed); a failure
- * asks for the name again with the reason. */
+/* Write the waiting picture to PATH; returns 0, or -1 with the status
+ * line saying why. */
+static int app_picture_to(struct app *a, const char *path)
+{
+	char err[1200];
+	if (a->picture == NULL) {
+		app_message(a, true, "no picture to write");
+		return -1;
+	}
+	if (atomic_write_file(path, a->picture, a->picture_len, err,
+	                      sizeof err) != 0) {
+		app_message(a, true, "%s", err);
+		return -1;
+	}
+	free(a->picture);
+	a->picture = NULL;
+	a->writing_picture = false;
+	app_message(a, false, "wrote the view as %s (copy it off with scp or "
+	            "rsync)", path);
+	return 0;
+}
+
+/* Save (or write the picture) to the name PATH the user confirmed (TYPED
+ * as typed); a failure asks for the name again with the reason. */
 static unsigned app_save_to(struct app *a, const char *path, const char *typed)
 {
 	char name[sizeof a->pending];
 	snprintf(name, sizeof name, "%s", path);
-	if (app_save(a, name) != 0) {
+	if ((a->writing_picture ? app_picture_to(a, name) : app_save(a, name)) != 0) {
 		char why[sizeof a->status];
 		snprintf(why, sizeof why, "%s", a->status);
-		app_ask_save_as(a, typed, why);
+		app_ask_name(a, typed, why);
 	}
 	return APP_HANDLED | APP_REDRAW;
 }
@@ -602,12 +636,12 @@ static unsigned app_save_to(struct app *a, const char *path, const char *typed)
 static unsigned app_save_as(struct app *a, const char *typed)
 {
 	if (typed[0] == '\0') {
-		app_ask_save_as(a, "", "type a file name, or Esc");
+		app_ask_name(a, "", "type a file name, or Esc");
 		return APP_HANDLED | APP_REDRAW;
 	}
 	char path[sizeof a->pending];
 	if (app_expand_path(typed, path, sizeof path) != 0) {
-		app_ask_save_as(a, typed, path);
+		app_ask_name(a, typed, path);
 		return APP_HANDLED | APP_REDRAW;
 	}
 	struct stat st;
@@ -616,7 +650,17 @@ static unsigned app_save_as(struct app *a, const char *typed)
 			char why[1100];
 			snprintf(why, sizeof why, "%.1000s is a folder: type a file name "
 			         "in it", path);
-			app_ask_save_as(a, typed, why);
+			app_ask_name(a, typed, why);
+			return APP_HANDLED | APP_REDRAW;
+		}
+		/* A picture never goes over the session it shows. */
+		if (a->writing_picture && app_is_own_file(a, path)) {
+			app_ask_name(a, typed, "that is the session file: type another "
+			             "name for the picture");
+			return APP_HANDLED | APP_REDRAW;
+		}
+		if (a->writing_picture) {
+			app_ask_overwrite(a, path, typed, false);
 			return APP_HANDLED | APP_REDRAW;
 		}
 		bool own = app_is_own_file(a, path);
@@ -638,8 +682,8 @@ unsigned app_answer(struct app *a, const struct action *act)
 	case APP_ASK_OVERWRITE:
 		if (yes)
 			return app_save_to(a, a->pending, a->pending_typed);
-		app_ask_save_as(a, a->pending_typed,
-		                "not replaced: type another name, or Esc");
+		app_ask_name(a, a->pending_typed,
+		             "not replaced: type another name, or Esc");
 		return APP_HANDLED | APP_REDRAW;
 	case APP_ASK_QUIT:
 		if (yes) {
@@ -702,4 +746,31 @@ void app_write_recovery(struct app *a)
 		session_error_format(&serr, msg, sizeof msg);
 		fprintf(stderr, "biasline: recovery file not written: %s\n", msg);
 	}
+}
+
+/* Write a picture of the view to a file named after the session. */
+void app_write_picture(struct app *a, char *svg, size_t len, const char *suffix)
+{
+	free(a->picture);
+	a->picture = svg;
+	a->picture_len = len;
+	a->writing_picture = true;
+	char name[sizeof a->pending];
+	if (a->path == NULL) {
+		snprintf(name, sizeof name, "biasline-demo%s", suffix);
+	} else {
+		/* The session's name without its .yaml (or .yml) ending. */
+		size_t n = strlen(a->path);
+		if (n > 5 && strcmp(a->path + n - 5, ".yaml") == 0)
+			n -= 5;
+		else if (n > 4 && strcmp(a->path + n - 4, ".yml") == 0)
+			n -= 4;
+		if (n + strlen(suffix) >= sizeof a->pending_typed) {
+			app_ask_name(a, "", "the session's name is too long: type a "
+			             "name for the picture");
+			return;
+		}
+		snprintf(name, sizeof name, "%.*s%s", (int)n, a->path, suffix);
+	}
+	app_save_as(a, name);
 }

@@ -99,6 +99,9 @@ struct app {
 	bool asking;            /* a question is open on the bottom line */
 	char pending[1024];     /* the file a save-as would replace */
 	char pending_typed[256];/* that name as typed */
+	bool writing_picture;   /* the save-as questions are for PICTURE */
+	char *picture;          /* an SVG waiting for its file (owned) */
+	size_t picture_len;
 
 	const struct key_help *help;  /* the key table's lines (set by the loop) */
 	size_t nhelp;
@@ -200,6 +203,15 @@ int app_save(struct app *a, const char *path);
  * with the reason ERROR (may be NULL) the last try failed.
  */
 void app_ask_save_as(struct app *a, const char *initial, const char *error);
+
+/*
+ * Write the picture SVG (LEN bytes; A takes it over) to a file named after
+ * the session, its name ending in SUFFIX (".svg", "-sweep.svg"), beside
+ * the session file (the demo: in the working folder).  An existing file is
+ * never replaced unasked: the save-as questions ask (y/N), and a no or a
+ * failure asks for another name.
+ */
+void app_write_picture(struct app *a, char *svg, size_t len, const char *suffix);
 
 /*
  * Expand a typed file name IN into OUT: "~" and "~/..." take $HOME,

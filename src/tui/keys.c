@@ -202,6 +202,14 @@ static unsigned key_save_as(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Write the view the plot's place shows as SVG (its pane draws it). */
+static unsigned key_picture(struct app *a)
+{
+	struct action act = { .kind = ACT_PICTURE };
+	app_post(a, &act);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Repaint every cell. */
 static unsigned key_redraw(struct app *a)
 {
@@ -264,6 +272,7 @@ static const struct key_binding key_table[] = {
 	{ { '\t' }, "Tab", "hide/show side pane", TO(pane_side) },
 	{ { 's' }, "s", "save (demo: asks a name)", RUN(key_save) },
 	{ { 'A' }, "A", "save as another file", RUN(key_save_as) },
+	{ { 'P' }, "P", "write the view as SVG", RUN(key_picture) },
 	{ { 12 }, "Ctrl-L", "repaint the screen", RUN(key_redraw) },
 	{ { '?', TK_F1 }, "? F1", "this help", OPEN(pane_help) },
 	{ { 'q' }, "q Ctrl-C", "quit (asks if unsaved)", RUN(key_quit) },

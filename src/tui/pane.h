@@ -46,6 +46,8 @@ enum action_kind {
 	ACT_SELECT,    /* select the parameter row of key TEXT (broadcast) */
 	ACT_ASK,       /* ask on the bottom line (broadcast; the prompt takes it) */
 	ACT_ANSWER,    /* what was typed for TO's question TAG (TO NULL: the app) */
+	ACT_PICTURE,   /* write the view as SVG (TO NULL: the loop gives it to
+	                  the pane the plot's place shows) */
 };
 
 /* One request. */

@@ -8,6 +8,8 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "render/plot.h"
+#include "render/vector.h"
 #include "tui/app.h"
 #include "tui/panes.h"
 
@@ -164,6 +166,36 @@ static unsigned pane_plot_key(struct app *a, void *self, int key)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Write the plot as the user sees it (frame, zoom, pan) as SVG. */
+static unsigned pane_plot_act(struct app *a, void *self, const struct action *act)
+{
+	struct plot_state *p = self;
+	if (act->kind != ACT_PICTURE)
+		return 0;
+	if (!a->pb_ok) {
+		app_message(a, true, "no picture: %s", a->pb_err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	struct render_input in;
+	pane_plot_input(a, &in);
+	in.labels = true;
+	struct render_notes notes = { a->path != NULL ? a->path : "demo",
+	                              &a->s.reactive };
+	struct plot_desc d;
+	char *svg = NULL;
+	size_t len = 0;
+	if (render_desc_line(&in, &p->view, &notes, &d) != RENDER_OK ||
+	    render_vector(&d, VECTOR_SVG, VECTOR_WIDTH, VECTOR_HEIGHT, &svg, &len,
+	                  NULL) != 0) {
+		app_message(a, true, "the picture could not be drawn");
+		svg = NULL;
+	}
+	plot_desc_fini(&d);
+	if (svg != NULL)
+		app_write_picture(a, svg, len, ".svg");
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* The plot: always there, under the views that take its place. */
 const struct pane pane_plot = {
 	.name = "plot",
@@ -173,4 +205,5 @@ const struct pane pane_plot = {
 	.fini = pane_plot_fini,
 	.key = pane_plot_key,
 	.draw = pane_plot_draw,
+	.act = pane_plot_act,
 };

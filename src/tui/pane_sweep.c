@@ -15,6 +15,7 @@
 #include "core/stability.h"
 #include "core/sweep.h"
 #include "render/plot.h"
+#include "render/vector.h"
 #include "tui/app.h"
 #include "tui/panes.h"
 
@@ -115,6 +116,24 @@ static unsigned pane_sweep_act(struct app *a, void *self, const struct action *a
 		if (v->open)
 			pane_sweep_refresh(a, v);
 		return v->open ? APP_REDRAW : 0;
+	case ACT_PICTURE: {
+		struct plot_desc d;
+		char *svg = NULL;
+		size_t len = 0;
+		if (render_desc_sweep(&v->sv, true, &d) == RENDER_OK) {
+			plot_desc_caption(&d, "%s", a->path != NULL ? a->path : "demo");
+			if (render_vector(&d, VECTOR_SVG, VECTOR_WIDTH, VECTOR_HEIGHT, &svg,
+			                  &len, NULL) != 0)
+				svg = NULL;
+		}
+		plot_desc_fini(&d);
+		if (svg != NULL)
+			app_write_picture(a, svg, len, "-sweep.svg");
+		else
+			app_message(a, true, "no picture: %s", v->sv.ok ? "it could not "
+			            "be drawn" : v->sv.msg);
+		return APP_HANDLED | APP_REDRAW;
+	}
 	default:
 		return 0;
 	}

@@ -71,6 +71,13 @@ static unsigned loop_deliver(struct loop *l)
 			flags |= app_answer(a, &act);
 			continue;
 		}
+		/* A picture of what the plot's place shows now. */
+		if (act.kind == ACT_PICTURE && act.to == NULL) {
+			size_t top = loop_top(l, SLOT_MAIN);
+			if (top == pane_count)
+				continue;
+			act.to = pane_table[top];
+		}
 		for (size_t k = 0; k < pane_count; k++) {
 			const struct pane *p = pane_table[k];
 			if (p->act == NULL || (act.to != NULL && act.to != p))

@@ -727,6 +727,51 @@ saveas)
 	wait_exit
 	echo "ok: save-as onto an existing file asked; Enter and n kept it, y replaced it"
 	;;
+picture)
+	# P writes the view as SVG named after the session, beside it; an
+	# existing picture is replaced only after y, never over the session
+	# file; with the sweep open, P writes the sweep.
+	cp "$samples/indicator-led-24v.yaml" "$work/led.yaml"
+	session=$(cksum <"$work/led.yaml")
+	start 80 24 "$work/led.yaml"
+	wait_for "Convergence"
+	keys Space Space Space
+	wait_for "Convergence (3 projections)"
+	keys P
+	wait_for "wrote the view as $work/led.svg"
+	grep -q "<desc>biasline plot area" "$work/led.svg" || fail "led.svg is not the plot"
+	if command -v xmllint >/dev/null 2>&1; then
+		xmllint --noout "$work/led.svg" || fail "led.svg is not well-formed"
+	fi
+	echo "ours, not to be lost" >"$work/led.svg"
+	before=$(cksum <"$work/led.svg")
+	keys P
+	wait_for "$work/led.svg exists: replace it? (y/N)"
+	keys Enter
+	wait_for "not replaced: type another name"
+	wait_for "write SVG as: $work/led.svg"
+	[ "$(cksum <"$work/led.svg")" = "$before" ] || fail "Enter (no) replaced the picture"
+	keys C-u "$work/led.yaml" Enter
+	wait_for "that is the session file"
+	keys C-u "$work/other.svg" Enter
+	wait_for "wrote the view as $work/other.svg"
+	grep -q "<desc>biasline plot area" "$work/other.svg" || fail "other.svg is not the plot"
+	keys P
+	wait_for "exists: replace it? (y/N)"
+	keys y
+	wait_for "wrote the view as $work/led.svg"
+	grep -q "<desc>biasline plot area" "$work/led.svg" || fail "y did not replace led.svg"
+	keys W
+	wait_for "I vs RS (log)"
+	keys P
+	wait_for "wrote the view as $work/led-sweep.svg"
+	grep -q "source resistance RS" "$work/led-sweep.svg" ||
+		grep -q "<title>I vs RS" "$work/led-sweep.svg" || fail "led-sweep.svg is not the sweep"
+	[ "$(cksum <"$work/led.yaml")" = "$session" ] || fail "the session file changed"
+	keys Escape q
+	wait_exit
+	echo "ok: P wrote the plot and the sweep as SVG; an existing file only after y"
+	;;
 readonly)
 	# A save into a folder the user cannot write fails, the session stays
 	# open and unsaved, and save-as to another folder then works.  Root
