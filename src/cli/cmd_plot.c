@@ -82,7 +82,7 @@ static void plot_usage(FILE *out)
 	        "  -V, --version       show the version and exit\n",
 	        CLI_MC_TRIALS, CLI_MC_SEED, CLI_MC_BINS,
 	        RENDER_MIN_COLS, VECTOR_WIDTH, RENDER_MIN_ROWS, VECTOR_HEIGHT);
-	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_NO_POINT,
+	static const enum exit_code codes[] = { EXIT_OK_CODE,
 	                                        EXIT_USAGE, EXIT_DATA,
 	                                        EXIT_NO_INPUT, EXIT_CANT_CREATE,
 	                                        EXIT_IO };
