@@ -1,6 +1,6 @@
 /*
  * cli_plot.h - what 'plot' shares with 'report': the Monte Carlo run the
- * histogram view draws, and its description.
+ * histogram view draws and its description, and the thermal plane.
  */
 #ifndef BIASLINE_CLI_PLOT_H
 #define BIASLINE_CLI_PLOT_H
@@ -33,5 +33,15 @@ int cli_plot_monte_carlo(const struct session *s, const struct problem *pb,
  */
 int cli_plot_hist(const struct session *s, const struct solve_result *res,
                   const struct tol_mc *mc, bool unicode, struct plot_desc *d);
+
+/*
+ * The thermal plane of S's problem PB (it must heat itself) into D
+ * (initialised by the call): every balance, the first NSTEPS steps of the
+ * thermal loop from the ambient, the heat made sampled NS times.  Returns
+ * 0, or -1 with a message in ERR.
+ */
+int cli_plot_thermal(const struct session *s, const struct problem *pb,
+                     size_t nsteps, bool unicode, size_t ns,
+                     struct plot_desc *d, char *err, size_t errlen);
 
 #endif

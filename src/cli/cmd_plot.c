@@ -21,6 +21,8 @@
 #include "core/safety.h"
 #include "core/solve.h"
 #include "core/stepper.h"
+#include "core/thermal.h"
+#include "core/thermal_stepper.h"
 #include "core/tolerance.h"
 #include "render/plot.h"
 #include "render/render.h"
@@ -40,11 +42,12 @@ enum plot_view {
 	VIEW_LOAD_LINE,
 	VIEW_SWEEP,
 	VIEW_HISTOGRAM,
+	VIEW_THERMAL,
 };
 
 /* The views' names, by enum plot_view. */
 static const char *const plot_view_names[] = { "load-line", "sweep",
-                                               "histogram" };
+                                               "histogram", "thermal" };
 
 /* Print the command's usage to OUT. */
 static void plot_usage(FILE *out)
@@ -66,7 +69,10 @@ static void plot_usage(FILE *out)
 	        "                      against RS (RP) from a tenth to ten times it;\n"
 	        "                      histogram: the device current over %d Monte\n"
 	        "                      Carlo trials of the session's tolerances\n"
-	        "                      (seed %d, %d bins, as 'tolerance' runs them)\n"
+	        "                      (seed %d, %d bins, as 'tolerance' runs them);\n"
+	        "                      thermal: heat made and removed against the\n"
+	        "                      junction temperature of a part that heats\n"
+	        "                      itself, with the first N thermal steps\n"
 	        "  -o, --output=FILE   write FILE (replaced atomically) instead of\n"
 	        "                      standard output (PNG needs it on a terminal)\n"
 	        "  -w, --width=N       width: characters for text (default 80, min\n"
@@ -221,6 +227,45 @@ int cli_plot_monte_carlo(const struct session *s, const struct problem *pb,
 	                       nwin, mc, err, errlen);
 }
 
+/* The thermal plane of S with the first NSTEPS thermal steps. */
+int cli_plot_thermal(const struct session *s, const struct problem *pb,
+                     size_t nsteps, bool unicode, size_t ns,
+                     struct plot_desc *d, char *err, size_t errlen)
+{
+	plot_desc_init(d);
+	if (!thermal_active(&pb->dev)) {
+		snprintf(err, errlen, "the device does not heat itself: give it "
+		         "thermal_resistance (K/W) and ambient_temperature");
+		return -1;
+	}
+	struct thermal_result *tr = malloc(sizeof *tr);
+	struct thermal_stepper *ts = thermal_stepper_create();
+	int rc = -1;
+	if (tr == NULL || ts == NULL) {
+		snprintf(err, errlen, "out of memory");
+	} else if (thermal_solve(pb, &s->solver, tr) == THERMAL_BAD_INPUT) {
+		snprintf(err, errlen, "the thermal loop cannot be solved as stated");
+	} else {
+		struct render_thermal in = { pb, &s->solver, tr->pts, tr->n, NULL, 0,
+		                             unicode, true };
+		if (thermal_stepper_init(ts, pb, &s->solver, NAN) == 0) {
+			for (size_t k = 0; k < nsteps; k++)
+				if (thermal_stepper_step(ts) != STEP_CONTINUE)
+					break;
+			in.rows = thermal_stepper_trace(ts, &in.nrows);
+		}
+		enum render_status st = render_desc_thermal(&in, ns, d);
+		if (st == RENDER_OK)
+			rc = 0;
+		else
+			snprintf(err, errlen, "%s", st == RENDER_NO_MEMORY
+			         ? "out of memory" : "no thermal plane");
+	}
+	thermal_stepper_destroy(ts);
+	free(tr);
+	return rc;
+}
+
 /* What the command line asked for. */
 struct plot_args {
 	long cols, rows, nsteps;
@@ -279,7 +324,7 @@ static int plot_parse_args(int argc, char **argv, struct plot_args *a,
 					break;
 			if (k == nv) {
 				fprintf(stderr, "biasline: plot: --view: '%s' is not one of "
-				        "load-line, sweep, histogram\n", optarg);
+				        "load-line, sweep, histogram, thermal\n", optarg);
 				return -1;
 			}
 			a->view = (enum plot_view)k;
@@ -480,8 +525,19 @@ int cmd_plot(int argc, char **argv)
 			}
 			rs = render_desc_sweep(sv, a.unicode || a.vector, &d);
 			if (rs == RENDER_OK)
-				plot_desc_caption(&d, "%s", a.file);
+				plot_desc_caption_first(&d, a.file);
 			free(sv);
+		}
+	} else if (a.view == VIEW_THERMAL) {
+		plot_desc_init(&d);
+		if (cli_plot_thermal(&s, &pb, (size_t)a.nsteps,
+		                     a.unicode || a.vector,
+		                     a.vector ? 400 : (size_t)a.cols + 1, &d, err,
+		                     sizeof err) != 0) {
+			fprintf(stderr, "biasline: plot: %s: %s\n", a.file, err);
+			code = EXIT_DATA;
+		} else {
+			plot_desc_caption_first(&d, a.file);
 		}
 	} else {
 		struct tol_mc *mc = malloc(sizeof *mc);
@@ -496,7 +552,7 @@ int cmd_plot(int argc, char **argv)
 			if (cli_plot_hist(&s, &res, mc, a.unicode || a.vector, &d) != 0)
 				rs = RENDER_BAD_INPUT;
 			else
-				plot_desc_caption(&d, "%s", a.file);
+				plot_desc_caption_first(&d, a.file);
 		}
 		free(mc);
 	}

@@ -31,6 +31,7 @@
 #include "core/solve.h"
 #include "core/stability.h"
 #include "core/stepper.h"
+#include "core/thermal.h"
 #include "render/plot.h"
 #include "render/vector.h"
 #include "session/atomic.h"
@@ -146,7 +147,9 @@ static void report_usage(FILE *out)
 	        "tolerances, the session text itself and the program's version.\n"
 	        "HTML is one self-contained file (inline CSS and SVG, nothing\n"
 	        "fetched); Markdown writes the figures beside it as SVG files\n"
-	        "(OUT without .md, then -plot.svg and -histogram.svg).\n"
+	        "(OUT without .md, then -plot.svg, -histogram.svg and, for a\n"
+	        "part that heats itself, -thermal.svg).  A part that heats\n"
+	        "itself also gets its thermal plane.\n"
 	        "\n"
 	        "Options:\n"
 	        "  -f, --format=FMT    html (default) or markdown\n"
@@ -330,6 +333,8 @@ struct report {
 	unsigned cautions;            /* safety flags at the points */
 	char *plot_svg, *hist_svg;    /* the figures (NULL: none) */
 	size_t plot_len, hist_len;
+	char *thermal_svg;            /* the thermal plane (NULL: none) */
+	size_t thermal_len;
 	char hist_why[600];           /* why there is no histogram */
 	struct report_run solve, design, tolerance;
 	bool have_design, have_tolerance;
@@ -374,6 +379,16 @@ static int report_figures(struct report *r)
 		rc = -1;
 	plot_desc_fini(&d);
 	stepper_destroy(st);
+	char err[400];
+	if (thermal_active(&r->pb.dev) &&
+	    cli_plot_thermal(&r->s, &r->pb, REPORT_STEPS, true, 400, &d, err,
+	                     sizeof err) == 0) {
+		plot_desc_caption_first(&d, r->a->file);
+		if (render_vector(&d, VECTOR_SVG, VECTOR_WIDTH, VECTOR_HEIGHT,
+		                  &r->thermal_svg, &r->thermal_len, NULL) != 0)
+			rc = -1;
+	}
+	plot_desc_fini(&d);
 	if (r->s.analysis.ntol == 0) {
 		snprintf(r->hist_why, sizeof r->hist_why, "the session has no "
 		         "tolerances");
@@ -450,6 +465,7 @@ static void report_fini(struct report *r)
 	free(r->text);
 	free(r->plot_svg);
 	free(r->hist_svg);
+	free(r->thermal_svg);
 	struct report_run *runs[] = { &r->solve, &r->design, &r->tolerance };
 	for (size_t k = 0; k < 3; k++) {
 		free(runs[k]->out);
@@ -624,6 +640,14 @@ static void report_html(const struct report *r, struct rbuf *b)
 	}
 	report_html_run(b, "What 'biasline solve' reports (power, ratings, "
 	                "cautions)", &r->solve);
+	if (r->thermal_svg != NULL) {
+		rbuf_lit(b, "<h2>Self-heating</h2>\n<figure>\n");
+		report_inline_svg(b, r->thermal_svg, "thermal-");
+		rbuf_printf(b, "\n<figcaption>The heat the part makes and the heat "
+		            "its mounting removes against the junction temperature, "
+		            "every balance and the first %d steps of the thermal "
+		            "loop.</figcaption>\n</figure>\n", REPORT_STEPS);
+	}
 
 	rbuf_lit(b, "<h2>Design candidates</h2>\n");
 	if (r->have_design)
@@ -691,9 +715,10 @@ static void report_md_run(struct rbuf *b, const char *title,
 	free(t.p);
 }
 
-/* The whole report as Markdown, the figures named PLOT and HIST. */
+/* The whole report as Markdown, the figures named PLOT, HIST and THERMAL. */
 static void report_markdown(const struct report *r, struct rbuf *b,
-                            const char *plot, const char *hist)
+                            const char *plot, const char *hist,
+                            const char *thermal)
 {
 	char src[160];
 	report_source_words(r, src, sizeof src);
@@ -742,6 +767,10 @@ static void report_markdown(const struct report *r, struct rbuf *b,
 		            plot);
 	report_md_run(b, "What `biasline solve` reports (power, ratings, cautions)",
 	              &r->solve);
+	if (r->thermal_svg != NULL)
+		rbuf_printf(b, "## Self-heating\n\n![The heat made and removed "
+		            "against the junction temperature, every balance and the "
+		            "first %d thermal steps](%s)\n\n", REPORT_STEPS, thermal);
 	rbuf_printf(b, "## Design candidates\n\n");
 	if (r->have_design)
 		report_md_run(b, r->have_tolerance ? "biasline design --worst-case"
@@ -801,22 +830,29 @@ int cmd_report(int argc, char **argv)
 		/* The figures beside OUT: its name without .md, then -plot.svg. */
 		size_t n = strlen(a.output);
 		size_t stem = n > 3 && strcmp(a.output + n - 3, ".md") == 0 ? n - 3 : n;
-		char *plot = malloc(stem + 16), *hist = malloc(stem + 16);
-		if (plot == NULL || hist == NULL) {
+		char *plot = malloc(stem + 20), *hist = malloc(stem + 20);
+		char *therm = malloc(stem + 20);
+		if (plot == NULL || hist == NULL || therm == NULL) {
 			b.failed = true;
 		} else {
-			snprintf(plot, stem + 16, "%.*s-plot.svg", (int)stem, a.output);
-			snprintf(hist, stem + 16, "%.*s-histogram.svg", (int)stem, a.output);
+			snprintf(plot, stem + 20, "%.*s-plot.svg", (int)stem, a.output);
+			snprintf(hist, stem + 20, "%.*s-histogram.svg", (int)stem, a.output);
+			snprintf(therm, stem + 20, "%.*s-thermal.svg", (int)stem, a.output);
 			/* The report links them by name, beside it. */
 			const char *pb = strrchr(plot, '/'), *hb = strrchr(hist, '/');
-			report_markdown(&r, &b, pb ? pb + 1 : plot, hb ? hb + 1 : hist);
+			const char *tb = strrchr(therm, '/');
+			report_markdown(&r, &b, pb ? pb + 1 : plot, hb ? hb + 1 : hist,
+			                tb ? tb + 1 : therm);
 			if (r.plot_svg != NULL && !b.failed)
 				code = report_write_file(plot, r.plot_svg, r.plot_len);
 			if (code == 0 && r.hist_svg != NULL && !b.failed)
 				code = report_write_file(hist, r.hist_svg, r.hist_len);
+			if (code == 0 && r.thermal_svg != NULL && !b.failed)
+				code = report_write_file(therm, r.thermal_svg, r.thermal_len);
 		}
 		free(plot);
 		free(hist);
+		free(therm);
 	}
 	if (b.failed) {
 		fprintf(stderr, "biasline report: out of memory\n");

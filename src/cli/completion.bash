@@ -36,7 +36,7 @@ _biasline_choices()
 		*) echo "text csv" ;;
 		esac
 		;;
-	--view) echo "load-line sweep histogram" ;;
+	--view) echo "load-line sweep histogram thermal" ;;
 	--weight) echo "relative absolute" ;;
 	--method) echo "auto projection relaxed newton brent" ;;
 	--order) echo "voltage-from-line voltage-from-device" ;;

@@ -145,3 +145,12 @@ enum plot_shape plot_shape_of(enum stability s)
 		return SHAPE_TRIANGLE;
 	}
 }
+
+/* Put TEXT before the caption's lines (the last line drops when full). */
+void plot_desc_caption_first(struct plot_desc *d, const char *text)
+{
+	size_t n = d->ncaption < PLOT_MAX_CAPTION ? d->ncaption : PLOT_MAX_CAPTION - 1;
+	memmove(d->caption[1], d->caption[0], n * sizeof d->caption[0]);
+	snprintf(d->caption[0], sizeof d->caption[0], "%s", text);
+	d->ncaption = n + 1;
+}

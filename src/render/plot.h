@@ -140,6 +140,9 @@ void plot_desc_legend(struct plot_desc *d, enum cell_role role,
 void plot_desc_caption(struct plot_desc *d, const char *fmt, ...)
 	__attribute__((format(printf, 2, 3)));
 
+/* Put TEXT (a file name) before D's caption lines. */
+void plot_desc_caption_first(struct plot_desc *d, const char *text);
+
 /* Give the first marker of D with ROLE the words WORDS. */
 void plot_desc_words(struct plot_desc *d, enum cell_role role,
                      const char *words);
@@ -233,6 +236,18 @@ struct render_hist {
  */
 enum render_status render_desc_hist(const struct render_hist *in,
                                     struct plot_desc *d);
+
+/*
+ * The description of the thermal plane of IN into D (initialised by the
+ * call), the heat made sampled NS times across (2 .. 1024; the grid
+ * samples one per column edge): Tj across, heat up, the heat removed
+ * (ROLE_LINE), the heat made (ROLE_DEVICE), Tjmax as a dotted line, the
+ * thermal path, and each balance numbered with its verdict (stable, or
+ * runs away) and in the caption with its loop gain.  Returns RENDER_OK,
+ * RENDER_BAD_INPUT (the device does not heat itself) or RENDER_NO_MEMORY.
+ */
+enum render_status render_desc_thermal(const struct render_thermal *in,
+                                       size_t ns, struct plot_desc *d);
 
 /*
  * Draw D into G (its whole size) with the character back end; LAY (may be

@@ -10,11 +10,16 @@
  * hottest thing worth seeing (a balance, the path, or Tjmax when nothing
  * balances), and up to a little above the largest heat there, so the
  * crossings of the two curves fill the plot.
+ *
+ * The plane is built as a plot description (plot.h), so the character
+ * grid and the vector pictures draw the same thing; the heat made is
+ * sampled by the caller's count (the grid: one per column edge).
  */
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 
+#include "render/plot.h"
 #include "render/render_int.h"
 
 /* Room left past the hottest temperature shown, as a share of the rise. */
@@ -39,51 +44,42 @@ static const struct thermal_legend thermal_legend[] = {
 	{ ROLE_NEWEST, "newest step" },
 };
 
-/* The legend line, as many entries as fit. */
-static void thermal_draw_legend(struct grid *g, bool unicode)
+/* Append the step (T0, P0)-(T1, P1) with ROLE to D. */
+static void thermal_step(struct plot_desc *d, double t0, double p0, double t1,
+                         double p1, enum cell_role role)
 {
-	int col = 0;
-	for (size_t k = 0; k < sizeof thermal_legend / sizeof thermal_legend[0];
-	     k++) {
-		int w = 2 + render_text_width(thermal_legend[k].words);
-		if (col + w > g->cols)
-			break;
-		render_put(g, 0, col, render_mark(thermal_legend[k].role, unicode),
-		           ROLE_LEGEND);
-		render_text(g, 0, col + 2, thermal_legend[k].words, ROLE_LEGEND);
-		col += w + 2;
+	struct plot_item *it = plot_desc_add(d, PLOT_STEP, role);
+	if (it != NULL) {
+		it->x0 = t0;
+		it->y0 = p0;
+		it->x1 = t1;
+		it->y1 = p1;
 	}
 }
 
-/* A segment of the plane from (T0, P0) to (T1, P1) with ROLE. */
-static void thermal_segment(struct grid *g, const struct render_layout *lay,
-                            double t0, double p0, double t1, double p1,
-                            enum cell_role role, bool unicode)
+/* Append a marker of ROLE and SHAPE at (T, P) to D. */
+static struct plot_item *thermal_marker(struct plot_desc *d, enum cell_role role,
+                                        enum plot_shape shape, double t, double p)
 {
-	struct trace_row a = { .v = t0, .i = p0 }, b = { .v = t1, .i = p1 };
-	render_segment(g, lay, &a, &b, role, unicode);
+	struct plot_item *it = plot_desc_add(d, PLOT_MARKER, role);
+	if (it != NULL) {
+		it->x0 = t;
+		it->y0 = p;
+		it->shape = shape;
+	}
+	return it;
 }
 
-/* Draw the thermal plane of IN into G (see render.h). */
-enum render_status render_thermal_plot(const struct render_thermal *in,
-                                       struct grid *g,
-                                       struct render_layout *lay_out)
+/* The description of the thermal plane of IN, P(Tj) sampled NS times. */
+enum render_status render_desc_thermal(const struct render_thermal *in,
+                                       size_t ns, struct plot_desc *d)
 {
-	if (g->rows < RENDER_MIN_ROWS || g->cols < RENDER_MIN_COLS) {
-		char msg[64];
-		snprintf(msg, sizeof msg, "plot needs %dx%d", RENDER_MIN_COLS,
-		         RENDER_MIN_ROWS);
-		render_message(g, msg);
-		return RENDER_TOO_SMALL;
-	}
+	plot_desc_init(d);
 	struct thermal_keys k;
 	if (in == NULL || in->pb == NULL || in->o == NULL ||
 	    !thermal_active(&in->pb->dev) ||
-	    !thermal_keys_of(in->pb->dev.type, &k)) {
-		render_message(g, "no thermal plane: the device does not heat "
-		               "itself (thermal_resistance is 0)");
+	    !thermal_keys_of(in->pb->dev.type, &k))
 		return RENDER_BAD_INPUT;
-	}
 	const double *p = in->pb->dev.p;
 	double ta = p[k.tamb], theta = p[k.theta], tjmax = p[k.tjmax];
 
@@ -101,22 +97,14 @@ enum render_status render_thermal_plot(const struct render_thermal *in,
 	double xlo = ta - 0.04 * rise * (1.0 + THERMAL_SPAN);
 	double xhi = ta + rise * (1.0 + THERMAL_SPAN);
 
-	struct render_layout lay;
-	lay.top = in->legend ? 1 : 0;
-	lay.axis_row = g->rows - 2;
-	lay.bottom = g->rows - 3;
-	int nr = lay.bottom - lay.top + 1;
-
-	/* The heat made, one electrical solve per column edge (the columns
-	 * are not known before the margin is: sample generously). */
-	size_t ns = (size_t)g->cols + 1;
+	/* The heat made, one electrical solve per sample. */
+	if (ns < 2)
+		ns = 2;
 	if (ns > THERMAL_MAX_SAMPLES)
 		ns = THERMAL_MAX_SAMPLES;
 	double *ts = malloc(2 * ns * sizeof *ts);
-	if (ts == NULL) {
-		render_message(g, "out of memory");
+	if (ts == NULL)
 		return RENDER_NO_MEMORY;
-	}
 	double *ps = ts + ns;
 	double ylo = 0.0, yhi = 0.0;
 	for (size_t j = 0; j < ns; j++) {
@@ -134,55 +122,88 @@ enum render_status render_thermal_plot(const struct render_thermal *in,
 	yhi += THERMAL_HEADROOM * (yhi - ylo);
 	if (ylo < 0.0)
 		ylo -= THERMAL_HEADROOM * (yhi - ylo);
-	lay.win = (struct render_window){ xlo, xhi, ylo, yhi };
 
-	struct render_ticks ty, tx;
 	bool u = in->unicode;
-	render_ticks_make(&ty, ylo, yhi, nr / 3 > 2 ? nr / 3 : 2, QTY_POWER, u);
-	int margin = ty.width + 1;
-	if (margin > g->cols / 3)
-		margin = g->cols / 3;
-	lay.axis_col = margin;
-	lay.left = margin + 1;
-	lay.right = g->cols - 1;
-	int nc = lay.right - lay.left + 1;
-	render_ticks_make(&tx, xlo, xhi, nc / 12 > 2 ? nc / 12 : 2,
-	                  QTY_TEMPERATURE, u);
-
-	grid_clear(g);
-	if (in->legend)
-		thermal_draw_legend(g, u);
-	render_axes(g, &lay, &ty, &tx, u,
-	            u ? "P\xE2\x86\x91 Tj\xE2\x86\x92" : "P^ Tj>");
-	/* The maximum junction temperature: a dotted column and its name. */
-	int row, col;
-	if (render_cell_of(&lay, tjmax, 0.5 * (ylo + yhi), &row, &col)) {
-		for (int r = lay.top; r <= lay.bottom; r++)
-			if ((r - lay.top) % 2 == 1)
-				render_put(g, r, col, ':', ROLE_LABEL);
-		int at = col + 1 + 5 <= lay.right ? col + 1 : col - 5;
-		render_text(g, lay.top, at, "Tjmax", ROLE_LABEL);
+	d->x = (struct plot_axis){ xlo, xhi, false, QTY_TEMPERATURE,
+	                           "junction temperature" };
+	d->y = (struct plot_axis){ ylo, yhi, false, QTY_POWER, "heat" };
+	d->unicode = u;
+	d->names = u ? "P\xE2\x86\x91 Tj\xE2\x86\x92" : "P^ Tj>";
+	if (in->legend) {
+		d->legend_rows = 1;
+		for (size_t j = 0; j < sizeof thermal_legend / sizeof thermal_legend[0];
+		     j++)
+			plot_desc_legend(d, thermal_legend[j].role, 0,
+			                 thermal_legend[j].role == ROLE_START ? SHAPE_CIRCLE
+			                                                      : SHAPE_DOT,
+			                 thermal_legend[j].words);
+	}
+	/* The maximum junction temperature: a dotted line and its name. */
+	struct plot_item *it = plot_desc_add(d, PLOT_VLINE, ROLE_LABEL);
+	if (it != NULL) {
+		it->x0 = tjmax;
+		snprintf(it->words, sizeof it->words, "Tjmax");
 	}
 	/* The heat removed: from (Ta, 0) with slope 1/theta. */
-	thermal_segment(g, &lay, ta, 0.0, xhi, (xhi - ta) / theta, ROLE_LINE, u);
-	render_marker(g, &lay, ta, 0.0, ROLE_LINE, u);
-	/* The heat made. */
-	for (size_t j = 1; j < ns; j++)
-		if (isfinite(ps[j - 1]) && isfinite(ps[j]))
-			thermal_segment(g, &lay, ts[j - 1], ps[j - 1], ts[j], ps[j],
-			                ROLE_DEVICE, u);
+	double hx[2] = { ta, xhi }, hy[2] = { 0.0, (xhi - ta) / theta };
+	plot_desc_polyline(d, ROLE_LINE, hx, hy, 2);
+	thermal_marker(d, ROLE_LINE, SHAPE_TICK, ta, 0.0);
+	/* The heat made: consecutive solved samples joined. */
+	plot_desc_polyline(d, ROLE_DEVICE, ts, ps, ns);
 	free(ts);
 	/* The path, its start, and the balances. */
 	if (in->rows != NULL && in->nrows > 0) {
 		for (size_t j = 1; j < in->nrows; j++)
-			thermal_segment(g, &lay, in->rows[j - 1].tj, in->rows[j - 1].p,
-			                in->rows[j].tj, in->rows[j].p,
-			                j + 1 == in->nrows ? ROLE_NEWEST : ROLE_PATH, u);
-		render_marker(g, &lay, in->rows[0].tj, in->rows[0].p, ROLE_START, u);
+			thermal_step(d, in->rows[j - 1].tj, in->rows[j - 1].p,
+			             in->rows[j].tj, in->rows[j].p,
+			             j + 1 == in->nrows ? ROLE_NEWEST : ROLE_PATH);
+		thermal_marker(d, ROLE_START, SHAPE_CIRCLE, in->rows[0].tj,
+		               in->rows[0].p);
 	}
-	for (size_t j = 0; in->pts != NULL && j < in->npts; j++)
-		render_marker(g, &lay, in->pts[j].tj, in->pts[j].p, ROLE_POINT, u);
-	if (lay_out != NULL)
-		*lay_out = lay;
-	return RENDER_OK;
+	char t[48], w[48];
+	for (size_t j = 0; in->pts != NULL && j < in->npts; j++) {
+		const struct thermal_point *b = &in->pts[j];
+		it = thermal_marker(d, ROLE_POINT, b->stable ? SHAPE_DOT : SHAPE_SQUARE,
+		                    b->tj, b->p);
+		if (it != NULL) {
+			snprintf(it->tag, sizeof it->tag, "%u", (unsigned)(j + 1));
+			snprintf(it->words, sizeof it->words, "%s",
+			         b->stable ? "stable" : "runs away");
+		}
+		qty_format_short(t, sizeof t, b->tj, QTY_TEMPERATURE, 5, 0);
+		qty_format_short(w, sizeof w, b->p, QTY_POWER, 5, 0);
+		plot_desc_caption(d, "balance %zu: Tj = %s, heat %s, loop gain %.3g "
+		                  "(%s)", j + 1, t, w, b->gain,
+		                  b->stable ? "stable" : "runs away");
+	}
+	if (in->npts == 0)
+		plot_desc_caption(d, "no balance up to Tjmax: the part runs away");
+	return d->no_memory ? RENDER_NO_MEMORY : RENDER_OK;
+}
+
+/* Draw the thermal plane of IN into G (see render.h). */
+enum render_status render_thermal_plot(const struct render_thermal *in,
+                                       struct grid *g,
+                                       struct render_layout *lay_out)
+{
+	if (g->rows < RENDER_MIN_ROWS || g->cols < RENDER_MIN_COLS) {
+		char msg[64];
+		snprintf(msg, sizeof msg, "plot needs %dx%d", RENDER_MIN_COLS,
+		         RENDER_MIN_ROWS);
+		render_message(g, msg);
+		return RENDER_TOO_SMALL;
+	}
+	struct plot_desc d;
+	/* The columns are not known before the margin is: sample each column
+	 * edge of the widest data area generously. */
+	enum render_status st = render_desc_thermal(in, (size_t)g->cols + 1, &d);
+	if (st == RENDER_BAD_INPUT)
+		render_message(g, "no thermal plane: the device does not heat "
+		               "itself (thermal_resistance is 0)");
+	else if (st == RENDER_NO_MEMORY)
+		render_message(g, "out of memory");
+	else
+		st = render_desc_grid(&d, g, lay_out);
+	plot_desc_fini(&d);
+	return st;
 }

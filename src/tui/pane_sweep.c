@@ -121,7 +121,7 @@ static unsigned pane_sweep_act(struct app *a, void *self, const struct action *a
 		char *svg = NULL;
 		size_t len = 0;
 		if (render_desc_sweep(&v->sv, true, &d) == RENDER_OK) {
-			plot_desc_caption(&d, "%s", a->path != NULL ? a->path : "demo");
+			plot_desc_caption_first(&d, a->path != NULL ? a->path : "demo");
 			if (render_vector(&d, VECTOR_SVG, VECTOR_WIDTH, VECTOR_HEIGHT, &svg,
 			                  &len, NULL) != 0)
 				svg = NULL;

@@ -12,6 +12,8 @@
 #include <string.h>
 
 #include "core/thermal.h"
+#include "render/plot.h"
+#include "render/vector.h"
 #include "tui/app.h"
 #include "tui/panes.h"
 
@@ -152,6 +154,32 @@ static unsigned pane_thermal_act(struct app *a, void *self,
 	case ACT_CHANGED:
 		pane_thermal_refresh(a, v);
 		return a->thermal ? APP_REDRAW : 0;
+	case ACT_PICTURE: {
+		/* The plane as shown: the balances and the thermal path so far. */
+		size_t n;
+		const struct thermal_row *rows = thermal_stepper_trace(a->tst, &n);
+		struct render_thermal in = {
+			&a->pb, &a->s.solver, v->tr.pts, v->tr.n, rows, n, true, true,
+		};
+		struct plot_desc d;
+		plot_desc_init(&d);
+		char *svg = NULL;
+		size_t len = 0;
+		if (a->pb_ok && v->tr_ok &&
+		    render_desc_thermal(&in, 400, &d) == RENDER_OK) {
+			plot_desc_caption_first(&d, a->path != NULL ? a->path : "demo");
+			if (render_vector(&d, VECTOR_SVG, VECTOR_WIDTH, VECTOR_HEIGHT, &svg,
+			                  &len, NULL) != 0)
+				svg = NULL;
+		}
+		plot_desc_fini(&d);
+		if (svg != NULL)
+			app_write_picture(a, svg, len, "-thermal.svg");
+		else
+			app_message(a, true, "no picture of the thermal plane: the "
+			            "device does not heat itself");
+		return APP_HANDLED | APP_REDRAW;
+	}
 	default:
 		return 0;
 	}

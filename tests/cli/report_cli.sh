@@ -83,6 +83,12 @@ expect_exit 0 "$bl" report "$s"
 check "the design's nearest row as design prints it" \
 	'sed "s/  */ /g; s/^ //" "$tmp/out" | grep -q -F -- "$nearest"'
 
+# A part that heats itself gets its thermal plane too.
+expect_exit 0 "$bl" report "$samples/led-warm-enclosure-self-heating.yaml"
+check "the self-heated LED's report has the plot and the thermal plane" \
+	'[ "$(grep -c "<svg" "$tmp/out")" -eq 2 ] && grep -q "id=\"thermal-glyph" "$tmp/out"'
+expect_text "$tmp/out" "<h2>Self-heating</h2>"
+
 # Markdown: the figures beside it, linked by name.
 mkdir "$tmp/md"
 expect_exit 0 "$bl" report --format markdown --output "$tmp/md/led.md" "$s"

@@ -770,7 +770,20 @@ picture)
 	[ "$(cksum <"$work/led.yaml")" = "$session" ] || fail "the session file changed"
 	keys Escape q
 	wait_exit
-	echo "ok: P wrote the plot and the sweep as SVG; an existing file only after y"
+	# The thermal view's picture is the thermal plane.
+	cp "$samples/led-warm-enclosure-self-heating.yaml" "$work/warm.yaml"
+	start 80 24 "$work/warm.yaml"
+	wait_for "Convergence"
+	keys H
+	wait_for "heat removed"
+	keys P
+	wait_for "wrote the view as $work/warm-thermal.svg"
+	grep -q "junction temperature" "$work/warm-thermal.svg" ||
+		grep -q "<title>$work/warm.yaml</title>" "$work/warm-thermal.svg" ||
+		fail "warm-thermal.svg is not the thermal plane"
+	keys Escape q
+	wait_exit
+	echo "ok: P wrote the plot, the sweep and the thermal plane as SVG; an existing file only after y"
 	;;
 readonly)
 	# A save into a folder the user cannot write fails, the session stays

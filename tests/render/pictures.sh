@@ -198,6 +198,29 @@ for b in status-led-design zener-shunt-5v1; do
 	expect_exit 0 "$bl" plot -f svg --view histogram -o "$tmp/$b-hist.svg" "$samples/$b.yaml"
 	expect_svg "$tmp/$b-hist.svg" "$b: histogram view"
 done
+# --- the thermal plane: the balance where solve puts it ----------------
+t=$samples/led-warm-enclosure-self-heating.yaml
+expect_exit 0 "$bl" solve "$t"
+tj=$(sed -n 's/.*junction \([0-9.]*\) degC.*/\1/p' "$tmp/out" | head -n 1)
+pw=$(awk '$1 == "1" && NF >= 10 { print $6 " " $7; exit }' "$tmp/out")
+pw=$(echo "$pw" | awk '{ m = $2 == "mW" ? 1e-3 : $2 == "uW" ? 1e-6 : 1; print $1 * m }')
+n=$((n + 1))
+if [ -n "$tj" ] && [ -n "$pw" ]; then echo "ok $n - solve put the balance at $tj degC, $pw W"; else
+	echo "not ok $n - no junction temperature or power in solve's output"; fails=$((fails + 1)); fi
+expect_exit 0 "$bl" plot -f svg --view thermal -n 6 -o "$tmp/thermal.svg" "$t"
+expect_svg "$tmp/thermal.svg" "the thermal plane"
+read_frame "$tmp/thermal.svg"
+to_pixel "$tj" "$pw"
+expect_spot "$tmp/thermal.svg.png" "$PX" "$PY" 009E73 3 + \
+	"the balance's disc at the pixel of ($tj degC, $pw W)"
+to_pixel 45 0
+expect_spot "$tmp/thermal.svg.png" "$PX" "$PY" 0072B2 2 + \
+	"the heat-removed line starts at the ambient 45 degC, 0 W"
+expect_exit 0 "$bl" plot -f svg --view thermal -o "$tmp/runaway.svg" "$samples/npn-fixed-base-runaway.yaml"
+expect_svg "$tmp/runaway.svg" "the thermal plane of a runaway"
+expect_text "$tmp/runaway.svg" "<title>$samples/npn-fixed-base-runaway.yaml</title>"
+expect_exit 65 "$bl" plot --view thermal "$tmp/divider.yaml"
+expect_text "$tmp/err" "does not heat itself"
 # A session without tolerances has no histogram: a clear refusal.
 expect_exit 65 "$bl" plot -f svg --view histogram "$tmp/divider.yaml"
 expect_text "$tmp/err" "no tolerances"
