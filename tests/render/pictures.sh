@@ -221,6 +221,10 @@ expect_svg "$tmp/runaway.svg" "the thermal plane of a runaway"
 expect_text "$tmp/runaway.svg" "<title>$samples/npn-fixed-base-runaway.yaml</title>"
 expect_exit 65 "$bl" plot --view thermal "$tmp/divider.yaml"
 expect_text "$tmp/err" "does not heat itself"
+# The histogram as text: the same description in the character grid.
+expect_exit 0 "$bl" plot --view histogram -w 70 -H 18 "$samples/status-led-design.yaml"
+expect_text "$tmp/out" "* trials per bin"
+expect_text "$tmp/out" "device current over 10000 Monte Carlo trials"
 # A session without tolerances has no histogram: a clear refusal.
 expect_exit 65 "$bl" plot -f svg --view histogram "$tmp/divider.yaml"
 expect_text "$tmp/err" "no tolerances"
