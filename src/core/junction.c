@@ -219,6 +219,12 @@ static double junction_rdiff(const struct junction_ctx *c, double i)
 	return rd;
 }
 
+/* F(v) = v + r Ij(v) - voc alone. */
+static double junction_residual_at(const struct junction_ctx *c, double v)
+{
+	return v + c->r * junction_current(c, v) - c->voc;
+}
+
 /*
  * F(v) = v + r Ij(v) - voc and its Newton step, or, where the load line
  * is the flatter curve (dVj/dI < r), G(v) = v - Vj((voc - v) / r) and its
@@ -289,7 +295,23 @@ static struct junction_result junction_newton(struct junction_ctx *c,
 	if (voc > 0.0 && isfinite(est) && est < hi && est > lo)
 		hi = est;
 	struct kernel_fn fn = { junction_eval, c };
-	/* F < 0 at lo and > 0 at hi by construction: the signs suffice. */
+	/*
+	 * F < 0 at lo and > 0 at hi when the curve passes the origin; one
+	 * that does not (a measured curve with a current at 0 V, or one
+	 * continued past its last point) may put the root outside [0, voc]:
+	 * reach out, doubling, until the ends hold it (F rises: one root).
+	 */
+	double span = fmax(hi - lo, fabs(voc));
+	for (int k = 0; k < 200 && junction_residual_at(c, lo) > 0.0; k++) {
+		hi = lo;
+		lo -= span;
+		span *= 2.0;
+	}
+	for (int k = 0; k < 200 && junction_residual_at(c, hi) < 0.0; k++) {
+		lo = hi;
+		hi += span;
+		span *= 2.0;
+	}
 	struct kernel_result kr = kernel_newton_solve(
 		&fn, lo, -1.0, hi, 1.0, voc > 0.0 ? hi : lo, tol, junction_limit, c);
 	double v = kr.x;

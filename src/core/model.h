@@ -146,6 +146,32 @@ struct model_type {
 	double (*conductance_k)(const double *p, const double *k, double v);
 
 	/*
+	 * Optional, for a curve given as V(I): the curve as a function of a
+	 * parameter T along it, with I rising as T does, so that the scan
+	 * needs no inner solve (a self-heated thermistor's signed temperature
+	 * rise: V and I follow from the heat balance directly).  POINT_AT
+	 * gives (V, I) at T, returning 0 or -1; PARAM_RANGE the range of T
+	 * matching current_range; PARAM_RISING the interval of T where V
+	 * rises with T (the load line's residual rises there too, so it
+	 * holds at most one crossing).
+	 */
+	int (*point_at)(const double *p, double t, double *v, double *i);
+	void (*param_range)(const double *p, double *t0, double *t1);
+	void (*param_rising)(const double *p, double *t0, double *t1);
+
+	/*
+	 * Optional: the curve's inflections, the junction voltages (the
+	 * variable of the junction view, problem.h) where its conductance
+	 * turns from falling to rising or back.  Between them and beyond the
+	 * outer ones the conductance is monotone, so the residual's slope is
+	 * too, and a load line crosses each piece at most twice: the
+	 * every-root scan then brackets every crossing exactly instead of
+	 * sampling (stepper.h).  Writes at most MAX values, increasing, and
+	 * returns how many; the model promises there are no others.
+	 */
+	size_t (*inflections)(const double *p, double *x, size_t max);
+
+	/*
 	 * Optional starting estimate of the intrinsic voltage at which the
 	 * intrinsic current equals I (I > 0), used to seed Newton.
 	 */

@@ -4,6 +4,7 @@
  */
 #include "solve.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -14,8 +15,6 @@
 #include "kernel.h"
 #include "thermal.h"
 
-/* Relative tolerance of the independent check of a reported point. */
-#define VERIFY_TOL 1e-8
 
 /* Fill PT's derived fields from V and I. */
 void solve_finish_point(const struct problem *pb, struct op_point *pt)
@@ -44,7 +43,155 @@ void solve_finish_point(const struct problem *pb, struct op_point *pt)
 	pt->residual = fabs(source_line_residual(&pb->src, pt->v, pt->i));
 }
 
-/* Check (V, I) against both curves (see solve.h). */
+/* The finest relative tolerance verification asks for (rounding). */
+#define VERIFY_FLOOR (16.0 * DBL_EPSILON)
+
+/* The rounding level of the junction residual at X (its terms' size). */
+static double verify_noise(const struct problem_junction *j, double x,
+                           double ij)
+{
+	const struct source *s = &j->pb->src;
+	if (isinf(s->r))
+		return 8.0 * DBL_EPSILON * (fabs(ij) + fabs(s->isc)) + DBL_MIN;
+	return 8.0 * DBL_EPSILON * (fabs(x) + fabs(j->rt * ij) + fabs(s->voc)) +
+	       DBL_MIN;
+}
+
+/*
+ * Verification for a curve given as I(V), in the junction variable x =
+ * V - Rs I: an interval [x - d, x + d] across which the residual changes
+ * sign holds the intersection x*, and with it I* lies between the
+ * device's currents at the ends and between the line's; d is chosen so
+ * that those ranges are within the tolerance of I, and the voltage
+ * follows.  Where d is below what rounding can resolve, a residual at
+ * the rounding level is accepted instead.
+ */
+static bool verify_junction(const struct problem *pb, double v, double i,
+                            double rtol)
+{
+	struct problem_junction j;
+	problem_junction_init(&j, pb);
+	const struct source *s = &pb->src;
+	double x = v - j.rser * i;
+	double ei = rtol * fabs(i), ev = rtol * fabs(v);
+	double f = problem_junction_residual(&j, x);
+	if (f == 0.0)
+		return fabs(i - problem_junction_current(&j, x)) <= ei + DBL_MIN ||
+		       (isfinite(j.rt) && fabs(i - (s->voc - x) / j.rt) <=
+		                              ei + DBL_MIN);
+	double g = fabs(problem_junction_conductance(&j, x));
+	/*
+	 * The budgets: V* = x* + Rs I*, so V's error is x's plus Rs times
+	 * I's.  I may be off by BI: its tolerance, and no more than half V's
+	 * through Rs; x by D: at most 0.4 of V's tolerance, and small enough
+	 * that the currents the bracket allows (g D on the device, D / rt on
+	 * the line; the narrower binds) stay within 0.8 BI, leaving room for
+	 * the point's own offset.
+	 */
+	double bi = ei;
+	if (j.rser > 0.0 && 0.5 * ev / j.rser < bi)
+		bi = 0.5 * ev / j.rser;
+	double d = 0.4 * ev;
+	double dmax_i = isinf(j.rt) ? (g > 0.0 ? 0.8 * bi / g : INFINITY)
+	                            : 0.8 * bi * fmax(j.rt, g > 0.0 ? 1.0 / g
+	                                                           : INFINITY);
+	if (dmax_i < d)
+		d = dmax_i;
+	double xa = x - d, xb = x + d;
+	double fa = problem_junction_residual(&j, xa);
+	double fb = problem_junction_residual(&j, xb);
+	bool bracket = (fa <= 0.0 && fb >= 0.0) || (fa >= 0.0 && fb <= 0.0);
+	if (!bracket || !(d > 0.0))
+		return fabs(f) <= verify_noise(&j, x, problem_junction_current(&j, x));
+	/* I* between the device's currents at the ends, and the line's. */
+	double da = problem_junction_current(&j, xa);
+	double db = problem_junction_current(&j, xb);
+	double lo = fmin(da, db), hi = fmax(da, db);
+	if (isinf(s->r)) {
+		lo = hi = s->isc;
+	} else if (j.rt > 0.0) {
+		double la = (s->voc - xa) / j.rt, lb = (s->voc - xb) / j.rt;
+		double llo = fmin(la, lb), lhi = fmax(la, lb);
+		if (llo > lo)
+			lo = llo;
+		if (lhi < hi)
+			hi = lhi;
+		if (lo > hi) /* rounding: the ranges just miss; take the line's */
+			lo = llo, hi = lhi;
+	}
+	double di = fmax(fabs(i - lo), fabs(i - hi));
+	/* V* = x* + Rs I*: within d + Rs di of V. */
+	return (di <= bi + DBL_MIN && d + j.rser * di <= ev + DBL_MIN) ||
+	       fabs(f) <= verify_noise(&j, x, problem_junction_current(&j, x));
+}
+
+/* V(I) + r I - voc of a curve given as V(I) at I into *G and V(I) into
+ * *V; false where V(I) is undefined. */
+static bool verify_current_residual(const struct problem *pb, double i,
+                                    double *g, double *v)
+{
+	if (device_voltage(&pb->dev, i, v) != 0)
+		return false;
+	*g = *v + pb->src.r * i - pb->src.voc;
+	return true;
+}
+
+/*
+ * Verification for a curve given only as V(I): the same in current, an
+ * interval [i - d, i + d] across which V(I) + r I - voc changes sign,
+ * with d such that the voltages it allows (on the curve and on the line)
+ * are within the tolerance of V.
+ */
+static bool verify_current(const struct problem *pb, double v, double i,
+                           double rtol)
+{
+	const struct model_type *t = pb->dev.type;
+	const struct source *s = &pb->src;
+	double ev = rtol * fabs(v), ei = rtol * fabs(i);
+	if (isinf(s->r)) {
+		double vd;
+		return fabs(i - s->isc) <= rtol * fabs(s->isc) + DBL_MIN &&
+		       device_voltage(&pb->dev, i, &vd) == 0 &&
+		       fabs(vd - v) <= ev + DBL_MIN;
+	}
+	double g0, v0;
+	if (!verify_current_residual(pb, i, &g0, &v0))
+		return false;
+	double noise = 8.0 * DBL_EPSILON * (fabs(v0) + fabs(s->r * i) + fabs(s->voc)) +
+	               DBL_MIN;
+	if (fabs(v - v0) > ev + noise && fabs(v - (s->voc - s->r * i)) > ev + noise)
+		return false; /* on neither curve */
+	if (g0 == 0.0)
+		return true;
+	double rd = t->resistance != NULL ? fabs(t->resistance(pb->dev.p, i)) : NAN;
+	double d = ei;
+	double dmax_v = ev / fmin(isfinite(rd) ? rd : INFINITY, s->r);
+	if (isfinite(dmax_v) && dmax_v < d)
+		d = dmax_v;
+	d *= 0.5; /* half the allowance: room for V's own offset */
+	double ga, gb, va, vb;
+	if (!(d > 0.0) || !verify_current_residual(pb, i - d, &ga, &va) ||
+	    !verify_current_residual(pb, i + d, &gb, &vb))
+		return fabs(g0) <= noise;
+	if (!((ga <= 0.0 && gb >= 0.0) || (ga >= 0.0 && gb <= 0.0)))
+		return fabs(g0) <= noise;
+	double lo = fmin(va, vb), hi = fmax(va, vb);
+	double la = s->voc - s->r * (i - d), lb = s->voc - s->r * (i + d);
+	double llo = fmin(la, lb), lhi = fmax(la, lb);
+	if (llo > lo)
+		lo = llo;
+	if (lhi < hi)
+		hi = lhi;
+	if (lo > hi)
+		lo = llo, hi = lhi;
+	return fmax(fabs(v - lo), fabs(v - hi)) <= ev + noise;
+}
+
+/*
+ * Check (V, I) against both curves (see solve.h): it must lie within the
+ * relative tolerance of the intersection in V and in I, measured as a
+ * distance to the intersection by a bracket of it, not as a residual.
+ */
 bool solve_verify(const struct problem *pb, double v, double i, double tol)
 {
 	if (!isfinite(v) || !isfinite(i))
@@ -55,62 +202,10 @@ bool solve_verify(const struct problem *pb, double v, double i, double tol)
 		thermal_problem_at(pb, thermal_point_temperature(pb, v, i), &at);
 		pb = &at;
 	}
-	double rtol = fmax(tol, VERIFY_TOL);
-	const struct source *s = &pb->src;
-	/* On the load line, relative to the terms of its equation. */
-	if (isinf(s->r)) {
-		if (fabs(i - s->isc) > rtol * fabs(s->isc) + 1e-300)
-			return false;
-	} else {
-		double scale = fabs(v) + fabs(s->r * i) + fabs(s->voc);
-		if (fabs(v + s->r * i - s->voc) > rtol * scale + 1e-300)
-			return false;
-	}
-	/* On the device curve, allowing for the curve's slope at V. */
-	const struct model_type *t = pb->dev.type;
-	if (t->series_resistance != NULL && t->intrinsic_current != NULL &&
-	    t->intrinsic_conductance != NULL) {
-		/*
-		 * Behind a series resistance: the junction at vj = V - Rs I must
-		 * carry I.  This needs no inner solve for the terminal current
-		 * (device_current would run one, and device_conductance another);
-		 * the allowance is the same relative distance from the curve in V.
-		 */
-		double rser = t->series_resistance(pb->dev.p);
-		double vj = v - rser * i;
-		if (i > 0.0 && t->intrinsic_voltage != NULL) {
-			/*
-			 * Forward: the same check horizontally, |vj - Vj(I)|, one
-			 * log instead of an exp and an expm1; Vj is well conditioned
-			 * for I > 0 (I dVj/dI < nVt for a junction).
-			 */
-			double vd = t->intrinsic_voltage(pb->dev.p, i);
-			return fabs(vj - vd) <=
-			       rtol * (fabs(v) + fabs(rser * i) + fabs(vd)) + 1e-300;
-		}
-		double ij = t->intrinsic_current(pb->dev.p, vj);
-		double gj = fabs(t->intrinsic_conductance(pb->dev.p, vj));
-		double allow = rtol * (fabs(i) + (isfinite(gj)
-		                                      ? gj * (fabs(v) + fabs(rser * i))
-		                                      : 0.0)) +
-		               1e-300;
-		if (!(fabs(ij - i) <= allow))
-			return false;
-	} else if (t->current != NULL) {
-		double id = device_current(&pb->dev, v);
-		double g = fabs(device_conductance(&pb->dev, v));
-		double allow = rtol * (fabs(i) + (isfinite(g) ? g * fabs(v) : 0.0)) +
-		               1e-300;
-		if (!(fabs(id - i) <= allow))
-			return false;
-	} else {
-		double vd;
-		if (device_voltage(&pb->dev, i, &vd) != 0)
-			return false;
-		if (!(fabs(vd - v) <= rtol * fabs(v) + 1e-300))
-			return false;
-	}
-	return true;
+	double rtol = tol > VERIFY_FLOOR ? tol : VERIFY_FLOOR;
+	if (pb->dev.type->current != NULL)
+		return verify_junction(pb, v, i, rtol);
+	return verify_current(pb, v, i, rtol);
 }
 
 /*
@@ -239,7 +334,70 @@ static int solve_refine_current(const struct problem *pb,
 	return 0;
 }
 
-/* Scan for every crossing and refine each one with safeguarded Newton. */
+/* The junction residual and its Newton step, for the kernel. */
+static double solve_junction_eval(void *ctx, double x, double *step)
+{
+	const struct problem_junction *j = ctx;
+	double f = problem_junction_residual(j, x);
+	if (step != NULL)
+		*step = f / problem_junction_slope(j, x);
+	return f;
+}
+
+/*
+ * Refine a sign-change bracket of the junction residual (the every-root
+ * scan's) into PT: ends that overflow are pulled in by halving on the
+ * sign alone, Brent-Dekker then narrows the bracket to TOL (it needs no
+ * slope and cannot stall where the far end is an exponential wall, where
+ * Newton would creep down by nVt a step), and one Newton step from its
+ * best point polishes it when it stays inside.  Returns 0, or -1.
+ */
+static int solve_refine_junction(const struct problem_junction *j,
+                                 const struct bracket *b, double tol,
+                                 struct op_point *pt)
+{
+	struct kernel_fn fn = { solve_junction_eval, (void *)j };
+	double lo = b->lo, hi = b->hi;
+	double flo = solve_junction_eval((void *)j, lo, NULL);
+	double fhi = solve_junction_eval((void *)j, hi, NULL);
+	unsigned steps = 0;
+	while (!(isfinite(flo) && isfinite(fhi)) && steps < KERNEL_MAX_ITER) {
+		double m = 0.5 * (lo + hi), fm = solve_junction_eval((void *)j, m, NULL);
+		steps++;
+		if (isnan(fm) || !(m > lo && m < hi))
+			return -1;
+		if ((fm < 0.0) == (flo < 0.0)) {
+			lo = m;
+			flo = fm;
+		} else {
+			hi = m;
+			fhi = fm;
+		}
+	}
+	double x;
+	if (flo == 0.0) {
+		x = lo;
+	} else if (fhi == 0.0) {
+		x = hi;
+	} else {
+		struct kernel_result r =
+			kernel_brent_solve(&fn, lo, flo, hi, fhi, tol, 0.0);
+		if (!r.ok && !(r.hi - r.lo <= 1e-3 * fabs(r.x)))
+			return -1;
+		steps += r.iters;
+		x = r.x;
+		double step;
+		double f = solve_junction_eval((void *)j, x, &step);
+		double xn = x - step;
+		if (f != 0.0 && isfinite(xn) && xn >= r.lo && xn <= r.hi)
+			x = xn;
+	}
+	problem_junction_point(j, x, &pt->v, &pt->i);
+	pt->steps = steps;
+	return 0;
+}
+
+/* Scan for every crossing and refine each one. */
 static enum solve_status solve_scan(const struct problem *pb,
                                     const struct solve_options *o,
                                     struct solve_result *out,
@@ -247,46 +405,24 @@ static enum solve_status solve_scan(const struct problem *pb,
 {
 	size_t nb = stepper_scan(pb, br, SOLVE_MAX_POINTS);
 	*nbr = nb;
-	struct stepper *st = stepper_create();
-	if (st == NULL) {
-		snprintf(out->message, sizeof out->message, "out of memory");
-		return out->status = SOLVE_FAILED;
-	}
-	struct solve_options no = *o;
-	no.method = METHOD_NEWTON;
-	no.start_v = NAN;
-	if (no.max_steps < 200)
-		no.max_steps = 200;
-	const struct model_type *t = pb->dev.type;
-	double rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
+	struct problem_junction j;
+	if (pb->dev.type->current != NULL)
+		problem_junction_init(&j, pb);
 	for (size_t k = 0; k < nb; k++) {
 		struct op_point pt = { .method = METHOD_NEWTON, .tangent = br[k].tangent };
 		if (br[k].in_current) {
 			if (solve_refine_current(pb, &br[k], o->tol, &pt) != 0)
 				continue;
 		} else if (br[k].tangent || br[k].lo == br[k].hi) {
-			double x = br[k].lo;
-			double ij = t->intrinsic_current ? t->intrinsic_current(pb->dev.p, x)
-			                                 : device_current(&pb->dev, x);
-			pt.i = ij;
-			pt.v = x + rser * ij;
-		} else {
-			if (stepper_init_bracket(st, pb, &no, &br[k]) != 0)
-				continue;
-			enum step_status ss = stepper_run(st);
-			if (ss != STEP_CONVERGED)
-				continue;
-			const struct trace_row *last = stepper_last(st);
-			pt.v = last->v;
-			pt.i = last->i;
-			pt.steps = (unsigned)last->k;
+			problem_junction_point(&j, br[k].lo, &pt.v, &pt.i);
+		} else if (solve_refine_junction(&j, &br[k], o->tol, &pt) != 0) {
+			continue;
 		}
 		solve_finish_point(pb, &pt);
 		if (!pt.tangent && !solve_verify(pb, pt.v, pt.i, o->tol))
 			continue;
 		out->pts[out->n++] = pt;
 	}
-	stepper_destroy(st);
 	qsort(out->pts, out->n, sizeof out->pts[0], solve_cmp);
 	if (out->n == 0) {
 		double lo, hi;

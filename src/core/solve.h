@@ -89,9 +89,15 @@ int solve_fast(const struct problem *pb, double tol, struct op_point *pt);
 void solve_finish_point(const struct problem *pb, struct op_point *pt);
 
 /*
- * Check that (V, I) is an operating point of PB to relative tolerance TOL:
- * finite, on the device curve and on the load line (for a device that
- * heats itself, the curve at the point's own junction temperature).
+ * Check that (V, I) is an operating point of PB to relative tolerance TOL
+ * (at least a few ulp): that an intersection of the device curve and the
+ * load line lies within TOL |V| of V and TOL |I| of I (for a device that
+ * heats itself, the curve at the point's own junction temperature).  The
+ * distance is measured, not inferred from a residual: a small interval
+ * around the point across which the residual changes sign holds the
+ * intersection, and the currents and voltages both curves allow across
+ * it bound how far it is (where that interval is below what rounding
+ * resolves, a residual at the rounding level passes).
  */
 bool solve_verify(const struct problem *pb, double v, double i, double tol);
 

@@ -14,6 +14,7 @@
 struct brent_state {
 	struct problem_junction j;
 	struct kernel_brent kb;
+	enum kernel_status kst;
 	double last_dx;
 };
 
@@ -40,7 +41,10 @@ static int brent_set(void *state, const struct stepper_env *env,
 		*st = STEP_OUT_OF_DOMAIN;
 		return -1;
 	}
-	kernel_brent_set(&bs->kb, lo, flo, hi, fhi, env->o.tol, 0.0);
+	/* The kernel narrows to rounding; the test below decides when the
+	 * bracket is tight enough. */
+	kernel_brent_set(&bs->kb, lo, flo, hi, fhi, 0.0, 0.0);
+	bs->kst = KERNEL_CONTINUE;
 	bs->last_dx = NAN;
 	stepper_junction_row(&bs->j, bs->kb.b, r0);
 	r0->on = ON_START;
@@ -58,6 +62,7 @@ static enum step_status brent_iterate(void *state,
 	(void)env;
 	double bold = bs->kb.b;
 	enum kernel_status ks = kernel_brent_iterate(&bs->kb, &fn);
+	bs->kst = ks;
 	if (ks == KERNEL_NONFINITE)
 		return STEP_NON_FINITE;
 	*row = *p;
@@ -73,23 +78,36 @@ static enum step_status brent_iterate(void *state,
 	return STEP_CONTINUE;
 }
 
-/* Converged on a zero residual or a bracket [b, c] within the tolerance
- * (relative, plus rounding). */
+/*
+ * Converged on a zero residual, a bracket [b, c] that holds the
+ * intersection within the tolerance in both V and I, or a bracket that
+ * rounding will not let narrow further.  The currents across the bracket
+ * follow from the residuals already known: on the device Ij = (F - x +
+ * voc) / rt, on the line (voc - x) / rt; the intersection's current lies
+ * between both pairs, so the narrower range bounds its distance.
+ */
 static enum step_status brent_test(const void *state,
                                    const struct stepper_env *env,
                                    const struct trace_row *rows, size_t n,
                                    double tol)
 {
 	const struct brent_state *bs = state;
-	(void)env;
 	(void)rows;
 	if (n < 2)
 		return STEP_CONTINUE;
 	const struct kernel_brent *kb = &bs->kb;
-	if (kb->fb == 0.0 ||
-	    fabs(kb->c - kb->b) <= (DBL_EPSILON + tol) * fabs(kb->b) + 2e-300)
+	if (kb->fb == 0.0 || bs->kst == KERNEL_DONE)
 		return STEP_CONVERGED;
-	return STEP_CONTINUE;
+	double w = fabs(kb->c - kb->b);
+	if (!(w <= (DBL_EPSILON + tol) * fabs(kb->b) + 2e-300))
+		return STEP_CONTINUE;
+	double rt = bs->j.rt;
+	if (isinf(env->pb.src.r) || !(rt > 0.0))
+		return STEP_CONVERGED;
+	double ib = (kb->fb - kb->b + env->pb.src.voc) / rt;
+	double di = fmin(fabs((kb->fc - kb->fb) - (kb->c - kb->b)), w) / rt;
+	return di <= 0.5 * tol * fabs(ib) + 1e-300 ? STEP_CONVERGED
+	                                           : STEP_CONTINUE;
 }
 
 const struct stepper_type stepper_type_brent = {

@@ -169,9 +169,19 @@ static enum step_status projection_test(const void *state,
 	if (n < 2)
 		return STEP_CONTINUE;
 	const struct trace_row *row = &rows[n - 1];
+	/*
+	 * A contraction with rate q leaves an error of about q / (1 - q)
+	 * times its last move (the a-posteriori bound; Burden & Faires,
+	 * Numerical Analysis, 9th ed., 2010, thm 2.3 corollary): the moves
+	 * must be that much below the tolerance, so that the point stopped at
+	 * is within it of the intersection, not merely moving by less.
+	 */
+	double rate = fabs(row->ratio), excess = 1.0;
+	if (rate > 0.5 && rate < 1.0)
+		excess = rate / (1.0 - rate);
 	if (!isnan(ps->last_dv) && !isnan(ps->last_di) &&
-	    stepper_small(ps->last_dv, row->v, tol, STEPPER_V_FLOOR) &&
-	    stepper_small(ps->last_di, row->i, tol, STEPPER_I_FLOOR))
+	    stepper_small(excess * ps->last_dv, row->v, tol, STEPPER_V_FLOOR) &&
+	    stepper_small(excess * ps->last_di, row->i, tol, STEPPER_I_FLOOR))
 		return STEP_CONVERGED;
 	if (n >= 5) {
 		const struct trace_row *q = &rows[n - 5];

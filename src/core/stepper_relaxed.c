@@ -106,7 +106,12 @@ static enum step_status relaxed_test(const void *state,
 	if (n < 2)
 		return STEP_CONTINUE;
 	const struct trace_row *row = &rows[n - 1];
-	if (stepper_small(row->step, row->i, tol, STEPPER_I_FLOOR))
+	/* The move times q / (1 - q) bounds the error of a contraction with
+	 * rate q (as in the projection test). */
+	double q = fabs(row->ratio), excess = 1.0;
+	if (q > 0.5 && q < 1.0)
+		excess = q / (1.0 - q);
+	if (stepper_small(excess * row->step, row->i, tol, STEPPER_I_FLOOR))
 		return STEP_CONVERGED;
 	unsigned grow, stall;
 	stepper_tail_counts(rows, n, &grow, &stall);

@@ -62,11 +62,17 @@ static double therm_lnr(const double *p, bool sh, double t, double *dlnr)
 	return l;
 }
 
-/* R(T) and dR/dT. */
+/* R(T) and dR/dT (the beta form without the logarithm of R0). */
 static double therm_r(const double *p, bool sh, double t, double *dr)
 {
-	double dl;
-	double r = exp(therm_lnr(p, sh, t, &dl));
+	double dl, r;
+	if (!sh) {
+		double b = p[THERM_B];
+		r = p[THERM_R0] * exp(b * (1.0 / t - 1.0 / (p[THERM_T0] + ZERO_C)));
+		dl = -b / (t * t);
+	} else {
+		r = exp(therm_lnr(p, sh, t, &dl));
+	}
 	*dr = r * dl;
 	return r;
 }
@@ -209,6 +215,41 @@ static void therm_range(const double *p, bool sh, double *lo, double *hi)
 	*lo = -*hi;
 }
 
+/*
+ * The point at signed temperature rise T (kelvin above ambient, negative
+ * for negative currents): the heat balance I^2 R = delta |T| gives
+ * I = sqrt(delta |T| / R) and V = I R = sqrt(delta |T| R) directly.
+ */
+static int therm_point_at(const double *p, bool sh, double t, double *v,
+                          double *i)
+{
+	double dr, r = therm_r(p, sh, p[THERM_TAMB] + ZERO_C + fabs(t), &dr);
+	double h = p[THERM_DELTA] * fabs(t);
+	double iv = sqrt(h / r), vv = sqrt(h * r);
+	*i = t < 0.0 ? -iv : iv;
+	*v = t < 0.0 ? -vv : vv;
+	return isfinite(*v) && isfinite(*i) ? 0 : -1;
+}
+
+/* The range of the rise: the rated maximum both ways. */
+static void therm_param_range(const double *p, double *t0, double *t1)
+{
+	*t1 = p[THERM_TMAX] - p[THERM_TAMB];
+	*t0 = -*t1;
+}
+
+/* Where V rises with the rise: up to the voltage peak both ways. */
+static void therm_param_rising(const double *p, bool sh, double *t0,
+                               double *t1)
+{
+	double tk, i, v;
+	if (therm_peak(p, sh, &tk, &i, &v) == 0)
+		*t1 = tk - (p[THERM_TAMB] + ZERO_C);
+	else
+		*t1 = p[THERM_TMAX] - p[THERM_TAMB];
+	*t0 = -*t1;
+}
+
 /* Append a labelled value to OUT. */
 static void therm_put(struct model_extra *out, const char *key,
                       const char *label, enum qty_kind kind, double value)
@@ -309,6 +350,15 @@ static int beta_secondary(const double *p, const struct source *src, double v,
 	return therm_secondary(p, false, v, i, out);
 }
 
+static int beta_point_at(const double *p, double t, double *v, double *i)
+{
+	return therm_point_at(p, false, t, v, i);
+}
+static void beta_param_rising(const double *p, double *t0, double *t1)
+{
+	therm_param_rising(p, false, t0, t1);
+}
+
 /* The Steinhart-Hart form's entry points. */
 static int sh_voltage(const double *p, double i, double *v)
 {
@@ -335,6 +385,15 @@ static int sh_secondary(const double *p, const struct source *src, double v,
 {
 	(void)src;
 	return therm_secondary(p, true, v, i, out);
+}
+
+static int sh_point_at(const double *p, double t, double *v, double *i)
+{
+	return therm_point_at(p, true, t, v, i);
+}
+static void sh_param_rising(const double *p, double *t0, double *t1)
+{
+	therm_param_rising(p, true, t0, t1);
 }
 
 /* R(T) of either form at T_C degrees Celsius (see models.h). */
@@ -415,6 +474,9 @@ const struct model_type model_thermistor = {
 	.validate = beta_validate,
 	.secondary = beta_secondary,
 	.current_range = beta_current_range,
+	.point_at = beta_point_at,
+	.param_range = therm_param_range,
+	.param_rising = beta_param_rising,
 };
 
 const struct model_type model_thermistor_sh = {
@@ -431,4 +493,7 @@ const struct model_type model_thermistor_sh = {
 	.validate = sh_validate,
 	.secondary = sh_secondary,
 	.current_range = sh_current_range,
+	.point_at = sh_point_at,
+	.param_range = therm_param_range,
+	.param_rising = sh_param_rising,
 };

@@ -195,6 +195,54 @@ int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
 	return found;
 }
 
+/* d^2 I / dV^2 at V given the constants K. */
+static double tunnel_curvature_k(const double *p, const double *k, double v)
+{
+	double ip = p[TUNNEL_IP], vp = p[TUNNEL_VP];
+	double it2 = ip / (vp * vp) * exp(1.0 - v / vp) * (v / vp - 2.0);
+	double ix2 = k[0] * k[1] * k[1] * exp(k[1] * (v - p[TUNNEL_VV]));
+	double id2 = p[TUNNEL_IS] / (k[2] * k[2]) * exp(v / k[2]);
+	return it2 + ix2 + id2;
+}
+
+/* The curvature for the kernel. */
+static double tunnel_curvature_eval(void *ctx, double v, double *step)
+{
+	const struct tunnel_ctx *c = ctx;
+	if (step != NULL)
+		*step = NAN;
+	return tunnel_curvature_k(c->p, c->k, v);
+}
+
+/*
+ * The one inflection (model_type.inflections).  I'' = It'' + Ix'' + Id'',
+ * where It'' = (Ip/Vp^2) e^(1 - V/Vp) (V/Vp - 2) rises for V < 3 Vp (its
+ * derivative carries 3 - V/Vp) and is >= 0 from 2 Vp, and the excess and
+ * diffusion terms are positive and rising everywhere: so I'' changes
+ * sign exactly once, below 2 Vp, from - to +, and the conductance falls
+ * before it and rises after.
+ */
+static size_t tunnel_inflections(const double *p, double *x, size_t max)
+{
+	struct tunnel_ctx c = { .p = p };
+	if (max == 0 || tunnel_prepare(p, c.k) != 0)
+		return 0;
+	double vp = p[TUNNEL_VP];
+	double b = 2.0 * vp, fb = tunnel_curvature_k(p, c.k, b);
+	double a = 0.0, fa = tunnel_curvature_k(p, c.k, a);
+	for (int k = 0; k < 60 && !(fa < 0.0); k++) {
+		b = a;
+		fb = fa;
+		a -= vp;
+		fa = tunnel_curvature_k(p, c.k, a);
+	}
+	if (!(fa < 0.0) || !(fb >= 0.0))
+		return 0;
+	struct kernel_fn fn = { tunnel_curvature_eval, &c };
+	x[0] = kernel_brent_solve(&fn, a, fa, b, fb, 1e-15, 0.0).x;
+	return 1;
+}
+
 /* Peak below valley in both voltage and current, and a reachable valley. */
 static int tunnel_validate(const double *p, char *err, size_t errlen)
 {
@@ -263,4 +311,5 @@ const struct model_type model_tunnel = {
 	.prepare = tunnel_prepare,
 	.current_k = tunnel_current_k,
 	.conductance_k = tunnel_conductance_k,
+	.inflections = tunnel_inflections,
 };
