@@ -586,6 +586,15 @@ static void qty_copy_out(char *buf, size_t n, const char *src)
 	buf[len] = '\0';
 }
 
+/* A nonzero digit before the exponent (see quantity.h). */
+bool qty_text_nonzero(const char *text)
+{
+	for (const char *p = text; *p != '\0' && *p != 'e' && *p != 'E'; p++)
+		if (*p >= '1' && *p <= '9')
+			return true;
+	return false;
+}
+
 /* Format VALUE in engineering notation with the unit of KIND. */
 char *qty_format(char *buf, size_t n, double value, enum qty_kind kind,
                  int sig, int ascii)

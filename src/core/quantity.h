@@ -8,6 +8,7 @@
 #ifndef BIASLINE_QUANTITY_H
 #define BIASLINE_QUANTITY_H
 
+#include <stdbool.h>
 #include <stddef.h>
 
 /* What a number stands for; decides which unit symbols are accepted. */
@@ -68,6 +69,13 @@ enum qty_status {
  */
 enum qty_status qty_parse(const char *text, enum qty_kind kind, double *out,
                           char *err, size_t errlen);
+
+/*
+ * True when the number in TEXT has a digit other than 0 before its
+ * exponent: a nonzero value was written, so a 0 read from it is an
+ * underflow ("1e-400"), not a zero.
+ */
+bool qty_text_nonzero(const char *text);
 
 /* The canonical unit symbol of KIND ("V", "A", "Ω", ...; "" for a number). */
 const char *qty_unit(enum qty_kind kind);

@@ -183,6 +183,12 @@ int section_parse_qty(struct load_ctx *c, const struct ynode *v,
 		            expected);
 		return -1;
 	}
+	if (x == 0.0 && qty_text_nonzero(v->text)) {
+		ytree_error(c->err, c->name, v, path,
+		            "found %s, which is too small for a number to hold (it "
+		            "reads as 0); write 0 for zero", found);
+		return -1;
+	}
 	bool below = min_open ? !(x > min) : !(x >= min);
 	bool above = max_open ? !(x < max) : !(x <= max);
 	if (below || above) {

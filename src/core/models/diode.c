@@ -28,6 +28,7 @@
  * so Is must be stated at a reference temperature for the law above to
  * carry it there; the validator asks for one.
  */
+#include <float.h>
 #include <math.h>
 #include <stdio.h>
 
@@ -187,7 +188,13 @@ static const struct model_param diode_params[DIODE_NPARAMS] = {
 	                     "silicon diodes, common practice)"),
 };
 
-/* Self-heating needs Is at a stated temperature to carry it to Tj. */
+/*
+ * Self-heating needs Is at a stated temperature to carry it to Tj.  And
+ * what the solvers will use must be a number a double holds: Is at the
+ * junction temperature (carried from a reference temperature it may
+ * overflow, or underflow to 0 or to a subnormal with no precision left)
+ * and n Vt.
+ */
 static int diode_validate(const double *p, char *err, size_t errlen)
 {
 	if (p[DIODE_THETA] > 0.0 && !(p[DIODE_TREF] > -ZERO_CELSIUS)) {
@@ -197,8 +204,29 @@ static int diode_validate(const double *p, char *err, size_t errlen)
 		         "saturation_current was stated at (say 25 degC)");
 		return -1;
 	}
-	return model_thermal_check(p, DIODE_THETA, DIODE_TAMB, DIODE_TJMAX, err,
-	                           errlen);
+	if (model_thermal_check(p, DIODE_THETA, DIODE_TAMB, DIODE_TJMAX, err,
+	                        errlen))
+		return -1;
+	double is = diode_is(p), nvt = diode_nvt(p);
+	if (!(nvt > 0.0) || !isfinite(nvt)) {
+		snprintf(err, errlen, "ideality: %.4g times kT/q at %.4g degC is "
+		         "not a usable voltage", p[DIODE_N], p[DIODE_TEMP]);
+		return -1;
+	}
+	if (isfinite(is) && is >= DBL_MIN)
+		return 0;
+	if (p[DIODE_TREF] > -ZERO_CELSIUS)
+		snprintf(err, errlen,
+		         "saturation_current: %.4g A at reference_temperature %.6g "
+		         "degC becomes %.4g A at temperature %.6g degC, %s; check "
+		         "reference_temperature, bandgap and saturation_exponent",
+		         p[DIODE_IS], p[DIODE_TREF], is, p[DIODE_TEMP],
+		         isfinite(is) ? "too small to compute with (it underflows)"
+		                      : "beyond the range of a number (it overflows)");
+	else
+		snprintf(err, errlen, "saturation_current: %.4g A is too small to "
+		         "compute with (below %.3g A)", is, DBL_MIN);
+	return -1;
 }
 
 const struct model_type model_diode = {
