@@ -11,6 +11,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "cli_thermal.h"
+#include "cli_progress.h"
 #include "commands.h"
 #include "csv.h"
 #include "core/safety.h"
@@ -55,7 +56,9 @@ static void sweep_usage(FILE *out)
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
 	        "Steps without an operating point are reported and are no "
-	        "failure.\n",
+	        "failure.\n"
+	        "A sweep over a second shows its progress on standard error when\n"
+	        "that is a terminal; Ctrl-C stops it.\n",
 	        SWEEP_MAX_POINTS);
 	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
 	                                        EXIT_DATA, EXIT_NO_INPUT,
@@ -253,9 +256,14 @@ int cmd_sweep(int argc, char **argv)
 		return EXIT_USAGE;
 	}
 	struct sweep_result res;
-	if (sweep_run(&pb, &se.solver, &sp, &res) != 0) {
+	struct cli_progress pr;
+	cli_progress_begin(&pr, "biasline sweep");
+	int rc = sweep_run_watched(&pb, &se.solver, &sp, &res, &pr.core);
+	int sig = cli_progress_end(&pr);
+	if (rc != 0) {
 		fprintf(stderr, "biasline sweep: %s\n", res.message);
 		session_fini(&se);
+		cli_progress_reraise(sig);
 		return EXIT_USAGE;
 	}
 	const char *key = paramref_key(&pb, &sp.param);

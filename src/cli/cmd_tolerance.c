@@ -12,6 +12,7 @@
 #include "biasline_version.h"
 #include "cli_analysis.h"
 #include "cli_plot.h"
+#include "cli_progress.h"
 #include "commands.h"
 #include "csv.h"
 #include "core/safety.h"
@@ -53,6 +54,8 @@ static void tolerance_usage(FILE *out)
 	        "  -h, --help         show this help and exit\n"
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
+	        "A run over a second shows its progress on standard error when\n"
+	        "that is a terminal; Ctrl-C stops it.\n"
 	        "A session without a tolerances: section is bad data (65); no\n"
 	        "operating point at the nominal values is exit 3.\n",
 	        TOL_MAX_TRIALS, TOL_MAX_BINS);
@@ -408,10 +411,17 @@ int cmd_tolerance(int argc, char **argv)
 		        "the worst case cannot run; give --trials\n", a.file,
 		        TOL_MAX_CORNER_ITEMS);
 		code = EXIT_USAGE;
-	} else if (c.nitems <= TOL_MAX_CORNER_ITEMS &&
-	           tol_worst_case(&c, &w, err, sizeof err) != 0) {
-		fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
-		code = EXIT_NO_POINT;
+	} else if (c.nitems <= TOL_MAX_CORNER_ITEMS) {
+		struct cli_progress pr;
+		cli_progress_begin(&pr, "biasline tolerance: worst case");
+		int rc = tol_worst_case_watched(&c, &w, &pr.core, err, sizeof err);
+		int sig = cli_progress_end(&pr);
+		if (rc != 0) {
+			fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
+			session_fini(&se);
+			cli_progress_reraise(sig);
+			return EXIT_NO_POINT;
+		}
 	}
 	if (code != EXIT_OK_CODE) {
 		session_fini(&se);
@@ -420,12 +430,19 @@ int cmd_tolerance(int argc, char **argv)
 	struct tol_window win[2];
 	size_t nwin = session_target_windows(&se, win);
 	bool have_mc = a.trials > 0;
-	if (have_mc && tol_monte_carlo(&c, (size_t)a.trials, a.seed,
-	                               (size_t)a.bins, win, nwin, &mc, err,
-	                               sizeof err) != 0) {
-		fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
-		session_fini(&se);
-		return EXIT_NO_POINT;
+	if (have_mc) {
+		struct cli_progress pr;
+		cli_progress_begin(&pr, "biasline tolerance: Monte Carlo");
+		int rc = tol_monte_carlo_watched(&c, (size_t)a.trials, a.seed,
+		                                 (size_t)a.bins, win, nwin, &mc,
+		                                 &pr.core, err, sizeof err);
+		int sig = cli_progress_end(&pr);
+		if (rc != 0) {
+			fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
+			session_fini(&se);
+			cli_progress_reraise(sig);
+			return EXIT_NO_POINT;
+		}
 	}
 	const struct tol_worst *wp = c.nitems <= TOL_MAX_CORNER_ITEMS ? &w : NULL;
 	const struct tol_mc *mp = have_mc ? &mc : NULL;

@@ -165,6 +165,7 @@ struct sweep_count_ctx {
 	const struct solve_options *o;
 	const struct paramref *r;
 	size_t na;
+	const struct progress *pr;
 };
 
 /* -1 where the count is the one before the change, +1 where it is not. */
@@ -173,6 +174,8 @@ static double sweep_count_sign(void *ctx, double x, double *step)
 	const struct sweep_count_ctx *c = ctx;
 	if (step != NULL)
 		*step = NAN;
+	if (progress_stopped(c->pr))
+		return NAN; /* ends the bisection */
 	return sweep_count_at(c->pb, c->o, c->r, x) == c->na ? -1.0 : 1.0;
 }
 
@@ -180,9 +183,10 @@ static double sweep_count_sign(void *ctx, double x, double *step)
 static void sweep_locate(const struct problem *pb,
                          const struct solve_options *o,
                          const struct sweep_spec *sp, double a, size_t na,
-                         double b, struct sweep_fold *f)
+                         double b, struct sweep_fold *f,
+                         const struct progress *pr)
 {
-	struct sweep_count_ctx c = { pb, o, &sp->param, na };
+	struct sweep_count_ctx c = { pb, o, &sp->param, na, pr };
 	struct kernel_fn fn = { sweep_count_sign, &c };
 	struct kernel_result r = kernel_bisect_solve(
 		&fn, a, -1.0, b, sp->scale == SWEEP_LOG, SWEEP_FOLD_REL);
@@ -257,6 +261,14 @@ static int sweep_check(const struct problem *pb, const struct sweep_spec *sp,
 int sweep_run(const struct problem *pb, const struct solve_options *o,
               const struct sweep_spec *sp, struct sweep_result *out)
 {
+	return sweep_run_watched(pb, o, sp, out, NULL);
+}
+
+/* Run the sweep, watched. */
+int sweep_run_watched(const struct problem *pb, const struct solve_options *o,
+                      const struct sweep_spec *sp, struct sweep_result *out,
+                      const struct progress *pr)
+{
 	sweep_result_init(out);
 	if (sweep_check(pb, sp, out) != 0)
 		return -1;
@@ -266,6 +278,13 @@ int sweep_run(const struct problem *pb, const struct solve_options *o,
 	bool have_prev = false;
 	double prev_value = NAN;
 	for (size_t k = 0; k < sp->points; k++) {
+		if (progress_stopped(pr)) {
+			sweep_result_fini(out);
+			snprintf(out->message, sizeof out->message,
+			         "stopped after %zu of %zu points", k, sp->points);
+			return -1;
+		}
+		progress_item(pr, k, sp->points);
 		double x = sweep_value(sp, k);
 		struct problem q = *pb;
 		struct solve_result res;
@@ -277,7 +296,7 @@ int sweep_run(const struct problem *pb, const struct solve_options *o,
 		if (have_prev && n != nprev) {
 			struct sweep_fold f = { .step = k, .n_before = nprev,
 			                        .n_after = n };
-			sweep_locate(pb, o, sp, prev_value, nprev, x, &f);
+			sweep_locate(pb, o, sp, prev_value, nprev, x, &f, pr);
 			if (sweep_push_fold(out, &fcap, &f) != 0)
 				goto no_memory;
 		}

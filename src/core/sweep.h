@@ -19,6 +19,7 @@
 
 #include "paramref.h"
 #include "problem.h"
+#include "progress.h"
 #include "stepper.h"
 
 /* Most points a sweep may have. */
@@ -81,5 +82,14 @@ double sweep_value(const struct sweep_spec *sp, size_t k);
  */
 int sweep_run(const struct problem *pb, const struct solve_options *o,
               const struct sweep_spec *sp, struct sweep_result *out);
+
+/*
+ * sweep_run watched by PR (progress.h; may be NULL): the stop flag is
+ * read at every point and every step of a fold's bisection; a stop
+ * returns -1 with "stopped after ..." (OUT keeps nothing).
+ */
+int sweep_run_watched(const struct problem *pb, const struct solve_options *o,
+                      const struct sweep_spec *sp, struct sweep_result *out,
+                      const struct progress *pr);
 
 #endif

@@ -237,6 +237,8 @@ struct tol_run {
 	struct paramref refs[TOL_MAX_ITEMS];
 	struct network *scratch;
 	struct problem q;
+	const struct progress *pr;   /* the caller's stop flag, or NULL */
+	bool stopped;                /* it was set: every evaluation fails */
 };
 
 /* Start R over C; 0, or -1 when out of memory. */
@@ -246,6 +248,8 @@ static int tol_run_init(struct tol_run *r, const struct tol_case *c)
 	r->c = c;
 	r->q = c->pb;
 	r->scratch = NULL;
+	r->pr = NULL;
+	r->stopped = false;
 	for (size_t k = 0; k < c->nitems; k++) {
 		r->refs[k] = c->items[k].param;
 		parts |= r->refs[k].kind == PARAMREF_NETWORK;
@@ -271,6 +275,10 @@ static int tol_run_point(struct tol_run *r, const double *x, double v_near,
 {
 	const struct tol_case *c = r->c;
 	struct problem *q = &r->q;
+	if (r->stopped || progress_stopped(r->pr)) {
+		r->stopped = true;
+		return -1;
+	}
 	if (paramref_set_all(q, r->refs, x, c->nitems, r->scratch) != 0)
 		return -1;
 	const struct model_type *t = q->dev.type;
@@ -438,6 +446,14 @@ static void tol_refine(struct tol_run *run, double v_near, enum tol_output o,
 int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
                    size_t errlen)
 {
+	return tol_worst_case_watched(c, out, NULL, err, errlen);
+}
+
+/* The worst case, watched. */
+int tol_worst_case_watched(const struct tol_case *c, struct tol_worst *out,
+                           const struct progress *pr, char *err,
+                           size_t errlen)
+{
 	memset(out, 0, sizeof *out);
 	size_t n = c->nitems;
 	if (n > TOL_MAX_CORNER_ITEMS) {
@@ -451,12 +467,16 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 		snprintf(err, errlen, "out of memory");
 		return -1;
 	}
+	run.pr = pr;
 	double x0[TOL_MAX_ITEMS] = { 0 };
 	for (size_t k = 0; k < n; k++)
 		x0[k] = paramref_get(&c->pb, &c->items[k].param);
 	if (tol_run_eval(&run, x0, NAN, out->nominal) != 0) {
 		tol_run_fini(&run);
-		snprintf(err, errlen, "no operating point at the nominal values");
+		if (run.stopped)
+			snprintf(err, errlen, "stopped before the nominal point");
+		else
+			snprintf(err, errlen, "no operating point at the nominal values");
 		return -1;
 	}
 	double v_nom = out->nominal[TOL_VOLTAGE];
@@ -470,7 +490,10 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 		for (size_t k = 0; k < n; k++)
 			x[k] = (m >> k) & 1 ? c->items[k].hi : c->items[k].lo;
 		out->corners++;
+		progress_item(pr, m, ncorners);
 		if (tol_run_eval(&run, x, v_nom, y) != 0) {
+			if (run.stopped)
+				break;
 			out->failed++;
 			continue;
 		}
@@ -484,6 +507,12 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 				memcpy(out->max[o].params, x, n * sizeof x[0]);
 			}
 		}
+	}
+	if (run.stopped) {
+		tol_run_fini(&run);
+		snprintf(err, errlen, "stopped after %zu of %zu corners", out->corners,
+		         ncorners);
+		return -1;
 	}
 	if (out->failed == out->corners) {
 		tol_run_fini(&run);
@@ -501,6 +530,10 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 		tol_refine(&run, v_nom, (enum tol_output)o, -1.0, &out->min[o]);
 	}
 	tol_run_fini(&run);
+	if (run.stopped) {
+		snprintf(err, errlen, "stopped while searching inside the box");
+		return -1;
+	}
 	return 0;
 }
 
@@ -836,6 +869,17 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
                     size_t nbins, const struct tol_window *w, size_t nw,
                     struct tol_mc *out, char *err, size_t errlen)
 {
+	return tol_monte_carlo_watched(c, trials, seed, nbins, w, nw, out, NULL,
+	                               err, errlen);
+}
+
+/* Monte Carlo, watched. */
+int tol_monte_carlo_watched(const struct tol_case *c, size_t trials,
+                            uint64_t seed, size_t nbins,
+                            const struct tol_window *w, size_t nw,
+                            struct tol_mc *out, const struct progress *pr,
+                            char *err, size_t errlen)
+{
 	memset(out, 0, sizeof *out);
 	if (trials < 1 || trials > TOL_MAX_TRIALS) {
 		snprintf(err, errlen, "trials must be 1 to %d", TOL_MAX_TRIALS);
@@ -851,6 +895,7 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 		snprintf(err, errlen, "out of memory");
 		return -1;
 	}
+	run.pr = pr;
 	double x0[TOL_MAX_ITEMS] = { 0 }, y0[TOL_NOUT];
 	for (size_t k = 0; k < n; k++)
 		x0[k] = paramref_get(&c->pb, &c->items[k].param);
@@ -889,7 +934,15 @@ int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
 		double x[TOL_MAX_ITEMS], y[TOL_NOUT];
 		for (size_t k = 0; k < n; k++)
 			x[k] = tol_draw(c, &c->items[k], &rng);
+		progress_item(pr, t, trials);
 		if (tol_run_eval(&run, x, y0[TOL_VOLTAGE], y) != 0) {
+			if (run.stopped) {
+				tol_run_fini(&run);
+				free(buf);
+				snprintf(err, errlen, "stopped after %zu of %zu trials", t,
+				         trials);
+				return -1;
+			}
 			out->failed++;
 			continue;
 		}

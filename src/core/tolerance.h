@@ -39,6 +39,7 @@
 #include <stdint.h>
 
 #include "paramref.h"
+#include "progress.h"
 #include "problem.h"
 #include "source.h"
 #include "stepper.h"
@@ -187,6 +188,14 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
                    size_t errlen);
 
 /*
+ * tol_worst_case watched by PR (progress.h; may be NULL): the stop flag
+ * is read at every evaluation and a stop returns -1 with "stopped ...".
+ */
+int tol_worst_case_watched(const struct tol_case *c, struct tol_worst *out,
+                           const struct progress *pr, char *err,
+                           size_t errlen);
+
+/*
  * TRIALS Monte Carlo trials of C from SEED into *OUT with NBINS histogram
  * bins (1 ... TOL_MAX_BINS) and NW spec windows W (NW may be 0): a trial
  * passes when it is inside every window; a trial with no operating point
@@ -197,6 +206,16 @@ int tol_worst_case(const struct tol_case *c, struct tol_worst *out, char *err,
 int tol_monte_carlo(const struct tol_case *c, size_t trials, uint64_t seed,
                     size_t nbins, const struct tol_window *w, size_t nw,
                     struct tol_mc *out, char *err, size_t errlen);
+
+/*
+ * tol_monte_carlo watched by PR (progress.h; may be NULL): the stop flag
+ * is read at every trial and a stop returns -1 with "stopped after ...".
+ */
+int tol_monte_carlo_watched(const struct tol_case *c, size_t trials,
+                            uint64_t seed, size_t nbins,
+                            const struct tol_window *w, size_t nw,
+                            struct tol_mc *out, const struct progress *pr,
+                            char *err, size_t errlen);
 
 /*
  * The safety cautions (safety.h flags) over the tolerance box: the largest
