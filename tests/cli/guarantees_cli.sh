@@ -1,0 +1,78 @@
+#!/bin/sh
+# What loading and long commands promise: a table of files whose derived
+# quantities a double cannot hold (or whose numbers underflow on
+# reading), each refused as bad data (65) naming its key; and a long
+# Monte Carlo run or sweep that SIGTERM or SIGINT stops at once, saying
+# how far it got, with the signal's exit status.
+# Usage: guarantees_cli.sh BIASLINE
+set -u
+bl=$1
+. "$(dirname "$0")/tap.sh"
+
+# name|key the error must name|device lines (source: 5 V through 1 k)
+while IFS='|' read -r name key dev; do
+	[ -n "$name" ] || continue
+	printf 'format_version: 1\nsource:\n  vs: 5\n  rs: 1k\ndevice:\n' \
+		>"$tmp/$name.yaml"
+	printf '%s\n' "$dev" | tr ';' '\n' | sed 's/^/  /' >>"$tmp/$name.yaml"
+	expect_exit 65 "$bl" check "$tmp/$name.yaml"
+	expect_text "$tmp/err" "$key"
+done <<'TABLE'
+is-overflows|saturation_current|model: diode;saturation_current: 1e-14;ideality: 1;reference_temperature: -263
+is-underflows|saturation_current|model: diode;saturation_current: 1e-14;ideality: 1;reference_temperature: 25;temperature: -270
+is-subnormal|saturation_current|model: diode;saturation_current: 1e-310;ideality: 1
+is-underflows-reading|saturation_current|model: diode;saturation_current: 1e-400;ideality: 1
+rs-underflows-reading|series_resistance|model: diode;saturation_current: 1e-14;ideality: 1;series_resistance: 1e-400
+tunnel-no-constants|valley_current|model: tunnel;valley_current: 0.9m
+TABLE
+
+# rs: 1e-400 in the source section is refused too, not read as 0.
+printf 'format_version: 1\nsource:\n  vs: 5\n  rs: 1e-400\ndevice:\n  model: diode\n  saturation_current: 1e-14\n  ideality: 1\n' >"$tmp/src.yaml"
+expect_exit 65 "$bl" check "$tmp/src.yaml"
+expect_text "$tmp/err" "rs"
+expect_text "$tmp/err" "too small"
+
+# A self-heated thermistor's Monte Carlo run of 10^7 trials, stopped.
+cat >"$tmp/therm.yaml" <<'YAML'
+format_version: 1
+source:
+  vs: 40 V
+  rs: 2k
+device:
+  model: thermistor
+  resistance_at_reference: 10k
+  beta: 3977
+  dissipation_constant: 1.5 mW/K
+tolerances:
+  rs: 5%
+  vs: 10%
+  beta: 2%
+YAML
+# Stop SIG after 1.5 s; the command must end within 0.5 s with the
+# signal's status (128 + its number) and say how far it got.
+stop_check() {
+	sig=$1 want=$2; shift 2
+	n=$((n + 1))
+	"$@" >"$tmp/out" 2>"$tmp/err" &
+	pid=$!
+	sleep 1.5
+	kill -"$sig" "$pid"
+	t0=$(date +%s%N)
+	wait "$pid"
+	got=$?
+	t1=$(date +%s%N)
+	ms=$(( (t1 - t0) / 1000000 ))
+	if [ "$got" -eq "$want" ] && [ "$ms" -le 500 ]; then
+		echo "ok $n - SIG$sig stops '$*' in $ms ms with $got"
+	else
+		echo "not ok $n - SIG$sig: '$*' ended $got after $ms ms"
+		cat "$tmp/err"
+		fails=$((fails + 1))
+	fi
+}
+stop_check TERM 143 "$bl" tolerance --trials 10000000 "$tmp/therm.yaml"
+expect_text "$tmp/err" "stopped after"
+stop_check INT 130 "$bl" sweep --param beta --from 3000 --to 5000 --points 1000000 "$tmp/therm.yaml"
+expect_text "$tmp/err" "stopped after"
+
+tap_finish
