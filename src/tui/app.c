@@ -225,6 +225,7 @@ static void app_shown_problem(struct app *a)
 void app_resolve(struct app *a)
 {
 	app_touch(a);
+	a->changes++;
 	a->running = false;
 	a->res.n = 0;
 	a->res.status = SOLVE_BAD_INPUT;
@@ -272,6 +273,19 @@ void app_thermal_view(struct app *a, bool open)
 		app_message(a, false, "back to the load line");
 }
 
+/* A new undo entry for KEY (the oldest is forgotten when full). */
+static struct app_change *app_undo_push(struct app *a, const char *key)
+{
+	if (a->nundo == APP_UNDO) {
+		memmove(a->undo, a->undo + 1, (APP_UNDO - 1) * sizeof a->undo[0]);
+		a->nundo--;
+	}
+	struct app_change *c = &a->undo[a->nundo++];
+	memset(c, 0, sizeof *c);
+	snprintf(c->key, sizeof c->key, "%s", key);
+	return c;
+}
+
 /* Set KEY to VALUE, remembering the old value. */
 int app_param_set(struct app *a, const char *key, double value, char *err,
                   size_t errlen)
@@ -287,15 +301,47 @@ int app_param_set(struct app *a, const char *key, double value, char *err,
 	double temp = ti >= 0 ? a->s.device.p[ti] : NAN;
 	if (params_set(&a->s, &p, value, err, errlen) != 0)
 		return -1;
-	if (a->nundo == APP_UNDO) {
-		memmove(a->undo, a->undo + 1, (APP_UNDO - 1) * sizeof a->undo[0]);
-		a->nundo--;
-	}
-	struct app_change *c = &a->undo[a->nundo++];
-	snprintf(c->key, sizeof c->key, "%s", key);
+	struct app_change *c = app_undo_push(a, key);
 	c->old = old;
 	/* the temperature a self-heated device's ambient carried along */
 	c->temp_old = ti >= 0 && a->s.device.p[ti] != temp ? temp : NAN;
+	a->dirty = true;
+	app_resolve(a);
+	return 0;
+}
+
+/* True when KEY names a target, rating or tolerance. */
+bool app_key_is_analysis(const char *key)
+{
+	return strncmp(key, "target.", 7) == 0 ||
+	       strncmp(key, "ratings.", 8) == 0 ||
+	       strncmp(key, "tolerances.", 11) == 0;
+}
+
+/* Set KEY from typed TEXT, remembering the old value. */
+int app_text_set(struct app *a, const char *key, const char *text, char *err,
+                 size_t errlen)
+{
+	if (!app_key_is_analysis(key)) {
+		/* A value of a row: typed with its unit, kept as a number. */
+		struct param p;
+		if (params_find(&a->s, key, &p) != 0) {
+			snprintf(err, errlen, "%s: this session has no such value", key);
+			return -1;
+		}
+		double v;
+		if (qty_parse(text, p.unit, &v, err, errlen) != QTY_OK)
+			return -1;
+		return app_param_set(a, key, v, err, errlen);
+	}
+	struct session_analysis old = a->s.analysis;
+	if (session_set_text(&a->s, key, text, err, errlen) != SESSION_SET_OK)
+		return -1;
+	if (session_analysis_equal(&old, &a->s.analysis))
+		return 0;   /* nothing changed: nothing to undo or save */
+	struct app_change *c = app_undo_push(a, key);
+	c->analysis = true;
+	c->old_analysis = old;
 	a->dirty = true;
 	app_resolve(a);
 	return 0;
@@ -305,22 +351,32 @@ int app_param_set(struct app *a, const char *key, double value, char *err,
 int app_undo(struct app *a)
 {
 	while (a->nundo > 0) {
-		struct app_change c = a->undo[--a->nundo];
+		struct app_change *cp = &a->undo[--a->nundo];
+		if (cp->analysis) {
+			a->s.analysis = cp->old_analysis;
+			a->dirty = true;
+			app_resolve(a);
+			app_message(a, false, "undone: the change of %s", cp->key);
+			return 0;
+		}
+		char key[sizeof cp->key];
+		snprintf(key, sizeof key, "%s", cp->key);
+		double old = cp->old, temp_old = cp->temp_old;
 		struct param p;
 		char err[256];
 		/* A row the session no longer has (a model changed) is skipped. */
-		if (params_find(&a->s, c.key, &p) != 0 ||
-		    params_set(&a->s, &p, c.old, err, sizeof err) != 0)
+		if (params_find(&a->s, key, &p) != 0 ||
+		    params_set(&a->s, &p, old, err, sizeof err) != 0)
 			continue;
 		struct param t;
-		if (!isnan(c.temp_old) && params_find(&a->s, "temperature", &t) == 0)
-			params_set(&a->s, &t, c.temp_old, err, sizeof err);
+		if (!isnan(temp_old) && params_find(&a->s, "temperature", &t) == 0)
+			params_set(&a->s, &t, temp_old, err, sizeof err);
 		char buf[64];
 		params_format(&a->s, &p, !app_unicode(a), buf, sizeof buf);
 		a->dirty = true;
 		app_resolve(a);
 		struct action sel = { .kind = ACT_SELECT };
-		snprintf(sel.text, sizeof sel.text, "%s", c.key);
+		snprintf(sel.text, sizeof sel.text, "%s", key);
 		app_post(a, &sel);
 		app_message(a, false, "undone: %s = %s", p.label, buf);
 		return 0;

@@ -21,6 +21,7 @@
 #include "core/thermal_stepper.h"
 #include "render/render.h"
 #include "session/session.h"
+#include "session/session_set.h"
 #include "session/session_text.h"
 #include "tui/pane.h"
 #include "tui/params.h"
@@ -52,13 +53,17 @@ struct key_help {
 	const char *help;
 };
 
-/* One remembered change: KEY had OLD before it. */
+/* One remembered change: KEY had OLD before it (a value), or the
+ * session's target, ratings and tolerances were OLD_ANALYSIS (a change of
+ * one of them by its dotted key). */
 struct app_change {
-	char key[PARAMREF_KEY_MAX];
+	char key[SESSION_SET_KEY_MAX];
+	bool analysis;
 	double old;
 	/* a self-heated device's temperature, which follows its ambient
 	 * (params.c), had TEMP_OLD before the change: NaN when it did not move */
 	double temp_old;
+	struct session_analysis old_analysis;
 };
 
 /* What the panes share. */
@@ -89,6 +94,7 @@ struct app {
 	bool thermal;
 	bool running;           /* g: the loop steps until stopped or a key */
 	unsigned gen;           /* counts changes of what the plot shows */
+	unsigned changes;       /* counts solves of a changed session */
 
 	struct app_change undo[APP_UNDO];
 	size_t nundo;
@@ -152,6 +158,19 @@ bool app_unicode(const struct app *a);
  */
 int app_param_set(struct app *a, const char *key, double value, char *err,
                   size_t errlen);
+
+/*
+ * Set the session's KEY (session_set.h: a parameter, "target.current",
+ * "ratings.resistor_power", "tolerances.rs", ...) to the typed TEXT, checked
+ * as the file is ("none" takes an optional one away), remember the old
+ * value for undo, and solve again.  Returns 0, or -1 with ERR saying why
+ * (the session unchanged).
+ */
+int app_text_set(struct app *a, const char *key, const char *text, char *err,
+                 size_t errlen);
+
+/* True when KEY names a target, rating or tolerance (app_text_set). */
+bool app_key_is_analysis(const char *key);
 
 /* Put back the value the last change replaced; returns 0, or -1 when none. */
 int app_undo(struct app *a);

@@ -9,6 +9,7 @@
 
 #include "core/thermal.h"
 #include "session/section_network.h"
+#include "session/session_set.h"
 
 /* Start a row for KEY labelled LABEL in UNIT. */
 static struct param params_row(const char *key, const char *label,
@@ -188,36 +189,33 @@ int params_set(struct session *s, const struct param *p, double value,
 			s->solver.order = (enum projection_order)(int)value;
 		return 0;
 	}
-	if (params_is_part(p)) {
-		double old = params_get(s, p);
-		if (session_network_set_value(s, p->key, value, err, errlen) != 0)
-			return -1;
+	if (params_slot(s, p) == NULL && !params_is_part(p)) {
+		snprintf(err, errlen, "%s: no such parameter in this session", p->key);
+		return -1;
+	}
+	if (strcmp(p->key, PARAMS_START) == 0 ||
+	    strcmp(p->key, PARAMS_RELAXATION) == 0) {
+		double *slot = params_slot(s, p);
+		double old = *slot;
+		*slot = value;
 		if (params_check(s, err, errlen) != 0) {
-			char ignored[256];
-			session_network_set_value(s, p->key, old, ignored, sizeof ignored);
+			*slot = old;
 			return -1;
 		}
 		return 0;
 	}
-	double *slot = params_slot(s, p);
-	if (slot == NULL) {
-		snprintf(err, errlen, "%s: no such parameter in this session", p->key);
-		return -1;
-	}
 	struct thermal_keys tk;
 	if (thermal_active(&s->device) && thermal_keys_of(s->device.type, &tk) &&
-	    slot == &s->device.p[tk.temp]) {
+	    model_param_index(s->device.type, p->key) == tk.temp) {
 		snprintf(err, errlen, "%s is solved when the device heats itself: "
 		         "change ambient_temperature (or thermal_resistance)",
 		         p->label);
 		return -1;
 	}
-	double old = *slot;
-	*slot = value;
-	if (params_check(s, err, errlen) != 0) {
-		*slot = old;
+	/* The source, the device and a network's parts: checked as
+	 * --set KEY=VALUE and the file are (session_set.h). */
+	if (session_set_value(s, p->key, value, err, errlen) != SESSION_SET_OK)
 		return -1;
-	}
 	/* a self-heated junction's temperature follows its ambient, as a
 	 * loaded session's does (core/thermal.h) */
 	thermal_normalise(&s->device);
