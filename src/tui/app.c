@@ -318,6 +318,20 @@ bool app_key_is_analysis(const char *key)
 	       strncmp(key, "tolerances.", 11) == 0;
 }
 
+/* The target, ratings or tolerances changed from OLD by KEY: remember
+ * OLD for undo and solve again (nothing when nothing changed). */
+static void app_analysis_changed(struct app *a, const char *key,
+                                 const struct session_analysis *old)
+{
+	if (session_analysis_equal(old, &a->s.analysis))
+		return;   /* nothing to undo or save */
+	struct app_change *c = app_undo_push(a, key);
+	c->analysis = true;
+	c->old_analysis = *old;
+	a->dirty = true;
+	app_resolve(a);
+}
+
 /* Set KEY from typed TEXT, remembering the old value. */
 int app_text_set(struct app *a, const char *key, const char *text, char *err,
                  size_t errlen)
@@ -337,13 +351,7 @@ int app_text_set(struct app *a, const char *key, const char *text, char *err,
 	struct session_analysis old = a->s.analysis;
 	if (session_set_text(&a->s, key, text, err, errlen) != SESSION_SET_OK)
 		return -1;
-	if (session_analysis_equal(&old, &a->s.analysis))
-		return 0;   /* nothing changed: nothing to undo or save */
-	struct app_change *c = app_undo_push(a, key);
-	c->analysis = true;
-	c->old_analysis = old;
-	a->dirty = true;
-	app_resolve(a);
+	app_analysis_changed(a, key, &old);
 	return 0;
 }
 
@@ -382,6 +390,59 @@ int app_undo(struct app *a)
 		return 0;
 	}
 	return -1;
+}
+
+/* The name of verdict line L as the screen shows it. */
+static const char *app_verdict_name(const struct verdict_line *l)
+{
+	return l->part == VERDICT_DEVICE_CURRENT ? "device" : l->name;
+}
+
+/* Verdict line L in one or two lines of W cells. */
+void app_verdict_text(const struct app *a, const struct verdict_line *l,
+                      int w, char *one, char *two, size_t n)
+{
+	int ascii = app_unicode(a) ? 0 : 1;
+	char v[48], r[48], m[48] = "";
+	qty_format_short(v, sizeof v, l->value, l->unit, 4, ascii);
+	two[0] = '\0';
+	if (l->verdict == RATINGS_NO_RATING || !isfinite(l->rating)) {
+		snprintf(one, n, "%s %s", app_verdict_name(l), v);
+		return;
+	}
+	qty_format_short(r, sizeof r, l->rating, l->unit, 3, ascii);
+	if (isfinite(l->margin))
+		snprintf(m, sizeof m, ", margin %.0f %%", 100.0 * l->margin);
+	const char *word = ratings_verdict_name(l->verdict);
+	snprintf(one, n, "%s %s of %s%s  %s", app_verdict_name(l), v, r, m, word);
+	if (render_text_width(one) <= w)
+		return;
+	snprintf(one, n, "%s %s  %s", app_verdict_name(l), v, word);
+	snprintf(two, n, "  %.0f %% of %s%s", 100.0 * l->use, r, m);
+}
+
+/* The target line of VD. */
+void app_verdict_target(const struct app *a, const struct verdict *vd, int w,
+                        char *buf, size_t n)
+{
+	const struct verdict_target *t = &vd->target;
+	if (!t->given) {
+		buf[0] = '\0';
+		return;
+	}
+	if (render_text_width(t->words) <= w) {
+		snprintf(buf, n, "%s", t->words);
+		return;
+	}
+	int ascii = app_unicode(a) ? 0 : 1;
+	char v[48];
+	enum qty_kind u = t->kind == DESIGN_RESULT ? QTY_NUMBER
+	                  : design_target_unit(t->kind);
+	qty_format_short(v, sizeof v, t->value, u, 4, ascii);
+	if (isfinite(t->error_percent))
+		snprintf(buf, n, "target %s: error %+.3g %%", v, t->error_percent);
+	else
+		snprintf(buf, n, "target %s: no point", v);
 }
 
 /* Expand "~" and "~user" at the start of a typed file name. */
@@ -728,6 +789,114 @@ static unsigned app_save_as(struct app *a, const char *typed)
 	return app_save_to(a, path, typed);
 }
 
+/* The target's question. */
+#define APP_TARGET_Q "target (10mA, -5mA, 2.1V or 20mW; KEY=VALUE for " \
+	"solve_for, series, current_min/max, voltage_min/max; none removes): "
+/* The ratings' question. */
+#define APP_RATING_Q "rating KEY=VALUE (device_max_power, device_max_current, " \
+	"resistor_power, ambient_temperature; VALUE none removes): "
+
+/* Ask for the target. */
+void app_ask_target(struct app *a, const char *initial, const char *error)
+{
+	char now[64] = "";
+	const struct session_target *t = &a->s.analysis.target;
+	int ascii = app_unicode(a) ? 0 : 1;
+	if (initial == NULL) {
+		if (isfinite(t->current))
+			qty_format_short(now, sizeof now, t->current, QTY_CURRENT, 6, ascii);
+		else if (isfinite(t->voltage))
+			qty_format_short(now, sizeof now, t->voltage, QTY_VOLTAGE, 6, ascii);
+		else if (isfinite(t->power))
+			qty_format_short(now, sizeof now, t->power, QTY_POWER, 6, ascii);
+		/* typed back, the value must parse: no thin spaces */
+		for (char *c = now; *c != '\0'; c++)
+			if (*c == ' ')
+				memmove(c, c + 1, strlen(c));
+		initial = now;
+	}
+	app_ask(a, NULL, APP_ASK_TARGET, false, APP_TARGET_Q, initial, error);
+}
+
+/* Ask for a rating. */
+void app_ask_rating(struct app *a, const char *initial, const char *error)
+{
+	app_ask(a, NULL, APP_ASK_RATING, false, APP_RATING_Q, initial, error);
+}
+
+/* Take a typed target: a value (its unit says which), KEY=VALUE or none. */
+static unsigned app_take_target(struct app *a, const char *text)
+{
+	char err[512], key[SESSION_SET_KEY_MAX];
+	const char *value = NULL;
+	if (strchr(text, '=') != NULL) {
+		char k[SESSION_SET_KEY_MAX];
+		if (session_set_split(text, k, sizeof k, &value, err, sizeof err) !=
+		    SESSION_SET_OK) {
+			app_ask_target(a, text, err);
+			return APP_HANDLED | APP_REDRAW;
+		}
+		snprintf(key, sizeof key, "%s%.80s",
+		         strncmp(k, "target.", 7) == 0 ? "" : "target.", k);
+	} else if (strcmp(text, "none") == 0) {
+		/* Every target kind goes, as one change. */
+		struct session_analysis old = a->s.analysis;
+		a->s.analysis.target.current = NAN;
+		a->s.analysis.target.voltage = NAN;
+		a->s.analysis.target.power = NAN;
+		app_analysis_changed(a, "target", &old);
+		app_message(a, false, "no target");
+		return APP_HANDLED | APP_REDRAW;
+	} else {
+		double x;
+		static const struct { enum qty_kind k; const char *key; } kinds[] = {
+			{ QTY_CURRENT, "target.current" },
+			{ QTY_VOLTAGE, "target.voltage" },
+			{ QTY_POWER, "target.power" },
+		};
+		size_t j = 0;
+		char first[512] = "";
+		for (; j < 3; j++) {
+			if (qty_parse(text, kinds[j].k, &x, err, sizeof err) == QTY_OK)
+				break;
+			if (j == 0)
+				snprintf(first, sizeof first, "%s", err);
+		}
+		if (j == 3) {
+			app_ask_target(a, text, first);
+			return APP_HANDLED | APP_REDRAW;
+		}
+		snprintf(key, sizeof key, "%s", kinds[j].key);
+		value = text;
+	}
+	if (app_text_set(a, key, value, err, sizeof err) != 0) {
+		app_ask_target(a, text, err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	app_message(a, false, "%s = %s", key, value);
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* Take a typed rating KEY=VALUE. */
+static unsigned app_take_rating(struct app *a, const char *text)
+{
+	char err[512], k[SESSION_SET_KEY_MAX], key[SESSION_SET_KEY_MAX];
+	const char *value;
+	if (session_set_split(text, k, sizeof k, &value, err, sizeof err) !=
+	    SESSION_SET_OK) {
+		app_ask_rating(a, text, err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	snprintf(key, sizeof key, "%s%.80s",
+	         strncmp(k, "ratings.", 8) == 0 ? "" : "ratings.", k);
+	if (app_text_set(a, key, value, err, sizeof err) != 0) {
+		app_ask_rating(a, text, err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	app_message(a, false, "%s = %s", key, value);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Take the answer to one of the app's own questions. */
 unsigned app_answer(struct app *a, const struct action *act)
 {
@@ -751,6 +920,10 @@ unsigned app_answer(struct app *a, const struct action *act)
 		return APP_HANDLED | APP_REDRAW;
 	case APP_ASK_RESTORE:
 		return app_restore(a, yes);
+	case APP_ASK_TARGET:
+		return app_take_target(a, act->text);
+	case APP_ASK_RATING:
+		return app_take_rating(a, act->text);
 	default:
 		return APP_HANDLED | APP_REDRAW;
 	}

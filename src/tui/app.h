@@ -172,6 +172,19 @@ int app_text_set(struct app *a, const char *key, const char *text, char *err,
 /* True when KEY names a target, rating or tolerance (app_text_set). */
 bool app_key_is_analysis(const char *key);
 
+/*
+ * Verdict line L (core/verdict.h) for a column W cells wide: ONE gets the
+ * part, its power (or current) and the verdict words, with its rating and
+ * margin when they fit on the same line; otherwise TWO gets them ("" when
+ * there is no rating).  Each is N bytes.
+ */
+void app_verdict_text(const struct app *a, const struct verdict_line *l,
+                      int w, char *one, char *two, size_t n);
+
+/* The target line of VD in W cells ("target 10 mA: error -3.2 %"). */
+void app_verdict_target(const struct app *a, const struct verdict *vd, int w,
+                        char *buf, size_t n);
+
 /* Put back the value the last change replaced; returns 0, or -1 when none. */
 int app_undo(struct app *a);
 
@@ -199,7 +212,13 @@ enum app_question {
 	APP_ASK_OVERWRITE,   /* y/N: replace the existing file PENDING */
 	APP_ASK_QUIT,
 	APP_ASK_RESTORE,     /* y/n: restore the recovery file or set it aside */
+	APP_ASK_TARGET,      /* the target: a value with its unit, KEY=VALUE, none */
+	APP_ASK_RATING,      /* a rating: KEY=VALUE */
 };
+
+/* Ask for the session's target (t) or a rating (R) on the bottom line. */
+void app_ask_target(struct app *a, const char *initial, const char *error);
+void app_ask_rating(struct app *a, const char *initial, const char *error);
 
 /* Take the answer ACT to one of the app's own questions; enum app_flags. */
 unsigned app_answer(struct app *a, const struct action *act);

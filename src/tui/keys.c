@@ -156,6 +156,20 @@ static unsigned key_thermal(struct app *a)
 	return APP_HANDLED | APP_REDRAW;
 }
 
+/* Ask for the target. */
+static unsigned key_target(struct app *a)
+{
+	app_ask_target(a, NULL, NULL);
+	return APP_HANDLED | APP_REDRAW;
+}
+
+/* Ask for a rating. */
+static unsigned key_rating(struct app *a)
+{
+	app_ask_rating(a, NULL, NULL);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* Undo the last change of a value. */
 static unsigned key_undo(struct app *a)
 {
@@ -250,6 +264,9 @@ static const struct key_binding key_table[] = {
 	{ { '}' }, "}", "RS/RP/part: next E24 up", TO(pane_side) },
 	{ { '{' }, "{", "RS/RP/part: E24 down", TO(pane_side) },
 	{ { 'e', TK_ENTER }, "e Enter", "type a value: 2.2k, 15m", TO(pane_side) },
+	{ { '%' }, "%", "tolerance on the value", TO(pane_side) },
+	{ { 't' }, "t", "target: 10mA, 2V, none", RUN(key_target) },
+	{ { 'R' }, "R", "rating: resistor_power=", RUN(key_rating) },
 	{ { 'u' }, "u", "undo the last change", RUN(key_undo) },
 	{ { 'D' }, "D", "design RS for a target", OPEN(pane_design) },
 	{ { 'T' }, "T", "tolerance: worst case", OPEN(pane_tol) },

@@ -18,6 +18,8 @@
 #include "core/remedy.h"
 #include "core/eseries.h"
 #include "core/thermal.h"
+#include "core/verdict.h"
+#include "session/analysis.h"
 #include "tui/app.h"
 #include "tui/panes.h"
 
@@ -29,6 +31,8 @@
 #define LIN_COARSE 0.1
 /* The question the side pane asks: a value for the selected row. */
 #define SIDE_ASK_VALUE 1
+/* The question the side pane asks: a tolerance for the selected row. */
+#define SIDE_ASK_TOLERANCE 2
 
 /* The side pane's own state. */
 struct side_state {
@@ -321,6 +325,129 @@ static int pane_caution(struct app *a, int row, int col, int w, int max)
 	return pane_wrap(a, row, col, w, max, msg, TS_ERROR);
 }
 
+/* How bad verdict V is, for ordering: over rating first. */
+static int pane_severity(enum ratings_verdict v)
+{
+	return v == RATINGS_OVER ? 3 : v == RATINGS_CAUTION ? 2
+	       : v == RATINGS_WITHIN ? 1 : 0;
+}
+
+/* One line of the ratings section, with the priority it keeps its row by
+ * (0 kept longest). */
+struct pane_vline {
+	char text[160];
+	enum term_style style;
+	int prio;
+};
+
+/* Most lines of the ratings section. */
+#define PANE_VLINES (2 * VERDICT_MAX_LINES + 1)
+
+/*
+ * The ratings section of the point (V, I) at width W into OUT: the parts
+ * worst first, each with its power, rating, margin and verdict (verdict.h),
+ * then the target and its error.  Returns the number of lines; *WORST gets
+ * the worst verdict and *RATED whether any part has a rating.
+ */
+static size_t pane_vlines(struct app *a, double v, double i, int w,
+                          struct pane_vline *out, enum ratings_verdict *worst,
+                          bool *rated)
+{
+	struct verdict vd;
+	session_verdict(&a->s, &a->pb, v, i, &vd);
+	*worst = vd.worst;
+	*rated = false;
+	size_t order[VERDICT_MAX_LINES], n = 0;
+	for (size_t k = 0; k < vd.nlines && k < VERDICT_MAX_LINES; k++)
+		order[n++] = k;
+	/* Worst first; the core's order among equals. */
+	for (size_t k = 1; k < n; k++)
+		for (size_t j = k; j > 0 && pane_severity(vd.lines[order[j]].verdict) >
+		                            pane_severity(vd.lines[order[j - 1]].verdict);
+		     j--) {
+			size_t t = order[j];
+			order[j] = order[j - 1];
+			order[j - 1] = t;
+		}
+	size_t m = 0;
+	for (size_t k = 0; k < n; k++) {
+		const struct verdict_line *l = &vd.lines[order[k]];
+		int sev = pane_severity(l->verdict);
+		*rated = *rated || sev > 0;
+		char one[160], two[160];
+		app_verdict_text(a, l, w, one, two, sizeof one);
+		enum term_style st = sev == 3 ? TS_ERROR : sev == 2 ? TS_HEADER
+		                     : TS_NORMAL;
+		snprintf(out[m].text, sizeof out[m].text, "%s", one);
+		out[m].style = st;
+		out[m++].prio = sev >= 2 ? 0 : sev == 1 ? 3 : 4;
+		if (two[0] != '\0') {
+			snprintf(out[m].text, sizeof out[m].text, "%s", two);
+			out[m].style = sev >= 2 ? st : TS_DIM;
+			out[m++].prio = sev >= 2 ? 2 : 5;
+		}
+	}
+	char t[160];
+	app_verdict_target(a, &vd, w, t, sizeof t);
+	if (t[0] != '\0') {
+		snprintf(out[m].text, sizeof out[m].text, "%s", t);
+		out[m].style = TS_NORMAL;
+		out[m++].prio = 1;
+	}
+	return m;
+}
+
+/*
+ * Draw the ratings section (its header and lines) in at most MAX rows;
+ * returns rows used.  When the lines do not all fit, the least important
+ * go first: the margins of parts within rating, then those parts, then the
+ * parts without a rating; the worst part and the target stay.
+ */
+static int pane_ratings(struct app *a, int row, int col, int w, int max)
+{
+	if (!a->pb_ok || a->res.n == 0 || max < 2)
+		return 0;
+	struct pane_vline ln[PANE_VLINES];
+	enum ratings_verdict worst;
+	bool rated;
+	/* The selected point (the one the table inverts). */
+	size_t k = a->point < a->res.n ? a->point : 0;
+	size_t n = pane_vlines(a, a->res.pts[k].v, a->res.pts[k].i, w, ln, &worst,
+	                       &rated);
+	int keep = 5;
+	for (; keep > 0; keep--) {
+		int c = 0;
+		for (size_t j = 0; j < n; j++)
+			c += ln[j].prio <= keep;
+		if (c <= max - 1)
+			break;
+	}
+	char title[96];
+	if (rated)
+		snprintf(title, sizeof title, "Ratings: %s", ratings_verdict_name(worst));
+	else
+		snprintf(title, sizeof title, "Power (no ratings)");
+	pane_header(a, row, col, w, title);
+	int used = 1;
+	for (size_t j = 0; j < n && used < max; j++)
+		if (ln[j].prio <= keep)
+			term_text(&a->term, row + used++, col, ln[j].text, w, ln[j].style);
+	return used;
+}
+
+/* Rows the ratings section would take at width W with no limit. */
+static int pane_ratings_need(struct app *a, int w)
+{
+	if (!a->pb_ok || a->res.n == 0)
+		return 0;
+	struct pane_vline ln[PANE_VLINES];
+	enum ratings_verdict worst;
+	bool rated;
+	size_t k = a->point < a->res.n ? a->point : 0;
+	return 1 + (int)pane_vlines(a, a->res.pts[k].v, a->res.pts[k].i, w, ln,
+	                            &worst, &rated);
+}
+
 /* Draw the parameter list (scrolled to keep the selection); rows used. */
 static int pane_params(struct app *a, struct side_state *sd, int row, int col,
                        int w, int max)
@@ -336,9 +463,16 @@ static int pane_params(struct app *a, struct side_state *sd, int row, int col,
 		first = sd->sel - max + 1;
 	int used = 0;
 	for (int k = first; k < n && used < max; k++) {
-		char val[64], line[160];
+		char val[64], line[160], tol[64];
 		params_format(&a->s, &ps[k], !app_unicode(a), val, sizeof val);
 		snprintf(line, sizeof line, "%-8s %s", ps[k].label, val);
+		/* Its tolerance beside it, when the row has room for it whole. */
+		if (params_tolerance(&a->s, ps[k].key, true, !app_unicode(a), tol,
+		                     sizeof tol) &&
+		    render_text_width(line) + 1 + render_text_width(tol) <= w) {
+			size_t len = strlen(line);
+			snprintf(line + len, sizeof line - len, " %s", tol);
+		}
 		enum term_style st = k == sd->sel ? TS_SELECTED : TS_NORMAL;
 		if (k == sd->sel)
 			term_fill(&a->term, row + used, col, w, st);
@@ -660,6 +794,12 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 	y += pane_junction(a, y, x, w, 1);
 	y += pane_extra(a, y, x, w, 7);
 	y += pane_caution(a, y, x, w, 9);
+	/* Power and ratings: what they need, leaving the parameters, the
+	 * diagnosis and the table their least (13 rows). */
+	int vmax = pane_ratings_need(a, w);
+	if (vmax > end - y - 13)
+		vmax = end - y - 13;
+	y += pane_ratings(a, y, x, w, vmax);
 
 	/* Share the rest.  The diagnosis gets the lines its text needs first
 	 * (it carries the remedy), keeping room for the parameter header and
@@ -843,6 +983,72 @@ static void pane_side_edit(struct app *a, struct side_state *sd)
 	app_ask(a, &pane_side, SIDE_ASK_VALUE, false, q, NULL, NULL);
 }
 
+/* The tolerance question for row P, starting from INITIAL (NULL: the
+ * row's present tolerance) with ERROR (may be NULL). */
+static void pane_side_ask_tolerance(struct app *a, const struct param *p,
+                                    const char *initial, const char *error)
+{
+	char q[256], now[64];
+	snprintf(q, sizeof q, "tolerance on %s (5%%, 0.1k, 3k..3.6k; add normal "
+	         "for a normal spread; none removes) = ", p->label);
+	if (initial == NULL) {
+		params_tolerance(&a->s, p->key, false, true, now, sizeof now);
+		/* typed back, a value must parse: no space before its unit */
+		for (char *c = now; *c != '\0'; c++)
+			if (*c == ' ' && c[1] != 'n')
+				memmove(c, c + 1, strlen(c));
+		initial = now;
+	}
+	app_ask(a, &pane_side, SIDE_ASK_TOLERANCE, false, q, initial, error);
+}
+
+/* Ask for a tolerance on the selected row. */
+static void pane_side_tolerance(struct app *a, struct side_state *sd)
+{
+	struct param p;
+	if (!pane_side_selected(a, sd, &p))
+		return;
+	if (p.choice || strncmp(p.key, "solver.", 7) == 0) {
+		app_message(a, true, "%s is a solver setting: a tolerance goes on "
+		            "the source, the device or a network part", p.label);
+		return;
+	}
+	if (p.readonly) {
+		app_message(a, true, "%s is the equivalent of the source network: "
+		            "give the tolerance to one of its parts (listed first)",
+		            p.label);
+		return;
+	}
+	pane_side_ask_tolerance(a, &p, NULL, NULL);
+}
+
+/* Take a typed tolerance for the selected row. */
+static unsigned pane_side_take_tolerance(struct app *a, struct side_state *sd,
+                                         const char *text)
+{
+	struct param p;
+	if (!pane_side_selected(a, sd, &p))
+		return APP_HANDLED | APP_REDRAW;
+	char key[SESSION_SET_KEY_MAX], value[512], err[600];
+	snprintf(key, sizeof key, "tolerances.%s", p.key);
+	params_tolerance_typed(text, value, sizeof value);
+	if (value[0] == '\0') {
+		pane_side_ask_tolerance(a, &p, text, "type a tolerance, none, or Esc");
+		return APP_HANDLED | APP_REDRAW;
+	}
+	if (app_text_set(a, key, value, err, sizeof err) != 0) {
+		pane_side_ask_tolerance(a, &p, text, err);
+		return APP_HANDLED | APP_REDRAW;
+	}
+	char now[64];
+	if (params_tolerance(&a->s, p.key, true, !app_unicode(a), now, sizeof now))
+		app_message(a, false, "tolerance on %s: %s (T shows the worst case)",
+		            p.label, now);
+	else
+		app_message(a, false, "no tolerance on %s", p.label);
+	return APP_HANDLED | APP_REDRAW;
+}
+
 /* The side pane's keys, handed over by the key table. */
 static unsigned pane_side_key(struct app *a, void *self, int key)
 {
@@ -866,6 +1072,7 @@ static unsigned pane_side_key(struct app *a, void *self, int key)
 	case '}': pane_side_eseries(a, sd, 1); break;
 	case '{': pane_side_eseries(a, sd, -1); break;
 	case 'e': case TK_ENTER: pane_side_edit(a, sd); break;
+	case '%': pane_side_tolerance(a, sd); break;
 	case '\t':
 		sd->hidden = !sd->hidden;
 		app_touch(a);
@@ -912,6 +1119,8 @@ static unsigned pane_side_act(struct app *a, void *self, const struct action *ac
 	struct side_state *sd = self;
 	if (act->kind == ACT_ANSWER && act->tag == SIDE_ASK_VALUE)
 		return pane_side_answer(a, sd, act->text);
+	if (act->kind == ACT_ANSWER && act->tag == SIDE_ASK_TOLERANCE)
+		return pane_side_take_tolerance(a, sd, act->text);
 	if (act->kind != ACT_SELECT)
 		return 0;
 	struct param ps[PARAMS_MAX];

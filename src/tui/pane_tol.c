@@ -30,6 +30,7 @@ struct tol_state {
 	char msg[600];          /* why nothing can be shown, or "" */
 	struct tol_case c;
 	struct tol_worst w;
+	struct verdict vd;      /* the ratings at worst (have_wc) */
 	struct tol_mc mc;
 };
 
@@ -51,9 +52,9 @@ static void pane_tol_open(struct app *a, struct tol_state *t)
 		return;
 	}
 	if (a->s.analysis.ntol == 0) {
-		snprintf(t->msg, sizeof t->msg, "no tolerances in this session: add "
-		         "a tolerances: section to its file (e.g. tolerances: {rs: 5%%, "
-		         "vs: 10%%})");
+		snprintf(t->msg, sizeof t->msg, "no tolerances in this session: "
+		         "close this view, select a parameter (Up/Down) and press "
+		         "%% to give it one (5%%, 0.2, 22..26 or 5%% normal)");
 		return;
 	}
 	char err[600];
@@ -67,10 +68,22 @@ static void pane_tol_open(struct app *a, struct tol_state *t)
 		         "case (m runs the Monte Carlo trials)", TOL_MAX_CORNER_ITEMS);
 		return;
 	}
-	if (tol_worst_case(&t->c, &t->w, err, sizeof err) != 0)
+	if (tol_worst_case(&t->c, &t->w, err, sizeof err) != 0) {
 		snprintf(t->msg, sizeof t->msg, "%s", err);
-	else
+	} else {
 		t->have_wc = true;
+		/* Each part at its own extreme, held to the ratings (the words of
+		 * 'biasline tolerance'); a network's equivalent is no part. */
+		const struct tol_worst *w = &t->w;
+		double im = fmax(fabs(w->min[TOL_CURRENT].value),
+		                 fabs(w->max[TOL_CURRENT].value));
+		double pd = fmax(fabs(w->min[TOL_DEVICE_POWER].value),
+		                 fabs(w->max[TOL_DEVICE_POWER].value));
+		double pr = a->s.network != NULL ? NAN
+		            : w->max[TOL_RESISTOR_POWER].value;
+		verdict_worst(pd, im, pr, t->c.form == SOURCE_NORTON ? "RP" : "RS",
+		              &a->s.analysis.ratings, &t->vd);
+	}
 	/* Several points somewhere in the box: say so under the table. */
 	if (t->have_wc && stability_box_fold(&t->c, err, sizeof err))
 		snprintf(t->msg, sizeof t->msg, "%s", err);
@@ -123,21 +136,62 @@ static void pane_tol_draw(struct app *a, void *self, const struct rect *box)
 	         t->have_case ? t->c.nitems : (size_t)0);
 	term_text(&a->term, top, left + 1, line, w - 2, TS_TITLE);
 	int row = top + 1, x = left + 2, cw = w - 4, end = top + h - 1;
+	/* Lines the rest needs: the worst case, its ratings, the trials. */
+	int need = 0;
+	if (t->have_wc) {
+		need += 2 + TOL_NOUT + 1;
+		for (size_t k = 0; k < t->vd.nlines; k++)
+			need += (int)render_wrap(t->vd.lines[k].words, cw - 2, NULL, 0);
+	}
+	if (t->have_mc)
+		need += 3 + (int)t->mc.hist[TOL_CURRENT].nbins + 1;
+	/* The tolerances themselves, as 'biasline tolerance' lists them, when
+	 * there is room (the side pane shows them beside each value too). */
+	if (t->have_case && row + 1 + (int)t->c.nitems + need < end) {
+		snprintf(line, sizeof line, "%-15s %-12s %-12s %-12s %s", "tolerance",
+		         "nominal", "minimum", "maximum", "distribution");
+		term_text(&a->term, row++, x, line, cw, TS_HEADER);
+		for (size_t k = 0; k < t->c.nitems; k++) {
+			const struct tol_item *it = &t->c.items[k];
+			enum qty_kind u = paramref_unit(&t->c.pb, &it->param);
+			qty_format(b0, sizeof b0, paramref_get(&t->c.pb, &it->param), u,
+			           5, ascii);
+			qty_format(b1, sizeof b1, it->lo, u, 5, ascii);
+			qty_format(b2, sizeof b2, it->hi, u, 5, ascii);
+			snprintf(line, sizeof line, "%-15.15s %-12s %-12s %-12s %s",
+			         paramref_key(&t->c.pb, &it->param), b0, b1, b2,
+			         tol_dist_name(it->dist));
+			term_text(&a->term, row++, x, line, cw, TS_NORMAL);
+		}
+	}
 	if (t->have_wc) {
 		snprintf(line, sizeof line, "worst case over %zu corners%s",
 		         t->w.corners, t->w.failed ? " (some without a point)" : "");
 		term_text(&a->term, row++, x, line, cw, TS_NORMAL);
-		snprintf(line, sizeof line, "%-15s %-12s %-12s %s", "", "minimum",
-		         "nominal", "maximum");
+		snprintf(line, sizeof line, "%-15s %-12s %-12s %s", "", "nominal",
+		         "minimum", "maximum");
 		term_text(&a->term, row++, x, line, cw, TS_HEADER);
 		for (int o = 0; o < TOL_NOUT && row < end; o++) {
 			enum qty_kind u = pane_tol_unit((enum tol_output)o);
-			qty_format(b0, sizeof b0, t->w.min[o].value, u, 5, ascii);
-			qty_format(b1, sizeof b1, t->w.nominal[o], u, 5, ascii);
+			qty_format(b0, sizeof b0, t->w.nominal[o], u, 5, ascii);
+			qty_format(b1, sizeof b1, t->w.min[o].value, u, 5, ascii);
 			qty_format(b2, sizeof b2, t->w.max[o].value, u, 5, ascii);
 			snprintf(line, sizeof line, "%-15s %-12s %-12s %s",
 			         tol_output_name((enum tol_output)o), b0, b1, b2);
 			term_text(&a->term, row++, x, line, cw, TS_NORMAL);
+		}
+		if (t->vd.nlines > 0 && row < end) {
+			snprintf(line, sizeof line, "ratings at worst (each part at its "
+			         "own extreme): %s", ratings_verdict_name(t->vd.worst));
+			term_text(&a->term, row++, x, line, cw, TS_HEADER);
+		}
+		for (size_t k = 0; k < t->vd.nlines && row < end; k++) {
+			const struct verdict_line *l = &t->vd.lines[k];
+			enum term_style st = l->verdict == RATINGS_OVER ? TS_ERROR
+			                     : l->verdict == RATINGS_CAUTION ? TS_HEADER
+			                     : TS_NORMAL;
+			row += pane_tol_wrap(a, row, x + 2, cw - 2, end - row, l->words,
+			                     st);
 		}
 	}
 	if (t->msg[0] != '\0' && row < end)

@@ -251,3 +251,78 @@ int params_choices(const struct param *p)
 		return ORDER_COUNT;
 	return 0;
 }
+
+/* The tolerance S gives KEY. */
+bool params_tolerance(const struct session *s, const char *key, bool shown,
+                      bool ascii, char *buf, size_t n)
+{
+	buf[0] = '\0';
+	const struct session_tolerance *t = NULL;
+	for (size_t k = 0; k < s->analysis.ntol; k++)
+		if (strcmp(s->analysis.tol[k].key, key) == 0)
+			t = &s->analysis.tol[k];
+	struct param p;
+	if (t == NULL || params_find(s, key, &p) != 0)
+		return false;
+	const char *pm = !shown ? "" : ascii ? "+-" : "\xC2\xB1";
+	char a[48], b[48];
+	/* The width of a temperature is a plain number of degrees. */
+	enum qty_kind u = p.unit == QTY_TEMPERATURE ? QTY_NUMBER : p.unit;
+	switch (t->form) {
+	case SESSION_TOL_PERCENT:
+		snprintf(buf, n, "%s%.6g%%", pm, t->a);
+		break;
+	case SESSION_TOL_ABSOLUTE:
+		qty_format_short(a, sizeof a, t->a, u, 6, ascii ? 1 : 0);
+		snprintf(buf, n, "%s%s", pm, a);
+		break;
+	default:
+		qty_format_short(a, sizeof a, t->a, p.unit, 6, ascii ? 1 : 0);
+		qty_format_short(b, sizeof b, t->b, p.unit, 6, ascii ? 1 : 0);
+		snprintf(buf, n, "%s..%s", a, b);
+		break;
+	}
+	if (t->dist == TOL_NORMAL) {
+		size_t len = strlen(buf);
+		snprintf(buf + len, n - len, " normal");
+	}
+	return true;
+}
+
+/* The file's form of a typed tolerance. */
+void params_tolerance_typed(const char *typed, char *out, size_t n)
+{
+	char t[256];
+	snprintf(t, sizeof t, "%s", typed);
+	/* trim */
+	char *p = t;
+	while (*p == ' ')
+		p++;
+	size_t len = strlen(p);
+	while (len > 0 && p[len - 1] == ' ')
+		p[--len] = '\0';
+	if (p[0] == '{' || p[0] == '\0') {
+		snprintf(out, n, "%s", p);
+		return;
+	}
+	/* A trailing distribution word. */
+	const char *dist = NULL;
+	char *sp = strrchr(p, ' ');
+	if (sp != NULL && (strcmp(sp + 1, "normal") == 0 ||
+	                   strcmp(sp + 1, "uniform") == 0)) {
+		dist = sp + 1;
+		*sp = '\0';
+		while (sp > p && sp[-1] == ' ')
+			*--sp = '\0';
+	}
+	char *dots = strstr(p, "..");
+	if (dots != NULL) {
+		*dots = '\0';
+		snprintf(out, n, "{min: %s, max: %s%s%s}", p, dots + 2,
+		         dist ? ", distribution: " : "", dist ? dist : "");
+	} else if (dist != NULL) {
+		snprintf(out, n, "{plus_minus: %s, distribution: %s}", p, dist);
+	} else {
+		snprintf(out, n, "%s", p);
+	}
+}

@@ -69,6 +69,22 @@ int params_set(struct session *s, const struct param *p, double value,
 void params_format(const struct session *s, const struct param *p, bool ascii,
                    char *buf, size_t n);
 
+/*
+ * The tolerance S gives the row of KEY, as typed ("5%", "0.1 V",
+ * "22 V..26 V", with " normal" for a normal distribution) into BUF;
+ * returns false (BUF "") when it has none.  SHOWN: as the side pane shows
+ * it ("+-5%", or with the Unicode plus-minus sign unless ASCII).
+ */
+bool params_tolerance(const struct session *s, const char *key, bool shown,
+                      bool ascii, char *buf, size_t n);
+
+/*
+ * The session file's form (session_set.h) of a tolerance typed as TYPED:
+ * "5%", "0.1k", "A..B", each optionally followed by "normal" or "uniform",
+ * "none", or the file's own "{...}" form as it is.  Writes OUT.
+ */
+void params_tolerance_typed(const char *typed, char *out, size_t n);
+
 /* The number of entries of choice P (0 for a value). */
 int params_choices(const struct param *p);
 
