@@ -25,6 +25,7 @@
 #include <stddef.h>
 #include <stdint.h>
 
+#include "core/paramref.h"
 #include "core/quantity.h"
 #include "core/stability.h"
 #include "core/tolerance.h"
@@ -182,37 +183,69 @@ enum render_status render_desc_line(const struct render_input *in,
 enum render_status render_desc_xy(const struct render_xy *in,
                                   struct plot_desc *d);
 
-/* Points of the sweep view, RS/10 to RS*10 on a log scale. */
+/* Points of the sweep view. */
 #define SWEEP_VIEW_POINTS 61
+/* Most other points (a folded curve's other branches) the view keeps. */
+#define SWEEP_VIEW_EXTRA (3 * SWEEP_VIEW_POINTS)
 
-/* The sweep view's data: the device current against RS (or RP). */
+/* What the sweep view sweeps: a parameter by its key (core/paramref.h:
+ * vs, rs, is, rp, a device key, source.network.NAME), from, to, scale. */
+struct sweep_view_spec {
+	char key[PARAMREF_KEY_MAX];
+	char label[PARAMREF_KEY_MAX];  /* as titled: "RS", a part's name, "T" */
+	double from, to;
+	bool log;
+};
+
+/* The sweep view's data: the device current against the parameter. */
 struct sweep_view {
 	bool ok;                /* X, Y hold the sweep (else MSG says why) */
-	bool norton;            /* RP is swept (a Norton source) */
-	double r;               /* the present RS or RP (the mark) */
+	struct sweep_view_spec spec;
+	enum qty_kind unit;     /* the parameter's unit */
+	double now;             /* its present value (the mark) */
 	size_t n;
-	double x[SWEEP_VIEW_POINTS], y[SWEEP_VIEW_POINTS];
+	double x[SWEEP_VIEW_POINTS], y[SWEEP_VIEW_POINTS]; /* lowest-V points */
+	size_t nextra;          /* the other points of a folded curve */
+	double ex[SWEEP_VIEW_EXTRA], ey[SWEEP_VIEW_EXTRA];
 	size_t multi;           /* steps with several operating points */
 	size_t folds;
 	double jump_up, jump_down; /* where the followed stable point jumps
 	                              going up and going down (NaN: none) */
-	char msg[256];
+	char msg[400];
 };
 
 /*
- * Sweep RS (RP when NORTON) of PB from a tenth to ten times its value on a
- * log scale with the solver options O, keeping the lowest-voltage point of
- * each step, and where the circuit (with the reactive parts RP, may be
- * NULL) jumps each way, into SV (SV->ok false with SV->msg saying why).
+ * The usual sweep of PB into SPEC: its source resistance (RP when NORTON;
+ * a network source's first resistor) from a tenth to ten times its value
+ * on a log scale.  Returns 0, or -1 when PB has no such resistance.
  */
+int sweep_view_default(const struct problem *pb, bool norton,
+                       struct sweep_view_spec *spec);
+
+/*
+ * Sweep SPEC's parameter of PB with the solver options O in
+ * SWEEP_VIEW_POINTS steps, keeping the lowest-voltage point of each step
+ * as the line and the others as points, and where the circuit (with the
+ * reactive parts RP, may be NULL) jumps each way, into SV (SV->ok false
+ * with SV->msg saying exactly why when it cannot run).
+ */
+void sweep_view_run_spec(const struct problem *pb,
+                         const struct solve_options *o,
+                         const struct reactive_parts *rp,
+                         const struct sweep_view_spec *spec,
+                         struct sweep_view *sv);
+
+/* The usual sweep (sweep_view_default, then sweep_view_run_spec). */
 void sweep_view_run(const struct problem *pb, const struct solve_options *o,
                     const struct reactive_parts *rp, bool norton,
                     struct sweep_view *sv);
 
 /*
  * The description of the sweep view SV into D (initialised by the call):
- * titled "I vs RS (log) @ value", the present value marked.  Returns
- * RENDER_OK, RENDER_BAD_INPUT (SV holds no sweep) or RENDER_NO_MEMORY.
+ * titled "I vs RS (log) @ value", the present value marked, the other
+ * points of a folded curve as dots and the jumps as dotted vertical lines.
+ * Returns RENDER_OK, RENDER_BAD_INPUT (SV holds no sweep) or
+ * RENDER_NO_MEMORY.
  */
 enum render_status render_desc_sweep(const struct sweep_view *sv, bool unicode,
                                      struct plot_desc *d);

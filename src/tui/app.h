@@ -92,6 +92,8 @@ struct app {
 	struct thermal_stepper *tst;
 	double tstart;
 	bool thermal;
+	char selected[PARAMREF_KEY_MAX]; /* the selected parameter row's key
+	                           (the side pane keeps it; W starts there) */
 	bool running;           /* g: the loop steps until stopped or a key */
 	unsigned gen;           /* counts changes of what the plot shows */
 	unsigned changes;       /* counts solves of a changed session */

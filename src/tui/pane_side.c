@@ -38,7 +38,26 @@
 struct side_state {
 	int sel;            /* the selected parameter row */
 	bool hidden;        /* Tab hid the pane */
+	/* The last remedy found, for the session as solved (app.changes: the
+	 * path restarts with every change, so it stands for the path too):
+	 * redraws while a failed path is shown reuse it. */
+	bool have_remedy;
+	unsigned remedy_changes;
+	struct remedy remedy;
 };
+
+/* The remedy for A's failed path, run once per session change and path. */
+static const struct remedy *pane_side_remedy(struct app *a,
+                                             struct side_state *sd)
+{
+	if (!sd->have_remedy || sd->remedy_changes != a->changes) {
+		sd->remedy_changes = a->changes;
+		struct solve_options o = *stepper_options(a->st);
+		remedy_find(&a->pb, &o, &sd->remedy);
+		sd->have_remedy = true;
+	}
+	return &sd->remedy;
+}
 
 /* Format VALUE compactly in engineering notation without a unit ("-4.31m"). */
 static char *pane_side_eng(char *buf, size_t n, double value, int sig)
@@ -414,14 +433,16 @@ static int pane_ratings(struct app *a, int row, int col, int w, int max)
 	size_t k = a->point < a->res.n ? a->point : 0;
 	size_t n = pane_vlines(a, a->res.pts[k].v, a->res.pts[k].i, w, ln, &worst,
 	                       &rated);
-	int keep = 5;
-	for (; keep > 0; keep--) {
-		int c = 0;
+	int keep = 5, c = 0;
+	for (; keep >= 0; keep--) {
+		c = 0;
 		for (size_t j = 0; j < n; j++)
 			c += ln[j].prio <= keep;
 		if (c <= max - 1)
 			break;
 	}
+	/* The rows left go to the first lines of the next level. */
+	int extra = max - 1 - c;
 	char title[96];
 	if (rated)
 		snprintf(title, sizeof title, "Ratings: %s", ratings_verdict_name(worst));
@@ -429,9 +450,13 @@ static int pane_ratings(struct app *a, int row, int col, int w, int max)
 		snprintf(title, sizeof title, "Power (no ratings)");
 	pane_header(a, row, col, w, title);
 	int used = 1;
-	for (size_t j = 0; j < n && used < max; j++)
-		if (ln[j].prio <= keep)
-			term_text(&a->term, row + used++, col, ln[j].text, w, ln[j].style);
+	for (size_t j = 0; j < n && used < max; j++) {
+		if (ln[j].prio == keep + 1 && extra > 0)
+			extra--;
+		else if (ln[j].prio > keep)
+			continue;
+		term_text(&a->term, row + used++, col, ln[j].text, w, ln[j].style);
+	}
 	return used;
 }
 
@@ -458,6 +483,8 @@ static int pane_params(struct app *a, struct side_state *sd, int row, int col,
 		sd->sel = n - 1;
 	if (sd->sel < 0)
 		sd->sel = 0;
+	if (n > 0)
+		snprintf(a->selected, sizeof a->selected, "%.63s", ps[sd->sel].key);
 	int first = 0;
 	if (sd->sel >= max)
 		first = sd->sel - max + 1;
@@ -552,7 +579,8 @@ static void pane_diag_thermal(struct app *a, struct pane_diag *d)
 }
 
 /* Build the diagnosis paragraphs of A into D. */
-static void pane_diag_build(struct app *a, struct pane_diag *d)
+static void pane_diag_build(struct app *a, struct side_state *sd,
+                            struct pane_diag *d)
 {
 	d->n = 0;
 	d->optional = -1;
@@ -620,14 +648,12 @@ static void pane_diag_build(struct app *a, struct pane_diag *d)
 	}
 	if (st != STEP_CONTINUE && st != STEP_CONVERGED) {
 		/* A remedy that was run and converges, not a guess. */
-		struct solve_options po = *stepper_options(a->st);
-		struct remedy rm;
-		remedy_find(&a->pb, &po, &rm);
+		const struct remedy *rm = pane_side_remedy(a, sd);
 		if (dp == NULL) {
 			memset(&live, 0, sizeof live);
 			dp = &live;
 		}
-		snprintf(live.advice, sizeof live.advice, "%s", rm.text);
+		snprintf(live.advice, sizeof live.advice, "%s", rm->text);
 	}
 	size_t n;
 	stepper_trace(a->st, &n);
@@ -806,7 +832,7 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 	 * 3 rows, and the table's title, header and one row; then the table
 	 * gets up to 11 rows and the parameters (scrolled) what is left. */
 	struct pane_diag dg;
-	pane_diag_build(a, &dg);
+	pane_diag_build(a, sd, &dg);
 	int avail = end - y;
 	int diag = pane_diag_lines(&dg, w, false);
 	int room = avail - (1 + 3) - 1 - (1 + 2);
@@ -1055,14 +1081,15 @@ static unsigned pane_side_key(struct app *a, void *self, int key)
 	struct side_state *sd = self;
 	switch (key) {
 	case TK_UP:
-		if (sd->sel > 0)
-			sd->sel--;
-		break;
 	case TK_DOWN: {
 		struct param ps[PARAMS_MAX];
 		size_t n = params_list(&a->s, ps, PARAMS_MAX);
-		if ((size_t)sd->sel + 1 < n)
+		if (key == TK_UP && sd->sel > 0)
+			sd->sel--;
+		if (key == TK_DOWN && (size_t)sd->sel + 1 < n)
 			sd->sel++;
+		if ((size_t)sd->sel < n)
+			snprintf(a->selected, sizeof a->selected, "%.63s", ps[sd->sel].key);
 		break;
 	}
 	case '+': case '=': pane_side_nudge(a, sd, 1, false); break;

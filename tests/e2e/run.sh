@@ -381,39 +381,49 @@ eseries)
 	echo "ok: RS stepped 3.3k, 3.6k, 3.9k, back to 3.3k; 3.5k down to 3.3k"
 	;;
 design)
-	# D asks for a target current (the sample has no target section); the
-	# view lists the exact RS and the E24 values either side, the same as
-	# 'biasline design' prints; Enter on the higher row applies it.
+	# D asks for a target (the sample has no target section); the view
+	# lists the exact RS and the E24 values either side, the same as
+	# 'biasline design' prints, with the nearer one chosen; Enter applies it.
 	file=$samples/indicator-led-24v.yaml
 	out=$("$bin" design --current 10m "$file") || fail "'biasline design' exited $?"
 	want=$(awk '$1 == "higher" { print $2 " " $3; exit }' <<<"$out")
 	[ -n "$want" ] || { echo "$out"; fail "no higher row from 'biasline design'"; }
+	grep -qE '^ +higher .*\(nearest\)' <<<"$out" || { echo "$out"; fail "the CLI does not call higher nearest"; }
 	start 100 30 "$file"
 	wait_for "Convergence"
 	keys D
-	wait_for "target device current ="
+	wait_for "design: target ("
 	keys 10m Enter
-	wait_for "Design: device current 10 mA"
+	wait_for "Design: device current 10 mA, solving for RS (E24)"
 	got=$(screen | grep -oE 'higher +[0-9.]+ [kM]?ohm' | awk '{ print $2 " " $3 }')
 	close_to "$(eng "$got")" "$(eng "$want")" 1e-9 || fail "higher row $got, CLI says $want"
 	screen | grep -qE ' exact +[0-9.]+ [kM]?ohm' || fail "no exact row"
 	screen | grep -qE ' lower +[0-9.]+ [kM]?ohm' || fail "no lower row"
-	keys Down Enter
-	wait_for "(the higher row of the design)"
+	# The nearer standard value is chosen first (the CLI's nearest).
+	screen | grep -qE '> higher +[0-9.]+ [kM]?ohm.*nearest' || fail "higher is not chosen first"
+	screen | grep -qF "no tolerances: % on a value adds one" || fail "no word on the missing tolerances"
+	keys Enter
+	wait_for "(the higher row of the design"
 	wait_gone "Design: device current"
 	wait_for "RS       $got"
 	wait_for "[modified]"
 	title_point
 	tcli=$(awk '$1 == "higher" { print $6 " " $7; exit }' <<<"$out")
 	close_to "$(eng "$TI")" "$(eng "$tcli")" 1e-4 || fail "point $TI after applying, CLI says $tcli"
-	# A bad target is refused in the prompt; Esc closes the view.
+	# u takes the design back.
+	keys u
+	wait_for "RS       3.3 kohm"
+	# A target that is no quantity is refused in the prompt; Esc cancels.
 	keys D
-	wait_for "target device current ="
-	keys -- -3m Enter
-	wait_for "above zero"
+	wait_for "Design: device current 10 mA"
+	keys t
+	wait_for "design: target ("
+	keys C-u 10ohm Enter
+	wait_for "is a resistance, expected a current"
+	screen | grep -qF "Design: device" && fail "a resistance was taken as a target"
 	keys Escape
 	wait_for "cancelled"
-	echo "ok: design view higher row $got (CLI $want) applied; point $TI"
+	echo "ok: design view higher row $got (CLI $want) chosen and applied; point $TI; undone"
 	;;
 tolerance)
 	# T on a session without tolerances says so; with them it shows the
@@ -438,8 +448,10 @@ tolerance)
 	wait_for "Convergence"
 	keys T
 	wait_for "worst case over 4 corners"
+	# Columns nominal, minimum, maximum, as the CLI prints them.
+	screen | grep -qE '\| +nominal +minimum +maximum' || fail "columns not nominal, minimum, maximum"
 	row=$(screen | grep -oE 'current +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A')
-	tmin=$(awk '{ print $2 " " $3 }' <<<"$row")
+	tmin=$(awk '{ print $4 " " $5 }' <<<"$row")
 	tmax=$(awk '{ print $6 " " $7 }' <<<"$row")
 	close_to "$(eng "$tmin")" "$(eng "$cli_min")" 1e-4 || fail "worst min $tmin, CLI $cli_min"
 	close_to "$(eng "$tmax")" "$(eng "$cli_max")" 1e-4 || fail "worst max $tmax, CLI $cli_max"
@@ -472,12 +484,14 @@ sensitivity)
 	echo "ok: the sensitivity of I to rs on screen ($si) matches the CLI ($cli_si)"
 	;;
 sweep)
-	# W replaces the load line with the device current against RS from
-	# RS/10 to RS*10 on a log axis; the mark for RS = 3.3k sits between the
+	# W asks what to sweep, starting from the selected row: RS from RS/10
+	# to RS*10 on a log axis; the mark for RS = 3.3k sits between the
 	# 1 kohm and 10 kohm ticks (log10 3300 = 3.52); } moves it; Esc goes back.
 	start 100 30 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"
-	keys W
+	keys Down W
+	wait_for "sweep (parameter FROM..TO, then log or lin) = rs 330ohm..33kohm log"
+	keys Enter
 	wait_for "I vs RS (log) @ 3.3 kohm"
 	wait_for "I^ RS>"
 	plot=$(screen | sed -n '2,29p' | cut -c1-56)
@@ -496,12 +510,49 @@ sweep)
 	# one cell of rounding is 4 % of this decade.
 	frac=$(awk -v m="$cm" -v a="$c1" -v b="$c10" 'BEGIN { printf "%.3f", (m - a) / (b - a) }')
 	close_to "$frac" 0.519 0.1 || fail "mark at $frac of the decade, log10(3.3) = 0.519"
-	keys Down '}'
+	keys '}'
 	wait_for "I vs RS (log) @ 3.6 kohm"
+	# Any parameter: the temperature, linear; a bad range says why.
+	keys W C-u "temperature -40..125 lin" Enter
+	wait_for "I vs T @ 25 degC"
+	keys W C-u "temperature 5..5 lin" Enter
+	wait_for "FROM and TO are the same"
+	keys C-u "vs -5..5 log" Enter
+	wait_for "a log sweep needs FROM and TO of one sign"
+	keys C-u "nosuch 1..2" Enter
+	wait_for "nosuch"
+	keys Escape
 	keys Escape
 	wait_for "I^ V>"
-	wait_gone "I vs RS"
-	echo "ok: sweep mark at $frac of the 1k-10k decade; } moved it to 3.6k; Esc back"
+	wait_gone "I vs"
+	echo "ok: sweep mark at $frac of the 1k-10k decade; } moved it to 3.6k; T swept; bad ranges refused"
+	;;
+folds)
+	# A tunnel diode behind 300 ohm has a folded curve: swept in VS the
+	# circuit jumps up at one value and down at a lower one (hysteresis),
+	# the values 'biasline sweep' reports as its folds.
+	cp "$samples/tunnel-diode-negative-slope.yaml" "$work/t.yaml"
+	out=$("$bin" sweep --set rs=300 --param vs --from 0 --to 1 --points 61 "$work/t.yaml") ||
+		fail "'biasline sweep' exited $?"
+	nf=$(grep -ciE 'fold' <<<"$out")
+	[ "$nf" -ge 1 ] || { echo "$out"; fail "the CLI reports no fold"; }
+	start 100 30 "$work/t.yaml"
+	wait_for "Convergence"
+	keys Down e C-u 300 Enter
+	wait_for "RS       300 ohm"
+	keys W C-u "vs 0..1 lin" Enter
+	wait_for "I vs VS @ 225.85 mV"
+	wait_for "':' marks the jumps: at"
+	line=$(screen | grep -oE "at [0-9.]+ mV going up, at [0-9.]+ mV going down")
+	up=$(awk '{ print $2 }' <<<"$line")
+	down=$(awk '{ print $7 }' <<<"$line")
+	awk -v u="$up" -v d="$down" 'BEGIN { exit !(u > d) }' || fail "jump up $up mV not above jump down $down mV"
+	# The jumps are the CLI's folds: going up at the higher, down at the lower.
+	read -r f1 f2 <<<"$(grep -E '^ *fold:' <<<"$out" | grep -oE 'vs = [0-9.]+ mV' | awk '{ print $3 }' | sort -n | tr '\n' ' ')"
+	close_to "$up" "$f2" 2e-3 || fail "jump up at $up mV, the CLI's upper fold is $f2 mV"
+	close_to "$down" "$f1" 2e-3 || fail "jump down at $down mV, the CLI's lower fold is $f1 mV"
+	[ "$(screen | grep -c ':')" -ge 10 ] || fail "no column of ':' on the plot"
+	echo "ok: the jumps at $up mV going up and $down mV going down are marked"
 	;;
 thermal)
 	# The runaway sample: H shows the thermal plane, g runs the thermal
@@ -1075,6 +1126,143 @@ idle)
 	state=$(awk '{ print $3 }' "/proc/$pid/stat")
 	[ "$state" = S ] || fail "idle process state is $state, not S (sleeping)"
 	echo "ok: asleep in a blocking read while idle"
+	;;
+ledquestion)
+	# The whole question from the front end alone, on one 80x24 screen,
+	# from a session without tolerances, ratings or target: RS +-5 %, VS
+	# +-10 %, a 10 mA target, a 250 mW resistor; design, apply the nearest
+	# E24 value, read its worst case and verdict, save; the saved file
+	# differs only by the new sections and RS, and 'biasline design
+	# --worst-case' on it gives the same worst case.
+	cp "$samples/indicator-led-24v.yaml" "$work/led.yaml"
+	grep -qE '^(tolerances|ratings|target):' "$work/led.yaml" && fail "the sample already has the sections"
+	start 80 24 "$work/led.yaml"
+	wait_for "Convergence"
+	keys Down %
+	wait_for "tolerance on RS"
+	keys C-u 5% Enter
+	wait_for "RS       3.3 kohm +-5%"
+	keys Up %
+	wait_for "tolerance on VS"
+	keys C-u 10% Enter
+	wait_for "VS       24 V +-10%"
+	keys t
+	wait_for "target ("
+	keys C-u 10mA Enter
+	wait_for "target 10 mA: error"
+	keys R
+	wait_for "rating KEY=VALUE"
+	keys C-u resistor_power=250m Enter
+	wait_for "Ratings: caution"
+	wait_for "RS 145.3 mW"
+	keys D
+	wait_for "Design: device current 10 mA, solving for RS (E24)"
+	wait_for "worst case over the tolerances"
+	row=$(screen | grep -E '^ *\| > (lower|higher) ' | tail -1 | sed 's/^ *| > //; s/ *|.*$//')
+	[ -n "$row" ] || fail "no chosen row in the worst-case table"
+	read -r kind v1 v2 imin1 imin2 imax1 imax2 p1 p2 rest <<<"$row"
+	verdict=$(grep -oE '(within rating|caution|over rating|no rating)' <<<"$rest")
+	screen | grep -qF "$kind $v1 $v2: RS dissipates" || fail "no worst-case words for the chosen row"
+	keys Enter
+	wait_for "(the $kind row of the design"
+	wait_for "RS       $v1 $v2 +-5%"
+	# The verdict at worst, in the tolerance view of the applied design.
+	keys T
+	wait_for "ratings at worst (each part at its own extreme): $verdict"
+	tline=$(screen | grep -oE 'RS dissipates [0-9.]+ mW at worst')
+	keys Escape
+	wait_gone "Tolerance:"
+	keys s
+	wait_for "saved led.yaml"
+	d=$(diff "$samples/indicator-led-24v.yaml" "$work/led.yaml")
+	# Only RS and the three new sections differ.
+	changed=$(grep -E '^[<>]' <<<"$d" | grep -vE '^> *(target:|ratings:|tolerances:|current:|resistor_power:|rs:|vs:)' |
+		grep -vE '^[<>] +rs: ')
+	[ -z "$changed" ] || { echo "$d"; fail "the save changed more than RS and the new sections"; }
+	grep -qE '^< +rs: +3.3 k' <<<"$d" && grep -qE '^> +rs: ' <<<"$d" || { echo "$d"; fail "RS not rewritten in place"; }
+	"$bin" check "$work/led.yaml" >/dev/null || fail "the saved file does not check"
+	out=$("$bin" design --worst-case "$work/led.yaml") || fail "'biasline design --worst-case' exited $?"
+	cli=$(awk -v k="$kind" '/worst case over/ { on = 1 } on && $1 == k && $NF != "" { print; exit }' <<<"$out")
+	[ -n "$cli" ] || { echo "$out"; fail "no $kind row in the CLI's worst case"; }
+	read -r ck cv1 cv2 cn1 cn2 cmin1 cmin2 cmax1 cmax2 cp1 cp2 cverdict <<<"$cli"
+	close_to "$(eng "$v1 $v2")" "$(eng "$cv1 $cv2")" 1e-9 || fail "value $v1 $v2, CLI $cv1 $cv2"
+	close_to "$(eng "$imin1 $imin2")" "$(eng "$cmin1 $cmin2")" 1e-3 || fail "I min $imin1 $imin2, CLI $cmin1 $cmin2"
+	close_to "$(eng "$imax1 $imax2")" "$(eng "$cmax1 $cmax2")" 1e-3 || fail "I max $imax1 $imax2, CLI $cmax1 $cmax2"
+	close_to "$(eng "$p1 $p2")" "$(eng "$cp1 $cp2")" 1e-3 || fail "P(RS) max $p1 $p2, CLI $cp1 $cp2"
+	[ "${cverdict#$verdict}" != "$cverdict" ] || fail "verdict '$verdict', CLI '$cverdict'"
+	grep -qF "$tline" <<<"$("$bin" tolerance "$work/led.yaml")" || fail "'$tline' is not what 'biasline tolerance' says"
+	echo "ok: $kind $v1 $v2: I $imin1 $imin2 .. $imax1 $imax2, P(RS) $p1 $p2, $verdict, as 'design --worst-case'; saved"
+	;;
+zenerdesign)
+	# A Zener shunt on a negative supply designed in the front end for a
+	# reverse current: the rows and the worst case are the CLI's.
+	cp "$samples/zener-shunt-5v1.yaml" "$work/z.yaml"
+	out=$("$bin" design --current -8m --worst-case "$work/z.yaml") || fail "'biasline design' exited $?"
+	start 80 24 "$work/z.yaml"
+	wait_for "Convergence"
+	keys D
+	wait_for "Design: device current -5 mA, solving for RS (E24)"
+	keys t
+	wait_for "design: target ("
+	keys C-u -8mA Enter
+	wait_for "Design: device current -8 mA, solving for RS (E24)"
+	row=$(screen | grep -E '^ *\| > (lower|higher) ' | head -1 | sed 's/^ *| > //')
+	read -r kind v1 v2 vv1 vv2 i1 i2 rest <<<"$row"
+	cli=$(awk -v k="$kind" '$1 == k { print; exit }' <<<"$out")
+	grep -qF "(nearest)" <<<"$cli" || { echo "$out"; fail "the chosen $kind row is not the CLI's nearest"; }
+	read -r ck cv1 cv2 cvv1 cvv2 ci1 ci2 crest <<<"$cli"
+	close_to "$(eng "$v1 $v2")" "$(eng "$cv1 $cv2")" 1e-9 || fail "value $v1 $v2, CLI $cv1 $cv2"
+	close_to "$(eng "$i1 $i2")" "$(eng "$ci1 $ci2")" 1e-3 || fail "current $i1 $i2, CLI $ci1 $ci2"
+	wrow=$(screen | grep -E '^ *\| > (lower|higher) ' | sed -n 2p | sed 's/^ *| > //')
+	read -r wk wv1 wv2 wmin1 wmin2 wrest <<<"$wrow"
+	wcli=$(awk -v k="$kind" '/worst case over/ { on = 1 } on && $1 == k { print; exit }' <<<"$out")
+	read -r x1 x2 x3 x4 x5 cmin1 cmin2 xrest <<<"$wcli"
+	close_to "$(eng "$wmin1 $wmin2")" "$(eng "$cmin1 $cmin2")" 1e-3 || fail "I min $wmin1 $wmin2, CLI $cmin1 $cmin2"
+	keys Enter
+	wait_for "(the $kind row of the design"
+	title_point
+	close_to "$(eng "$TI")" "$(eng "$i1 $i2")" 1e-3 || fail "point $TI after applying, the row said $i1 $i2"
+	echo "ok: Zener shunt for -8 mA: $kind $v1 $v2 gives $i1 $i2 (CLI $ci1 $ci2), applied"
+	;;
+networkdesign)
+	# A part of a network source designed and swept: D solves for the first
+	# resistor (never "RS"), as 'design --solve-for source.network.NAME';
+	# W then sweeps that part (its Thevenin resistance is finite).
+	cp "$samples/split-supply-bias.yaml" "$work/n.yaml"
+	part="source.network.upper divider"
+	out=$("$bin" design --current 2m --solve-for "$part" "$work/n.yaml") || fail "'biasline design' exited $?"
+	near=$(awk '/\(nearest\)/ { print $1 " " $2 " " $3; exit }' <<<"$out")
+	[ -n "$near" ] || { echo "$out"; fail "no nearest row from the CLI"; }
+	start 80 24 "$work/n.yaml"
+	wait_for "Convergence"
+	keys D
+	wait_for "design: target ("
+	keys C-u 2m Enter
+	wait_for "Design: device current 2 mA, solving for upper divider (E24)"
+	screen | grep -qF "solving for RS" && fail "the network design claims RS"
+	row=$(screen | grep -E '^ *\| > (lower|higher) ' | head -1 | sed 's/^ *| > //')
+	read -r kind v1 v2 rest <<<"$row"
+	[ "$kind $v1 $v2" = "$near" ] || fail "chosen row $kind $v1 $v2, the CLI's nearest is $near"
+	keys Enter
+	wait_for "upper divider $v1 $v2"
+	title_point
+	ci=$(awk -v k="$kind" '$1 == k { print $6 " " $7; exit }' <<<"$out")
+	close_to "$(eng "$TI")" "$(eng "$ci")" 1e-3 || fail "point $TI, CLI $ci"
+	# Another part by its name: s in the view.
+	keys D
+	wait_for "Design: device current 2 mA"
+	keys s
+	wait_for "design: solve for"
+	keys C-u "emitter resistor" Enter
+	wait_for "solving for emitter resistor (E24)"
+	keys Escape
+	# The sweep starts at the applied part, a decade either side.
+	keys W
+	wait_for "sweep (parameter FROM..TO, then log or lin) = upper divider "
+	keys Enter
+	wait_for "I vs upper divider (log) @ $v1 $v2"
+	screen | grep -qF "no finite" && fail "the sweep refused the network"
+	echo "ok: network part designed ($kind $v1 $v2, CLI $near), applied and swept"
 	;;
 valgrind)
 	command -v valgrind >/dev/null 2>&1 || { echo "valgrind not found: skipped"; exit 77; }
