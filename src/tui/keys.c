@@ -269,7 +269,7 @@ static const struct key_binding key_table[] = {
 	{ { 0 }, "m", "(tolerance) Monte Carlo", DOC },
 	{ { 'S' }, "S", "sensitivities, % per %", OPEN(pane_sens) },
 	{ { 'W' }, "W", "sweep any value: I vs it", OPEN(pane_sweep) },
-	{ { 'H' }, "H", "thermal plane: self-heating", RUN(key_thermal) },
+	{ { 'H' }, "H", "self-heating plane", RUN(key_thermal) },
 	{ { 0 }, "Up/Down", "(view) choose a row", DOC },
 	{ { 0 }, "Enter", "(view) apply the row", DOC },
 	{ { 0 }, "t s", "(design) target, unknown", DOC },
