@@ -416,6 +416,50 @@ static size_t pane_vlines(struct app *a, double v, double i, int w,
 	return m;
 }
 
+/* True when A's session has a target. */
+static bool pane_has_target(const struct app *a)
+{
+	const struct session_target *t = &a->s.analysis.target;
+	return isfinite(t->current) || isfinite(t->voltage) || isfinite(t->power);
+}
+
+/*
+ * Without ratings or a target: the parts' powers packed whole onto as few
+ * lines as they take ("RS 145.3 mW  source 159.3 mW"), with no header; the
+ * device's power is left out when the point's line shows it.  Rows used.
+ */
+static int pane_powers(struct app *a, int row, int col, int w, int max)
+{
+	size_t k = a->point < a->res.n ? a->point : 0;
+	struct verdict vd;
+	session_verdict(&a->s, &a->pb, a->res.pts[k].v, a->res.pts[k].i, &vd);
+	char line[256] = "";
+	int lw = 0, used = 0;
+	for (size_t j = 0; j <= vd.nlines && used < max; j++) {
+		char item[160] = "", two[160];
+		int iw = 0;
+		if (j < vd.nlines) {
+			if (vd.lines[j].part == VERDICT_DEVICE_POWER && a->res.n == 1)
+				continue;
+			app_verdict_text(a, &vd.lines[j], w, item, two, sizeof item);
+			iw = render_text_width(item);
+		}
+		if (j == vd.nlines || (lw > 0 && lw + 2 + iw > w)) {
+			if (lw > 0)
+				term_text(&a->term, row + used++, col, line, w, TS_NORMAL);
+			line[0] = '\0';
+			lw = 0;
+		}
+		if (j < vd.nlines) {
+			size_t len = strlen(line);
+			snprintf(line + len, sizeof line - len, "%s%s", lw > 0 ? "  " : "",
+			         item);
+			lw += (lw > 0 ? 2 : 0) + iw;
+		}
+	}
+	return used;
+}
+
 /*
  * Draw the ratings section (its header and lines) in at most MAX rows;
  * returns rows used.  When the lines do not all fit, the least important
@@ -443,6 +487,8 @@ static int pane_ratings(struct app *a, int row, int col, int w, int max)
 	}
 	/* The rows left go to the first lines of the next level. */
 	int extra = max - 1 - c;
+	if (!rated && !pane_has_target(a))
+		return pane_powers(a, row, col, w, max);
 	char title[96];
 	if (rated)
 		snprintf(title, sizeof title, "Ratings: %s", ratings_verdict_name(worst));
@@ -469,8 +515,11 @@ static int pane_ratings_need(struct app *a, int w)
 	enum ratings_verdict worst;
 	bool rated;
 	size_t k = a->point < a->res.n ? a->point : 0;
-	return 1 + (int)pane_vlines(a, a->res.pts[k].v, a->res.pts[k].i, w, ln,
-	                            &worst, &rated);
+	int n = (int)pane_vlines(a, a->res.pts[k].v, a->res.pts[k].i, w, ln,
+	                         &worst, &rated);
+	if (!rated && !pane_has_target(a))
+		return n;   /* at most: packed, without a header */
+	return 1 + n;
 }
 
 /* Draw the parameter list (scrolled to keep the selection); rows used. */

@@ -612,7 +612,8 @@ network)
 	wait_for "[modified]"
 	title_point
 	[ "$TI" != "$before" ] || fail "the point did not move"
-	keys Down Down Down
+	keys Down Down Down Down
+	wait_for "RS (net)"
 	wait_for "VS (net)"
 	vs=$(screen | grep -oE 'VS \(net\) [0-9.]+ [mk]?V' | awk '{ print $3 " " $4 }')
 	rs=$(screen | grep -oE 'RS \(net\) [0-9.]+ [mk]?ohm' | awk '{ print $3 " " $4 }')
@@ -624,7 +625,7 @@ network)
 	# The equivalent itself stays read-only; } steps a network resistor.
 	keys e
 	wait_for "change one of the network"
-	keys Up Up Up '}'
+	keys Up Up Up Up '}'
 	wait_for "upper divider 62 kohm"
 	# Saving writes the part's new value into the network.
 	keys s
