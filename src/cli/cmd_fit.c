@@ -25,6 +25,7 @@
 #include "core/fit.h"
 #include "core/models/models.h"
 #include "session/points_file.h"
+#include "session/session_fit.h"
 #include "session/session_text.h"
 
 /* Output formats. */
@@ -235,48 +236,37 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 /* The points fitted, whichever source they came from. */
 struct fit_input {
 	const char *source;           /* file name for messages */
-	struct points_table table;    /* when read from a file */
+	struct session_fit_points pts;
 	size_t n;
 	const double *x, *y, *t;
 	const unsigned *line;         /* file line of each row, or NULL */
 };
+
+/* Take IN's points from IN->pts. */
+static void fit_input_take(struct fit_input *in)
+{
+	in->n = in->pts.n;
+	in->x = in->pts.x;
+	in->y = in->pts.y;
+	in->t = in->pts.t;
+	in->line = in->pts.line;
+}
 
 /* Read the points of FILE for TYPE's axes into IN; returns 0 or the exit
  * status after printing why. */
 static int fit_read_points(const char *file, const struct model_type *type,
                            struct fit_input *in)
 {
-	struct points_spec spec = { .ncols = 3, .max_rows = FIT_MAX_POINTS };
-	if (fit_model_axes(type) == FIT_AXES_TR) {
-		spec.ncols = 2;
-		spec.role[0] = POINTS_TEMPERATURE;
-		spec.role[1] = POINTS_RESISTANCE;
-	} else {
-		spec.role[0] = POINTS_VOLTAGE;
-		spec.role[1] = POINTS_CURRENT;
-		spec.role[2] = POINTS_TEMPERATURE;
-		spec.optional[2] = true;
-	}
 	struct session_error err;
-	enum session_status st = points_file_read(file, "", &spec, &in->table, &err);
+	enum session_status st = session_fit_read(file, type, &in->pts, &err);
 	if (st != SESSION_OK) {
 		char msg[1024];
 		session_error_format(&err, msg, sizeof msg);
 		fprintf(stderr, "biasline fit: %s\n", msg);
 		return (int)cli_exit_from_session(st);
 	}
-	if (in->table.n == 0) {
-		fprintf(stderr, "biasline fit: %s: no points (only blank lines, "
-		        "comments or a header)\n", file);
-		points_table_fini(&in->table);
-		return EXIT_DATA;
-	}
 	in->source = file;
-	in->n = in->table.n;
-	in->x = in->table.col[0];
-	in->y = in->table.col[1];
-	in->t = spec.ncols == 3 && in->table.present[2] ? in->table.col[2] : NULL;
-	in->line = in->table.line;
+	fit_input_take(in);
 	return 0;
 }
 
@@ -758,6 +748,19 @@ static int fit_write_into(struct session *se, struct session_text *text,
 	}
 	bool was_points = se->device.type != t && se->curve != NULL;
 	se->device = dev;   /* a measured device's table stays owned by SE */
+	/* The points file, for whoever looks at the fit again (the front
+	 * end's points view): none when the points were the session's own. */
+	char name[1024];
+	free(se->fitted_to);
+	se->fitted_to = NULL;
+	if (in->pts.owned &&
+	    session_fitted_name(in->source, path, name, sizeof name) == 0) {
+		se->fitted_to = strdup(name);
+		if (se->fitted_to == NULL) {
+			fprintf(stderr, "biasline fit: out of memory\n");
+			return EXIT_SOFTWARE;
+		}
+	}
 	char record[1400];
 	fit_record(res, in, record, sizeof record);
 	int put = fit_put_record(text, record);
@@ -845,12 +848,8 @@ int cmd_fit(int argc, char **argv)
 		session_text_fini(&text);
 		return EXIT_USAGE;
 	}
-	struct fit_request rq = { .type = type, .weight = a.weight };
-	struct device def;
-	device_init(&def, type);
-	memcpy(rq.p, def.p, sizeof rq.p);
-	if (have_session && se.device.type == type)
-		memcpy(rq.p, se.device.p, sizeof rq.p);
+	struct fit_request rq;
+	session_fit_request(have_session ? &se : NULL, type, a.weight, &rq);
 	for (size_t k = 0; k < a.nfix; k++)
 		if (fit_apply_fix(a.fix[k], &rq) != 0) {
 			if (have_session)
@@ -868,11 +867,9 @@ int cmd_fit(int argc, char **argv)
 			session_text_fini(&text);
 			return code;
 		}
-	} else if (se.curve != NULL && fit_model_axes(type) == FIT_AXES_VI) {
+	} else if (session_fit_own(&se, type, &in.pts) == 0) {
 		in.source = a.session;
-		in.n = se.curve->n;
-		in.x = se.curve->v;
-		in.y = se.curve->i;
+		fit_input_take(&in);
 	} else {
 		fprintf(stderr, "biasline fit: %s has no measured points to fit "
 		        "(a measured device's points: or points_file:); give "
@@ -881,10 +878,7 @@ int cmd_fit(int argc, char **argv)
 		session_text_fini(&text);
 		return EXIT_USAGE;
 	}
-	rq.n = in.n;
-	rq.x = in.x;
-	rq.y = in.y;
-	rq.t = in.t;
+	session_fit_use(&rq, &in.pts);
 
 	struct fit_result res;
 	enum fit_status st = fit_run(&rq, &res);
@@ -904,8 +898,7 @@ int cmd_fit(int argc, char **argv)
 		code = fit_write_into(&se, &text, a.session, &res, &in);
 	fit_result_fini(&res);
 	session_text_fini(&text);
-	if (a.points != NULL)
-		points_table_fini(&in.table);
+	session_fit_points_fini(&in.pts);
 	if (have_session)
 		session_fini(&se);
 	/* a failed write is reported by cli_finish_output (main.c) */

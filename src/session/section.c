@@ -428,6 +428,25 @@ int emit_scalar(struct emit_ctx *e, const char *text, bool plain)
 	return emit_event(e, &ev);
 }
 
+/* V as the shortest text that reads back exactly, in fixed notation when
+ * that is exact ("1500" reads better than "1.5e+03"), into BUF (N >= 40). */
+void emit_number_text(char *buf, size_t n, double v)
+{
+	qty_format_exact(buf, n, v);
+	if (strstr(buf, "e+") != NULL && fabs(v) < 1e15) {
+		for (int d = 0; d <= 17; d++) {
+			char fixed[40];
+			double back;
+			snprintf(fixed, sizeof fixed, "%.*f", d, v);
+			if (qty_parse(fixed, QTY_NUMBER, &back, NULL, 0) == QTY_OK &&
+			    memcmp(&back, &v, sizeof v) == 0) {
+				snprintf(buf, n, "%s", fixed);
+				break;
+			}
+		}
+	}
+}
+
 /* Emit V as an exact plain number. */
 int emit_number(struct emit_ctx *e, double v)
 {
@@ -438,20 +457,7 @@ int emit_number(struct emit_ctx *e, double v)
 		return -1;
 	}
 	char buf[40];
-	qty_format_exact(buf, sizeof buf, v);
-	/* "1500" reads better than "1.5e+03": use fixed notation when exact */
-	if (strstr(buf, "e+") != NULL && fabs(v) < 1e15) {
-		for (int d = 0; d <= 17; d++) {
-			char fixed[40];
-			double back;
-			snprintf(fixed, sizeof fixed, "%.*f", d, v);
-			if (qty_parse(fixed, QTY_NUMBER, &back, NULL, 0) == QTY_OK &&
-			    memcmp(&back, &v, sizeof v) == 0) {
-				memcpy(buf, fixed, sizeof fixed);
-				break;
-			}
-		}
-	}
+	emit_number_text(buf, sizeof buf, v);
 	return emit_scalar(e, buf, true);
 }
 

@@ -164,6 +164,7 @@ bool field_present_finite(const struct session_field *f,
 /* Emitter helpers: each returns 0, or -1 with the error recorded. */
 int emit_scalar(struct emit_ctx *e, const char *text, bool plain);
 int emit_number(struct emit_ctx *e, double v);
+void emit_number_text(char *buf, size_t n, double v);
 int emit_mapping_start(struct emit_ctx *e, bool flow);
 int emit_mapping_end(struct emit_ctx *e);
 int emit_sequence_start(struct emit_ctx *e, bool flow);

@@ -557,7 +557,7 @@ static int tol_save_plus_minus(struct emit_ctx *e,
 	if (t->form == SESSION_TOL_ABSOLUTE)
 		return emit_number(e, t->a);
 	char buf[48];
-	qty_format_exact(buf, sizeof buf - 1, t->a);
+	emit_number_text(buf, sizeof buf - 1, t->a);   /* 10%, not 1e+01% */
 	strcat(buf, "%");
 	return emit_scalar(e, buf, true);
 }

@@ -58,7 +58,7 @@ static void device_unknown_model(struct load_ctx *c, const struct ynode *v,
 static void device_unknown_key(struct load_ctx *c, const struct model_type *type,
                                const struct ynode *k, const char *path)
 {
-	const char *cands[MODEL_MAX_PARAMS + 4];
+	const char *cands[MODEL_MAX_PARAMS + 5];
 	size_t n = 0;
 	cands[n++] = "model";
 	if (type->presets != NULL)
@@ -67,6 +67,7 @@ static void device_unknown_key(struct load_ctx *c, const struct model_type *type
 		cands[n++] = "points";
 		cands[n++] = "points_file";
 	}
+	cands[n++] = "fitted_to";
 	for (size_t j = 0; j < type->nparams; j++)
 		cands[n++] = type->params[j].key;
 	char found[96];
@@ -248,6 +249,33 @@ static int device_points_path(const char *name, const char *rel, char *buf,
 }
 
 /*
+ * Load fitted_to: FILE, the points file the device was fitted to (written
+ * by 'biasline fit --into'; read by the front end's points view).  Only
+ * the name is kept: the file is read when someone looks at it.
+ */
+static int device_load_fitted_to(struct load_ctx *c, const struct ynode *v,
+                                 const char *path)
+{
+	if (section_need_scalar(c, v, path, "a file name") != 0)
+		return -1;
+	if (v->len == 0 || memchr(v->text, '\0', v->len) != NULL) {
+		ytree_error(c->err, c->name, v, path,
+		            "found an empty name, expected the points file's name");
+		return -1;
+	}
+	char *t = malloc(v->len + 1);
+	if (t == NULL) {
+		ytree_error(c->err, c->name, v, path, "out of memory");
+		return -1;
+	}
+	memcpy(t, v->text, v->len);
+	t[v->len] = '\0';
+	free(c->s->fitted_to);
+	c->s->fitted_to = t;
+	return 0;
+}
+
+/*
  * Load points_file: V, a table of V,I rows beside the session (the format
  * of points_file.h: comma, semicolon or tab separated, '#' comments, a
  * header with names and units), into the session's table.  Errors name
@@ -373,7 +401,7 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 		return -1;
 
 	const struct ynode *seen[MODEL_MAX_PARAMS] = { NULL };
-	const struct ynode *pointskey = NULL;
+	const struct ynode *pointskey = NULL, *fittedkey = NULL;
 	for (size_t k = 0; k + 1 < map->nkids; k += 2) {
 		const struct ynode *kn = map->kids[k];
 		const struct ynode *v = map->kids[k + 1];
@@ -396,6 +424,18 @@ static int device_load(struct load_ctx *c, const struct session_section *sec,
 			pointskey = kn;
 			if ((inline_points ? device_load_points(c, kn, v, sub)
 			                   : device_load_points_file(c, v, sub)) != 0)
+				return -1;
+			continue;
+		}
+		if (strcmp(kn->text, "fitted_to") == 0) {
+			if (fittedkey != NULL) {
+				ytree_error(c->err, c->name, kn, sub,
+				            "duplicate key (first given on line %u), "
+				            "expected each key once", fittedkey->line);
+				return -1;
+			}
+			fittedkey = kn;
+			if (device_load_fitted_to(c, v, sub) != 0)
 				return -1;
 			continue;
 		}
@@ -507,6 +547,10 @@ static int device_save(struct emit_ctx *e, const struct session_section *sec,
 		if (emit_sequence_end(e) != 0)
 			return -1;
 	}
+	if (s->fitted_to != NULL &&
+	    (emit_scalar(e, "fitted_to", true) != 0 ||
+	     emit_scalar(e, s->fitted_to, false) != 0))
+		return -1;
 	return emit_mapping_end(e);
 }
 

@@ -54,6 +54,7 @@ void session_init(struct session *s)
 	reactive_parts_init(&s->reactive);
 	session_analysis_init(&s->analysis);
 	s->notes = NULL;
+	s->fitted_to = NULL;
 }
 
 /* Free the measured table C (NULL is fine). */
@@ -89,6 +90,8 @@ void session_fini(struct session *s)
 {
 	free(s->notes);
 	s->notes = NULL;
+	free(s->fitted_to);
+	s->fitted_to = NULL;
 	/* the device only borrows the table: drop the pointer with it */
 	if (s->device.curve == s->curve)
 		s->device.curve = NULL;
@@ -109,8 +112,19 @@ int session_copy(struct session *dst, const struct session *src)
 			return -1;
 		memcpy(notes, src->notes, n);
 	}
+	char *fitted = NULL;
+	if (src->fitted_to != NULL) {
+		size_t n = strlen(src->fitted_to) + 1;
+		fitted = malloc(n);
+		if (fitted == NULL) {
+			free(notes);
+			return -1;
+		}
+		memcpy(fitted, src->fitted_to, n);
+	}
 	struct network *net = NULL;
 	if (src->network != NULL && (net = network_copy(src->network)) == NULL) {
+		free(fitted);
 		free(notes);
 		return -1;
 	}
@@ -122,6 +136,7 @@ int session_copy(struct session *dst, const struct session *src)
 		if (curve == NULL || curve_data_copy(curve, src->curve) != 0) {
 			free(curve);
 			network_destroy(net);
+			free(fitted);
 			free(notes);
 			return -1;
 		}
@@ -132,13 +147,17 @@ int session_copy(struct session *dst, const struct session *src)
 	struct curve_data *old_curve = dst->curve;
 	if (dst != src) {
 		free(dst->notes);
+		free(dst->fitted_to);
 		network_destroy(dst->network);
 		*dst = *src;
 	} else {
+		free(dst->notes);
+		free(dst->fitted_to);
 		network_destroy(dst->network);
 	}
 	session_curve_free(old_curve);
 	dst->notes = notes;
+	dst->fitted_to = fitted;
 	dst->network = net;
 	dst->curve = curve;
 	dst->device.curve = borrowed;
@@ -201,6 +220,9 @@ bool session_equal(const struct session *a, const struct session *b)
 	                  b->reactive.capacitance_across_device) ||
 	    !session_same(a->reactive.inductance_in_series,
 	                  b->reactive.inductance_in_series))
+		return false;
+	if ((a->fitted_to == NULL) != (b->fitted_to == NULL) ||
+	    (a->fitted_to != NULL && strcmp(a->fitted_to, b->fitted_to) != 0))
 		return false;
 	if ((a->notes == NULL) != (b->notes == NULL))
 		return false;

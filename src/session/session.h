@@ -53,6 +53,10 @@ struct session {
 	                                   (NaN when not given) */
 	struct session_analysis analysis; /* target, ratings, tolerances */
 	char *notes;               /* free text, may be NULL */
+	char *fitted_to;           /* device.fitted_to: the points file the
+	                              device's parameters were fitted to, as
+	                              written (relative to the session file's
+	                              folder unless absolute), or NULL */
 };
 
 /* Exit-code style status of loading and saving (sysexits.h values). */

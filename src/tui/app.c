@@ -310,6 +310,29 @@ int app_param_set(struct app *a, const char *key, double value, char *err,
 	return 0;
 }
 
+/* Make DEV the session's device, remembering the old one. */
+int app_device_set(struct app *a, const struct device *dev, char *err,
+                   size_t errlen)
+{
+	struct device old = a->s.device;
+	struct device d = *dev;
+	d.curve = old.curve;   /* the session owns its table either way */
+	if (device_validate(&d, err, errlen) != 0)
+		return -1;
+	a->s.device = d;
+	struct problem pb;
+	if (session_problem(&a->s, &pb, err, errlen) != 0) {
+		a->s.device = old;
+		return -1;
+	}
+	struct app_change *c = app_undo_push(a, "device");
+	c->device = true;
+	c->old_device = old;
+	a->dirty = true;
+	app_resolve(a);
+	return 0;
+}
+
 /* True when KEY names a target, rating or tolerance. */
 bool app_key_is_analysis(const char *key)
 {
@@ -360,6 +383,14 @@ int app_undo(struct app *a)
 {
 	while (a->nundo > 0) {
 		struct app_change *cp = &a->undo[--a->nundo];
+		if (cp->device) {
+			a->s.device = cp->old_device;
+			a->dirty = true;
+			app_resolve(a);
+			app_message(a, false, "undone: the device is the %s again",
+			            a->s.device.type->name);
+			return 0;
+		}
 		if (cp->analysis) {
 			a->s.analysis = cp->old_analysis;
 			a->dirty = true;

@@ -64,6 +64,8 @@ struct app_change {
 	 * (params.c), had TEMP_OLD before the change: NaN when it did not move */
 	double temp_old;
 	struct session_analysis old_analysis;
+	bool device;            /* the whole device was OLD_DEVICE (a fit) */
+	struct device old_device;
 };
 
 /* What the panes share. */
@@ -170,6 +172,14 @@ int app_param_set(struct app *a, const char *key, double value, char *err,
  */
 int app_text_set(struct app *a, const char *key, const char *text, char *err,
                  size_t errlen);
+
+/*
+ * Make DEV (a model and its values; a measured device's table stays the
+ * session's) the session's device after checking it, remember the old one
+ * for undo, and solve again.  Returns 0, or -1 with ERR saying why.
+ */
+int app_device_set(struct app *a, const struct device *dev, char *err,
+                   size_t errlen);
 
 /* True when KEY names a target, rating or tolerance (app_text_set). */
 bool app_key_is_analysis(const char *key);

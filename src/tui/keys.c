@@ -268,6 +268,8 @@ static const struct key_binding key_table[] = {
 	{ { 'T' }, "T", "tolerance: worst case", OPEN(pane_tol) },
 	{ { 0 }, "m", "(tolerance) Monte Carlo", DOC },
 	{ { 'S' }, "S", "sensitivities, % per %", OPEN(pane_sens) },
+	{ { 'F' }, "F", "fitted points, residuals", OPEN(pane_fit) },
+	{ { 0 }, "f", "(points) fit them", DOC },
 	{ { 'W' }, "W", "sweep any value: I vs it", OPEN(pane_sweep) },
 	{ { 'H' }, "H", "self-heating plane", RUN(key_thermal) },
 	{ { 0 }, "Up/Down", "(view) choose a row", DOC },

@@ -7,7 +7,7 @@ const struct pane *const pane_table[] = {
 	&pane_title,
 	&pane_plot, &pane_sweep, &pane_thermal,
 	&pane_side,
-	&pane_design, &pane_tol, &pane_sens,
+	&pane_design, &pane_tol, &pane_sens, &pane_fit,
 	&pane_help,
 	&pane_prompt,
 };

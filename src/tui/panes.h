@@ -18,6 +18,7 @@ extern const struct pane pane_side;    /* point, parameters, diagnosis, table */
 extern const struct pane pane_design;  /* the design view */
 extern const struct pane pane_tol;     /* the tolerance view */
 extern const struct pane pane_sens;    /* the sensitivity view */
+extern const struct pane pane_fit;     /* the points view */
 extern const struct pane pane_help;    /* the help overlay */
 extern const struct pane pane_prompt;  /* the bottom line and its prompt */
 

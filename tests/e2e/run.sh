@@ -1265,6 +1265,56 @@ networkdesign)
 	screen | grep -qF "no finite" && fail "the sweep refused the network"
 	echo "ok: network part designed ($kind $v1 $v2, CLI $near), applied and swept"
 	;;
+fitview)
+	# F overlays the points the device was fitted to (device.fitted_to) on
+	# its curve with each point's residual; f fits the model to them and
+	# the parameters and residuals are those of 'biasline fit'.  A measured
+	# device's own points are fitted with a model typed at the prompt, the
+	# fit taken and undone.
+	cp "$samples/amber-panel-led.yaml" "$samples/amber-panel-led.csv" "$work/"
+	out=$("$bin" fit --model led --points "$work/amber-panel-led.csv") || fail "'biasline fit' exited $?"
+	cres=$(awk '$1 == "1" && $2 ~ /^[0-9]+$/ { print $(NF - 1); exit }' <<<"$out")
+	cvf=$(awk '$1 == "forward_voltage" { print $2 " " $3; exit }' <<<"$out")
+	[ -n "$cres" ] && [ -n "$cvf" ] || { echo "$out"; fail "no residual or forward_voltage from the CLI"; }
+	start 80 24 "$work/amber-panel-led.yaml"
+	wait_for "Convergence"
+	keys F
+	wait_for "Points and residuals"
+	wait_for "11 points of"
+	[ "$(screen | cut -c1-47 | grep -o 'x' | wc -l)" -ge 8 ] || fail "fewer than 8 points marked on the plot"
+	wait_for "the led: RMS"
+	keys f
+	wait_for "fit: RMS 1.5 %, 8 dof"
+	tres=$(screen | grep -E '^\| .* 1\.702 V +500 uA' | grep -oE '[-+][0-9.]+ %' | head -1 | awk '{ print $1 }')
+	close_to "$tres" "$cres" 0.02 || fail "first residual $tres %, CLI $cres %"
+	tvf=$(screen | grep -oE 'Vf [0-9.]+ [mk]?V' | awk '{ print $2 " " $3 }')
+	close_to "$(eng "$tvf")" "$(eng "$cvf")" 1e-4 || fail "Vf $tvf, CLI $cvf"
+	keys Escape
+	wait_gone "Points and residuals"
+	tmx kill-server
+	# The measured device: its own points, fitted with a typed model.
+	start 80 24 "$samples/measured-diode-curve.yaml"
+	wait_for "Convergence"
+	keys F
+	wait_for "the measured device's 9 points"
+	keys f
+	wait_for "fit which model"
+	keys C-u diode Enter
+	wait_for "fit: RMS"
+	keys Enter
+	wait_for "the device is the fitted diode now"
+	wait_for "Parameters (diode)"
+	keys u
+	wait_for "undone: the device is the measured again"
+	wait_for "Parameters (measured)"
+	tmx kill-server
+	# A device with no points says how to get them.
+	start 80 24 "$samples/indicator-led-24v.yaml"
+	wait_for "Convergence"
+	keys F
+	wait_for "device.fitted_to"
+	echo "ok: fitted points shown; residual $tres % (CLI $cres %), Vf $tvf (CLI $cvf); measured points fitted and undone"
+	;;
 valgrind)
 	command -v valgrind >/dev/null 2>&1 || { echo "valgrind not found: skipped"; exit 77; }
 	log=$work/valgrind.log

@@ -1088,6 +1088,40 @@ static void test_preset(void **state)
 	session_fini(&s);
 }
 
+/*
+ * device.fitted_to keeps the points file's name as written, through a
+ * canonical save and a copy, and counts in equality; a name YAML must
+ * quote comes back the same.
+ */
+static void test_fitted_to(void **state)
+{
+	(void)state;
+	static const char *const names[] = { "bench sweep.csv",
+	                                     "../data/led: run 3 #2.csv" };
+	for (size_t k = 0; k < 2; k++) {
+		char text[512];
+		snprintf(text, sizeof text,
+		         "source: {vs: 17.25, rs: 1.385k}\n"
+		         "device:\n  model: diode\n  saturation_current: 2.385e-12\n"
+		         "  ideality: 1.87\n  fitted_to: '%s'\n", names[k]);
+		struct session s, c;
+		struct session_error serr;
+		assert_int_equal(session_load_buffer(&s, "f.yaml", text, strlen(text),
+		                                     &serr), SESSION_OK);
+		assert_non_null(s.fitted_to);
+		assert_string_equal(s.fitted_to, names[k]);
+		check_round_trip(&s);
+		session_init(&c);
+		assert_int_equal(session_copy(&c, &s), 0);
+		assert_true(session_equal(&c, &s));
+		free(c.fitted_to);
+		c.fitted_to = NULL;
+		assert_false(session_equal(&c, &s));
+		session_fini(&c);
+		session_fini(&s);
+	}
+}
+
 /* Text that cannot be written as YAML fails cleanly: a status, no output. */
 static void test_save_refuses_bad_text(void **state)
 {
@@ -1115,6 +1149,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_bad_table),
+		cmocka_unit_test(test_fitted_to),
 		cmocka_unit_test(test_billion_laughs),
 		cmocka_unit_test(test_deep_nesting),
 		cmocka_unit_test(test_too_big),
