@@ -137,14 +137,17 @@ static void pane_tol_draw(struct app *a, void *self, const struct rect *box)
 	term_text(&a->term, top, left + 1, line, w - 2, TS_TITLE);
 	int row = top + 1, x = left + 2, cw = w - 4, end = top + h - 1;
 	/* Lines the rest needs: the worst case, its ratings, the trials. */
-	int need = 0;
+	int need = 0, words = 0;
 	if (t->have_wc) {
 		need += 2 + TOL_NOUT + 1;
 		for (size_t k = 0; k < t->vd.nlines; k++)
-			need += (int)render_wrap(t->vd.lines[k].words, cw - 2, NULL, 0);
+			words += (int)render_wrap(t->vd.lines[k].words, cw - 2, NULL, 0);
 	}
 	if (t->have_mc)
 		need += 3 + (int)t->mc.hist[TOL_CURRENT].nbins + 1;
+	/* The ratings in the CLI's words when they fit, else one line each. */
+	bool compact = row + need + words >= end;
+	need += compact ? (int)t->vd.nlines : words;
 	/* The tolerances themselves, as 'biasline tolerance' lists them, when
 	 * there is room (the side pane shows them beside each value too). */
 	if (t->have_case && row + 1 + (int)t->c.nitems + need < end) {
@@ -190,8 +193,14 @@ static void pane_tol_draw(struct app *a, void *self, const struct rect *box)
 			enum term_style st = l->verdict == RATINGS_OVER ? TS_ERROR
 			                     : l->verdict == RATINGS_CAUTION ? TS_HEADER
 			                     : TS_NORMAL;
-			row += pane_tol_wrap(a, row, x + 2, cw - 2, end - row, l->words,
-			                     st);
+			if (compact) {
+				char one[160], two[160];
+				app_verdict_text(a, l, cw - 2, one, two, sizeof one);
+				term_text(&a->term, row++, x + 2, one, cw - 2, st);
+			} else {
+				row += pane_tol_wrap(a, row, x + 2, cw - 2, end - row,
+				                     l->words, st);
+			}
 		}
 	}
 	if (t->msg[0] != '\0' && row < end)
