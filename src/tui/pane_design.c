@@ -419,8 +419,13 @@ static void pane_design_draw(struct app *a, void *self, const struct rect *box)
 		qty_format(c, sizeof c, d->res.i_target, QTY_CURRENT, 5, ascii);
 		snprintf(line, sizeof line, "device at the target: %s, %s", b, c);
 		term_text(&a->term, row++, x, line, cw, TS_NORMAL);
+		/* A stage's result (IC, VCE) is what its designer reads. */
+		bool result = d->rq.target == DESIGN_RESULT;
+		enum qty_kind rk = result ? design_request_unit(&a->pb, &d->rq)
+		                          : QTY_CURRENT;
 		snprintf(line, sizeof line, "  %-6s %-11s %-9s %-9s %-9s %s", "",
-		         render_text_width(un) <= 11 ? un : "value", "V", "I",
+		         render_text_width(un) <= 11 ? un : "value", "V",
+		         result ? pane_design_ylabel(a, d) : "I",
 		         part ? "P(device)" : "P(RS)", "error");
 		term_text(&a->term, row++, x, line, cw, TS_HEADER);
 		for (size_t k = 0; k < d->res.nrows && row < end; k++) {
@@ -432,7 +437,8 @@ static void pane_design_draw(struct app *a, void *self, const struct rect *box)
 				         design_row_name(r->kind), b);
 			} else {
 				qty_format_short(c, sizeof c, r->pt.v, QTY_VOLTAGE, 4, ascii);
-				qty_format_short(e, sizeof e, r->pt.i, QTY_CURRENT, 4, ascii);
+				qty_format_short(e, sizeof e, result ? r->achieved : r->pt.i,
+				                 rk, 4, ascii);
 				qty_format_short(f, sizeof f, part ? r->pt.power
 				                                   : r->power.p_resistor,
 				                 QTY_POWER, 4, ascii);
@@ -452,9 +458,7 @@ static void pane_design_draw(struct app *a, void *self, const struct rect *box)
 		/* Each standard row's worst case, as 'design --worst-case'. */
 		if (d->worst && row + 2 < end) {
 			const char *yl = pane_design_ylabel(a, d);
-			bool result = d->rq.target == DESIGN_RESULT;
-			enum qty_kind yk = result ? design_request_unit(&a->pb, &d->rq)
-			                          : QTY_CURRENT;
+			enum qty_kind yk = rk;
 			term_text(&a->term, row++, x, "worst case over the tolerances",
 			          cw, TS_HEADER);
 			char h1[48], h2[48];
