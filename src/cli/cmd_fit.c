@@ -11,6 +11,7 @@
  * constant) when its device is of the model fitted.  CSV goes through
  * the one writer (csv.h), exit statuses come from exit_status.h.
  */
+#include <ctype.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
@@ -601,6 +602,22 @@ static void fit_print_yaml(const struct fit_result *res,
 		if (isnan(res->p[i]))
 			printf("  # %s: required, and not in the points: set it here\n",
 			       t->params[i].key);
+	/* The points file, as given (device.fitted_to: the front end's
+	 * points view reads it); quoted when YAML would read it otherwise. */
+	if (in->pts.owned) {
+		bool plain = in->source[0] != '\0';
+		for (const char *c = in->source; *c != '\0'; c++)
+			if (!(isalnum((unsigned char)*c) || strchr("._/-+", *c) != NULL))
+				plain = false;
+		if (plain && strchr("-.", in->source[0]) == NULL) {
+			printf("  fitted_to: %s\n", in->source);
+		} else {
+			printf("  fitted_to: '");
+			for (const char *c = in->source; *c != '\0'; c++)
+				printf(*c == '\'' ? "''" : "%c", *c);
+			printf("'\n");
+		}
+	}
 }
 
 /* Print a refusal of the fit with where it points in the file. */

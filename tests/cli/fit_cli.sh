@@ -183,7 +183,10 @@ notes: |
 YAML
 cp "$tmp/panel.yaml" "$tmp/panel0.yaml"
 expect_exit 0 "$bl" fit --model led --points "$samples/amber-panel-led.csv" --into "$tmp/panel.yaml"
-expect_text "$tmp/err" "wrote the led device into $tmp/panel.yaml: 3 values rewritten, the rest kept as written"
+expect_text "$tmp/err" "wrote the led device into $tmp/panel.yaml: 4 values rewritten, the rest kept as written"
+# the points file is recorded beside the values, relative to the session
+# when it lies beside it, else whole (the sample's folder here)
+expect_text "$tmp/panel.yaml" "  fitted_to: $(cd "$samples" && pwd -P)/amber-panel-led.csv"
 n=$((n + 1))
 if diff "$tmp/panel0.yaml" "$tmp/panel.yaml" | grep -q '^<'; then
 	echo "not ok $n - --into removed or changed a line of the user's text"
