@@ -416,6 +416,16 @@ static size_t pane_vlines(struct app *a, double v, double i, int w,
 	return m;
 }
 
+/* True when A's session gives a rating or a target. */
+static bool pane_rated(const struct app *a)
+{
+	const struct ratings *r = &a->s.analysis.ratings;
+	const struct session_target *t = &a->s.analysis.target;
+	return isfinite(r->device_max_power) || isfinite(r->device_max_current) ||
+	       isfinite(r->resistor_power) || isfinite(t->current) ||
+	       isfinite(t->voltage) || isfinite(t->power);
+}
+
 /* True when A's session has a target. */
 static bool pane_has_target(const struct app *a)
 {
@@ -874,6 +884,9 @@ static void pane_side_draw(struct app *a, void *self, const struct rect *box)
 	int vmax = pane_ratings_need(a, w);
 	if (vmax > end - y - 13)
 		vmax = end - y - 13;
+	/* With ratings or a target, the worst line stays, whatever the room. */
+	if (vmax < 2 && pane_rated(a) && end - y > 8)
+		vmax = 2;
 	y += pane_ratings(a, y, x, w, vmax);
 
 	/* Share the rest.  The diagnosis gets the lines its text needs first
