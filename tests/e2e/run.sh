@@ -57,6 +57,13 @@ screen() { tmx capture-pane -p 2>/dev/null; }
 start() {
 	local w=$1 h=$2; shift 2
 	local cmd="exec $(printf '%q ' "$bin" "$@") 2>>$(printf '%q' "$work/stderr")"
+	# A server still shutting down after kill-server can refuse the first
+	# try ("server exited unexpectedly"): try again a few times.
+	local k
+	for ((k = 0; k < 5; k++)); do
+		tmx new-session -d -x "$w" -y "$h" "$cmd" 2>/dev/null && return 0
+		sleep 0.2
+	done
 	tmx new-session -d -x "$w" -y "$h" "$cmd" || fail "tmux could not start"
 }
 
