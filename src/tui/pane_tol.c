@@ -161,9 +161,14 @@ static void pane_tol_draw(struct app *a, void *self, const struct rect *box)
 			           5, ascii);
 			qty_format(b1, sizeof b1, it->lo, u, 5, ascii);
 			qty_format(b2, sizeof b2, it->hi, u, 5, ascii);
-			snprintf(line, sizeof line, "%-15.15s %-12s %-12s %-12s %s",
-			         paramref_key(&t->c.pb, &it->param), b0, b1, b2,
-			         tol_dist_name(it->dist));
+			/* The key as in the file, or its label when that is too
+			 * long for the column (never cut mid-word). */
+			const char *key = paramref_key(&t->c.pb, &it->param);
+			struct param p;
+			if (render_text_width(key) > 15 && params_find(&a->s, key, &p) == 0)
+				key = p.label;
+			snprintf(line, sizeof line, "%-15s %-12s %-12s %-12s %s", key, b0,
+			         b1, b2, tol_dist_name(it->dist));
 			term_text(&a->term, row++, x, line, cw, TS_NORMAL);
 		}
 	}
