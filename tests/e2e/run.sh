@@ -820,7 +820,9 @@ picture)
 	keys y
 	wait_for "wrote the view as $work/led.svg"
 	grep -q "<desc>biasline plot area" "$work/led.svg" || fail "y did not replace led.svg"
-	keys W
+	keys Down W
+	wait_for "sweep (parameter FROM..TO"
+	keys Enter
 	wait_for "I vs RS (log)"
 	keys P
 	wait_for "wrote the view as $work/led-sweep.svg"
