@@ -355,10 +355,15 @@ static void solve_print_text(const char *file, const struct session *se,
 		       se->source.form == SOURCE_NORTON ? " (from the Norton form)" : "");
 	}
 	printf("  device   %s:", pb->dev.type->name);
+	/* Only what acts: no "T0 = -273.15 degC" for "no scaling". */
+	bool first = true;
 	for (size_t k = 0; k < pb->dev.type->nparams; k++) {
 		const struct model_param *mp = &pb->dev.type->params[k];
+		if (!model_param_in_use(pb->dev.type, pb->dev.p, k))
+			continue;
 		cli_fmt(a, sizeof a, pb->dev.p[k], mp->kind, 6);
-		printf("%s %s = %s", k ? "," : "", mp->label, a);
+		printf("%s %s = %s", first ? "" : ",", mp->label, a);
+		first = false;
 	}
 	if (pb->dev.curve != NULL)
 		printf(" %zu measured points", pb->dev.curve->n);

@@ -46,6 +46,26 @@ int model_param_index(const struct model_type *type, const char *key)
 	return -1;
 }
 
+/* Whether parameter K of TYPE takes part in the model at P. */
+bool model_param_in_use(const struct model_type *type, const double *p,
+                        size_t k)
+{
+	/* A chain of needs is short (Eg -> T0); the bound only guards a
+	 * table that names itself. */
+	for (int depth = 0; depth < 4 && k < type->nparams; depth++) {
+		const struct model_param *mp = &type->params[k];
+		if (mp->off_at_default && p[k] == mp->def)
+			return false;
+		if (mp->needs == NULL)
+			return true;
+		int j = model_param_index(type, mp->needs);
+		if (j < 0)
+			return true;
+		k = (size_t)j;
+	}
+	return true;
+}
+
 /* Fill DEV with TYPE and its defaults. */
 void device_init(struct device *dev, const struct model_type *type)
 {

@@ -33,6 +33,10 @@ struct model_param {
 	bool max_open;        /* true: value must be < max, else <= max */
 	bool log_step;        /* nudge multiplicatively (Is, resistances) */
 	const char *help;     /* one line of help text */
+	bool off_at_default;  /* the default means "not used" (0 K: no scaling,
+	                         0 K/W: no self-heating); shown as "none" */
+	const char *needs;    /* the key of a parameter this one only matters
+	                         with (Eg needs reference_temperature), or NULL */
 };
 
 struct source;
@@ -249,6 +253,14 @@ extern const struct model_type *const model_registry[];
 
 /* Look a model up by its session-file name; NULL when unknown. */
 const struct model_type *model_find(const char *name);
+
+/*
+ * Whether parameter K of TYPE, at the values P, takes part in the model:
+ * false when it is at a default that means "not used", or when the
+ * parameter it needs is not in use.  For reports that list only what acts.
+ */
+bool model_param_in_use(const struct model_type *type, const double *p,
+                        size_t k);
 
 /* Index of KEY in TYPE's parameter table, or -1. */
 int model_param_index(const struct model_type *type, const char *key);

@@ -239,6 +239,20 @@ void params_format(const struct session *s, const struct param *p, bool ascii,
 	} else {
 		/* Values a person typed: no padding zeros ("12 fA", "110e-21 A"). */
 		qty_format_short(buf, n, v, p->unit, 5, ascii ? 1 : 0);
+		/* A device parameter that takes no part at these values: its
+		 * "off" default reads "none", one that waits on another is
+		 * marked, so 0 K or 0 K/W never reads as a real setting. */
+		int k = params_device_index(s, p);
+		if (k >= 0 && !model_param_in_use(s->device.type, s->device.p,
+		                                  (size_t)k)) {
+			const struct model_param *mp = &s->device.type->params[k];
+			if (mp->off_at_default && v == mp->def)
+				snprintf(buf, n, "none");
+			else {
+				size_t len = strlen(buf);
+				snprintf(buf + len, n - len, " (unused)");
+			}
+		}
 	}
 }
 

@@ -451,6 +451,57 @@ static void test_extra_keys(void **state)
 	}
 }
 
+/* Whether a parameter takes part: a default that means "off" (0 K for the
+ * reference temperature, 0 K/W for the thermal resistance) and the keys that
+ * only matter with it (the bandgap and exponent, the ambient) drop out of
+ * reports; any other value brings them back.  The rule is the program's
+ * own (see biasline-models(7)); the values are invented. */
+static void test_param_in_use(void **state)
+{
+	(void)state;
+	static const struct {
+		const char *model, *set;  /* a key set away from its default, or NULL */
+		double value;
+		const char *key;
+		bool in_use;
+	} cases[] = {
+		{ "diode", NULL, 0.0, "saturation_current", true },
+		{ "diode", NULL, 0.0, "reference_temperature", false },
+		{ "diode", NULL, 0.0, "bandgap", false },
+		{ "diode", NULL, 0.0, "saturation_exponent", false },
+		{ "diode", NULL, 0.0, "thermal_resistance", false },
+		{ "diode", NULL, 0.0, "ambient_temperature", false },
+		{ "diode", NULL, 0.0, "maximum_junction_temperature", true },
+		{ "diode", "reference_temperature", 27.3, "bandgap", true },
+		{ "diode", "reference_temperature", 27.3, "saturation_exponent", true },
+		{ "diode", "thermal_resistance", 217.0, "ambient_temperature", true },
+		{ "npn", NULL, 0.0, "bandgap", false },
+		{ "npn", "reference_temperature", 31.0, "bandgap", true },
+		{ "led", NULL, 0.0, "reference_temperature", false },
+		{ "led", "temperature_coefficient", -2.3e-3, "reference_temperature", true },
+		{ "zener", NULL, 0.0, "reference_temperature", false },
+		{ "zener", "temperature_coefficient", 1.7e-3, "reference_temperature", true },
+		{ "power-law", NULL, 0.0, "exponent", true },
+	};
+	for (size_t c = 0; c < sizeof cases / sizeof cases[0]; c++) {
+		const struct model_type *t = model_find(cases[c].model);
+		assert_non_null(t);
+		struct device dev;
+		device_init(&dev, t);
+		if (cases[c].set != NULL) {
+			int j = model_param_index(t, cases[c].set);
+			assert_true(j >= 0);
+			dev.p[j] = cases[c].value;
+		}
+		int k = model_param_index(t, cases[c].key);
+		assert_true(k >= 0);
+		if (model_param_in_use(t, dev.p, (size_t)k) != cases[c].in_use)
+			fail_msg("%s %s (with %s): in use should be %d", cases[c].model,
+			         cases[c].key, cases[c].set ? cases[c].set : "defaults",
+			         cases[c].in_use);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -459,6 +510,7 @@ int main(void)
 		cmocka_unit_test(test_validate),
 		cmocka_unit_test(test_required_keys),
 		cmocka_unit_test(test_extra_keys),
+		cmocka_unit_test(test_param_in_use),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -46,9 +46,9 @@ static void ncubic_range(const double *p, double *lo, double *hi)
 }
 
 static const struct model_param ncubic_params[3] = {
-	{ "scale", "k", QTY_NUMBER, 0.0137, 0.0, 10.0, true, false, false, "k" },
-	{ "bend", "b", QTY_NUMBER, 3.1, 0.0, 10.0, false, false, false, "b" },
-	{ "slope", "c", QTY_NUMBER, 2.7, 0.0, 10.0, false, false, false, "c" },
+	{ "scale", "k", QTY_NUMBER, 0.0137, 0.0, 10.0, true, false, false, "k", false, NULL },
+	{ "bend", "b", QTY_NUMBER, 3.1, 0.0, 10.0, false, false, false, "b", false, NULL },
+	{ "slope", "c", QTY_NUMBER, 2.7, 0.0, 10.0, false, false, false, "c", false, NULL },
 };
 
 static const struct model_type ncubic = {

@@ -461,12 +461,15 @@ static const struct model_param bjt_params[BJT_NPARAMS] = {
 	               true, false, false, "junction temperature in degrees Celsius" },
 	[BJT_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE, -273.15,
 	               -273.15, 1000.0, false, false, false,
-	               "temperature Is was stated at; 0 K (default): no scaling" },
+	               "temperature Is was stated at; 0 K (default): no scaling",
+	               .off_at_default = true },
 	[BJT_EG] = { "bandgap", "Eg", QTY_ENERGY_EV, 1.12, 0.0, 10.0, false, false,
-	             false, "band gap for Is scaling, 1.12 eV for silicon" },
+	             false, "band gap for Is scaling, 1.12 eV for silicon",
+	               .needs = "reference_temperature" },
 	[BJT_XTI] = { "saturation_exponent", "m", QTY_NUMBER, 3.0, 0.0, 10.0,
 	              false, false, false,
-	              "temperature exponent of Is, 3 for an ideal junction" },
+	              "temperature exponent of Is, 3 for an ideal junction",
+	                .needs = "reference_temperature" },
 	/* 150 degC: the usual rating of silicon transistors in plastic
 	 * packages (common practice; metal cans often 175-200 degC). */
 	MODEL_THERMAL_PARAMS(BJT_THETA, BJT_TAMB, BJT_TJMAX, 150.0,

@@ -175,12 +175,15 @@ static const struct model_param diode_params[DIODE_NPARAMS] = {
 	                 "junction temperature in degrees Celsius" },
 	[DIODE_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE,
 	                 -ZERO_CELSIUS, -ZERO_CELSIUS, 1000.0, false, false, false,
-	                 "temperature Is was measured at; 0 K (default): no scaling" },
+	                 "temperature Is was measured at; 0 K (default): no scaling",
+	                 .off_at_default = true },
 	[DIODE_EG] = { "bandgap", "Eg", QTY_ENERGY_EV, 1.12, 0.0, 10.0, false,
-	               false, false, "band gap for Is scaling, 1.12 eV for silicon" },
+	               false, false, "band gap for Is scaling, 1.12 eV for silicon",
+	               .needs = "reference_temperature" },
 	[DIODE_XTI] = { "saturation_exponent", "m", QTY_NUMBER, 3.0, 0.0, 10.0,
 	                false, false, false,
-	                "temperature exponent of Is, 3 for an ideal junction" },
+	                "temperature exponent of Is, 3 for an ideal junction",
+	                .needs = "reference_temperature" },
 	/* 150 degC: the usual rating of silicon signal and rectifier diodes
 	 * in plastic packages (common practice; glass parts often 175-200). */
 	MODEL_THERMAL_PARAMS(DIODE_THETA, DIODE_TAMB, DIODE_TJMAX, 150.0,

@@ -264,10 +264,12 @@ static const struct model_param led_params[LED_NPARAMS] = {
 	               true, false, false, "junction temperature in degrees Celsius" },
 	[LED_TC] = { "temperature_coefficient", "dVf/dT", QTY_TEMPCO, 0.0, -1.0,
 	             1.0, false, false, false,
-	             "dVf/dT at the test current; 0: Vf stays put (-2 mV/K typical)" },
+	             "dVf/dT at the test current; 0: Vf stays put (-2 mV/K typical)",
+	             .off_at_default = true },
 	[LED_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE, 25.0,
 	               -273.15, 1000.0, true, false, false,
-	               "temperature forward_voltage is stated at" },
+	               "temperature forward_voltage is stated at",
+	               .needs = "temperature_coefficient" },
 	/* 100 degC: a common rating of indicator LEDs (from memory of common
 	 * datasheets; power LEDs are often rated 125 to 150 degC). */
 	MODEL_THERMAL_PARAMS(LED_THETA, LED_TAMB, LED_TJMAX, 100.0,

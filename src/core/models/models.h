@@ -214,10 +214,12 @@ double diode_scaled_saturation(double is_ref, double t_c, double tref_c,
 #define MODEL_THERMAL_PARAMS(THETA, TAMB, TJMAX_I, TJMAX, HELP)                 \
 	[THETA] = { "thermal_resistance", "Rth", QTY_THERMAL_RES, 0.0, 0.0, 1e5,   \
 	            false, false, false,                                           \
-	            "junction-to-ambient thermal resistance; 0: no self-heating" },\
+	            "junction-to-ambient thermal resistance; 0: no self-heating",  \
+	            .off_at_default = true },                                      \
 	[TAMB] = { "ambient_temperature", "Ta", QTY_TEMPERATURE, 25.0, -273.15,    \
 	           1000.0, true, false, false,                                     \
-	           "ambient temperature (used with thermal_resistance)" },         \
+	           "ambient temperature (used with thermal_resistance)",           \
+	           .needs = "thermal_resistance" },                                \
 	[TJMAX_I] = { "maximum_junction_temperature", "Tjmax", QTY_TEMPERATURE,    \
 	              TJMAX, -273.15, 1000.0, true, false, false, HELP }
 

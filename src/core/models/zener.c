@@ -378,10 +378,12 @@ static const struct model_param zener_params[ZENER_NPARAMS] = {
 	                 true, false, false, "junction temperature in degrees Celsius" },
 	[ZENER_TC] = { "temperature_coefficient", "dVz/dT", QTY_TEMPCO, 0.0, -1.0,
 	               1.0, false, false, false,
-	               "dVz/dT at the test current; 0: Vz stays put" },
+	               "dVz/dT at the test current; 0: Vz stays put",
+	               .off_at_default = true },
 	[ZENER_TREF] = { "reference_temperature", "T0", QTY_TEMPERATURE, 25.0,
 	                 -273.15, 1000.0, true, false, false,
-	                 "temperature breakdown_voltage is stated at" },
+	                 "temperature breakdown_voltage is stated at",
+	                 .needs = "temperature_coefficient" },
 	/* 150 degC: a common rating of small plastic zeners (from memory of
 	 * common datasheets; glass parts are often rated 175 to 200 degC). */
 	MODEL_THERMAL_PARAMS(ZENER_THETA, ZENER_TAMB, ZENER_TJMAX, 150.0,
