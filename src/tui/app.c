@@ -450,6 +450,12 @@ void app_verdict_text(const struct app *a, const struct verdict_line *l,
 		return;
 	snprintf(one, n, "%s %s  %s", app_verdict_name(l), v, word);
 	snprintf(two, n, "  %.0f %% of %s%s", 100.0 * l->use, r, m);
+	if (render_text_width(one) <= w)
+		return;
+	/* Still too wide ("junction 51.89 degC  within rating" in a narrow
+	 * pane): the verdict word moves to the second line, never cut. */
+	snprintf(one, n, "%s %s", app_verdict_name(l), v);
+	snprintf(two, n, "  %s, %.0f %% of %s", word, 100.0 * l->use, r);
 }
 
 /* The target line of VD. */

@@ -320,8 +320,14 @@ static int pane_junction(struct app *a, int row, int col, int w, int max)
 	char t[48], g[48], line[160];
 	qty_format(t, sizeof t, ev.tj, QTY_TEMPERATURE, 4, app_unicode(a) ? 0 : 1);
 	snprintf(g, sizeof g, "%.3g", ev.gain + 0.0);
-	snprintf(line, sizeof line, "Tj %s  G %s  %s", t, g,
-	         ev.gain < 1.0 ? "stable" : "unstable");
+	const char *word = ev.gain < 1.0 ? "stable" : "unstable";
+	snprintf(line, sizeof line, "Tj %s  G %s  %s", t, g, word);
+	/* A narrow pane drops the blanks, then the word (the colour and the
+	 * diagnosis below still say it), never cutting one. */
+	if (render_text_width(line) > w)
+		snprintf(line, sizeof line, "Tj %s G %s %s", t, g, word);
+	if (render_text_width(line) > w)
+		snprintf(line, sizeof line, "Tj %s  G %s", t, g);
 	term_text(&a->term, row, col, line, w,
 	          ev.gain < 1.0 ? TS_NORMAL : TS_ERROR);
 	return 1;
