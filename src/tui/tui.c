@@ -120,19 +120,57 @@ static void loop_panes_fini(struct loop *l)
 	}
 }
 
-/* Draw the "terminal too small" screen for ROWS x COLS. */
+/*
+ * Write TEXT wrapped at blanks to COLS cells, each line centred, from row
+ * *ROW on (rows past ROWS are dropped); *ROW ends below the last line.
+ */
+static void loop_draw_centred(struct app *a, int *row, int rows, int cols,
+                              const char *text, enum term_style style)
+{
+	struct render_span sp[8];
+	size_t n = render_wrap(text, cols, sp, 8);
+	for (size_t k = 0; k < n && k < 8 && *row < rows; k++, (*row)++) {
+		char line[128];
+		int len = (int)(sp[k].len < sizeof line ? sp[k].len : sizeof line - 1);
+		memcpy(line, text + sp[k].off, (size_t)len);
+		line[len] = '\0';
+		int w = render_text_width(line);
+		term_text(&a->term, *row, w < cols ? (cols - w) / 2 : 0, line, cols,
+		          style);
+	}
+}
+
+/*
+ * Draw the "terminal too small" screen for ROWS x COLS: the notice and
+ * the hint wrapped at blanks, so nothing is cut however narrow it is.
+ */
 static void loop_draw_small(struct app *a, int rows, int cols)
 {
-	char msg[128];
-	snprintf(msg, sizeof msg, "terminal too small: %dx%d, needs at least %dx%d",
-	         cols, rows, APP_MIN_COLS, APP_MIN_ROWS);
-	int w = render_text_width(msg);
-	int r = rows / 2, c = w < cols ? (cols - w) / 2 : 0;
-	term_text(&a->term, r > 0 ? r - 1 : 0, c, msg, cols, TS_ERROR);
+	char what[64], need[64], msg[sizeof what + sizeof need + 2];
+	snprintf(what, sizeof what, "terminal too small: %dx%d", cols, rows);
+	snprintf(need, sizeof need, "needs at least %dx%d", APP_MIN_COLS,
+	         APP_MIN_ROWS);
+	snprintf(msg, sizeof msg, "%s, %s", what, need);
 	const char *hint = "resize the window, or press q to quit";
-	int hw = render_text_width(hint);
-	term_text(&a->term, r + 1 < rows ? r + 1 : 0, hw < cols ? (cols - hw) / 2 : 0,
-	          hint, cols, TS_NORMAL);
+	if (cols < 1 || rows < 1)
+		return;
+	/* one line when it fits, else broken after the size */
+	bool one = render_text_width(msg) <= cols;
+	int nm = one ? 1 : (int)(render_wrap(what, cols, NULL, 0) +
+	                         render_wrap(need, cols, NULL, 0));
+	int nh = (int)render_wrap(hint, cols, NULL, 0);
+	/* centred as one block: the notice, a blank line, the hint */
+	int r = (rows - (nm + 1 + nh)) / 2;
+	if (r < 0)
+		r = 0;
+	if (one) {
+		loop_draw_centred(a, &r, rows, cols, msg, TS_ERROR);
+	} else {
+		loop_draw_centred(a, &r, rows, cols, what, TS_ERROR);
+		loop_draw_centred(a, &r, rows, cols, need, TS_ERROR);
+	}
+	r++;
+	loop_draw_centred(a, &r, rows, cols, hint, TS_NORMAL);
 }
 
 /* Width of the side column on a screen COLS wide. */
