@@ -8,6 +8,7 @@
 
 #include "session/atomic.h"
 
+#include <dirent.h>
 #include <errno.h>
 #include <fcntl.h>
 #include <limits.h>
@@ -17,6 +18,7 @@
 #include <string.h>
 #include <sys/stat.h>
 #include <sys/types.h>
+#include <time.h>
 #include <unistd.h>
 
 #ifndef PATH_MAX
@@ -99,6 +101,63 @@ static int atomic_writable(const char *target, const struct stat *st,
 	return 0;
 }
 
+/*
+ * The temporary file of a save of BASE is ".BASE" ATOMIC_TMP_MARK and six
+ * characters from mkstemp; BASE is cut to ATOMIC_TMP_BASE bytes so the
+ * name stays under NAME_MAX.
+ */
+#define ATOMIC_TMP_MARK ".biasline-tmp-"
+#define ATOMIC_TMP_BASE 200
+/* A temporary file untouched this long (s) belongs to no running save. */
+#define ATOMIC_TMP_STALE 60
+
+/* Whether NAME is one of our temporary names for PREFIX (".BASE.mark"). */
+static int atomic_is_tmp_name(const char *name, const char *prefix)
+{
+	size_t n = strlen(prefix);
+	if (strncmp(name, prefix, n) != 0 || strlen(name + n) != 6)
+		return 0;
+	for (const char *c = name + n; *c != '\0'; c++)
+		if (!((*c >= 'a' && *c <= 'z') || (*c >= 'A' && *c <= 'Z') ||
+		      (*c >= '0' && *c <= '9')))
+			return 0;
+	return 1;
+}
+
+/*
+ * Remove what earlier saves of BASE in DIR left behind when they were
+ * killed outright (SIGKILL, a crash, power lost): files with our temporary
+ * name, regular, not linked elsewhere, owned by this user and untouched
+ * for a minute, so a save still running in another process keeps its
+ * file.  Anything else is left alone, and a failure only means the file
+ * stays: the save itself has already succeeded.
+ */
+static void atomic_sweep_stale(const char *dir, const char *base)
+{
+	char prefix[NAME_MAX + 1];
+	int r = snprintf(prefix, sizeof prefix, ".%.*s%s", ATOMIC_TMP_BASE, base,
+	                 ATOMIC_TMP_MARK);
+	if (r < 0 || (size_t)r >= sizeof prefix)
+		return;
+	DIR *d = opendir(dir);
+	if (d == NULL)
+		return;
+	time_t now = time(NULL);
+	struct dirent *e;
+	while ((e = readdir(d)) != NULL) {
+		if (!atomic_is_tmp_name(e->d_name, prefix))
+			continue;
+		struct stat st;
+		if (fstatat(dirfd(d), e->d_name, &st, AT_SYMLINK_NOFOLLOW) != 0 ||
+		    !S_ISREG(st.st_mode) || st.st_nlink != 1 ||
+		    st.st_uid != geteuid() ||
+		    difftime(now, st.st_mtime) < ATOMIC_TMP_STALE)
+			continue;
+		unlinkat(dirfd(d), e->d_name, 0);
+	}
+	closedir(d);
+}
+
 /* The stop signals a terminal or a shell sends. */
 static void atomic_stop_signals(sigset_t *set)
 {
@@ -144,7 +203,8 @@ int atomic_write_file_hooked(const char *path, const void *data, size_t len,
 		snprintf(err, errlen, "%s: not a file name", path);
 		return -1;
 	}
-	int r = snprintf(tmp, sizeof tmp, "%s/.%.200s.XXXXXX", dir, base);
+	int r = snprintf(tmp, sizeof tmp, "%s/.%.*s%sXXXXXX", dir, ATOMIC_TMP_BASE,
+	                 base, ATOMIC_TMP_MARK);
 	if (r < 0 || (size_t)r >= sizeof tmp) {
 		snprintf(err, errlen, "%s: the path is too long", path);
 		return -1;
@@ -216,6 +276,7 @@ int atomic_write_file_hooked(const char *path, const void *data, size_t len,
 		}
 		close(dfd);
 	}
+	atomic_sweep_stale(dir, base);
 	return 0;
 }
 

@@ -27,8 +27,11 @@ struct atomic_hooks {
  * one with no write permission bit at all) is refused, as is one whose
  * owner or group cannot be kept.  Stop signals (SIGINT, SIGTERM, SIGHUP,
  * SIGQUIT) are held while the temporary file exists, so none leaves it
- * behind.  Returns 0, or -1 with a message naming the path and the reason
- * in ERR.
+ * behind.  The temporary file is ".NAME.biasline-tmp-XXXXXX" beside the
+ * file; after a successful write, such files of an earlier save of the same
+ * file that was killed outright (regular, this user's, untouched for a
+ * minute) are removed.  Returns 0, or -1 with a message naming the path
+ * and the reason in ERR.
  */
 int atomic_write_file(const char *path, const void *data, size_t len,
                       char *err, size_t errlen);

@@ -15,7 +15,9 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <fcntl.h>
 #include <sys/stat.h>
+#include <time.h>
 #include <unistd.h>
 
 #include <cmocka.h>
@@ -613,6 +615,79 @@ static void test_atomic_failure_keeps_old(void **state)
 	free(d);
 }
 
+/* Make PATH (a test file) look untouched for AGE seconds. */
+static void age_file(const char *path, int age)
+{
+	struct timespec t[2];
+	assert_int_equal(clock_gettime(CLOCK_REALTIME, &t[0]), 0);
+	t[0].tv_sec -= age;
+	t[1] = t[0];
+	assert_int_equal(utimensat(AT_FDCWD, path, t, AT_SYMLINK_NOFOLLOW), 0);
+}
+
+/*
+ * A save removes the temporary files that a killed save of the same file
+ * left beside it, once they are a minute old, and nothing else: a fresh
+ * one (a save running elsewhere), another file's, names that only look
+ * alike, a link, a folder.
+ */
+static void test_atomic_sweeps_stale(void **state)
+{
+	(void)state;
+	char *d = make_temp_dir();
+	char path[1024], p[1200], err[512];
+	snprintf(path, sizeof path, "%s/bench.yaml", d);
+	write_file(path, "old\n", 4);
+	static const char *const stale[] = {
+		".bench.yaml.biasline-tmp-Ab3xY9", ".bench.yaml.biasline-tmp-000000",
+	};
+	static const char *const kept[] = {
+		".bench.yaml.biasline-tmp-Zq7Kp2",   /* fresh: a save under way */
+		".other.yaml.biasline-tmp-Ab3xY9",   /* another file's */
+		".bench.yaml.biasline-tmp-Ab3xY",    /* five characters */
+		".bench.yaml.biasline-tmp-Ab3xY9~",  /* seven */
+		".bench.yaml.biasline-tmp-Ab.xY9",   /* not mkstemp's alphabet */
+		".bench.yaml.Ab3xY9",                /* not our mark */
+		"bench.yaml.biasline-tmp-Ab3xY9",    /* not hidden */
+		".bench.yaml.swp",
+	};
+	for (size_t k = 0; k < sizeof stale / sizeof stale[0]; k++) {
+		snprintf(p, sizeof p, "%s/%s", d, stale[k]);
+		write_file(p, "half a sess", 11);
+		age_file(p, 3600);
+	}
+	for (size_t k = 0; k < sizeof kept / sizeof kept[0]; k++) {
+		snprintf(p, sizeof p, "%s/%s", d, kept[k]);
+		write_file(p, "x", 1);
+		if (k > 0)
+			age_file(p, 3600);
+	}
+	/* an old link and an old folder with our name are not ours to remove */
+	snprintf(p, sizeof p, "%s/.bench.yaml.biasline-tmp-LnK001", d);
+	assert_int_equal(symlink("bench.yaml", p), 0);
+	age_file(p, 3600);
+	snprintf(p, sizeof p, "%s/.bench.yaml.biasline-tmp-DiR001", d);
+	assert_int_equal(mkdir(p, 0700), 0);
+	age_file(p, 3600);
+	int before = count_entries(d);
+	assert_int_equal(atomic_write_file(path, "new\n", 4, err, sizeof err), 0);
+	for (size_t k = 0; k < sizeof stale / sizeof stale[0]; k++) {
+		snprintf(p, sizeof p, "%s/%s", d, stale[k]);
+		assert_int_equal(access(p, F_OK), -1);
+	}
+	for (size_t k = 0; k < sizeof kept / sizeof kept[0]; k++) {
+		snprintf(p, sizeof p, "%s/%s", d, kept[k]);
+		assert_int_equal(access(p, F_OK), 0);
+	}
+	assert_int_equal(count_entries(d), before - 2);
+	size_t n;
+	char *got = read_file(path, &n);
+	assert_string_equal(got, "new\n");
+	free(got);
+	remove_dir(d);
+	free(d);
+}
+
 /* A path whose folder is a file fails cleanly, leaving nothing behind. */
 static void test_atomic_bad_folder(void **state)
 {
@@ -1162,6 +1237,7 @@ int main(void)
 		cmocka_unit_test(test_problem_errors),
 		cmocka_unit_test(test_copy_equal),
 		cmocka_unit_test(test_atomic_failure_keeps_old),
+		cmocka_unit_test(test_atomic_sweeps_stale),
 		cmocka_unit_test(test_atomic_bad_folder),
 		cmocka_unit_test(test_atomic_read_only),
 		cmocka_unit_test(test_save_file),
