@@ -80,8 +80,10 @@ static void model_param_describe_range(const struct model_param *mp, char *buf,
                                        size_t n)
 {
 	char lo[48], hi[48];
-	qty_format(lo, sizeof lo, mp->min, mp->kind, 4, 1);
-	qty_format(hi, sizeof hi, mp->max, mp->kind, 4, 1);
+	/* limits as written in the table, without padding zeros: -273.15
+	 * degC must not read as -273.1 degC */
+	qty_format_short(lo, sizeof lo, mp->min, mp->kind, 6, 1);
+	qty_format_short(hi, sizeof hi, mp->max, mp->kind, 6, 1);
 	if (isinf(mp->max))
 		snprintf(buf, n, "a value %s %s", mp->min_open ? ">" : ">=", lo);
 	else if (isinf(mp->min))
@@ -117,7 +119,7 @@ int model_param_check(const struct model_param *mp, double value, char *err,
 		return -1;
 	}
 	char got[48];
-	qty_format(got, sizeof got, value, mp->kind, 6, 1);
+	qty_format_short(got, sizeof got, value, mp->kind, 6, 1);
 	snprintf(err, errlen, "%s: %s is out of range: expected %s", mp->key, got,
 	         range);
 	return -1;

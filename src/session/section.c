@@ -135,8 +135,9 @@ static void section_describe_range(char *buf, size_t n, enum qty_kind kind,
                                    bool max_open)
 {
 	char lo[48], hi[48];
-	qty_format(lo, sizeof lo, min, kind, 6, 1);
-	qty_format(hi, sizeof hi, max, kind, 6, 1);
+	/* the limits are round numbers: no padding zeros ("1 GV") */
+	qty_format_short(lo, sizeof lo, min, kind, 6, 1);
+	qty_format_short(hi, sizeof hi, max, kind, 6, 1);
 	if (isinf(max) && isinf(min))
 		snprintf(buf, n, "any finite value");
 	else if (isinf(max))
