@@ -7,6 +7,26 @@
 # socket, HOME and XDG_STATE_HOME under a temporary folder), sends keys and
 # reads the screen with capture-pane.  Waits poll with short sleeps and a
 # bounded number of tries; nothing asserts on time.  Exit 77 = skipped.
+#
+# Writing a scenario: add NAME) ... ;; below and NAME to tests/e2e/meson.build.
+#   start W H ARGS...      the program in a new private server (retried while
+#                          tmux is still shutting an old one down)
+#   keys K...              tmux key names: keys Down e 2.2k Enter
+#   wait_for TEXT, wait_gone TEXT    poll until the text is (not) on screen
+#   expect CHECK ARGS...   poll the screen until CHECK passes; CHECK reads
+#                          the capture in $SHOT, returns 1 (setting WHY) while
+#                          the state is not there yet: has, has_re, lacks,
+#                          title_point (sets TV, TI), has_row, or a function
+#                          of your own that reads only $SHOT, e.g.
+#       rows() { has "Design:" || return 1
+#                got=$(grep -oE 'higher +[0-9.]+ kohm' <<<"$SHOT")
+#                [ -n "$got" ] || { WHY="no higher row"; return 1; }; }
+#       expect rows
+#   Read values from $SHOT inside the check and compare them there, so an
+#   old or half-drawn frame means another poll, never a failure; after an
+#   expect (or wait_for) $SHOT holds the capture that passed.  Never call
+#   screen and grep it once, never sleep a fixed time.  stop_server ends
+#   the program (SIGHUP) and waits until it has exited; fail MESSAGE fails.
 set -u
 
 scenario=$1
@@ -24,25 +44,47 @@ unset TMUX NO_COLOR ESCDELAY
 # In sanitizer builds: ignore the one block ncurses itself never frees.
 export LSAN_OPTIONS="suppressions=$(cd "$(dirname "$0")" && pwd)/lsan.supp${LSAN_OPTIONS:+:$LSAN_OPTIONS}"
 mkdir -p "$HOME"
-sock=$work/tmux.sock
+# Every start gets a tmux server of its own (tmux.1.sock, tmux.2.sock, ...):
+# a server still shutting down after the previous program exited or after
+# kill-server is never asked to start the next one.
+nserver=0
+sock=$work/tmux.0.sock
 
-# tmux on the private server, ignoring any user configuration.
+# How many times a wait polls the screen (0.1 s apart, plus the time a
+# capture takes): generous, because the machine may be shared, loaded and
+# running the program under a sanitizer.  Only a failing test waits that
+# long; nothing asserts on time.
+TRIES=${BIASLINE_E2E_TRIES:-600}
+
+# tmux on the current private server, ignoring any user configuration.
 tmx() { tmux -S "$sock" -f /dev/null "$@"; }
 
-# Stop the server, wait until every pane's session has exited (a program
-# that got SIGHUP may still be writing its recovery file), then remove the
-# work folder.
-cleanup() {
+# Stop the current server and wait (bounded) until the programs of its
+# panes have exited: one that got SIGHUP may still be writing its recovery
+# file.  Zombies count as exited.
+stop_server() {
 	local pids p k alive
 	pids=$(tmx list-panes -a -F '#{pane_pid}' 2>/dev/null)
 	tmx kill-server >/dev/null 2>&1
-	for ((k = 0; k < 300; k++)); do
+	for ((k = 0; k < TRIES; k++)); do
 		alive=0
 		for p in $pids; do
-			pgrep -s "$p" >/dev/null 2>&1 && alive=1
+			ps -o stat= -s "$p" 2>/dev/null | grep -qv '^Z' && alive=1
 		done
-		[ "$alive" = 0 ] && break
+		[ "$alive" = 0 ] && return 0
 		sleep 0.1
+	done
+	echo "note: the programs of $sock did not exit"
+	return 1
+}
+
+# Stop every server this test started, then remove the work folder.
+cleanup() {
+	local s
+	for s in "$work"/tmux.*.sock; do
+		[ -S "$s" ] || continue
+		sock=$s
+		stop_server
 	done
 	rm -rf "$work"
 }
@@ -53,55 +95,86 @@ fail() { echo "FAIL: $*"; echo "--- screen ---"; screen; exit 1; }
 # The visible screen as text.
 screen() { tmx capture-pane -p 2>/dev/null; }
 
+# Start a new private server with one session: new_server NEW-SESSION-ARGS...
+# A try that fails (a loaded machine can make the client give up on a
+# server that is still starting: "server exited unexpectedly") is retried
+# on a fresh socket, a bounded number of times.
+new_server() {
+	local k err
+	for ((k = 1; k <= 10; k++)); do
+		nserver=$((nserver + 1))
+		sock=$work/tmux.$nserver.sock
+		err=$(tmx new-session -d "$@" 2>&1) && return 0
+		echo "note: tmux new-session, try $k: ${err:-failed}"
+		stop_server
+		sleep 0.5
+	done
+	fail "tmux could not start: $err"
+}
+
 # Start the program in a W x H window: start W H ARGS...
 start() {
 	local w=$1 h=$2; shift 2
-	local cmd="exec $(printf '%q ' "$bin" "$@") 2>>$(printf '%q' "$work/stderr")"
-	# A server still shutting down after kill-server can refuse the first
-	# try ("server exited unexpectedly"): try again a few times.
-	local k
-	for ((k = 0; k < 5; k++)); do
-		tmx new-session -d -x "$w" -y "$h" "$cmd" 2>/dev/null && return 0
-		sleep 0.2
-	done
-	tmx new-session -d -x "$w" -y "$h" "$cmd" || fail "tmux could not start"
+	new_server -x "$w" -y "$h" \
+		"exec $(printf '%q ' "$bin" "$@") 2>>$(printf '%q' "$work/stderr")"
 }
 
-# Wait until the screen contains TEXT (fixed string): wait_for TEXT [TRIES].
-# The bound is generous because the machine may be shared and loaded.
-wait_for() {
-	local tries=${2:-300} k shot
-	for ((k = 0; k < tries; k++)); do
-		shot=$(screen)
-		if grep -qF -- "$1" <<<"$shot"; then
-			# No screen of the suite shows a NaN or an infinity to a person.
-			grep -qiE '(^|[^a-z])-?(nan|inf)([^a-z]|$)' <<<"$shot" &&
-				fail "nan or inf on screen"
+# No screen of the suite shows a NaN or an infinity to a person.
+no_nan() {
+	grep -qiE '(^|[^a-z])-?(nan|inf)([^a-z]|$)' <<<"$SHOT" &&
+		fail "nan or inf on screen"
+	return 0
+}
+
+# Poll the screen until CHECK ARGS... succeeds with the capture in SHOT;
+# after TRIES captures, fail with the check's last reason (WHY).  Checks
+# look at one capture as a whole, so a frame that is still being drawn
+# (the old frame, or part of the new one) only means another poll.
+expect() {
+	local k
+	WHY=""
+	for ((k = 0; k < TRIES; k++)); do
+		SHOT=$(screen)
+		if "$@"; then
+			no_nan
 			return 0
 		fi
 		sleep 0.1
 	done
-	fail "did not see '$1'"
+	fail "${WHY:-$*}"
 }
+
+# Checks on SHOT for expect: the fixed string, the extended regular
+# expression, or neither of them.
+has() { grep -qF -- "$1" <<<"$SHOT" || { WHY="did not see '$1'"; return 1; }; }
+has_re() { grep -qE -- "$1" <<<"$SHOT" || { WHY="did not see /$1/"; return 1; }; }
+lacks() { ! grep -qF -- "$1" <<<"$SHOT" || { WHY="still see '$1'"; return 1; }; }
+
+# Wait until the screen contains TEXT (fixed string): wait_for TEXT.
+wait_for() { expect has "$1"; }
 
 # Wait until the screen does not contain TEXT.
-wait_gone() {
-	local tries=${2:-300} k
-	for ((k = 0; k < tries; k++)); do
-		screen | grep -qF -- "$1" || return 0
-		sleep 0.1
-	done
-	fail "still see '$1'"
-}
+wait_gone() { expect lacks "$1"; }
 
-# Wait until the tmux server is gone (the program exited).
+# Wait until the program in the current server has exited (its session,
+# and with it the server, is gone).
 wait_exit() {
 	local k
-	for ((k = 0; k < 300; k++)); do
+	for ((k = 0; k < TRIES; k++)); do
 		tmx has-session >/dev/null 2>&1 || return 0
 		sleep 0.1
 	done
 	fail "the program did not exit"
+}
+
+# Wait until the file FILE holds the extended regular expression RE.
+wait_file() {
+	local file=$1 re=$2 k
+	for ((k = 0; k < TRIES; k++)); do
+		grep -qE -- "$re" "$file" 2>/dev/null && return 0
+		sleep 0.1
+	done
+	return 1
 }
 
 # Send keys (tmux key names).
@@ -127,28 +200,51 @@ close_to() {
 		exit !(d <= t * m) }'
 }
 
-# The operating point in the title bar: sets TV and TI (as displayed).
+# The operating point in the title bar of SHOT: sets TV and TI (as
+# displayed); a check for expect.
 title_point() {
 	local line
-	line=$(screen | head -1)
+	line=$(head -1 <<<"$SHOT")
 	TV=$(sed -n 's/.*point \([^,]*\), \([^ ]* [^ ]*\).*/\1/p' <<<"$line")
 	TI=$(sed -n 's/.*point \([^,]*\), \([^ ]* [^ ]*\).*/\2/p' <<<"$line")
-	[ -n "$TV" ] && [ -n "$TI" ] || fail "no operating point in the title"
+	[ -n "$TV" ] && [ -n "$TI" ] || { WHY="no operating point in the title"; return 1; }
 }
 
-# Rows of the convergence table: lines of the side pane after its header.
+# The title's point differs from BEFORE ("V, I"): a check for expect.
+point_moved() {
+	title_point || return 1
+	[ "$TV, $TI" != "$1" ] || { WHY="the point did not move from $1"; return 1; }
+}
+
+# The title's current differs from BEFORE: a check for expect.
+current_moved() {
+	title_point || return 1
+	[ "$TI" != "$1" ] || { WHY="the current did not move from $1"; return 1; }
+}
+
+# Rows of the convergence table in SHOT: lines of the side pane after its
+# header.
 table_rows() {
-	screen | awk -F'|' 'NF > 1 { print $NF }' |
+	awk -F'|' 'NF > 1 { print $NF }' <<<"$SHOT" |
 		awk '/^ *k +V\(V\) +I\(A\)/ { on = 1; next } on && /^ *[0-9]+ / { print }'
+}
+
+# The table in SHOT has row K: a check for expect.
+has_row() {
+	table_rows | grep -qE "^ *$1 " || { WHY="no table row $1"; return 1; }
+}
+
+# The table in SHOT lacks row K: a check for expect.
+lacks_row() {
+	! table_rows | grep -qE "^ *$1 " || { WHY="table row $1 still shown"; return 1; }
 }
 
 # Start with pipe-pane capturing the program's output into OUT from its
 # first byte: start_piped W H OUT ENV ARGS... (ENV: "" or VAR=value).
 start_piped() {
 	local w=$1 h=$2 out=$3 envset=$4; shift 4
-	tmx new-session -d -x "$w" -y "$h" \
-		"read _; exec env $envset $(printf '%q ' "$bin" "$@") 2>>$(printf '%q' "$work/stderr")" ||
-		fail "tmux could not start"
+	new_server -x "$w" -y "$h" \
+		"read _; exec env $envset $(printf '%q ' "$bin" "$@") 2>>$(printf '%q' "$work/stderr")"
 	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
 	keys Enter
 }
@@ -156,10 +252,14 @@ start_piped() {
 # The program's process id (the pane runs it with exec).
 pane_pid() { tmx display -p '#{pane_pid}'; }
 
-# Wait until the file OUT stops growing; prints its size.
+# Wait until the file OUT holds the first full draw (its last row, the
+# first key hint "Space steps, g runs, ? lists every key", is written last)
+# and then stops growing; prints its size.  pipe-pane copies what the
+# program writes asynchronously, so the file may lag the screen.
 settle() {
 	local out=$1 last=-1 same=0 size k
-	for ((k = 0; k < 100 && same < 3; k++)); do
+	wait_file "$out" 'lists every key' || fail "$out never held the first key hint"
+	for ((k = 0; k < 100 && same < 5; k++)); do
 		size=$(stat -c %s "$out" 2>/dev/null || echo 0)
 		if [ "$size" = "$last" ]; then same=$((same + 1)); else same=0; fi
 		last=$size
@@ -209,24 +309,28 @@ steps)
 		keys Space
 		wait_for "($k projection"
 	done
-	rows=$(table_rows)
-	for ((k = 1; k <= 10; k++)); do
-		grep -qE "^ *$k " <<<"$rows" || fail "table row $k missing"
-	done
-	n=$(grep -cE '^ *([1-9]|10) ' <<<"$rows")
-	[ "$n" -eq 10 ] || fail "expected 10 step rows, found $n"
+	# The rows sit below the table's header: wait for the whole table.
+	ten_rows() {
+		local k n
+		for ((k = 1; k <= 10; k++)); do
+			has_row "$k" || return 1
+		done
+		n=$(table_rows | grep -cE '^ *([1-9]|10) ')
+		[ "$n" -eq 10 ] || { WHY="expected 10 step rows, found $n"; return 1; }
+		has_re "predicted: spirals in, \|g'\| = [0-9.e-]+"
+	}
+	expect ten_rows
 	# The error ratio in the newest row approaches the predicted g' (a
 	# spiral: negative), as the contraction-mapping theorem says (Burden &
 	# Faires, Numerical Analysis, 9th ed., 2010, sec. 2.2).
-	g=$(screen | grep -oE "predicted: spirals in, \|g'\| = [0-9.e-]+" | awk '{ print $NF }')
-	[ -n "$g" ] || fail "no spiral-in prediction shown"
+	g=$(grep -oE "predicted: spirals in, \|g'\| = [0-9.e-]+" <<<"$SHOT" | awk '{ print $NF }')
 	ratio=$(table_rows | tail -1 | awk '{ print $6 }')
 	close_to "$ratio" "-$g" 0.05 || fail "ratio $ratio is not near the predicted -$g"
 	echo "ok: newest ratio $ratio, predicted g' -$g"
 	# Stepping back removes the newest row.
 	keys b
 	wait_for "(9 projections"
-	table_rows | grep -qE '^ *10 ' && fail "row 10 still shown after b"
+	expect lacks_row 10
 	echo "ok: ten steps, ten rows; b removed the newest"
 	;;
 converge)
@@ -236,12 +340,16 @@ converge)
 	wait_for "Convergence"
 	keys g
 	wait_for "converged after"
-	title_point
-	last=$(table_rows | tail -1)
-	rv=$(awk '{ print $2 }' <<<"$last")
-	ri=$(awk '{ print $3 }' <<<"$last")
-	close_to "$(eng "$rv")" "$(eng "$TV")" 5e-4 || fail "last row V $rv vs point $TV"
-	close_to "$(eng "$ri")" "$(eng "$TI")" 5e-4 || fail "last row I $ri vs point $TI"
+	# The table's last row and the title show the same point.
+	same_point() {
+		title_point || return 1
+		last=$(table_rows | tail -1)
+		rv=$(awk '{ print $2 }' <<<"$last")
+		ri=$(awk '{ print $3 }' <<<"$last")
+		close_to "$(eng "$rv")" "$(eng "$TV")" 5e-4 || { WHY="last row V $rv vs point $TV"; return 1; }
+		close_to "$(eng "$ri")" "$(eng "$TI")" 5e-4 || { WHY="last row I $ri vs point $TI"; return 1; }
+	}
+	expect same_point
 	echo "ok: converged row V=$rv I=$ri matches the solved point $TV, $TI"
 	# The same point as 'biasline solve' prints (6 digits there, 5 here).
 	out=$("$bin" solve "$file") || fail "'biasline solve $file' exited $?"
@@ -261,7 +369,7 @@ order)
 	wait_for "predicted: spirals out"
 	keys g
 	wait_for "after"
-	screen | tail -1 | grep -q "converged" && fail "the demo converged in the diverging order"
+	tail -1 <<<"$SHOT" | grep -q "converged" && fail "the demo converged in the diverging order"
 	keys o
 	wait_for "predicted: spirals in"
 	wait_for "order: voltage from the device"
@@ -275,21 +383,28 @@ demo)
 	# out; after o each of the first four steps changes the plot.
 	start 80 24
 	wait_for "Convergence"
-	plot() { screen | sed -n '2,22p' | cut -c1-47; }
+	plot() { sed -n '2,22p' <<<"$SHOT" | cut -c1-47; }
+	step_in_view() {
+		has "($1 projection" || return 1
+		plot | grep -q '=' || { WHY="step $1: the newest segment is not in the plot"; return 1; }
+	}
 	for ((k = 1; k <= 6; k++)); do
 		keys Space
-		wait_for "($k projection"
-		plot | grep -q '=' || fail "step $k: the newest segment is not in the plot"
+		expect step_in_view "$k"
 	done
 	keys o
-	wait_for "order: voltage from the device"
-	wait_for "predicted: spirals in"
+	flipped() { has "order: voltage from the device" && has "predicted: spirals in" &&
+		has "(0 projection"; }
+	expect flipped
 	prev=$(plot)
+	changed() {
+		has "($1 projection" || return 1
+		now=$(plot)
+		[ "$now" != "$prev" ] || { WHY="step $1 after the flip did not change the plot"; return 1; }
+	}
 	for ((k = 1; k <= 4; k++)); do
 		keys Space
-		wait_for "($k projection"
-		now=$(plot)
-		[ "$now" != "$prev" ] || fail "step $k after the flip did not change the plot"
+		expect changed "$k"
 		prev=$now
 	done
 	echo "ok: six steps out stay in view; four steps in each change the plot"
@@ -302,22 +417,29 @@ points)
 	printf 'format_version: 1\nsource:\n  vs: 470 mV\n  rs: 420\ndevice:\n  model: tunnel\n' >"$f"
 	start 80 24 "$f"
 	wait_for "Convergence"
-	side=$(screen | cut -c51-)
-	for p in 1 2 3; do
-		grep -qE "^$p[ >] " <<<"$side" || fail "point $p is not listed"
-	done
-	grep -qE '^2[ >] .*unstable' <<<"$side" || fail "the middle point is not unstable"
-	[ "$(grep -cE '^[13][ >] .*stable' <<<"$side")" = 2 ] || fail "the outer points are not stable"
+	three_points() {
+		local side p
+		side=$(cut -c51- <<<"$SHOT")
+		for p in 1 2 3; do
+			grep -qE "^${p}[ >] " <<<"$side" || { WHY="point $p is not listed"; return 1; }
+		done
+		grep -qE '^2[ >] .*unstable' <<<"$side" || { WHY="the middle point is not unstable"; return 1; }
+		[ "$(grep -cE '^[13][ >] .*stable' <<<"$side")" = 2 ] ||
+			{ WHY="the outer points are not stable"; return 1; }
+	}
+	expect three_points
 	last=""
+	diagnosis_of() {
+		has "point $1 of 3" || return 1
+		d=$(cut -c51- <<<"$SHOT" | awk '/- Diagnosis/ { on = 1 } /- Convergence/ { on = 0 } on')
+		grep -q "at point $1" <<<"$d" || { WHY="the diagnosis does not speak of point $1"; return 1; }
+		[ "$d" != "$last" ] || { WHY="selecting point $1 did not change the diagnosis"; return 1; }
+	}
 	for p in 2 3 1; do
 		keys p
-		wait_for "point $p of 3"
-		d=$(screen | cut -c51- | awk '/- Diagnosis/ { on = 1 } /- Convergence/ { on = 0 } on')
-		grep -q "at point $p" <<<"$d" || fail "the diagnosis does not speak of point $p"
-		[ "$d" != "$last" ] || fail "selecting point $p did not change the diagnosis"
+		expect diagnosis_of "$p"
 		last=$d
 	done
-	screen | grep -qiE '(^|[^a-z])(nan|inf)([^a-z]|$)' && fail "nan or inf on screen"
 	echo "ok: three points listed with stable/unstable/stable; p changes the diagnosis"
 	;;
 wrap)
@@ -328,19 +450,26 @@ wrap)
 	wait_for "Convergence"
 	# The side pane is the last 32 columns (its bar, a blank, 30 of text);
 	# the text itself may hold '|' (as in |g'|), so cut by column.
-	bar=$(screen | sed -n '2,23p' | cut -c49 | sort -u)
-	[ "$bar" = "|" ] || fail "the side pane's bar is not at column 49"
-	side=$(screen | sed -n '2,23p' | cut -c51-)
-	# The diagnosis box as one line, wrapped lines joined with blanks.
-	box=$(awk '/- Diagnosis/ { on = 1; next } /- Convergence/ { on = 0 }
-		on { sub(/^ +/, ""); sub(/ +$/, ""); printf "%s ", $0 }' <<<"$side")
-	grep -qF "the other order contracts with |g'| = 0.0118: switch to voltage-from-device" <<<"$box" ||
-		fail "the remedy is not shown whole: $box"
-	grep -qF "Is       110e-21 A" <<<"$side" || fail "Is not in short form"
+	wrapped() {
+		local bar side
+		bar=$(sed -n '2,23p' <<<"$SHOT" | cut -c49 | sort -u)
+		[ "$bar" = "|" ] || { WHY="the side pane's bar is not at column 49"; return 1; }
+		side=$(sed -n '2,23p' <<<"$SHOT" | cut -c51-)
+		# The diagnosis box as one line, wrapped lines joined with blanks.
+		box=$(awk '/- Diagnosis/ { on = 1; next } /- Convergence/ { on = 0 }
+			on { sub(/^ +/, ""); sub(/ +$/, ""); printf "%s ", $0 }' <<<"$side")
+		grep -qF "the other order contracts with |g'| = 0.0118: switch to voltage-from-device" <<<"$box" ||
+			{ WHY="the remedy is not shown whole: $box"; return 1; }
+		grep -qF "Is       110e-21 A" <<<"$side" || { WHY="Is not in short form"; return 1; }
+	}
+	expect wrapped
 	tmx resize-window -x 100 -y 30
-	wait_for "step  ratio"
-	row0=$(table_rows | grep -E '^ *0 ')
-	[ "$(awk '{ print $5 }' <<<"$row0")" = "-" ] || fail "row 0 step is not '-': $row0"
+	row_zero() {
+		has "step  ratio" || return 1
+		row0=$(table_rows | grep -E '^ *0 ')
+		[ "$(awk '{ print $5 }' <<<"$row0")" = "-" ] || { WHY="row 0 step is not '-': $row0"; return 1; }
+	}
+	expect row_zero
 	grep -q nan <<<"$row0" && fail "row 0 shows nan: $row0"
 	echo "ok: the remedy wraps whole at 80x24; row 0 step '-'; Is as 110e-21 A"
 	;;
@@ -350,10 +479,12 @@ extra)
 	# beta times the base current (IC = beta IB, common practice).
 	start 100 30 "$samples/npn-divider-bias.yaml"
 	wait_for "Convergence"
-	wait_for "active"
-	title_point
-	ic=$(screen | grep -oE 'IC [0-9.]+ [munp]?A' | head -1 | cut -c4-)
-	[ -n "$ic" ] || fail "no IC shown"
+	ic_shown() {
+		has "active" && title_point || return 1
+		ic=$(grep -oE 'IC [0-9.]+ [munp]?A' <<<"$SHOT" | head -1 | cut -c4-)
+		[ -n "$ic" ] || { WHY="no IC shown"; return 1; }
+	}
+	expect ic_shown
 	beta=$(awk '$1 == "current_gain:" { print $2 }' "$samples/npn-divider-bias.yaml")
 	[ -n "$beta" ] || fail "no current_gain in the sample"
 	want=$(awk -v b="$beta" -v i="$(eng "$TI")" 'BEGIN { printf "%.17g", b * i }')
@@ -367,14 +498,13 @@ eseries)
 	start 100 30 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"
 	wait_for "RS       3.3 kohm"
-	title_point
+	expect title_point
 	before=$TI
 	keys Down '}'
 	wait_for "RS       3.6 kohm"
 	wait_for "(E24)"
 	wait_for "[modified]"
-	title_point
-	[ "$TI" != "$before" ] || fail "the point did not move"
+	expect current_moved "$before"
 	keys '}'
 	wait_for "RS       3.9 kohm"
 	keys '{' '{'
@@ -396,27 +526,33 @@ design)
 	want=$(awk '$1 == "higher" { print $2 " " $3; exit }' <<<"$out")
 	[ -n "$want" ] || { echo "$out"; fail "no higher row from 'biasline design'"; }
 	grep -qE '^ +higher .*\(nearest\)' <<<"$out" || { echo "$out"; fail "the CLI does not call higher nearest"; }
+	tcli=$(awk '$1 == "higher" { print $6 " " $7; exit }' <<<"$out")
 	start 100 30 "$file"
 	wait_for "Convergence"
 	keys D
 	wait_for "design: target ("
 	keys 10m Enter
-	wait_for "Design: device current 10 mA, solving for RS (E24)"
-	got=$(screen | grep -oE 'higher +[0-9.]+ [kM]?ohm' | awk '{ print $2 " " $3 }')
-	close_to "$(eng "$got")" "$(eng "$want")" 1e-9 || fail "higher row $got, CLI says $want"
-	screen | grep -qE ' exact +[0-9.]+ [kM]?ohm' || fail "no exact row"
-	screen | grep -qE ' lower +[0-9.]+ [kM]?ohm' || fail "no lower row"
-	# The nearer standard value is chosen first (the CLI's nearest).
-	screen | grep -qE '> higher +[0-9.]+ [kM]?ohm.*nearest' || fail "higher is not chosen first"
-	screen | grep -qF "no tolerances: % on a value adds one" || fail "no word on the missing tolerances"
+	design_rows() {
+		has "Design: device current 10 mA, solving for RS (E24)" || return 1
+		has_re ' exact +[0-9.]+ [kM]?ohm' || { WHY="no exact row"; return 1; }
+		has_re ' lower +[0-9.]+ [kM]?ohm' || { WHY="no lower row"; return 1; }
+		got=$(grep -oE 'higher +[0-9.]+ [kM]?ohm' <<<"$SHOT" | awk '{ print $2 " " $3 }')
+		close_to "$(eng "$got")" "$(eng "$want")" 1e-9 || { WHY="higher row $got, CLI says $want"; return 1; }
+		# The nearer standard value is chosen first (the CLI's nearest).
+		has_re '> higher +[0-9.]+ [kM]?ohm.*nearest' || { WHY="higher is not chosen first"; return 1; }
+		has "no tolerances: % on a value adds one" || { WHY="no word on the missing tolerances"; return 1; }
+	}
+	expect design_rows
 	keys Enter
 	wait_for "(the higher row of the design"
 	wait_gone "Design: device current"
 	wait_for "RS       $got"
 	wait_for "[modified]"
-	title_point
-	tcli=$(awk '$1 == "higher" { print $6 " " $7; exit }' <<<"$out")
-	close_to "$(eng "$TI")" "$(eng "$tcli")" 1e-4 || fail "point $TI after applying, CLI says $tcli"
+	applied() {
+		has "RS       $got" && title_point || return 1
+		close_to "$(eng "$TI")" "$(eng "$tcli")" 1e-4 || { WHY="point $TI after applying, CLI says $tcli"; return 1; }
+	}
+	expect applied
 	# u takes the design back.
 	keys u
 	wait_for "RS       3.3 kohm"
@@ -427,7 +563,7 @@ design)
 	wait_for "design: target ("
 	keys C-u 10ohm Enter
 	wait_for "is a resistance, expected a current"
-	screen | grep -qF "Design: device" && fail "a resistance was taken as a target"
+	grep -qF "Design: device" <<<"$SHOT" && fail "a resistance was taken as a target"
 	keys Escape
 	wait_for "cancelled"
 	echo "ok: design view higher row $got (CLI $want) chosen and applied; point $TI; undone"
@@ -442,7 +578,7 @@ tolerance)
 	wait_for "no tolerances in this session"
 	keys Escape
 	wait_gone "no tolerances"
-	tmx kill-server
+	stop_server
 	cp "$samples/indicator-led-24v.yaml" "$work/tol.yaml"
 	printf 'tolerances:\n  rs: 5%%\n  vs: {min: 22.5, max: 25.5}\n' >>"$work/tol.yaml"
 	out=$("$bin" tolerance --bins 8 --seed 1 --trials 10000 "$work/tol.yaml") ||
@@ -454,19 +590,25 @@ tolerance)
 	start 100 30 "$work/tol.yaml"
 	wait_for "Convergence"
 	keys T
-	wait_for "worst case over 4 corners"
-	# Columns nominal, minimum, maximum, as the CLI prints them.
-	screen | grep -qE '\| +nominal +minimum +maximum' || fail "columns not nominal, minimum, maximum"
-	row=$(screen | grep -oE 'current +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A')
-	tmin=$(awk '{ print $4 " " $5 }' <<<"$row")
-	tmax=$(awk '{ print $6 " " $7 }' <<<"$row")
-	close_to "$(eng "$tmin")" "$(eng "$cli_min")" 1e-4 || fail "worst min $tmin, CLI $cli_min"
-	close_to "$(eng "$tmax")" "$(eng "$cli_max")" 1e-4 || fail "worst max $tmax, CLI $cli_max"
-	screen | grep -qF "Monte Carlo, 10000" && fail "the trials ran before m"
+	worst_case() {
+		has "worst case over 4 corners" || return 1
+		# Columns nominal, minimum, maximum, as the CLI prints them.
+		has_re '\| +nominal +minimum +maximum' || { WHY="columns not nominal, minimum, maximum"; return 1; }
+		row=$(grep -oE 'current +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A +[0-9.]+ [munp]?A' <<<"$SHOT")
+		tmin=$(awk '{ print $4 " " $5 }' <<<"$row")
+		tmax=$(awk '{ print $6 " " $7 }' <<<"$row")
+		close_to "$(eng "$tmin")" "$(eng "$cli_min")" 1e-4 || { WHY="worst min $tmin, CLI $cli_min"; return 1; }
+		close_to "$(eng "$tmax")" "$(eng "$cli_max")" 1e-4 || { WHY="worst max $tmax, CLI $cli_max"; return 1; }
+	}
+	expect worst_case
+	grep -qF "Monte Carlo, 10000" <<<"$SHOT" && fail "the trials ran before m"
 	keys m
-	wait_for "Monte Carlo, 10000 trials"
-	bin1=$(screen | grep -oE '[0-9] [munp]?A \|#* +[0-9]+' | head -1 | awk '{ print $NF }')
-	[ "$bin1" = "$cli_bin" ] || fail "first bin holds $bin1 trials, CLI says $cli_bin"
+	first_bin() {
+		has "Monte Carlo, 10000 trials" || return 1
+		bin1=$(grep -oE '[0-9] [munp]?A \|#* +[0-9]+' <<<"$SHOT" | head -1 | awk '{ print $NF }')
+		[ "$bin1" = "$cli_bin" ] || { WHY="first bin holds $bin1 trials, CLI says $cli_bin"; return 1; }
+	}
+	expect first_bin
 	echo "ok: worst case $tmin ... $tmax and first histogram bin $bin1 match the CLI"
 	;;
 sensitivity)
@@ -481,11 +623,14 @@ sensitivity)
 	start 100 30 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"
 	keys S
-	wait_for "Sensitivities at the first operating point"
-	si=$(screen | grep -oE ' rs +[0-9.]+ [kM]?ohm +[-+0-9.e]+ +[-+0-9.e]+' |
-		awk '{ print $NF; exit }')
-	[ -n "$si" ] || { screen; fail "no rs row on screen"; }
-	close_to "$si" "$cli_si" 2e-3 || fail "S(I) to rs on screen $si, CLI $cli_si"
+	rs_row() {
+		has "Sensitivities at the first operating point" || return 1
+		si=$(grep -oE ' rs +[0-9.]+ [kM]?ohm +[-+0-9.e]+ +[-+0-9.e]+' <<<"$SHOT" |
+			awk '{ print $NF; exit }')
+		[ -n "$si" ] || { WHY="no rs row on screen"; return 1; }
+		close_to "$si" "$cli_si" 2e-3 || { WHY="S(I) to rs on screen $si, CLI $cli_si"; return 1; }
+	}
+	expect rs_row
 	keys Escape
 	wait_gone "Sensitivities at the first"
 	echo "ok: the sensitivity of I to rs on screen ($si) matches the CLI ($cli_si)"
@@ -499,24 +644,27 @@ sweep)
 	keys Down W
 	wait_for "sweep (parameter FROM..TO, then log or lin) = rs 330ohm..33kohm log"
 	keys Enter
-	wait_for "I vs RS (log) @ 3.3 kohm"
-	wait_for "I^ RS>"
-	plot=$(screen | sed -n '2,29p' | cut -c1-56)
-	labels=$(tail -1 <<<"$plot")
-	grep -qF " 1 kohm" <<<"$labels" && grep -qF "10 kohm" <<<"$labels" ||
-		fail "no 1 kohm and 10 kohm labels: $labels"
-	# The tick columns of 1k and 10k: the '+' after the corner on the axis.
-	axis=$(tail -2 <<<"$plot" | head -1)
-	read -r c1 c10 <<<"$(awk '{ n = 0; for (k = 1; k <= length($0); k++)
-		if (substr($0, k, 1) == "+" && ++n > 1) printf "%d ", k }' <<<"$axis")"
-	[ -n "$c1" ] && [ -n "$c10" ] || fail "no decade ticks on the axis: $axis"
-	cat=$(grep -n '@' <<<"$plot" | grep -v 'I vs RS' | head -1)
-	[ -n "$cat" ] || fail "no mark on the sweep"
-	cm=$(awk -F: '{ print index(substr($0, length($1) + 2), "@") }' <<<"$cat")
-	# Log scale: 3.3k is 52 % of the way from 1k to 10k (log10 3.3 = 0.519);
-	# one cell of rounding is 4 % of this decade.
-	frac=$(awk -v m="$cm" -v a="$c1" -v b="$c10" 'BEGIN { printf "%.3f", (m - a) / (b - a) }')
-	close_to "$frac" 0.519 0.1 || fail "mark at $frac of the decade, log10(3.3) = 0.519"
+	sweep_mark() {
+		local plot labels axis at cm
+		has "I vs RS (log) @ 3.3 kohm" && has "I^ RS>" || return 1
+		plot=$(sed -n '2,29p' <<<"$SHOT" | cut -c1-56)
+		labels=$(tail -1 <<<"$plot")
+		grep -qF " 1 kohm" <<<"$labels" && grep -qF "10 kohm" <<<"$labels" ||
+			{ WHY="no 1 kohm and 10 kohm labels: $labels"; return 1; }
+		# The tick columns of 1k and 10k: the '+' after the corner on the axis.
+		axis=$(tail -2 <<<"$plot" | head -1)
+		read -r c1 c10 <<<"$(awk '{ n = 0; for (k = 1; k <= length($0); k++)
+			if (substr($0, k, 1) == "+" && ++n > 1) printf "%d ", k }' <<<"$axis")"
+		[ -n "$c1" ] && [ -n "$c10" ] || { WHY="no decade ticks on the axis: $axis"; return 1; }
+		at=$(grep -n '@' <<<"$plot" | grep -v 'I vs RS' | head -1)
+		[ -n "$at" ] || { WHY="no mark on the sweep"; return 1; }
+		cm=$(awk -F: '{ print index(substr($0, length($1) + 2), "@") }' <<<"$at")
+		# Log scale: 3.3k is 52 % of the way from 1k to 10k (log10 3.3 =
+		# 0.519); one cell of rounding is 4 % of this decade.
+		frac=$(awk -v m="$cm" -v a="$c1" -v b="$c10" 'BEGIN { printf "%.3f", (m - a) / (b - a) }')
+		close_to "$frac" 0.519 0.1 || { WHY="mark at $frac of the decade, log10(3.3) = 0.519"; return 1; }
+	}
+	expect sweep_mark
 	keys '}'
 	wait_for "I vs RS (log) @ 3.6 kohm"
 	# Any parameter: the temperature, linear; a bad range says why.
@@ -548,9 +696,13 @@ folds)
 	keys Down e C-u 300 Enter
 	wait_for "RS       300 ohm"
 	keys W C-u "vs 0..1 lin" Enter
-	wait_for "I vs VS @ 225.85 mV"
-	wait_for "':' marks the jumps: at"
-	line=$(screen | grep -oE "at [0-9.]+ mV going up, at [0-9.]+ mV going down")
+	jumps() {
+		has "I vs VS @ 225.85 mV" && has "':' marks the jumps: at" || return 1
+		line=$(grep -oE "at [0-9.]+ mV going up, at [0-9.]+ mV going down" <<<"$SHOT")
+		[ -n "$line" ] || { WHY="no jump going up and down"; return 1; }
+		[ "$(grep -c ':' <<<"$SHOT")" -ge 10 ] || { WHY="no column of ':' on the plot"; return 1; }
+	}
+	expect jumps
 	up=$(awk '{ print $2 }' <<<"$line")
 	down=$(awk '{ print $7 }' <<<"$line")
 	awk -v u="$up" -v d="$down" 'BEGIN { exit !(u > d) }' || fail "jump up $up mV not above jump down $down mV"
@@ -558,7 +710,6 @@ folds)
 	read -r f1 f2 <<<"$(grep -E '^ *fold:' <<<"$out" | grep -oE 'vs = [0-9.]+ mV' | awk '{ print $3 }' | sort -n | tr '\n' ' ')"
 	close_to "$up" "$f2" 2e-3 || fail "jump up at $up mV, the CLI's upper fold is $f2 mV"
 	close_to "$down" "$f1" 2e-3 || fail "jump down at $down mV, the CLI's lower fold is $f1 mV"
-	[ "$(screen | grep -c ':')" -ge 10 ] || fail "no column of ':' on the plot"
 	echo "ok: the jumps at $up mV going up and $down mV going down are marked"
 	;;
 thermal)
@@ -578,9 +729,8 @@ thermal)
 	keys g
 	wait_for "thermal runaway: the junction passed its maximum"
 	wait_for "diverging"
-	screen | grep -qE 'diverging: G [0-9.]+ here' ||
-		fail "no G at the newest step"
-	g=$(screen | grep -oE 'diverging: G [0-9.]+' | awk '{ print $3 }')
+	expect has_re 'diverging: G [0-9.]+ here'
+	g=$(grep -oE 'diverging: G [0-9.]+' <<<"$SHOT" | awk '{ print $3 }')
 	awk -v g="$g" 'BEGIN { exit !(g > 1) }' || fail "G $g is not above 1"
 	keys Down Down Down Down Down
 	keys e
@@ -589,10 +739,13 @@ thermal)
 	wait_for "RE       1 ohm"
 	wait_for "Tj "
 	keys g
-	wait_for "thermal loop converged"
-	screen | grep -qE 'G 0\.[0-9]+ at [0-9.]+ degC: stable' ||
-		fail "no stable balance"
-	tj=$(screen | grep -oE 'converged: Tj = [0-9.]+' | awk '{ print $4 }')
+	balance() {
+		has "thermal loop converged" || return 1
+		has_re 'G 0\.[0-9]+ at [0-9.]+ degC: stable' || { WHY="no stable balance"; return 1; }
+		has_re 'converged: Tj = [0-9.]+'
+	}
+	expect balance
+	tj=$(grep -oE 'converged: Tj = [0-9.]+' <<<"$SHOT" | awk '{ print $4 }')
 	wait_for "load line at Tj $tj degC"
 	keys Escape
 	wait_for "I^ V>"
@@ -609,7 +762,7 @@ network)
 	start 100 30 "$work/split.yaml"
 	wait_for "Convergence"
 	wait_for "upper divider 68 kohm"
-	title_point
+	expect title_point
 	before=$TI
 	keys Down Down
 	keys e
@@ -617,18 +770,20 @@ network)
 	keys 56k Enter
 	wait_for "upper divider 56 kohm"
 	wait_for "[modified]"
-	title_point
-	[ "$TI" != "$before" ] || fail "the point did not move"
+	expect current_moved "$before"
 	keys Down Down Down Down
 	wait_for "RS (net)"
-	wait_for "VS (net)"
-	vs=$(screen | grep -oE 'VS \(net\) [0-9.]+ [mk]?V' | awk '{ print $3 " " $4 }')
-	rs=$(screen | grep -oE 'RS \(net\) [0-9.]+ [mk]?ohm' | awk '{ print $3 " " $4 }')
-	[ -n "$vs" ] && [ -n "$rs" ] || fail "no VS (net) or RS (net) shown"
-	close_to "$(eng "$vs")" "$(awk 'BEGIN { printf "%.17g", 15 * 22 / 78 + 5 }')" 1e-4 ||
-		fail "VS (net) $vs"
-	close_to "$(eng "$rs")" "$(awk 'BEGIN { printf "%.17g", 56e3 * 22e3 / 78e3 + 4.7e3 }')" 1e-4 ||
-		fail "RS (net) $rs"
+	equivalent() {
+		has "VS (net)" && has "RS (net)" || return 1
+		vs=$(grep -oE 'VS \(net\) [0-9.]+ [mk]?V' <<<"$SHOT" | awk '{ print $3 " " $4 }')
+		rs=$(grep -oE 'RS \(net\) [0-9.]+ [mk]?ohm' <<<"$SHOT" | awk '{ print $3 " " $4 }')
+		[ -n "$vs" ] && [ -n "$rs" ] || { WHY="no VS (net) or RS (net) shown"; return 1; }
+		close_to "$(eng "$vs")" "$(awk 'BEGIN { printf "%.17g", 15 * 22 / 78 + 5 }')" 1e-4 ||
+			{ WHY="VS (net) $vs"; return 1; }
+		close_to "$(eng "$rs")" "$(awk 'BEGIN { printf "%.17g", 56e3 * 22e3 / 78e3 + 4.7e3 }')" 1e-4 ||
+			{ WHY="RS (net) $rs"; return 1; }
+	}
+	expect equivalent
 	# The equivalent itself stays read-only; } steps a network resistor.
 	keys e
 	wait_for "change one of the network"
@@ -644,7 +799,7 @@ edit)
 	# Typing RS = 2.2k moves the point; a bad value is refused and kept.
 	start 100 30 "$samples/projection-order-matters.yaml"
 	wait_for "Convergence"
-	title_point
+	expect title_point
 	before="$TV, $TI"
 	keys Down e
 	wait_for "RS ="
@@ -653,8 +808,7 @@ edit)
 	keys BSpace k Enter
 	wait_for "RS       2.2 kohm"
 	wait_for "[modified]"
-	title_point
-	[ "$TV, $TI" != "$before" ] || fail "the point did not move ($before)"
+	expect point_moved "$before"
 	# Esc cancels a prompt and keeps the value.
 	keys e 47 Escape
 	wait_for "cancelled"
@@ -662,45 +816,56 @@ edit)
 	echo "ok: point moved from $before to $TV, $TI"
 	;;
 resize)
-	# Axes and the table survive resizes to 80x24 and 200x60; tiny waits.
+	# Axes and the table survive resizes to 80x24 and 200x60; below 80x24
+	# the notice says so, whole and within the width, down to 40x12.
 	start 100 30 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"
 	keys Space Space Space
 	wait_for "(3 projections"
-	for size in 80x24 200x60 50x15 100x30; do
-		tmx resize-window -x "${size%x*}" -y "${size#*x}"
-		if [ "$size" = 50x15 ]; then
-			wait_for "terminal too small"
-			continue
+	# One whole frame at W x H, neither the old one nor one half drawn:
+	# the title spans the width, every row between it and the key hint on
+	# the last row has the side pane's bar at its column, both axes are
+	# there and the table still has row 3.
+	whole_frame() {
+		local w=$1 h=$2 side
+		side=$((w >= 140 ? 52 : w >= 100 ? 44 : 32))
+		[ "$(wc -l <<<"$SHOT")" -eq "$h" ] || { WHY="not $h rows"; return 1; }
+		awk -v w="$w" -v h="$h" -v bar=$((w - side + 1)) '
+			NR == 1 && (length($0) < w - 1 || $0 !~ /\? help$/) { bad = 1 }
+			NR > 1 && NR < h && substr($0, bar, 1) != "|" { bad = 1 }
+			NR == h && $0 !~ /^Space step/ { bad = 1 }
+			END { exit bad }' <<<"$SHOT" || { WHY="no whole frame at ${w}x$h"; return 1; }
+		has_re '^ *[0-9.]+ [munp]?A\+' || { WHY="no current axis at ${w}x$h"; return 1; }
+		has_re '\+-+\+' || { WHY="no voltage axis at ${w}x$h"; return 1; }
+		has "Convergence" || return 1
+		has_row 3 || { WHY="table lost row 3 at ${w}x$h"; return 1; }
+	}
+	# The notice for the size W x H, every line within the width.
+	too_small() {
+		local w=$1 h=$2
+		has "terminal too small: ${w}x$h" && has "needs at least 80x24" &&
+			has "resize the window, or press q to quit" || return 1
+		awk -v w="$w" 'length($0) > w { exit 1 }' <<<"$SHOT" ||
+			{ WHY="a line wider than $w"; return 1; }
+	}
+	for size in 80x24 200x60 50x15 40x12 100x30; do
+		w=${size%x*} h=${size#*x}
+		tmx resize-window -x "$w" -y "$h"
+		if [ "$w" -lt 80 ]; then
+			expect too_small "$w" "$h"
+		else
+			expect whole_frame "$w" "$h"
 		fi
-		wait_gone "terminal too small"
-		wait_for "I^ V>"
-		# the old frame stays on screen until the new one is drawn: poll
-		for ((k = 0; k < 100; k++)); do
-			screen | grep -qE '^ *[0-9.]+ [munp]?A\+' &&
-				screen | grep -qE '\+-+\+' &&
-				table_rows | grep -qE '^ *3 ' && break
-			sleep 0.1
-		done
-		screen | grep -qE '^ *[0-9.]+ [munp]?A\+' || fail "no current axis at $size"
-		screen | grep -qE '\+-+\+' || fail "no voltage axis at $size"
-		wait_for "Convergence"
-		# (the redraw after a resize may still be under way: poll)
-		for ((t = 0; t < 50; t++)); do
-			table_rows | grep -qE '^ *3 ' && break
-			sleep 0.1
-		done
-		table_rows | grep -qE '^ *3 ' || fail "table lost row 3 at $size"
 	done
-	echo "ok: axes and table at 80x24, 200x60; too-small screen at 50x15"
+	echo "ok: axes and table at 80x24, 200x60; the too-small notice whole at 50x15, 40x12"
 	;;
 save)
 	# Save, quit, reopen: the same state.
 	cp "$samples/diode-string-reference.yaml" "$work/string.yaml"
 	start 100 30 "$work/string.yaml"
 	wait_for "Convergence"
-	was=$(screen | grep -oE 'Diagnosis \(V from (line|device)' | awk '{ print $NF }')
-	[ -n "$was" ] || fail "no order shown"
+	expect has_re 'Diagnosis \(V from (line|device)'
+	was=$(grep -oE 'Diagnosis \(V from (line|device)' <<<"$SHOT" | awk '{ print $NF }')
 	now=line
 	[ "$was" = line ] && now=device
 	keys o
@@ -716,8 +881,8 @@ save)
 	start 100 30 "$work/string.yaml"
 	wait_for "Convergence"
 	wait_for "V from $now"
-	screen | grep -qF "[modified]" && fail "reopened file shows as modified"
-	screen | grep -qF "recovery" && fail "a recovery prompt after a clean save"
+	grep -qF "[modified]" <<<"$SHOT" && fail "reopened file shows as modified"
+	grep -qF "recovery" <<<"$SHOT" && fail "a recovery prompt after a clean save"
 	keys q
 	wait_exit
 	echo "ok: order flipped from $was to $now survived save, quit and reopen"
@@ -729,12 +894,9 @@ hangup)
 	wait_for "Convergence"
 	keys Down e 2.2k Enter
 	wait_for "RS       2.2 kohm"
-	tmx kill-server
-	for ((k = 0; k < 50; k++)); do
-		rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
-		[ -n "$rec" ] && break
-		sleep 0.1
-	done
+	# the program writes its recovery file before it exits
+	stop_server || fail "the program did not exit after SIGHUP"
+	rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
 	[ -n "$rec" ] || fail "no recovery file under $XDG_STATE_HOME/biasline"
 	"$bin" check "$rec" >/dev/null || fail "the recovery file is not a valid session"
 	grep -qE 'rs: *(2200|2\.2 ?k)' "$rec" || { cat "$rec"; fail "the recovery file lacks rs = 2.2k"; }
@@ -765,7 +927,7 @@ saveas)
 	wait_for "not replaced: type another name"
 	wait_for "save as: ~/other.yaml"
 	[ "$(cksum <"$HOME/other.yaml")" = "$before" ] || fail "Enter (no) changed the file"
-	screen | grep -qF "[modified]" || fail "no longer marked modified after no"
+	wait_for "[modified]"
 	keys Enter
 	wait_for "exists: replace it?"
 	keys n
@@ -862,16 +1024,15 @@ readonly)
 	[ "$(id -u)" = 0 ] && chown -R 65534:65534 "$work/user"
 	chmod 555 "$work/user/ro"
 	before=$(cksum <"$work/user/ro/led.yaml")
-	tmx new-session -d -x 80 -y 24 \
-		"exec env HOME=$(printf '%q' "$work/user") XDG_STATE_HOME=$(printf '%q' "$work/user/state") ${run[*]} $(printf '%q ' "$bin" "$work/user/ro/led.yaml") 2>>$(printf '%q' "$work/stderr")" ||
-		fail "tmux could not start"
+	new_server -x 80 -y 24 \
+		"exec env HOME=$(printf '%q' "$work/user") XDG_STATE_HOME=$(printf '%q' "$work/user/state") ${run[*]} $(printf '%q ' "$bin" "$work/user/ro/led.yaml") 2>>$(printf '%q' "$work/stderr")"
 	wait_for "Convergence"
 	keys Down '}'
 	wait_for "[modified]"
 	keys s
 	wait_for "not saved"
 	wait_for "save as: $work/user/ro/led.yaml"
-	screen | grep -qF "[modified]" || fail "not marked modified after the failed save"
+	wait_for "[modified]"
 	[ "$(cksum <"$work/user/ro/led.yaml")" = "$before" ] || fail "the read-only copy changed"
 	ls -A "$work/user/ro" | grep -q '^\.' && fail "a temporary file was left in the folder"
 	keys C-u
@@ -894,27 +1055,28 @@ recovery)
 	wait_for "Convergence"
 	keys Down e 2.2k Enter
 	wait_for "RS       2.2 kohm"
-	tmx kill-server
-	for ((k = 0; k < 50; k++)); do
-		rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
-		[ -n "$rec" ] && break
-		sleep 0.1
-	done
+	# the program writes its recovery file before it exits
+	stop_server || fail "the program did not exit after SIGHUP"
+	rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
 	[ -n "$rec" ] || fail "no recovery file"
 	for size in 80x24 60x15 40x12; do
 		start "${size%x*}" "${size#*x}" "$work/order.yaml"
-		wait_for "restore them?"
-		text=$(screen | tr '\n' ' ' | tr -s ' ')
-		for part in "a recovery file holds unsaved changes from" "newer than the file" \
-			"(y restores, n sets the recovery file aside)"; do
-			grep -qF "$part" <<<"$text" || fail "at $size the question lacks '$part'"
-		done
-		screen | awk -v w="${size%x*}" 'length($0) > w { exit 1 }' || fail "a line wider than the screen"
+		question_whole() {
+			local text part
+			has "restore them?" || return 1
+			text=$(tr '\n' ' ' <<<"$SHOT" | tr -s ' ')
+			for part in "a recovery file holds unsaved changes from" "newer than the file" \
+				"(y restores, n sets the recovery file aside)"; do
+				grep -qF "$part" <<<"$text" || { WHY="at $size the question lacks '$part'"; return 1; }
+			done
+			awk -v w="${size%x*}" 'length($0) > w { exit 1 }' <<<"$SHOT" ||
+				{ WHY="a line wider than the screen"; return 1; }
+		}
+		expect question_whole
 		# q and other keys do not answer it; they say what does.
 		keys q
 		wait_for "press y or n"
-		tmx kill-server
-		sleep 0.2
+		stop_server
 	done
 	start 60 15 "$work/order.yaml"
 	wait_for "restore them?"
@@ -930,7 +1092,7 @@ recovery)
 	touch -d '1 hour ago' "$rec"
 	start 80 24 "$work/order.yaml"
 	wait_for "the file is newer than its recovery file"
-	screen | grep -qF "restore them?" && fail "an older recovery file was offered"
+	grep -qF "restore them?" <<<"$SHOT" && fail "an older recovery file was offered"
 	[ "$(ls "$XDG_STATE_HOME"/biasline/*.aside-*.yaml | wc -l)" -eq 2 ] || fail "the older file was not set aside"
 	keys q
 	wait_exit
@@ -942,22 +1104,21 @@ sigquit)
 	esc=$(printf '\033')
 	cp "$samples/indicator-led-24v.yaml" "$work/led.yaml"
 	out=$work/quit.bytes
-	tmx new-session -d -x 80 -y 24 \
-		"read _; $(printf '%q ' "$bin" "$work/led.yaml") 2>/dev/null; echo \"status=\$?\"; stty -a | tr ' ;' '\n\n' | grep -x -e echo -e -echo -e icanon -e -icanon; read _" ||
-		fail "tmux could not start"
+	new_server -x 80 -y 24 \
+		"read _; $(printf '%q ' "$bin" "$work/led.yaml") 2>/dev/null; echo \"status=\$?\"; stty -a | tr ' ;' '\n\n' | grep -x -e echo -e -echo -e icanon -e -icanon; echo 'end of the checks'; read _"
 	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
 	keys Enter
 	wait_for "Convergence"
 	keys Down e 1.8k Enter
 	wait_for "RS       1.8 kohm"
-	t0=$(date +%s%N)
 	keys 'C-\'
-	wait_for "status=131"
-	t1=$(date +%s%N)
-	echo "Ctrl-\\ to the shell's prompt: $(( (t1 - t0) / 1000000 )) ms (polled every 100 ms)"
-	grep -q "$esc\[?1049l" "$out" || fail "the terminal was not restored after SIGQUIT"
-	screen | grep -qx echo || fail "echo is off after SIGQUIT"
-	screen | grep -qx icanon || fail "the terminal is left in cbreak mode"
+	# the shell prints the status, then the terminal's modes, then the end
+	wait_for "end of the checks"
+	grep -qx "status=131" <<<"$SHOT" || fail "the status is not 131"
+	grep -qx echo <<<"$SHOT" || fail "echo is off after SIGQUIT"
+	grep -qx icanon <<<"$SHOT" || fail "the terminal is left in cbreak mode"
+	# pipe-pane copies the bytes asynchronously: the file may lag the screen
+	wait_file "$out" "$esc\[\?1049l" || fail "the terminal was not restored after SIGQUIT"
 	rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
 	[ -n "$rec" ] || fail "no recovery file after SIGQUIT"
 	"$bin" check "$rec" >/dev/null || fail "the recovery file is not a valid session"
@@ -1084,39 +1245,47 @@ color)
 signals)
 	# SIGTERM with an unsaved edit: recovery file, status 143, terminal
 	# restored.  A fatal signal: the handler still restores the terminal.
+	# The shell around the program keeps the pane open after it: tmux
+	# drops what it has not yet copied to pipe-pane when a pane closes.
 	esc=$(printf '\033')
 	cp "$samples/indicator-led-24v.yaml" "$work/led.yaml"
-	out=$work/term.bytes
-	tmx new-session -d -x 100 -y 30 \
-		"read _; $(printf '%q ' "$bin" "$work/led.yaml") 2>/dev/null; echo \"status=\$?\"; read _" ||
-		fail "tmux could not start"
-	tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
-	keys Enter
-	wait_for "Convergence"
-	keys Down e 1.8k Enter
-	wait_for "RS       1.8 kohm"
-	pid=$(pgrep -P "$(pane_pid)" -x biasline || true)
-	[ -n "$pid" ] || fail "no biasline process"
-	kill -TERM "$pid"
-	wait_for "status=143"
-	grep -q "$esc\[?1049l" "$out" || fail "the terminal was not restored after SIGTERM"
-	ls "$XDG_STATE_HOME"/biasline/*.yaml >/dev/null 2>&1 || fail "no recovery file after SIGTERM"
-	keys Enter
-	wait_exit
-	out=$work/segv.bytes
-	start_piped 100 30 "$out" "" "$work/led.yaml"
-	wait_for "restore them?"
-	pid=$(pane_pid)
-	kill -SEGV "$pid"
-	wait_exit
-	tail -c 200 "$out" | grep -q "$esc\[?1049l" || fail "no reset written after SIGSEGV"
+	for sig in TERM SEGV; do
+		out=$work/$sig.bytes
+		new_server -x 100 -y 30 \
+			"read _; $(printf '%q ' "$bin" "$work/led.yaml") 2>/dev/null; echo \"status=\$?\"; read _"
+		tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
+		keys Enter
+		if [ "$sig" = TERM ]; then
+			wait_for "Convergence"
+			keys Down e 1.8k Enter
+			wait_for "RS       1.8 kohm"
+		else
+			wait_for "restore them?"
+		fi
+		pid=$(pgrep -P "$(pane_pid)" -x biasline || true)
+		[ -n "$pid" ] || fail "no biasline process"
+		kill -"$sig" "$pid"
+		wait_for "status="
+		if [ "$sig" = TERM ]; then
+			grep -qx "status=143" <<<"$SHOT" || fail "the status after SIGTERM is not 143"
+			ls "$XDG_STATE_HOME"/biasline/*.yaml >/dev/null 2>&1 || fail "no recovery file after SIGTERM"
+		fi
+		# pipe-pane copies the bytes asynchronously: the file may lag
+		# the screen; the reset is among the last bytes written
+		for ((k = 0; k < TRIES; k++)); do
+			tail -c 200 "$out" | grep -q "$esc\[?1049l" && break
+			sleep 0.1
+		done
+		tail -c 200 "$out" | grep -q "$esc\[?1049l" || fail "no reset written after SIG$sig"
+		keys Enter
+		wait_exit
+	done
 	echo "ok: SIGTERM saved the recovery file and exited 143; SIGSEGV restored the terminal"
 	;;
 badterm)
 	# An unknown TERM gets a clear message and status 69, not a crash.
-	tmx new-session -d -x 100 -y 30 \
-		"TERM=no-such-terminal-here $(printf '%q ' "$bin"); echo \"status=\$?\"; read _" ||
-		fail "tmux could not start"
+	new_server -x 100 -y 30 \
+		"TERM=no-such-terminal-here $(printf '%q ' "$bin"); echo \"status=\$?\"; read _"
 	wait_for "status=69"
 	wait_for "set TERM to e.g. xterm-256color"
 	keys Enter
@@ -1128,6 +1297,13 @@ idle)
 	start 100 30 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"
 	pid=$(pane_pid)
+	# the first draw may still be on its way out: wait until it sleeps
+	for ((k = 0; k < TRIES; k++)); do
+		state=$(awk '{ print $3 }' "/proc/$pid/stat")
+		[ "$state" = S ] && break
+		sleep 0.1
+	done
+	[ "$state" = S ] || fail "idle process state is $state, not S (sleeping)"
 	t0=$(awk '{ print $14 + $15 }' "/proc/$pid/stat")
 	sleep 1
 	t1=$(awk '{ print $14 + $15 }' "/proc/$pid/stat")
@@ -1166,20 +1342,29 @@ ledquestion)
 	wait_for "Ratings: caution"
 	wait_for "RS 145.3 mW"
 	keys D
-	wait_for "Design: device current 10 mA, solving for RS (E24)"
-	wait_for "worst case over the tolerances"
-	row=$(screen | grep -E '^ *\| > (lower|higher) ' | tail -1 | sed 's/^ *| > //; s/ *|.*$//')
-	[ -n "$row" ] || fail "no chosen row in the worst-case table"
-	read -r kind v1 v2 imin1 imin2 imax1 imax2 p1 p2 rest <<<"$row"
-	verdict=$(grep -oE '(within rating|caution|over rating|no rating)' <<<"$rest")
-	screen | grep -qF "$kind $v1 $v2: RS dissipates" || fail "no worst-case words for the chosen row"
+	# The chosen row of the worst-case table, its verdict and its words.
+	chosen_worst() {
+		has "Design: device current 10 mA, solving for RS (E24)" &&
+			has "worst case over the tolerances" || return 1
+		row=$(grep -E '^ *\| > (lower|higher) ' <<<"$SHOT" | tail -1 | sed 's/^ *| > //; s/ *|.*$//')
+		[ -n "$row" ] || { WHY="no chosen row in the worst-case table"; return 1; }
+		read -r kind v1 v2 imin1 imin2 imax1 imax2 p1 p2 rest <<<"$row"
+		verdict=$(grep -oE '(within rating|caution|over rating|no rating)' <<<"$rest")
+		[ -n "$verdict" ] || { WHY="no verdict in the chosen row: $row"; return 1; }
+		has "$kind $v1 $v2: RS dissipates" || { WHY="no worst-case words for the chosen row"; return 1; }
+	}
+	expect chosen_worst
 	keys Enter
 	wait_for "(the $kind row of the design"
 	wait_for "RS       $v1 $v2 +-5%"
 	# The verdict at worst, in the tolerance view of the applied design.
 	keys T
-	wait_for "ratings at worst (each part at its own extreme): $verdict"
-	tline=$(screen | grep -oE 'RS dissipates [0-9.]+ mW at worst')
+	worst_words() {
+		has "ratings at worst (each part at its own extreme): $verdict" || return 1
+		tline=$(grep -oE 'RS dissipates [0-9.]+ mW at worst' <<<"$SHOT")
+		[ -n "$tline" ] || { WHY="no worst power of RS in the tolerance view"; return 1; }
+	}
+	expect worst_words
 	keys Escape
 	wait_gone "Tolerance:"
 	keys s
@@ -1215,23 +1400,33 @@ zenerdesign)
 	keys t
 	wait_for "design: target ("
 	keys C-u -8mA Enter
-	wait_for "Design: device current -8 mA, solving for RS (E24)"
-	row=$(screen | grep -E '^ *\| > (lower|higher) ' | head -1 | sed 's/^ *| > //')
-	read -r kind v1 v2 vv1 vv2 i1 i2 rest <<<"$row"
-	cli=$(awk -v k="$kind" '$1 == k { print; exit }' <<<"$out")
-	grep -qF "(nearest)" <<<"$cli" || { echo "$out"; fail "the chosen $kind row is not the CLI's nearest"; }
-	read -r ck cv1 cv2 cvv1 cvv2 ci1 ci2 crest <<<"$cli"
-	close_to "$(eng "$v1 $v2")" "$(eng "$cv1 $cv2")" 1e-9 || fail "value $v1 $v2, CLI $cv1 $cv2"
-	close_to "$(eng "$i1 $i2")" "$(eng "$ci1 $ci2")" 1e-3 || fail "current $i1 $i2, CLI $ci1 $ci2"
-	wrow=$(screen | grep -E '^ *\| > (lower|higher) ' | sed -n 2p | sed 's/^ *| > //')
-	read -r wk wv1 wv2 wmin1 wmin2 wrest <<<"$wrow"
-	wcli=$(awk -v k="$kind" '/worst case over/ { on = 1 } on && $1 == k { print; exit }' <<<"$out")
-	read -r x1 x2 x3 x4 x5 cmin1 cmin2 xrest <<<"$wcli"
-	close_to "$(eng "$wmin1 $wmin2")" "$(eng "$cmin1 $cmin2")" 1e-3 || fail "I min $wmin1 $wmin2, CLI $cmin1 $cmin2"
+	# The chosen row and its worst case, both the CLI's.
+	zener_rows() {
+		has "Design: device current -8 mA, solving for RS (E24)" || return 1
+		row=$(grep -E '^ *\| > (lower|higher) ' <<<"$SHOT" | head -1 | sed 's/^ *| > //')
+		read -r kind v1 v2 vv1 vv2 i1 i2 rest <<<"$row"
+		cli=$(awk -v k="$kind" '$1 == k { print; exit }' <<<"$out")
+		grep -qF "(nearest)" <<<"$cli" ||
+			{ WHY="the chosen $kind row is not the CLI's nearest: $out"; return 1; }
+		read -r ck cv1 cv2 cvv1 cvv2 ci1 ci2 crest <<<"$cli"
+		close_to "$(eng "$v1 $v2")" "$(eng "$cv1 $cv2")" 1e-9 || { WHY="value $v1 $v2, CLI $cv1 $cv2"; return 1; }
+		close_to "$(eng "$i1 $i2")" "$(eng "$ci1 $ci2")" 1e-3 || { WHY="current $i1 $i2, CLI $ci1 $ci2"; return 1; }
+		wrow=$(grep -E '^ *\| > (lower|higher) ' <<<"$SHOT" | sed -n 2p | sed 's/^ *| > //')
+		read -r wk wv1 wv2 wmin1 wmin2 wrest <<<"$wrow"
+		wcli=$(awk -v k="$kind" '/worst case over/ { on = 1 } on && $1 == k { print; exit }' <<<"$out")
+		read -r x1 x2 x3 x4 x5 cmin1 cmin2 xrest <<<"$wcli"
+		close_to "$(eng "$wmin1 $wmin2")" "$(eng "$cmin1 $cmin2")" 1e-3 ||
+			{ WHY="I min $wmin1 $wmin2, CLI $cmin1 $cmin2"; return 1; }
+	}
+	expect zener_rows
 	keys Enter
 	wait_for "(the $kind row of the design"
-	title_point
-	close_to "$(eng "$TI")" "$(eng "$i1 $i2")" 1e-3 || fail "point $TI after applying, the row said $i1 $i2"
+	zener_applied() {
+		title_point || return 1
+		close_to "$(eng "$TI")" "$(eng "$i1 $i2")" 1e-3 ||
+			{ WHY="point $TI after applying, the row said $i1 $i2"; return 1; }
+	}
+	expect zener_applied
 	echo "ok: Zener shunt for -8 mA: $kind $v1 $v2 gives $i1 $i2 (CLI $ci1 $ci2), applied"
 	;;
 networkdesign)
@@ -1248,16 +1443,23 @@ networkdesign)
 	keys D
 	wait_for "design: target ("
 	keys C-u 2m Enter
-	wait_for "Design: device current 2 mA, solving for upper divider (E24)"
-	screen | grep -qF "solving for RS" && fail "the network design claims RS"
-	row=$(screen | grep -E '^ *\| > (lower|higher) ' | head -1 | sed 's/^ *| > //')
-	read -r kind v1 v2 rest <<<"$row"
-	[ "$kind $v1 $v2" = "$near" ] || fail "chosen row $kind $v1 $v2, the CLI's nearest is $near"
+	nearest_row() {
+		has "Design: device current 2 mA, solving for upper divider (E24)" || return 1
+		row=$(grep -E '^ *\| > (lower|higher) ' <<<"$SHOT" | head -1 | sed 's/^ *| > //')
+		read -r kind v1 v2 rest <<<"$row"
+		[ "$kind $v1 $v2" = "$near" ] ||
+			{ WHY="chosen row $kind $v1 $v2, the CLI's nearest is $near"; return 1; }
+	}
+	expect nearest_row
+	grep -qF "solving for RS" <<<"$SHOT" && fail "the network design claims RS"
 	keys Enter
 	wait_for "upper divider $v1 $v2"
-	title_point
 	ci=$(awk -v k="$kind" '$1 == k { print $6 " " $7; exit }' <<<"$out")
-	close_to "$(eng "$TI")" "$(eng "$ci")" 1e-3 || fail "point $TI, CLI $ci"
+	net_applied() {
+		title_point || return 1
+		close_to "$(eng "$TI")" "$(eng "$ci")" 1e-3 || { WHY="point $TI, CLI $ci"; return 1; }
+	}
+	expect net_applied
 	# Another part by its name: s in the view.
 	keys D
 	wait_for "Design: device current 2 mA"
@@ -1271,7 +1473,7 @@ networkdesign)
 	wait_for "sweep (parameter FROM..TO, then log or lin) = upper divider "
 	keys Enter
 	wait_for "I vs upper divider (log) @ $v1 $v2"
-	screen | grep -qF "no finite" && fail "the sweep refused the network"
+	grep -qF "no finite" <<<"$SHOT" && fail "the sweep refused the network"
 	echo "ok: network part designed ($kind $v1 $v2, CLI $near), applied and swept"
 	;;
 fitview)
@@ -1288,19 +1490,24 @@ fitview)
 	start 80 24 "$work/amber-panel-led.yaml"
 	wait_for "Convergence"
 	keys F
-	wait_for "Points and residuals"
-	wait_for "11 points of"
-	[ "$(screen | cut -c1-47 | grep -o 'x' | wc -l)" -ge 8 ] || fail "fewer than 8 points marked on the plot"
-	wait_for "the led: RMS"
+	points_shown() {
+		has "Points and residuals" && has "11 points of" && has "the led: RMS" || return 1
+		[ "$(cut -c1-47 <<<"$SHOT" | grep -o 'x' | wc -l)" -ge 8 ] ||
+			{ WHY="fewer than 8 points marked on the plot"; return 1; }
+	}
+	expect points_shown
 	keys f
-	wait_for "fit: RMS 1.5 %, 8 dof"
-	tres=$(screen | grep -E '^\| .* 1\.702 V +500 uA' | grep -oE '[-+][0-9.]+ %' | head -1 | awk '{ print $1 }')
-	close_to "$tres" "$cres" 0.02 || fail "first residual $tres %, CLI $cres %"
-	tvf=$(screen | grep -oE 'Vf [0-9.]+ [mk]?V' | awk '{ print $2 " " $3 }')
-	close_to "$(eng "$tvf")" "$(eng "$cvf")" 1e-4 || fail "Vf $tvf, CLI $cvf"
+	fitted() {
+		has "fit: RMS 1.5 %, 8 dof" || return 1
+		tres=$(grep -E '^\| .* 1\.702 V +500 uA' <<<"$SHOT" | grep -oE '[-+][0-9.]+ %' | head -1 | awk '{ print $1 }')
+		close_to "$tres" "$cres" 0.02 || { WHY="first residual $tres %, CLI $cres %"; return 1; }
+		tvf=$(grep -oE 'Vf [0-9.]+ [mk]?V' <<<"$SHOT" | awk '{ print $2 " " $3 }')
+		close_to "$(eng "$tvf")" "$(eng "$cvf")" 1e-4 || { WHY="Vf $tvf, CLI $cvf"; return 1; }
+	}
+	expect fitted
 	keys Escape
 	wait_gone "Points and residuals"
-	tmx kill-server
+	stop_server
 	# The measured device: its own points, fitted with a typed model.
 	start 80 24 "$samples/measured-diode-curve.yaml"
 	wait_for "Convergence"
@@ -1316,7 +1523,7 @@ fitview)
 	keys u
 	wait_for "undone: the device is the measured again"
 	wait_for "Parameters (measured)"
-	tmx kill-server
+	stop_server
 	# A device with no points says how to get them.
 	start 80 24 "$samples/indicator-led-24v.yaml"
 	wait_for "Convergence"
@@ -1326,28 +1533,27 @@ fitview)
 	;;
 valgrind)
 	command -v valgrind >/dev/null 2>&1 || { echo "valgrind not found: skipped"; exit 77; }
+	# the program runs many times slower under valgrind
+	TRIES=$((TRIES * 3))
 	log=$work/valgrind.log
-	tmx new-session -d -x 100 -y 30 \
+	new_server -x 100 -y 30 \
 		"exec valgrind --error-exitcode=1 --leak-check=full --errors-for-leak-kinds=definite --log-file=$(printf '%q' "$log") $(printf '%q ' "$bin" "$samples/indicator-led-24v.yaml")"
-	wait_for "Convergence" 1500
+	wait_for "Convergence"
 	keys Space Space
-	wait_for "(2 projections" 1000
+	wait_for "(2 projections"
 	keys g
-	wait_for "after" 1000
+	wait_for "after"
 	keys o Down e 4.7k Enter
-	wait_for "RS       4.7 kohm" 1000
+	wait_for "RS       4.7 kohm"
 	tmx resize-window -x 80 -y 24
-	wait_for "Convergence" 1000
+	wait_for "Convergence"
 	keys '?'
-	wait_for "Keys (any key" 1000
+	wait_for "Keys (any key"
 	keys x q
-	wait_for "quit without saving" 1000
+	wait_for "quit without saving"
 	keys y
 	wait_exit
-	for ((k = 0; k < 100; k++)); do
-		grep -q "ERROR SUMMARY" "$log" 2>/dev/null && break
-		sleep 0.1
-	done
+	# valgrind writes its summary as it exits, and it has exited
 	grep -q "ERROR SUMMARY: 0 errors" "$log" || { cat "$log"; fail "valgrind found errors"; }
 	grep -E "definitely lost|ERROR SUMMARY" "$log" | sed 's/^==[0-9]*== *//'
 	echo "ok: valgrind clean over a scripted session"
