@@ -622,20 +622,18 @@ static void design_corners(const struct tol_case *c, long part,
 	*pmax = part >= 0 ? -INFINITY : NAN;
 	*rmin = key != NULL ? INFINITY : NAN;
 	*rmax = key != NULL ? -INFINITY : NAN;
+	/* a network's parts are reduced once a corner, into one copy */
+	struct network *scratch = c->pb.net != NULL ? network_copy(c->pb.net)
+	                                            : NULL;
 	for (size_t m = 0; m < ncorners; m++) {
 		struct problem q = c->pb;
-		bool ok = true;
-		for (size_t k = 0; k < c->nitems && ok; k++) {
-			const struct tol_item *it = &c->items[k];
-			ok = paramref_set(&q, &it->param,
-			                  (m >> k) & 1 ? it->hi : it->lo) == 0;
-		}
+		bool ok = tol_case_corner(c, m, &q, scratch) == 0;
 		char why[8];
 		struct solve_result sr;
 		if (!ok || device_validate(&q.dev, why, sizeof why) != 0 ||
 		    solve_problem(&q, &c->opts, &sr) != SOLVE_OK || sr.n == 0) {
 			*pmax = *rmin = *rmax = NAN;
-			return;
+			break;
 		}
 		size_t best = 0;
 		for (size_t k = 1; k < sr.n; k++)
@@ -664,6 +662,7 @@ static void design_corners(const struct tol_case *c, long part,
 		if (!found)
 			*pmax = NAN;
 	}
+	network_destroy(scratch);
 }
 
 /* The worst case of one row. */

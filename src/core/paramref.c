@@ -453,6 +453,8 @@ int paramref_set_all(struct problem *pb, const struct paramref *r,
 	if (network_reduce(net, NULL, &spec, NULL) == NETWORK_OK &&
 	    source_from_spec(&spec, &src, why, sizeof why) == 0) {
 		pb->src = src;
+		/* as paramref_set: a curve that takes the source's r sees it */
+		problem_bind(pb);
 		rc = 0;
 	}
 	if (net != scratch)

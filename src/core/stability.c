@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 
+#include "network.h"
 #include "paramref.h"
 #include "quantity.h"
 #include "solve.h"
@@ -348,15 +349,12 @@ bool stability_box_fold(const struct tol_case *c, char *msg, size_t n)
 		res.n = 0;
 	size_t lo = res.n, hi = res.n;
 	size_t corners = (size_t)1 << c->nitems;
+	/* a network's parts are reduced once a corner, into one copy */
+	struct network *scratch = c->pb.net != NULL ? network_copy(c->pb.net)
+	                                            : NULL;
 	for (size_t m = 0; m < corners; m++) {
 		struct problem q = c->pb;
-		bool ok = true;
-		for (size_t k = 0; k < c->nitems && ok; k++) {
-			const struct tol_item *it = &c->items[k];
-			ok = paramref_set(&q, &it->param, (m >> k) & 1u ? it->hi
-			                                               : it->lo) == 0;
-		}
-		if (!ok)
+		if (tol_case_corner(c, m, &q, scratch) != 0)
 			continue;
 		if (solve_problem(&q, &o, &res) != SOLVE_OK)
 			res.n = 0;
@@ -365,6 +363,7 @@ bool stability_box_fold(const struct tol_case *c, char *msg, size_t n)
 		if (res.n > hi)
 			hi = res.n;
 	}
+	network_destroy(scratch);
 	if (lo == hi)
 		return false;
 	snprintf(msg, n, "the tolerance box holds a fold: the circuit has %zu "

@@ -1012,3 +1012,16 @@ unsigned tol_safety(const struct tol_case *c, const struct tol_worst *w,
 		f |= SAFETY_HOT_RESISTOR;
 	return f;
 }
+
+/* Set Q to corner M of C's box (see tolerance.h). */
+int tol_case_corner(const struct tol_case *c, size_t m, struct problem *q,
+                    struct network *scratch)
+{
+	struct paramref refs[TOL_MAX_ITEMS];
+	double x[TOL_MAX_ITEMS];
+	for (size_t k = 0; k < c->nitems; k++) {
+		refs[k] = c->items[k].param;
+		x[k] = (m >> k) & 1u ? c->items[k].hi : c->items[k].lo;
+	}
+	return paramref_set_all(q, refs, x, c->nitems, scratch);
+}

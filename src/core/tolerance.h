@@ -176,6 +176,17 @@ int tol_case_add(struct tol_case *c, const char *key, double lo, double hi,
                  enum tol_dist d, char *err, size_t errlen);
 
 /*
+ * Set Q, a copy of C's problem, to corner M of C's box: item K at its
+ * high end when bit K of M is set, else at its low end, with a network's
+ * parts reduced once for all of them (paramref_set_all), not once per
+ * part.  SCRATCH, when not NULL, is a copy of C's network (network_copy)
+ * the caller keeps across corners.  Returns 0, or -1 when the corner
+ * cannot be set.
+ */
+int tol_case_corner(const struct tol_case *c, size_t m, struct problem *q,
+                    struct network *scratch);
+
+/*
  * The outputs of C with the items set to X (NITEMS values) into OUT
  * (TOL_NOUT values), following the point nearest V_NEAR (NaN: the lowest
  * in voltage).  Returns 0, or -1 when there is no operating point.

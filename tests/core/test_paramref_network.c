@@ -25,6 +25,7 @@
  */
 #include <math.h>
 #include <setjmp.h>
+#include <stdbool.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
@@ -380,6 +381,159 @@ static void test_worst_case(void **state)
 	network_destroy(f.net);
 }
 
+/* A small fixed-seed generator (xorshift64*, Vigna 2016): U[0, 1). */
+static double set_all_uniform(uint64_t *s)
+{
+	*s ^= *s >> 12;
+	*s ^= *s << 25;
+	*s ^= *s >> 27;
+	return (double)((*s * 0x2545F4914F6CDD1DULL) >> 11) * 0x1p-53;
+}
+
+/* Two problems alike in every value a solve reads, bit for bit. */
+static void check_same_problem(const struct problem *a,
+                               const struct problem *b, const char *what)
+{
+	if (memcmp(&a->src.voc, &b->src.voc, sizeof(double)) != 0 ||
+	    memcmp(&a->src.r, &b->src.r, sizeof(double)) != 0 ||
+	    memcmp(&a->src.isc, &b->src.isc, sizeof(double)) != 0)
+		fail_msg("%s: source (%.17g V, %.17g ohm, %.17g A) against "
+		         "(%.17g V, %.17g ohm, %.17g A)", what, a->src.voc, a->src.r,
+		         a->src.isc, b->src.voc, b->src.r, b->src.isc);
+	if (memcmp(a->dev.p, b->dev.p, sizeof a->dev.p) != 0)
+		fail_msg("%s: device values differ (the bound source?)", what);
+	assert_int_equal(a->net_nset, b->net_nset);
+	for (size_t k = 0; k < a->net_nset; k++) {
+		assert_int_equal(a->net_part[k], b->net_part[k]);
+		assert_memory_equal(&a->net_value[k], &b->net_value[k],
+		                    sizeof(double));
+	}
+}
+
+/*
+ * Setting every part at once and reducing the network once
+ * (paramref_set_all, tol_case_corner) gives exactly what setting them one
+ * by one gives, each reducing the network again: over random ladders of
+ * 2 to 12 rungs with random values (invented), with a diode and with an
+ * n-channel MOSFET, whose curve takes the source's resistance (bind), and
+ * a device parameter among the parts.  The reduction of the same values
+ * is the same arithmetic, so the sources must agree bit for bit, and so
+ * must every operating point and the worst case's corners.
+ */
+static void test_set_all_equals_each(void **state)
+{
+	(void)state;
+	uint64_t s = 0x5C0FFEE2385ULL;
+	for (int trial = 0; trial < 60; trial++) {
+		size_t rungs = 2 + (size_t)(set_all_uniform(&s) * 11.0);
+		struct network *net = network_create();
+		assert_non_null(net);
+		assert_true(network_add_part(net, "supply", NETWORK_VOLTAGE_SOURCE,
+		                             3.0 + 20.0 * set_all_uniform(&s), "gnd",
+		                             "n0") >= 0);
+		char a[32], b[32], name[32];
+		for (size_t k = 0; k < rungs; k++) {
+			snprintf(a, sizeof a, "n%zu", k);
+			snprintf(b, sizeof b, "n%zu", k + 1);
+			snprintf(name, sizeof name, "series %zu", k);
+			assert_true(network_add_part(net, name, NETWORK_RESISTOR,
+			                             50.0 + 5e3 * set_all_uniform(&s), a,
+			                             b) >= 0);
+			snprintf(name, sizeof name, "shunt %zu", k);
+			assert_true(network_add_part(net, name, NETWORK_RESISTOR,
+			                             1e3 + 5e4 * set_all_uniform(&s), b,
+			                             "gnd") >= 0);
+		}
+		snprintf(a, sizeof a, "n%zu", rungs);
+		assert_int_equal(network_set_terminals(net, a, "gnd"), 0);
+		struct problem pb;
+		memset(&pb, 0, sizeof pb);
+		struct source_spec spec;
+		char err[600];
+		assert_int_equal(network_reduce(net, NULL, &spec, NULL), NETWORK_OK);
+		assert_int_equal(source_from_spec(&spec, &pb.src, err, sizeof err), 0);
+		pb.net = net;
+		bool fet = trial % 2 == 1;
+		if (fet) {
+			device_init(&pb.dev, &model_nmos);
+			pb.dev.p[FET_K] = 1.7e-3;
+			pb.dev.p[FET_VTH] = 1.13;
+			pb.dev.p[FET_VDD] = 14.1;
+			pb.dev.p[FET_RD] = 1.37e3;
+		} else {
+			fixture_device(&pb.dev);
+		}
+		problem_bind(&pb);
+		/* The parts varied: every series resistor and some shunts, one
+		 * device parameter among them, and the supply last. */
+		struct solve_options o;
+		solve_options_init(&o);
+		struct tol_case c;
+		tol_case_init(&c, &pb, SOURCE_THEVENIN, &o);
+		for (size_t k = 0; k < rungs && c.nitems < TOL_MAX_CORNER_ITEMS - 2;
+		     k++) {
+			for (int shunt = 0; shunt < 2; shunt++) {
+				if (shunt && set_all_uniform(&s) < 0.6)
+					continue;
+				if (c.nitems >= TOL_MAX_CORNER_ITEMS - 2)
+					break;
+				size_t part = 1 + 2 * k + (size_t)shunt;
+				double x = network_part(net, part)->value;
+				double f = 0.01 + 0.1 * set_all_uniform(&s);
+				snprintf(name, sizeof name, "source.network.%s",
+				         network_part(net, part)->name);
+				assert_int_equal(tol_case_add(&c, name, x * (1 - f),
+				                              x * (1 + f), TOL_UNIFORM, err,
+				                              sizeof err), 0);
+			}
+			if (k == 0) {
+				const char *key = fet ? "threshold_voltage" : "ideality";
+				double x = fet ? 1.13 : 1.73;
+				assert_int_equal(tol_case_add(&c, key, x * 0.97, x * 1.03,
+				                              TOL_UNIFORM, err, sizeof err), 0);
+			}
+		}
+		assert_int_equal(tol_case_add(&c, "source.network.supply",
+		                              network_part(net, 0)->value * 0.95,
+		                              network_part(net, 0)->value * 1.05,
+		                              TOL_UNIFORM, err, sizeof err), 0);
+		struct network *scratch = network_copy(net);
+		assert_non_null(scratch);
+		size_t corners = (size_t)1 << c.nitems;
+		for (size_t m = 0; m < corners; m += 1 + corners / 24) {
+			struct problem each = c.pb, once = c.pb, kept = c.pb;
+			double x[TOL_MAX_ITEMS];
+			struct paramref refs[TOL_MAX_ITEMS];
+			for (size_t k = 0; k < c.nitems; k++) {
+				refs[k] = c.items[k].param;
+				x[k] = (m >> k) & 1u ? c.items[k].hi : c.items[k].lo;
+				assert_int_equal(paramref_set(&each, &refs[k], x[k]), 0);
+			}
+			assert_int_equal(paramref_set_all(&once, refs, x, c.nitems, NULL),
+			                 0);
+			assert_int_equal(tol_case_corner(&c, m, &kept, scratch), 0);
+			check_same_problem(&once, &each, "set_all");
+			check_same_problem(&kept, &each, "tol_case_corner");
+			struct solve_result r1, r2;
+			assert_int_equal(solve_problem(&each, &o, &r1),
+			                 solve_problem(&kept, &o, &r2));
+			assert_int_equal(r1.n, r2.n);
+			for (size_t k = 0; k < r1.n; k++) {
+				assert_memory_equal(&r1.pts[k].v, &r2.pts[k].v, sizeof(double));
+				assert_memory_equal(&r1.pts[k].i, &r2.pts[k].i, sizeof(double));
+			}
+		}
+		network_destroy(scratch);
+		/* The borrowed network never moved. */
+		for (size_t k = 0; k < c.nitems; k++)
+			if (c.items[k].param.kind == PARAMREF_NETWORK)
+				assert_true(paramref_get(&pb, &c.items[k].param) ==
+				            network_part(net, (size_t)c.items[k].param.index)
+				                ->value);
+		network_destroy(net);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -388,6 +542,7 @@ int main(void)
 		cmocka_unit_test(test_sweep_lower),
 		cmocka_unit_test(test_sensitivity_parts),
 		cmocka_unit_test(test_worst_case),
+		cmocka_unit_test(test_set_all_equals_each),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
