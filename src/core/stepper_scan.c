@@ -117,32 +117,53 @@ static int scan_cmp(const void *a, const void *b)
  * outside it towards LO and HI ever farther apart, 40 a decade of the
  * distance from the range (so a load line reaching kilovolts costs a few
  * hundred samples, not a sampling step of volts across the features).
+ * They are written in order (the side below first, from its far end),
+ * not sorted afterwards: a sort cost more than the samples' evaluation.
  */
 static size_t scan_samples(double lo, double hi, double dlo, double dhi,
                            double *x)
 {
-	size_t n = 0;
+	const double step = 1.0592537251772889; /* 10^(1/40) */
 	dlo = fmax(dlo, lo);
 	dhi = fmin(dhi, hi);
 	if (!(dlo < dhi)) {
 		dlo = lo;
 		dhi = hi;
 	}
+	double w = (dhi - dlo) / SCAN_SAMPLES;
+	/* Below: dlo - d for d = w step, w step^2, ... < the span, then lo;
+	 * counted first (with the room the even samples leave), then
+	 * written from lo upwards. */
+	size_t nl = 0;
+	double span = fabs(lo - dlo);
+	if (span > w) {
+		for (double d = w * step;
+		     d < span && SCAN_SAMPLES + 1 + nl < SCAN_MAX_SAMPLES - 1;
+		     d *= step)
+			nl++;
+		x[0] = lo;
+		size_t k = nl;
+		for (double d = w * step; k > 0; d *= step)
+			x[k--] = dlo - d;
+		nl++;
+	}
+	size_t n = nl;
 	for (int k = 0; k <= SCAN_SAMPLES; k++)
 		x[n++] = k == SCAN_SAMPLES ? dhi : dlo + (dhi - dlo) * k / SCAN_SAMPLES;
-	double w = (dhi - dlo) / SCAN_SAMPLES;
-	for (int side = 0; side < 2; side++) {
-		double edge = side ? dhi : dlo, far = side ? hi : lo;
-		double span = fabs(far - edge);
-		if (!(span > w))
-			continue;
-		for (double d = w * 1.0592537251772889; d < span &&
-		                                         n < SCAN_MAX_SAMPLES - 1;
-		     d *= 1.0592537251772889) /* 10^(1/40) */
-			x[n++] = side ? edge + d : edge - d;
-		x[n++] = far;
+	span = fabs(hi - dhi);
+	if (span > w) {
+		for (double d = w * step; d < span && n < SCAN_MAX_SAMPLES - 1;
+		     d *= step)
+			x[n++] = dhi + d;
+		x[n++] = hi;
 	}
-	qsort(x, n, sizeof *x, scan_cmp);
+	/* Rounding can only tie neighbours; should it ever reorder them,
+	 * sort as before. */
+	for (size_t k = 1; k < n; k++)
+		if (x[k] < x[k - 1]) {
+			qsort(x, n, sizeof *x, scan_cmp);
+			break;
+		}
 	return n;
 }
 
