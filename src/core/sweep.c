@@ -10,6 +10,7 @@
 
 #include "kernel.h"
 #include "solve.h"
+#include "thermal.h"
 
 /* How closely bisection locates a fold in the parameter (relative). */
 #define SWEEP_FOLD_REL 1e-12
@@ -105,11 +106,55 @@ static void sweep_fill_missing(const struct problem *pb,
 }
 
 /*
+ * Newton from START (the previous point's voltage) on the bracket of BR
+ * (NB of them, one every-root scan of PB) whose middle is nearest START,
+ * into *PT: what a Newton solve from START finds, since it scans PB the
+ * same way and starts on the same bracket (stepper_find_bracket), without
+ * scanning again.  ST is a stepper to reuse.  Returns 0, or -1 when it
+ * does not converge to a verified point.
+ */
+static int sweep_continue(const struct problem *pb,
+                          const struct solve_options *o,
+                          const struct bracket *br, size_t nb, double start,
+                          struct stepper *st, struct op_point *pt)
+{
+	size_t best = nb;
+	double dist = INFINITY;
+	for (size_t k = 0; k < nb; k++) {
+		if (br[k].tangent || br[k].in_current)
+			continue;
+		double d = fabs(0.5 * (br[k].lo + br[k].hi) - start);
+		if (d < dist) {
+			dist = d;
+			best = k;
+		}
+	}
+	struct solve_options no = *o;
+	no.method = METHOD_NEWTON;
+	no.start_v = start;
+	if (best == nb || stepper_init_bracket(st, pb, &no, &br[best]) != 0 ||
+	    stepper_run(st) != STEP_CONVERGED)
+		return -1;
+	const struct trace_row *last = stepper_last(st);
+	if (last == NULL || !solve_verify(pb, last->v, last->i, o->tol))
+		return -1;
+	*pt = (struct op_point){ .v = last->v, .i = last->i,
+	                         .steps = (unsigned)last->k,
+	                         .method = METHOD_NEWTON };
+	solve_finish_point(pb, pt);
+	return 0;
+}
+
+/*
  * All operating points of PB, continuing from the PREV points (NPREV of
  * them; none at the first step).  A monotone device has one, which the
  * default solve finds directly (in closed form for a junction); any other
- * gets one every-root scan, whose brackets then also serve to find what
- * neither its refinement nor the continuation reached.
+ * gets one every-root scan, whose brackets serve the continuation of each
+ * previous point (Newton from it, on the bracket nearest it) and then
+ * find what neither the scan's refinement nor the continuation reached.
+ * A self-heated part's points come from its heat balance, which gives
+ * the same points from any start, and a curve given as V(I) has no
+ * Newton continuation: neither is continued.
  */
 static void sweep_solve(const struct problem *pb, const struct solve_options *o,
                         const struct op_point *prev, size_t nprev,
@@ -128,20 +173,34 @@ static void sweep_solve(const struct problem *pb, const struct solve_options *o,
 	struct bracket br[SOLVE_MAX_POINTS];
 	size_t nb;
 	solve_problem_valid_brackets(pb, &no, res, br, &nb);
-	if (pb->dev.type->monotone)
+	const struct model_type *t = pb->dev.type;
+	if (t->monotone || thermal_active(&pb->dev) || t->current == NULL)
 		return;
+	/* The scan's brackets serve when it ran and held them all; else each
+	 * continuation is a Newton solve of its own. */
+	bool reuse = nb > 0 && nb < SOLVE_MAX_POINTS;
+	struct stepper *st = reuse ? stepper_create() : NULL;
+	reuse = st != NULL;
 	/* Continue each previous point; keep the ones the scan missed. */
 	for (size_t k = 0; k < nprev && res->n < SOLVE_MAX_POINTS; k++) {
-		struct solve_result one;
-		no.method = METHOD_NEWTON;
-		no.start_v = prev[k].v;
-		if (solve_problem_valid(pb, &no, &one) != SOLVE_OK || one.n != 1)
+		struct op_point pt;
+		if (reuse) {
+			if (sweep_continue(pb, o, br, nb, prev[k].v, st, &pt) != 0)
+				continue;
+		} else {
+			struct solve_result one;
+			no.method = METHOD_NEWTON;
+			no.start_v = prev[k].v;
+			if (solve_problem_valid(pb, &no, &one) != SOLVE_OK || one.n != 1)
+				continue;
+			pt = one.pts[0];
+		}
+		if (sweep_has_point(res, pt.v))
 			continue;
-		if (sweep_has_point(res, one.pts[0].v))
-			continue;
-		res->pts[res->n++] = one.pts[0];
+		res->pts[res->n++] = pt;
 		res->status = SOLVE_OK;
 	}
+	stepper_destroy(st);
 	sweep_fill_missing(pb, o, br, nb, res);
 	qsort(res->pts, res->n, sizeof res->pts[0], sweep_cmp);
 }

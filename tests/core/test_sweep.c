@@ -13,6 +13,7 @@
 #include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
+#include <stdbool.h>
 #include <stddef.h>
 #include <stdint.h>
 #include <stdio.h>
@@ -21,6 +22,7 @@
 
 #include <cmocka.h>
 
+#include "core/kernel.h"
 #include "core/models/models.h"
 #include "core/solve.h"
 #include "core/sweep.h"
@@ -273,11 +275,250 @@ static void test_bad_sweeps(void **state)
 	assert_non_null(strstr(err, "ideal current source"));
 }
 
+/* ---- the sweep as it ran before its scans were shared ------------------ */
+
+/*
+ * What follows is the sweep's solve as it was before each step's scan
+ * served the continuation too: each previous point continued by a Newton
+ * solve of its own (which scans the problem again to find its bracket),
+ * then Brent-Dekker on each of the scan's brackets no point lies in.  The
+ * sweep must give exactly its rows and folds, bit for bit.
+ */
+
+/* The old sweep's test for a point already found. */
+static bool old_has_point(const struct solve_result *res, double v)
+{
+	for (size_t k = 0; k < res->n; k++)
+		if (fabs(res->pts[k].v - v) <= 1e-9 * (fabs(v) + 1e-6))
+			return true;
+	return false;
+}
+
+/* Points by voltage. */
+static int old_cmp(const void *a, const void *b)
+{
+	const struct op_point *p = a, *q = b;
+	return (p->v > q->v) - (p->v < q->v);
+}
+
+/* The old sweep's Brent-Dekker on the scan's brackets RES lacks. */
+static void old_fill_missing(const struct problem *pb,
+                             const struct solve_options *o,
+                             const struct bracket *br, size_t nb,
+                             struct solve_result *res)
+{
+	if (nb <= res->n)
+		return;
+	const struct model_type *t = pb->dev.type;
+	double rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
+	struct stepper *st = stepper_create();
+	assert_non_null(st);
+	struct solve_options no = *o;
+	no.method = METHOD_BRENT;
+	no.start_v = NAN;
+	for (size_t k = 0; k < nb && res->n < SOLVE_MAX_POINTS; k++) {
+		if (br[k].tangent || br[k].in_current)
+			continue;
+		bool have = false;
+		double slack = 1e-9 * (fabs(br[k].lo) + fabs(br[k].hi)) + 1e-12;
+		for (size_t j = 0; j < res->n && !have; j++) {
+			double x = res->pts[j].v - rser * res->pts[j].i;
+			have = x >= br[k].lo - slack && x <= br[k].hi + slack;
+		}
+		if (have || stepper_init_bracket(st, pb, &no, &br[k]) != 0 ||
+		    stepper_run(st) != STEP_CONVERGED)
+			continue;
+		const struct trace_row *last = stepper_last(st);
+		if (!solve_verify(pb, last->v, last->i, o->tol))
+			continue;
+		struct op_point pt = { .v = last->v, .i = last->i,
+		                       .steps = (unsigned)last->k,
+		                       .method = METHOD_BRENT };
+		solve_finish_point(pb, &pt);
+		res->pts[res->n++] = pt;
+		res->status = SOLVE_OK;
+	}
+	stepper_destroy(st);
+}
+
+/* The old sweep's points of PB continuing from PREV. */
+static void old_solve(const struct problem *pb, const struct solve_options *o,
+                      const struct op_point *prev, size_t nprev,
+                      struct solve_result *res)
+{
+	struct solve_options no = *o;
+	no.method = METHOD_AUTO;
+	no.start_v = NAN;
+	char err[200];
+	if (device_validate(&pb->dev, err, sizeof err) != 0) {
+		res->n = 0;
+		res->status = SOLVE_BAD_INPUT;
+		return;
+	}
+	struct bracket br[SOLVE_MAX_POINTS];
+	size_t nb;
+	solve_problem_valid_brackets(pb, &no, res, br, &nb);
+	if (pb->dev.type->monotone)
+		return;
+	for (size_t k = 0; k < nprev && res->n < SOLVE_MAX_POINTS; k++) {
+		struct solve_result one;
+		no.method = METHOD_NEWTON;
+		no.start_v = prev[k].v;
+		if (solve_problem(pb, &no, &one) != SOLVE_OK || one.n != 1)
+			continue;
+		if (old_has_point(res, one.pts[0].v))
+			continue;
+		res->pts[res->n++] = one.pts[0];
+		res->status = SOLVE_OK;
+	}
+	old_fill_missing(pb, o, br, nb, res);
+	qsort(res->pts, res->n, sizeof res->pts[0], old_cmp);
+}
+
+/* The old count at X, and its sign for the bisection. */
+struct old_count {
+	const struct problem *pb;
+	const struct solve_options *o;
+	const struct paramref *r;
+	size_t na;
+};
+static double old_count_sign(void *ctx, double x, double *step)
+{
+	const struct old_count *c = ctx;
+	if (step != NULL)
+		*step = NAN;
+	struct problem q = *c->pb;
+	struct solve_result res;
+	size_t n = 0;
+	if (paramref_set(&q, c->r, x) == 0) {
+		old_solve(&q, c->o, NULL, 0, &res);
+		n = res.status == SOLVE_OK ? res.n : 0;
+	}
+	return n == c->na ? -1.0 : 1.0;
+}
+
+/* Run the old sweep of SP and compare it with RES, bit for bit. */
+static void check_as_before(const struct problem *pb,
+                            const struct solve_options *o,
+                            const struct sweep_spec *sp,
+                            const struct sweep_result *res, const char *what)
+{
+	struct op_point prev[SOLVE_MAX_POINTS];
+	size_t nprev = 0, row = 0, fold = 0, failed = 0;
+	double prev_value = NAN;
+	for (size_t k = 0; k < sp->points; k++) {
+		double x = sweep_value(sp, k);
+		struct problem q = *pb;
+		struct solve_result sr;
+		paramref_set(&q, &sp->param, x);
+		old_solve(&q, o, prev, nprev, &sr);
+		size_t n = sr.status == SOLVE_OK ? sr.n : 0;
+		failed += n == 0;
+		if (k > 0 && n != nprev) {
+			struct old_count c = { pb, o, &sp->param, nprev };
+			struct kernel_fn fn = { old_count_sign, &c };
+			struct kernel_result kr = kernel_bisect_solve(
+				&fn, prev_value, -1.0, x, sp->scale == SWEEP_LOG, 1e-12);
+			if (fold >= res->nfolds)
+				fail_msg("%s: a fold at step %zu the sweep lacks", what, k);
+			const struct sweep_fold *f = &res->folds[fold++];
+			if (f->step != k || f->n_before != nprev || f->n_after != n ||
+			    memcmp(&f->value, &kr.x, sizeof kr.x) != 0 ||
+			    memcmp(&f->lo, &kr.lo, sizeof kr.lo) != 0 ||
+			    memcmp(&f->hi, &kr.hi, sizeof kr.hi) != 0)
+				fail_msg("%s: fold at step %zu (%zu -> %zu at %.17g), before "
+				         "step %zu (%zu -> %zu at %.17g)", what, f->step,
+				         f->n_before, f->n_after, f->value, k, nprev, n, kr.x);
+		}
+		for (size_t j = 0; j < n; j++, row++) {
+			if (row >= res->nrows)
+				fail_msg("%s: step %zu has more points before", what, k);
+			const struct sweep_row *r = &res->rows[row];
+			if (r->step != k || r->index != j || r->count != n ||
+			    memcmp(&r->value, &x, sizeof x) != 0 ||
+			    memcmp(&r->v, &sr.pts[j].v, sizeof r->v) != 0 ||
+			    memcmp(&r->i, &sr.pts[j].i, sizeof r->i) != 0 ||
+			    memcmp(&r->p, &sr.pts[j].power, sizeof r->p) != 0)
+				fail_msg("%s: step %zu point %zu is (%.17g V, %.17g A) of "
+				         "%zu, before (%.17g V, %.17g A) of %zu", what, k, j,
+				         r->v, r->i, r->count, sr.pts[j].v, sr.pts[j].i, n);
+		}
+		memcpy(prev, sr.pts, n * sizeof prev[0]);
+		nprev = n;
+		prev_value = x;
+	}
+	assert_int_equal(row, res->nrows);
+	assert_int_equal(fold, res->nfolds);
+	assert_int_equal(failed, res->failed);
+}
+
+/*
+ * Sweeps of curves that are not monotone, through their folds: the
+ * tunnel diode (cut at its inflection), the N-shaped test device
+ * (sampled), an n-channel MOSFET and a JFET stage (sampled, with the
+ * source's resistance bound into the curve), over the source and a
+ * device parameter, with a few starting values for each.  Each equals
+ * the sweep as it ran before, bit for bit.  (Values invented.)
+ */
+static void test_sweep_as_before(void **state)
+{
+	(void)state;
+	static const double np[] = { 0.0137, 3.1, 2.7 };
+	static const double tp[] = { NAN };
+	static const double mp[] = { 2.2e-3, 1.35, 12.0, 1.8e3, NAN };
+	static const double jp[] = { 8.7e-3, -2.3, 15.0, 1.1e3, NAN };
+	const struct {
+		const struct model_type *t;
+		const double *p;
+		double vs, rs;
+		const char *key;
+		double from, to;
+		size_t points;
+		enum sweep_scale scale;
+	} cases[] = {
+		{ &model_tunnel, tp, 0.45, 470.0, "vs", 0.0, 0.9, 181, SWEEP_LINEAR },
+		{ &model_tunnel, tp, 0.9, 470.0, "vs", 0.9, 0.0, 77, SWEEP_LINEAR },
+		{ &model_tunnel, tp, 0.4, 470.0, "rs", 10.0, 2000.0, 93, SWEEP_LOG },
+		{ &model_tunnel, tp, 0.4, 400.0, "peak_current", 0.5e-3, 2e-3, 61,
+		  SWEEP_LINEAR },
+		{ &ncubic, np, 2.5, 217.0, "vs", 2.513, 2.987, 97, SWEEP_LINEAR },
+		{ &ncubic, np, 2.7, 217.0, "rs", 60.0, 900.0, 71, SWEEP_LOG },
+		{ &model_nmos, mp, 4.7, 1.5e3, "vs", 1.0, 9.0, 83, SWEEP_LINEAR },
+		{ &model_jfet, jp, 0.0, 390.0, "rs", 100.0, 2000.0, 67, SWEEP_LOG },
+	};
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		struct problem pb;
+		make_problem(&pb, cases[k].t, cases[k].p, cases[k].vs, cases[k].rs);
+		problem_bind(&pb);
+		struct solve_options o;
+		solve_options_init(&o);
+		char err[200], what[64];
+		struct sweep_spec sp = { .from = cases[k].from, .to = cases[k].to,
+		                         .points = cases[k].points,
+		                         .scale = cases[k].scale };
+		assert_int_equal(paramref_find(&pb, cases[k].key, &sp.param, err,
+		                               sizeof err), 0);
+		struct sweep_result res;
+		if (sweep_run(&pb, &o, &sp, &res) != 0)
+			fail_msg("case %zu: %s", k, res.message);
+		snprintf(what, sizeof what, "case %zu (%s over %s)", k,
+		         cases[k].t->name, cases[k].key);
+		check_as_before(&pb, &o, &sp, &res, what);
+		size_t most = 0;
+		for (size_t j = 0; j < res.nrows; j++)
+			most = res.rows[j].count > most ? res.rows[j].count : most;
+		print_message("# %s: %zu rows, %zu folds, up to %zu points\n", what,
+		              res.nrows, res.nfolds, most);
+		sweep_result_fini(&res);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_monotone_sweeps),
 		cmocka_unit_test(test_folds),
+		cmocka_unit_test(test_sweep_as_before),
 		cmocka_unit_test(test_bad_sweeps),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
