@@ -4,6 +4,7 @@
  * shallow load line and one for a steep one, and the diagnosis at a point
  * on the negative-resistance branch.
  */
+#include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -192,6 +193,132 @@ static void test_validation(void **state)
 	assert_non_null(strstr(err, "valley_current"));
 }
 
+/* A small fixed-seed generator (xorshift64*, Vigna 2016): U[0, 1). */
+static double tunnel_uniform(uint64_t *s)
+{
+	*s ^= *s >> 12;
+	*s ^= *s << 25;
+	*s ^= *s >> 27;
+	return (double)((*s * 0x2545F4914F6CDD1DULL) >> 11) * 0x1p-53;
+}
+
+/*
+ * The curve of P derived from scratch at each evaluation, the old way: the
+ * three currents of the model (Sze & Ng 2007, ch. 8, as in tunnel.c), the
+ * valley's R = Iv - It(Vv) - Id(Vv) and S = -(It' + Id')(Vv) in double
+ * with the model's own operations (R is a difference of nearly equal
+ * currents in some parts, so its rounding is the model's, not the
+ * derivation's), then in long double Ix0 from Ix0 (1 - exp(-S Vv / Ix0))
+ * = R by bisection to the last bit (the left side rises from 0 to S Vv),
+ * A = S / Ix0, and the current.  *SCALE gets the sum of the terms'
+ * magnitudes, *COND the exponents' magnitudes (each carries a relative
+ * error in A or Vt into the result that many times over).  NaN when the
+ * valley cannot be made exact.
+ */
+static long double tunnel_reference(const double *p, double v,
+                                    long double *scale, double *cond)
+{
+	double vp = p[TUNNEL_VP], ip = p[TUNNEL_IP], vv = p[TUNNEL_VV];
+	double is = p[TUNNEL_IS];
+	double nvt = p[TUNNEL_N] * diode_thermal_voltage(p[TUNNEL_TEMP]);
+	double e = exp(1.0 - vv / vp);
+	double r = p[TUNNEL_IV] - ip / vp * vv * e - is * expm1(vv / nvt);
+	double sl = -(ip / vp * e * (1.0 - vv / vp) + is / nvt * exp(vv / nvt));
+	long double c = (long double)sl * vv;
+	*scale = NAN;
+	*cond = NAN;
+	if (!(r > 0.0) || !(sl > 0.0) || !(r < c))
+		return NAN;
+	long double lo = r, hi = r;
+	while (-hi * expm1l(-c / hi) < r)
+		hi *= 2.0L;
+	for (int k = 0; k < 200; k++) {
+		long double m = 0.5L * (lo + hi);
+		if (!(m > lo && m < hi))
+			break;
+		if (-m * expm1l(-c / m) < r)
+			lo = m;
+		else
+			hi = m;
+	}
+	long double ix0 = 0.5L * (lo + hi), a = sl / ix0;
+	long double it = (long double)ip / vp * v * expl(1.0L - (long double)v / vp);
+	long double ix = ix0 * expl(a * ((long double)v - vv));
+	long double ix_shift = ix0 * expl(-a * vv);
+	long double id = is * expm1l(v / (long double)nvt);
+	*scale = fabsl(it) + ix + ix_shift + fabsl(id) + is;
+	*cond = 1.0 + (double)(fabsl(a * ((long double)v - vv)) + a * vv) +
+	        fabs(v / nvt) + fabs(v / vp);
+	return it + (ix - ix_shift) + id;
+}
+
+/*
+ * The constants derived once per parameter set (prepare, then current_k
+ * and conductance_k, as the scan, Newton and the junction solve use
+ * them) give the curve of the derivation at every evaluation: bit for
+ * bit against current() and conductance(), which derive on every call,
+ * and against the derivation from scratch in long double within 1e-14
+ * of the terms for each unit of the exponents (an exponent x carries a
+ * relative error d into exp(x) as x d, so no double evaluation does
+ * better), over random parts (invented: Vp 30 to 200 mV, Ip 0.1 to
+ * 20 mA, Vv 4 to 7 Vp, Iv 6 to 20 % of Ip, Is 1e-22 to 1e-10 A, n 1 to
+ * 1.4, -40 to 120 degC) and voltages across and beyond each one's range.
+ */
+static void test_derived_once(void **state)
+{
+	(void)state;
+	uint64_t s = 0x7E11A1D10DEULL;
+	size_t parts = 0, points = 0;
+	double worst = 0.0;
+	for (int trial = 0; trial < 4000 && parts < 500; trial++) {
+		struct device d;
+		device_init(&d, &model_tunnel);
+		d.p[TUNNEL_VP] = 0.03 + 0.17 * tunnel_uniform(&s);
+		d.p[TUNNEL_IP] = 1e-4 * pow(200.0, tunnel_uniform(&s));
+		d.p[TUNNEL_VV] = d.p[TUNNEL_VP] * (4.0 + 3.0 * tunnel_uniform(&s));
+		d.p[TUNNEL_IV] = d.p[TUNNEL_IP] * (0.06 + 0.14 * tunnel_uniform(&s));
+		d.p[TUNNEL_IS] = 1e-22 * pow(1e12, tunnel_uniform(&s));
+		d.p[TUNNEL_N] = 1.0 + 0.4 * tunnel_uniform(&s);
+		d.p[TUNNEL_TEMP] = -40.0 + 160.0 * tunnel_uniform(&s);
+		char err[256];
+		if (device_validate(&d, err, sizeof err) != 0)
+			continue;
+		parts++;
+		double k[MODEL_MAX_DERIVED];
+		assert_int_equal(model_tunnel.prepare(d.p, k), 0);
+		double lo, hi;
+		device_range(&d, &lo, &hi);
+		for (int j = 0; j <= 40; j++) {
+			double v = lo - 0.1 + (hi - lo + 0.2) * (j + tunnel_uniform(&s)) / 41.0;
+			double once = model_tunnel.current_k(d.p, k, v);
+			double each = model_tunnel.current(d.p, v);
+			double gonce = model_tunnel.conductance_k(d.p, k, v);
+			double geach = model_tunnel.conductance(d.p, v);
+			if (memcmp(&once, &each, sizeof once) != 0 ||
+			    memcmp(&gonce, &geach, sizeof gonce) != 0)
+				fail_msg("part %zu at %.17g V: once %.17g A %.17g S, each "
+				         "call %.17g A %.17g S", parts, v, once, gonce, each,
+				         geach);
+			if (!isfinite(once))
+				continue; /* beyond the range, where exp overflows */
+			long double scale = 0.0L;
+			double cond = 0.0;
+			long double ref = tunnel_reference(d.p, v, &scale, &cond);
+			double err_rel = (double)(fabsl((long double)once - ref) / scale);
+			if (!(err_rel <= 1e-14 * cond))
+				fail_msg("part %zu at %.17g V: %.17g A, from scratch %.17Lg A "
+				         "(%.3g of the terms, exponents %.3g)", parts, v, once,
+				         ref, err_rel, cond);
+			worst = fmax(worst, err_rel / cond);
+			points++;
+		}
+	}
+	print_message("# %zu parts, %zu voltages: worst %.3g of the terms per "
+	              "unit of the exponents\n",
+	              parts, points, worst);
+	assert_true(parts >= 300);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -199,6 +326,7 @@ int main(void)
 		cmocka_unit_test(test_three_crossings),
 		cmocka_unit_test(test_one_crossing),
 		cmocka_unit_test(test_validation),
+		cmocka_unit_test(test_derived_once),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -163,6 +163,35 @@ static double tunnel_conductance_eval(void *ctx, double v, double *step)
 	return tunnel_conductance_k(c->p, c->k, v);
 }
 
+/* Peak and valley of P given its derived constants C->k; 0 or -1. */
+static int tunnel_extrema_k(const double *p, struct tunnel_ctx *c, double *vpk,
+                            double *ipk, double *vvl, double *ivl)
+{
+	/* I' changes sign from + to - near Vp and from - to + at Vv: find the
+	 * first sign change down on a grid between 0 and Vv, then its root by
+	 * Brent-Dekker. */
+	double vv = p[TUNNEL_VV];
+	enum { N = 400 };
+	double a = 0.0, ga = tunnel_conductance_k(p, c->k, a);
+	struct kernel_fn fn = { tunnel_conductance_eval, c };
+	int found = -1;
+	for (int j = 1; j <= N; j++) {
+		double b = vv * j / N, gb = tunnel_conductance_k(p, c->k, b);
+		if (ga > 0.0 && gb <= 0.0) {
+			struct kernel_result r =
+				kernel_brent_solve(&fn, a, ga, b, gb, 1e-15, 0.0);
+			*vpk = r.x;
+			*ipk = tunnel_current_k(p, c->k, *vpk);
+			found = 0;
+			break;
+		}
+		a = b, ga = gb;
+	}
+	*vvl = vv;
+	*ivl = tunnel_current_k(p, c->k, vv);
+	return found;
+}
+
 /* Peak and valley where the curve has them (see models.h). */
 int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
                    double *ivl)
@@ -170,29 +199,7 @@ int tunnel_extrema(const double *p, double *vpk, double *ipk, double *vvl,
 	struct tunnel_ctx c = { .p = p };
 	if (tunnel_prepare(p, c.k) != 0)
 		return -1;
-	/* I' changes sign from + to - near Vp and from - to + at Vv: find the
-	 * first sign change down on a grid between 0 and Vv, then its root by
-	 * Brent-Dekker. */
-	double vv = p[TUNNEL_VV];
-	enum { N = 400 };
-	double a = 0.0, ga = tunnel_conductance_k(p, c.k, a);
-	struct kernel_fn fn = { tunnel_conductance_eval, &c };
-	int found = -1;
-	for (int j = 1; j <= N; j++) {
-		double b = vv * j / N, gb = tunnel_conductance_k(p, c.k, b);
-		if (ga > 0.0 && gb <= 0.0) {
-			struct kernel_result r =
-				kernel_brent_solve(&fn, a, ga, b, gb, 1e-15, 0.0);
-			*vpk = r.x;
-			*ipk = tunnel_current_k(p, c.k, *vpk);
-			found = 0;
-			break;
-		}
-		a = b, ga = gb;
-	}
-	*vvl = vv;
-	*ivl = tunnel_current_k(p, c.k, vv);
-	return found;
+	return tunnel_extrema_k(p, &c, vpk, ipk, vvl, ivl);
 }
 
 /* d^2 I / dV^2 at V given the constants K. */
@@ -254,8 +261,9 @@ static int tunnel_validate(const double *p, char *err, size_t errlen)
 		snprintf(err, errlen, "valley_current: must be below peak_current");
 		return -1;
 	}
-	struct tunnel_k k;
-	if (tunnel_derive(p, &k) != 0) {
+	/* the constants derived once, for both checks */
+	struct tunnel_ctx c = { .p = p };
+	if (tunnel_prepare(p, c.k) != 0) {
 		snprintf(err, errlen,
 		         "valley_current: the tunnelling and diffusion currents alone "
 		         "already pass %.4g A at valley_voltage, or the valley cannot "
@@ -264,7 +272,7 @@ static int tunnel_validate(const double *p, char *err, size_t errlen)
 		return -1;
 	}
 	double vpk, ipk, vvl, ivl;
-	if (tunnel_extrema(p, &vpk, &ipk, &vvl, &ivl) != 0) {
+	if (tunnel_extrema_k(p, &c, &vpk, &ipk, &vvl, &ivl) != 0) {
 		snprintf(err, errlen,
 		         "valley_current: no negative-resistance branch is left between "
 		         "peak and valley; lower valley_current");
