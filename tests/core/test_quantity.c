@@ -687,6 +687,68 @@ static void test_format_exact_hard(void **state)
 	}
 }
 
+/* Significant digits in a number's text (before any exponent). */
+static int exact_digits(const char *t)
+{
+	int n = 0, lead = 1;
+	for (; *t != '\0' && *t != 'e' && *t != 'E'; t++) {
+		if (*t < '0' || *t > '9')
+			continue;
+		if (*t == '0' && lead)
+			continue;
+		lead = 0;
+		n++;
+	}
+	return n;
+}
+
+/*
+ * Subnormals, where a double holds fewer than 53 bits and its shortest
+ * form can be one digit long: random ones of either sign (the exponent
+ * field 0, the fraction random), each as check_exact asks.  Then random
+ * doubles of every kind against printf("%.17g"), which always reads back
+ * (C11 7.21.6.1 and IEEE 754-2008 5.12.2: 17 significant digits suffice
+ * for binary64): the exact form reads back to the same double as the
+ * 17-digit one, through qty_parse and through strtod, and never has
+ * more than 17 significant digits.
+ */
+static void test_format_exact_subnormal_17g(void **state)
+{
+	(void)state;
+	uint64_t s = 0x51AB0A11C0DEULL;
+	for (int k = 0; k < 50000; k++) {
+		uint64_t bits = rng_next(&s) & (UINT64_C(0x8000000000000000) |
+		                                UINT64_C(0x000FFFFFFFFFFFFF));
+		if ((bits & UINT64_C(0x000FFFFFFFFFFFFF)) == 0)
+			continue;
+		double v;
+		memcpy(&v, &bits, sizeof v);
+		assert_true(fpclassify(v) == FP_SUBNORMAL);
+		check_exact(v);
+	}
+	for (int k = 0; k < 100000; k++) {
+		uint64_t bits = rng_next(&s);
+		if (k % 4 == 1) /* the common magnitudes more often */
+			bits = (bits & UINT64_C(0x800FFFFFFFFFFFFF)) |
+			       ((UINT64_C(1023) - 40 + rng_next(&s) % 80) << 52);
+		double v;
+		memcpy(&v, &bits, sizeof v);
+		if (!isfinite(v))
+			continue;
+		char ref[64], buf[64];
+		snprintf(ref, sizeof ref, "%.17g", v);
+		double back17 = strtod(ref, NULL), back, back_c;
+		assert_same_double(back17, v, ref);
+		qty_format_exact(buf, sizeof buf, v);
+		assert_int_equal(qty_parse(buf, QTY_NUMBER, &back, NULL, 0), QTY_OK);
+		back_c = strtod(buf, NULL);
+		assert_same_double(back, back17, buf);
+		assert_same_double(back_c, back17, buf);
+		if (exact_digits(buf) > 17)
+			fail_msg("%s has more digits than %%.17g's %s", buf, ref);
+	}
+}
+
 static const char *const comma_locales[] = {
 	"de_DE.UTF-8", "de_DE.utf8", "fr_FR.UTF-8", "fr_FR.utf8",
 	"nl_NL.UTF-8", "de_DE", "fr_FR",
@@ -751,6 +813,7 @@ int main(void)
 		cmocka_unit_test(test_format_exact_known),
 		cmocka_unit_test(test_format_exact_random),
 		cmocka_unit_test(test_format_exact_hard),
+		cmocka_unit_test(test_format_exact_subnormal_17g),
 		cmocka_unit_test(test_comma_locale),
 	};
 	size_t count = sizeof tests / sizeof tests[0];
