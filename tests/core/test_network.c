@@ -1042,6 +1042,63 @@ static void test_bookkeeping(void **state)
 	network_destroy(NULL);
 }
 
+/*
+ * Node names through the hash index: a ladder of 6000 rungs (6002 nodes,
+ * names that differ in one character, the index grown many times) finds
+ * every node at the index it was given, in the network and in a copy,
+ * and no name it lacks; a ladder of 120 rungs reduces to the equivalent
+ * found rung by rung (Thevenin's theorem applied at each node: the
+ * equivalent so far in series with the rung's resistor, then in parallel
+ * with its shunt; common practice).  Values invented.
+ */
+static void test_many_nodes(void **state)
+{
+	(void)state;
+	for (int pass = 0; pass < 2; pass++) {
+		size_t rungs = pass == 0 ? 6000 : 120;
+		struct network *net = network_create();
+		assert_non_null(net);
+		char a[32], b[32];
+		double vth = 17.3, rth = 0.0;
+		add(net, "supply", VS, vth, "ground", "node 0");
+		for (size_t k = 0; k < rungs; k++) {
+			double rs = 100.0 + 37.0 * (double)(k % 13);
+			double rp = 4.7e3 + 311.0 * (double)(k % 7);
+			snprintf(a, sizeof a, "node %zu", k);
+			snprintf(b, sizeof b, "node %zu", k + 1);
+			add(net, "series", R, rs, a, b);
+			add(net, "shunt", R, rp, b, "ground");
+			vth = vth * rp / (rth + rs + rp);
+			rth = par(rth + rs, rp);
+		}
+		snprintf(a, sizeof a, "node %zu", rungs);
+		assert_int_equal(network_set_terminals(net, a, "ground"), 0);
+		assert_int_equal(network_node_count(net), rungs + 2);
+		struct network *cp = network_copy(net);
+		assert_non_null(cp);
+		for (size_t k = 0; k <= rungs; k++) {
+			snprintf(a, sizeof a, "node %zu", k);
+			long want = k == 0 ? 1 : (long)k + 1; /* ground is node 0 */
+			assert_int_equal(network_find_node(net, a), want);
+			assert_int_equal(network_find_node(cp, a), want);
+			assert_string_equal(network_node_name(cp, (size_t)want), a);
+			snprintf(b, sizeof b, "node %zu ", k);
+			assert_int_equal(network_find_node(net, b), -1);
+		}
+		assert_int_equal(network_find_node(net, "ground"), 0);
+		assert_int_equal(network_find_node(net, ""), -1);
+		if (pass == 1) {
+			struct network_thevenin th;
+			assert_int_equal(network_reduce(net, &th, NULL, NULL),
+			                 NETWORK_OK);
+			check_rel(th.voc, vth, 1e-12, "ladder voc");
+			check_rel(th.rth, rth, 1e-12, "ladder r");
+		}
+		network_destroy(cp);
+		network_destroy(net);
+	}
+}
+
 /* Run the network tests. */
 int main(void)
 {
@@ -1052,6 +1109,7 @@ int main(void)
 		cmocka_unit_test(test_diode_current_fed),
 		cmocka_unit_test(test_errors),
 		cmocka_unit_test(test_bookkeeping),
+		cmocka_unit_test(test_many_nodes),
 	};
 	return cmocka_run_group_tests_name("network", tests, NULL, NULL);
 }
