@@ -49,23 +49,34 @@ tolerances:
   beta: 2%
 YAML
 # Stop SIG after 1.5 s; the command must end within 0.5 s with the
-# signal's status (128 + its number) and say how far it got.
+# signal's status (128 + its number) and say how far it got.  The time is
+# wall time seen from outside, so a machine busy with other work can take
+# the CPU from the program for longer than the bound: a run over 0.5 s is
+# tried again, up to three runs, and each run is shown.  A program that
+# checks its stop flag too seldom misses the bound every time; a wrong
+# status fails at once.
 stop_check() {
 	sig=$1 want=$2; shift 2
 	n=$((n + 1))
-	"$@" >"$tmp/out" 2>"$tmp/err" &
-	pid=$!
-	sleep 1.5
-	kill -"$sig" "$pid"
-	t0=$(date +%s%N)
-	wait "$pid"
-	got=$?
-	t1=$(date +%s%N)
-	ms=$(( (t1 - t0) / 1000000 ))
+	local k seen=""
+	for k in 1 2 3; do
+		"$@" >"$tmp/out" 2>"$tmp/err" &
+		pid=$!
+		sleep 1.5
+		kill -"$sig" "$pid"
+		t0=$(date +%s%N)
+		wait "$pid"
+		got=$?
+		t1=$(date +%s%N)
+		ms=$(( (t1 - t0) / 1000000 ))
+		seen="$seen ${ms}ms"
+		[ "$got" -eq "$want" ] || break
+		[ "$ms" -le 500 ] && break
+	done
 	if [ "$got" -eq "$want" ] && [ "$ms" -le 500 ]; then
-		echo "ok $n - SIG$sig stops '$*' in $ms ms with $got"
+		echo "ok $n - SIG$sig stops '$*' with $got (runs:$seen)"
 	else
-		echo "not ok $n - SIG$sig: '$*' ended $got after $ms ms"
+		echo "not ok $n - SIG$sig: '$*' ended $got (runs:$seen)"
 		cat "$tmp/err"
 		fails=$((fails + 1))
 	fi
