@@ -5,14 +5,41 @@
 #include "cli_analysis.h"
 
 #include <errno.h>
+#include <getopt.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "biasline_version.h"
 #include "commands.h"
 #include "core/safety.h"
 #include "session/session_set.h"
+
+/* Help, version and the bad-option messages of every command. */
+int cli_shared_option(const char *cmd, int c, char **argv,
+                      void (*usage)(FILE *))
+{
+	const char *sp = cmd[0] != '\0' ? " " : "";
+	switch (c) {
+	case 'h':
+		usage(stdout);
+		return EXIT_OK_CODE;
+	case 'V':
+		printf("biasline %s\n", BIASLINE_VERSION);
+		return EXIT_OK_CODE;
+	case ':':
+		fprintf(stderr, "biasline%s%s: option '%s' needs a value (try "
+		        "'biasline%s%s --help')\n", sp, cmd, argv[optind - 1], sp,
+		        cmd);
+		return EXIT_USAGE;
+	default:
+		fprintf(stderr, "biasline%s%s: unknown option '%s' (try "
+		        "'biasline%s%s --help')\n", sp, cmd, argv[optind - 1], sp,
+		        cmd);
+		return EXIT_USAGE;
+	}
+}
 
 /* Load FILE and build its problem. */
 int cli_load_problem(const char *cmd, const char *file, struct session *se,

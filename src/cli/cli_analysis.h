@@ -9,10 +9,22 @@
 
 #include <stdbool.h>
 #include <stddef.h>
+#include <stdio.h>
 
 #include "core/problem.h"
 #include "core/quantity.h"
 #include "session/session.h"
+
+/*
+ * The options every command shares, and getopt_long's complaints.  C is
+ * what getopt_long returned ('h', 'V', ':' for a missing value, anything
+ * else for an unknown option; the option string starts with ':') in the
+ * command CMD ("" for the front end), whose help USAGE prints.  Prints the
+ * help or the version and returns EXIT_OK_CODE, or names the option and
+ * returns EXIT_USAGE, always with one wording: "biasline CMD: ...".
+ */
+int cli_shared_option(const char *cmd, int c, char **argv,
+                      void (*usage)(FILE *));
 
 /*
  * Load FILE into SE and its problem into PB; on failure print

@@ -5,7 +5,7 @@
 #include <getopt.h>
 #include <stdio.h>
 
-#include "biasline_version.h"
+#include "cli_analysis.h"
 #include "commands.h"
 #include "session/session.h"
 
@@ -43,21 +43,13 @@ int cmd_check(int argc, char **argv)
 	int quiet = 0, c;
 	optind = 1;
 	opterr = 0;
-	while ((c = getopt_long(argc, argv, "+qhV", opts, NULL)) != -1) {
+	while ((c = getopt_long(argc, argv, "+:qhV", opts, NULL)) != -1) {
 		switch (c) {
 		case 'q':
 			quiet = 1;
 			break;
-		case 'h':
-			check_usage(stdout);
-			return EXIT_OK_CODE;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			return EXIT_OK_CODE;
 		default:
-			fprintf(stderr, "biasline check: unknown option '%s' (try "
-			        "'biasline check --help')\n", argv[optind - 1]);
-			return EXIT_USAGE;
+			return cli_shared_option("check", c, argv, check_usage);
 		}
 	}
 	if (optind >= argc) {

@@ -10,7 +10,6 @@
 #include <stdio.h>
 #include <string.h>
 
-#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
 #include "csv.h"
@@ -214,21 +213,8 @@ static int design_parse_args(int argc, char **argv, struct design_args *a,
 			if (cli_add_set("design", &a->sets, optarg) != 0)
 				return -1;
 			break;
-		case 'h':
-			design_usage(stdout);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case ':':
-			fprintf(stderr, "biasline design: option '%s' needs a value\n",
-			        argv[optind - 1]);
-			return -1;
 		default:
-			fprintf(stderr, "biasline design: unknown option '%s' (try "
-			        "--help)\n", argv[optind - 1]);
+			*code = cli_shared_option("design", c, argv, design_usage);
 			return -1;
 		}
 	}

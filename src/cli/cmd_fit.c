@@ -19,7 +19,6 @@
 #include <string.h>
 #include <time.h>
 
-#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
 #include "csv.h"
@@ -179,21 +178,8 @@ static int fit_parse_args(int argc, char **argv, struct fit_args *a, int *code)
 			if (cli_add_set("fit", &a->sets, optarg) != 0)
 				return -1;
 			break;
-		case 'h':
-			fit_usage(stdout);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case ':':
-			fprintf(stderr, "biasline fit: option '%s' needs a value\n",
-			        argv[optind - 1]);
-			return -1;
 		default:
-			fprintf(stderr, "biasline fit: unknown option '%s' (try --help)\n",
-			        argv[optind - 1]);
+			*code = cli_shared_option("fit", c, argv, fit_usage);
 			return -1;
 		}
 	}

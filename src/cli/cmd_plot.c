@@ -14,7 +14,6 @@
 #include <string.h>
 #include <unistd.h>
 
-#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "cli_plot.h"
 #include "commands.h"
@@ -366,21 +365,8 @@ static int plot_parse_args(int argc, char **argv, struct plot_args *a,
 			if (cli_add_set("plot", &a->sets, optarg) != 0)
 				return -1;
 			break;
-		case 'h':
-			plot_usage(stdout);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case ':':
-			fprintf(stderr, "biasline: plot: option '%s' needs a value\n",
-			        argv[optind - 1]);
-			return -1;
 		default:
-			fprintf(stderr, "biasline: plot: unknown option '%s' "
-			        "(try 'biasline plot --help')\n", argv[optind - 1]);
+			*code = cli_shared_option("plot", ch, argv, plot_usage);
 			return -1;
 		}
 	}

@@ -18,7 +18,6 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "commands.h"
 #include "csv.h"
@@ -399,7 +398,7 @@ int cmd_reduce(int argc, char **argv)
 	int c;
 	optind = 1;
 	opterr = 0;
-	while ((c = getopt_long(argc, argv, "+f:nr:hV", opts, NULL)) != -1) {
+	while ((c = getopt_long(argc, argv, "+:f:nr:hV", opts, NULL)) != -1) {
 		switch (c) {
 		case 'f':
 			if (strcmp(optarg, "text") == 0) {
@@ -422,21 +421,8 @@ int cmd_reduce(int argc, char **argv)
 			if (cli_add_set("reduce", &sets, optarg) != 0)
 				return EXIT_USAGE;
 			break;
-		case 'h':
-			reduce_usage(stdout);
-			return EXIT_OK_CODE;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			return EXIT_OK_CODE;
 		default:
-			if (optopt != 0 && strchr("fr", optopt) != NULL)
-				fprintf(stderr, "biasline reduce: option '%s' needs a "
-				        "value (try 'biasline reduce --help')\n",
-				        argv[optind - 1]);
-			else
-				fprintf(stderr, "biasline reduce: unknown option '%s' (try "
-				        "'biasline reduce --help')\n", argv[optind - 1]);
-			return EXIT_USAGE;
+			return cli_shared_option("reduce", c, argv, reduce_usage);
 		}
 	}
 	if (argc - optind != 1) {

@@ -201,21 +201,8 @@ static int report_parse_args(int argc, char **argv, struct report_args *a,
 			if (cli_add_set("report", &a->sets, optarg) != 0)
 				return -1;
 			break;
-		case 'h':
-			report_usage(stdout);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case ':':
-			fprintf(stderr, "biasline report: option '%s' needs a value\n",
-			        argv[optind - 1]);
-			return -1;
 		default:
-			fprintf(stderr, "biasline report: unknown option '%s' (try "
-			        "--help)\n", argv[optind - 1]);
+			*code = cli_shared_option("report", c, argv, report_usage);
 			return -1;
 		}
 	}

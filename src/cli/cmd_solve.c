@@ -7,7 +7,6 @@
 #include <stdio.h>
 #include <string.h>
 
-#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "cli_thermal.h"
 #include "commands.h"
@@ -125,23 +124,8 @@ static int solve_parse_args(int argc, char **argv, struct solve_args *a,
 				return -1;
 			}
 			break;
-		case 'h':
-			solve_usage(stdout);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case ':':
-			fprintf(stderr, "biasline solve: option '%s' needs a value\n",
-			        argv[optind - 1]);
-			*code = EXIT_USAGE;
-			return -1;
 		default:
-			fprintf(stderr, "biasline solve: unknown option '%s' (try --help)\n",
-			        argv[optind - 1]);
-			*code = EXIT_USAGE;
+			*code = cli_shared_option("solve", c, argv, solve_usage);
 			return -1;
 		}
 	}

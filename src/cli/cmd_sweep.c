@@ -8,7 +8,6 @@
 #include <stdio.h>
 #include <string.h>
 
-#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "cli_thermal.h"
 #include "cli_progress.h"
@@ -115,21 +114,8 @@ static int sweep_parse_args(int argc, char **argv, struct sweep_args *a,
 			if (cli_add_set("sweep", &a->sets, optarg) != 0)
 				return -1;
 			break;
-		case 'h':
-			sweep_usage(stdout);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case ':':
-			fprintf(stderr, "biasline sweep: option '%s' needs a value\n",
-			        argv[optind - 1]);
-			return -1;
 		default:
-			fprintf(stderr, "biasline sweep: unknown option '%s' (try --help)\n",
-			        argv[optind - 1]);
+			*code = cli_shared_option("sweep", c, argv, sweep_usage);
 			return -1;
 		}
 	}

@@ -7,7 +7,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 
-#include "biasline_version.h"
+#include "cli_analysis.h"
 #include "commands.h"
 #include "session/atomic.h"
 #include "session/session.h"
@@ -45,21 +45,13 @@ int cmd_tidy(int argc, char **argv)
 	int in_place = 0, c;
 	optind = 1;
 	opterr = 0;
-	while ((c = getopt_long(argc, argv, "+ihV", opts, NULL)) != -1) {
+	while ((c = getopt_long(argc, argv, "+:ihV", opts, NULL)) != -1) {
 		switch (c) {
 		case 'i':
 			in_place = 1;
 			break;
-		case 'h':
-			tidy_usage(stdout);
-			return EXIT_OK_CODE;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			return EXIT_OK_CODE;
 		default:
-			fprintf(stderr, "biasline tidy: unknown option '%s' (try "
-			        "'biasline tidy --help')\n", argv[optind - 1]);
-			return EXIT_USAGE;
+			return cli_shared_option("tidy", c, argv, tidy_usage);
 		}
 	}
 	if (argc - optind != 1) {

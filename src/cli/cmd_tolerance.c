@@ -9,7 +9,6 @@
 #include <stdio.h>
 #include <string.h>
 
-#include "biasline_version.h"
 #include "cli_analysis.h"
 #include "cli_plot.h"
 #include "cli_progress.h"
@@ -112,21 +111,8 @@ static int tolerance_parse_args(int argc, char **argv, struct tolerance_args *a,
 			if (cli_add_set("tolerance", &a->sets, optarg) != 0)
 				return -1;
 			break;
-		case 'h':
-			tolerance_usage(stdout);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			*code = EXIT_OK_CODE;
-			return -1;
-		case ':':
-			fprintf(stderr, "biasline tolerance: option '%s' needs a value\n",
-			        argv[optind - 1]);
-			return -1;
 		default:
-			fprintf(stderr, "biasline tolerance: unknown option '%s' (try "
-			        "--help)\n", argv[optind - 1]);
+			*code = cli_shared_option("tolerance", c, argv, tolerance_usage);
 			return -1;
 		}
 	}

@@ -5,7 +5,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 
-#include "biasline_version.h"
+#include "cli_analysis.h"
 #include "commands.h"
 #include "tui/tui.h"
 
@@ -46,7 +46,7 @@ int cmd_tui(int argc, char **argv)
 	optind = 1;
 	opterr = 0;
 	int ch;
-	while ((ch = getopt_long(argc, argv, "CuhV", longopts, NULL)) != -1) {
+	while ((ch = getopt_long(argc, argv, ":CuhV", longopts, NULL)) != -1) {
 		switch (ch) {
 		case 'C':
 			opt.color = false;
@@ -54,16 +54,8 @@ int cmd_tui(int argc, char **argv)
 		case 'u':
 			opt.unicode = true;
 			break;
-		case 'h':
-			tui_usage(stdout);
-			return EXIT_OK_CODE;
-		case 'V':
-			printf("biasline %s\n", BIASLINE_VERSION);
-			return EXIT_OK_CODE;
 		default:
-			fprintf(stderr, "biasline: unknown option '%s' "
-			        "(try 'biasline --help')\n", argv[optind - 1]);
-			return EXIT_USAGE;
+			return cli_shared_option("", ch, argv, tui_usage);
 		}
 	}
 	if (argc - optind > 1) {

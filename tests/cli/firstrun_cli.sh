@@ -39,6 +39,24 @@ for g in --no-color --unicode -C -u; do
 	check "$g --version prints the version" '[ "$(cat "$tmp/out")" = "$version" ]'
 done
 
+# --- a bad option gets one wording from every command, exit 64 ------------
+# (the status is sysexits.h's EX_USAGE: common practice on Unix)
+for c in $cmds; do
+	expect_exit 64 "$bl" "$c" --no-such-option
+	check "$c names an unknown option in one wording" \
+		'grep -qxF "biasline $c: unknown option '"'"'--no-such-option'"'"' (try '"'"'biasline $c --help'"'"')" "$tmp/err"'
+	check "$c prints nothing on stdout for a bad option" '[ ! -s "$tmp/out" ]'
+done
+expect_exit 64 "$bl" --no-such-option
+check "the front end names an unknown option" \
+	'grep -qxF "biasline: unknown option '"'"'--no-such-option'"'"' (try '"'"'biasline --help'"'"')" "$tmp/err"'
+for c in solve plot reduce tolerance sweep design fit report; do
+	opt=--format
+	expect_exit 64 "$bl" "$c" "$opt"
+	check "$c says $opt needs a value" \
+		'grep -qxF "biasline $c: option '"'"'$opt'"'"' needs a value (try '"'"'biasline $c --help'"'"')" "$tmp/err"'
+done
+
 # --- check FILE... reports every file; the exit status is the worst -----
 cat >"$tmp/good.yaml" <<'YAML'
 source:
