@@ -73,6 +73,39 @@ void device_init(struct device *dev, const struct model_type *type)
 	dev->curve = NULL;
 	for (size_t k = 0; k < MODEL_MAX_PARAMS; k++)
 		dev->p[k] = k < type->nparams ? type->params[k].def : 0.0;
+	dev->has_k = false;
+}
+
+/* DEV's constants if they belong to its values (see model.h). */
+const double *device_constants(const struct device *dev)
+{
+	if (!dev->has_k || memcmp(dev->kp, dev->p, sizeof dev->p) != 0)
+		return NULL;
+	return dev->k;
+}
+
+/* Derive DEV's constants once for its values (see model.h). */
+void device_prepare(struct device *dev)
+{
+	if (dev->type == NULL || dev->type->prepare == NULL ||
+	    device_constants(dev) != NULL)
+		return;
+	dev->has_k = dev->type->prepare(dev->p, dev->k) == 0;
+	memcpy(dev->kp, dev->p, sizeof dev->p);
+}
+
+/*
+ * The constants for evaluating DEV's whole current from them: current_k
+ * is the current itself only for a model without a series split (else it
+ * is the junction's, behind the resistance).
+ */
+static const double *device_whole_constants(const struct device *dev)
+{
+	const struct model_type *t = dev->type;
+	if (t->current_k == NULL || t->series_resistance != NULL ||
+	    t->intrinsic_current != NULL)
+		return NULL;
+	return device_constants(dev);
 }
 
 /* Describe the valid range of MP into BUF. */
@@ -157,6 +190,9 @@ double device_current(const struct device *dev, double v)
 {
 	if (dev->type->current == NULL)
 		return NAN;
+	const double *k = device_whole_constants(dev);
+	if (k != NULL)
+		return dev->type->current_k(dev->p, k, v);
 	return dev->type->current(dev->p, v);
 }
 
@@ -165,6 +201,9 @@ double device_conductance(const struct device *dev, double v)
 {
 	if (dev->type->conductance == NULL)
 		return NAN;
+	const double *k = device_whole_constants(dev);
+	if (k != NULL && dev->type->conductance_k != NULL)
+		return dev->type->conductance_k(dev->p, k, v);
 	return dev->type->conductance(dev->p, v);
 }
 

@@ -143,7 +143,9 @@ struct model_type {
 	 * ones of a model with a series split, else current and conductance)
 	 * given K.  A caller that evaluates one parameter set many times (the
 	 * scan, a stepped Newton, an inner junction solve) derives once;
-	 * current() and conductance() derive on every call.
+	 * current() and conductance() derive on every call, so a device keeps
+	 * its constants (struct device, device_prepare) and device_current
+	 * uses them while its values are the ones they came from.
 	 */
 	int (*prepare)(const double *p, double *k);
 	double (*current_k)(const double *p, const double *k, double v);
@@ -246,6 +248,17 @@ struct device {
 	const struct model_type *type;
 	model_values p;
 	const struct curve_data *curve;
+	/*
+	 * The model's derived constants (model_type.prepare) and the values
+	 * KP they were derived from, filled by device_prepare: while P holds
+	 * exactly those values they serve every evaluation, so the constants
+	 * are derived once per change of the parameters, not per call.  A
+	 * write to P needs no care: the constants then no longer match and
+	 * are not used until device_prepare runs again.
+	 */
+	double k[MODEL_MAX_DERIVED];
+	model_values kp;
+	bool has_k;
 };
 
 /* The registry: all models, NULL-terminated. */
@@ -280,6 +293,17 @@ int model_param_check(const struct model_param *mp, double value,
  * validator).  Returns 0, or -1 with a message naming the key in ERR.
  */
 int device_validate(const struct device *dev, char *err, size_t errlen);
+
+/*
+ * Derive DEV's constants for its current values, unless it holds them
+ * already (model_type.prepare; nothing for a model without).  problem_bind
+ * calls it, so a problem's device has them after every change.
+ */
+void device_prepare(struct device *dev);
+
+/* DEV's derived constants when they are those of its current values,
+ * else NULL. */
+const double *device_constants(const struct device *dev);
 
 /* Device current at V (NaN when the model has no current(V)). */
 double device_current(const struct device *dev, double v);

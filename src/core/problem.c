@@ -4,12 +4,14 @@
 #include "problem.h"
 
 #include <math.h>
+#include <string.h>
 
 /* Bind the device to the source. */
 void problem_bind(struct problem *pb)
 {
 	if (pb->dev.type != NULL && pb->dev.type->bind != NULL)
 		pb->dev.type->bind(pb->dev.p, &pb->src);
+	device_prepare(&pb->dev);
 }
 
 /* F(V) (see problem.h). */
@@ -43,8 +45,13 @@ void problem_junction_init(struct problem_junction *j,
 	j->pb = pb;
 	j->t = pb->dev.type;
 	j->p = pb->dev.p;
-	/* The model's derived constants once, for every evaluation after. */
-	j->has_k = j->t->prepare != NULL && j->t->prepare(j->p, j->k) == 0;
+	/* The model's derived constants once, for every evaluation after:
+	 * the device's own when they are its values' (device_prepare). */
+	const double *k = device_constants(&pb->dev);
+	if (k != NULL)
+		memcpy(j->k, k, sizeof j->k);
+	j->has_k = k != NULL ||
+	           (j->t->prepare != NULL && j->t->prepare(j->p, j->k) == 0);
 	j->rser = j->t->series_resistance ? j->t->series_resistance(j->p) : 0.0;
 	j->rt = pb->src.r + j->rser;
 }

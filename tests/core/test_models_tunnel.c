@@ -319,6 +319,53 @@ static void test_derived_once(void **state)
 	assert_true(parts >= 300);
 }
 
+/*
+ * A device keeps its constants once derived (device_prepare, which
+ * problem_bind runs): device_current and device_conductance then give
+ * the model's current() and conductance() bit for bit; a value written
+ * straight into the parameters makes the kept constants stale, and they
+ * are not used (the curve is the new values' at once); preparing again
+ * keeps the new ones.
+ */
+static void test_constants_kept(void **state)
+{
+	(void)state;
+	for (size_t c = 0; c < sizeof tcases / sizeof tcases[0]; c++) {
+		struct problem pb;
+		memset(&pb, 0, sizeof pb);
+		tunnel_case(&pb.dev, c);
+		assert_null(device_constants(&pb.dev));
+		problem_bind(&pb);
+		const double *k = device_constants(&pb.dev);
+		assert_non_null(k);
+		double want[MODEL_MAX_DERIVED];
+		assert_int_equal(model_tunnel.prepare(pb.dev.p, want), 0);
+		assert_memory_equal(k, want, 4 * sizeof want[0]);
+		for (int step = 0; step < 3; step++) {
+			for (int j = 0; j <= 50; j++) {
+				double v = -0.03 + 0.6 * (j + 0.37) / 50.0;
+				double i = device_current(&pb.dev, v);
+				double g = device_conductance(&pb.dev, v);
+				double ie = model_tunnel.current(pb.dev.p, v);
+				double ge = model_tunnel.conductance(pb.dev.p, v);
+				if (memcmp(&i, &ie, sizeof i) != 0 ||
+				    memcmp(&g, &ge, sizeof g) != 0)
+					fail_msg("case %zu step %d at %.17g V: %.17g A %.17g S, "
+					         "derived at the call %.17g A %.17g S", c, step,
+					         v, i, g, ie, ge);
+			}
+			if (step == 0) {
+				/* Written straight in: the kept constants are stale. */
+				pb.dev.p[TUNNEL_IV] *= 1.031;
+				assert_null(device_constants(&pb.dev));
+			} else if (step == 1) {
+				problem_bind(&pb);
+				assert_non_null(device_constants(&pb.dev));
+			}
+		}
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -327,6 +374,7 @@ int main(void)
 		cmocka_unit_test(test_one_crossing),
 		cmocka_unit_test(test_validation),
 		cmocka_unit_test(test_derived_once),
+		cmocka_unit_test(test_constants_kept),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
