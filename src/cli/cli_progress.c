@@ -6,6 +6,7 @@
 
 #include <signal.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <time.h>
 #include <unistd.h>
@@ -38,13 +39,36 @@ static double cli_progress_now(void)
 	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
-/* The core's report: draw the line after a second, every 200 ms. */
+/* Seconds of processor time this process has used. */
+static double cli_progress_cpu(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &ts);
+	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+/* The core's report: from the first second to the tenth, stop work
+ * whose estimate passes the limit; draw the line after a second, every
+ * 200 ms. */
 static void cli_progress_report(void *ctx, double done)
 {
 	struct cli_progress *p = ctx;
-	if (!p->tty)
+	if (done < 0.0 || (!p->tty && p->limit <= 0.0))
 		return;
 	double t = cli_progress_now();
+	/* The estimate is of processor time, which a loaded machine does
+	 * not stretch; looked at every 100 ms. */
+	if (p->limit > 0.0 && done > 0.0 && !p->over && t - p->checked >= 0.1) {
+		p->checked = t;
+		double cpu = cli_progress_cpu() - p->cpu0;
+		if (cpu >= 1.0 && cpu <= 10.0 && cpu / done > p->limit) {
+			p->over = true;
+			p->estimate = cpu / done;
+			cli_stop = 1;
+		}
+	}
+	if (!p->tty)
+		return;
 	if (t - p->start < 1.0 || (p->shown && t - p->last < 0.2))
 		return;
 	p->last = t;
@@ -56,11 +80,14 @@ static void cli_progress_report(void *ctx, double done)
 }
 
 /* Start watching. */
-void cli_progress_begin(struct cli_progress *p, const char *what)
+void cli_progress_begin(struct cli_progress *p, const char *what,
+                        double limit)
 {
 	memset(p, 0, sizeof *p);
 	p->what = what;
-	p->start = p->last = cli_progress_now();
+	p->limit = limit;
+	p->start = p->last = p->checked = cli_progress_now();
+	p->cpu0 = cli_progress_cpu();
 	p->tty = isatty(STDERR_FILENO) != 0;
 	cli_stop = 0;
 	cli_stop_sig = 0;
@@ -85,6 +112,54 @@ int cli_progress_end(struct cli_progress *p)
 		fflush(stderr);
 	}
 	return cli_stop ? (int)cli_stop_sig : 0;
+}
+
+/* The limit in time of a command's long work. */
+double cli_progress_limit(void)
+{
+	const char *e = getenv("BIASLINE_WORK_LIMIT");
+	if (e == NULL || *e == '\0')
+		return CLI_WORK_LIMIT;
+	char *end;
+	double v = strtod(e, &end);
+	if (*end != '\0' || !(v >= 1.0 && v <= CLI_WORK_LIMIT_MAX))
+		return CLI_WORK_LIMIT;
+	return v;
+}
+
+/* SECONDS in words: "40 s", "12 min", "3.1 h". */
+static void cli_progress_duration(char *buf, size_t n, double seconds)
+{
+	if (seconds < 120.0)
+		snprintf(buf, n, "%.0f s", seconds);
+	else if (seconds < 7200.0)
+		snprintf(buf, n, "%.0f min", seconds / 60.0);
+	else
+		snprintf(buf, n, "%.2g h", seconds / 3600.0);
+}
+
+/* Say how much would fit when P ran over its limit. */
+bool cli_progress_over(const struct cli_progress *p, const char *cmd,
+                       const char *file, unsigned long long count,
+                       const char *noun, const char *option)
+{
+	if (!p->over)
+		return false;
+	char est[32], lim[32];
+	cli_progress_duration(est, sizeof est, p->estimate);
+	cli_progress_duration(lim, sizeof lim, p->limit);
+	/* what fits, rounded down to two figures */
+	double fit = (double)count * p->limit / p->estimate;
+	double mag = 1.0;
+	while (fit >= 100.0 * mag)
+		mag *= 10.0;
+	unsigned long long k = (unsigned long long)(fit / mag) *
+	                       (unsigned long long)mag;
+	fprintf(stderr, "biasline %s: %s: %llu %s would take about %s of "
+	        "processor time (from the first second), more than the %s a command may take; "
+	        "about %llu fit: %s %llu\n", cmd, file, count, noun, est, lim,
+	        k, option, k > 0 ? k : 1);
+	return true;
 }
 
 /* Re-raise SIG with its default action. */

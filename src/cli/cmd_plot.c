@@ -16,6 +16,7 @@
 
 #include "cli_analysis.h"
 #include "cli_plot.h"
+#include "cli_progress.h"
 #include "commands.h"
 #include "core/safety.h"
 #include "core/solve.h"
@@ -222,8 +223,17 @@ int cli_plot_monte_carlo(const struct session *s, const struct problem *pb,
 		return -1;
 	struct tol_window win[2];
 	size_t nwin = session_target_windows(s, win);
-	return tol_monte_carlo(&c, CLI_MC_TRIALS, CLI_MC_SEED, CLI_MC_BINS, win,
-	                       nwin, mc, err, errlen);
+	struct cli_progress pr;
+	cli_progress_begin(&pr, "biasline: Monte Carlo", 0.0);
+	int rc = tol_monte_carlo_watched(&c, CLI_MC_TRIALS, CLI_MC_SEED,
+	                                 CLI_MC_BINS, win, nwin, mc, &pr.core,
+	                                 err, errlen);
+	int sig = cli_progress_end(&pr);
+	if (sig != 0) {
+		fprintf(stderr, "biasline: Monte Carlo %s\n", err);
+		cli_progress_reraise(sig);
+	}
+	return rc;
 }
 
 /* The thermal plane of S with the first NSTEPS thermal steps. */

@@ -57,7 +57,9 @@ static void sweep_usage(FILE *out)
 	        "Steps without an operating point are reported and are no "
 	        "failure.\n"
 	        "A sweep over a second shows its progress on standard error when\n"
-	        "that is a terminal; Ctrl-C stops it.\n",
+	        "that is a terminal; Ctrl-C stops it.  Points that would take more\n"
+	        "than 10 minutes (estimated in the first seconds) are stopped\n"
+	        "there with the count that fits (exit 64).\n",
 	        SWEEP_MAX_POINTS);
 	static const enum exit_code codes[] = { EXIT_OK_CODE, EXIT_USAGE,
 	                                        EXIT_DATA, EXIT_NO_INPUT,
@@ -243,9 +245,15 @@ int cmd_sweep(int argc, char **argv)
 	}
 	struct sweep_result res;
 	struct cli_progress pr;
-	cli_progress_begin(&pr, "biasline sweep");
+	cli_progress_begin(&pr, "biasline sweep", cli_progress_limit());
 	int rc = sweep_run_watched(&pb, &se.solver, &sp, &res, &pr.core);
 	int sig = cli_progress_end(&pr);
+	if (rc != 0 && sig == 0 &&
+	    cli_progress_over(&pr, "sweep", a.file, a.points, "points",
+	                      "--points")) {
+		session_fini(&se);
+		return EXIT_USAGE;
+	}
 	if (rc != 0) {
 		fprintf(stderr, "biasline sweep: %s\n", res.message);
 		session_fini(&se);

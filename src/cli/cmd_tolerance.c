@@ -54,7 +54,9 @@ static void tolerance_usage(FILE *out)
 	        "  -V, --version      show the version and exit\n"
 	        "\n"
 	        "A run over a second shows its progress on standard error when\n"
-	        "that is a terminal; Ctrl-C stops it.\n"
+	        "that is a terminal; Ctrl-C stops it.  Trials that would take more\n"
+	        "than 10 minutes (estimated in the first seconds) are stopped\n"
+	        "there with the count that fits (exit 64).\n"
 	        "A session without a tolerances: section is bad data (65); no\n"
 	        "operating point at the nominal values is exit 3.\n",
 	        TOL_MAX_TRIALS, TOL_MAX_BINS);
@@ -399,7 +401,7 @@ int cmd_tolerance(int argc, char **argv)
 		code = EXIT_USAGE;
 	} else if (c.nitems <= TOL_MAX_CORNER_ITEMS) {
 		struct cli_progress pr;
-		cli_progress_begin(&pr, "biasline tolerance: worst case");
+		cli_progress_begin(&pr, "biasline tolerance: worst case", 0.0);
 		int rc = tol_worst_case_watched(&c, &w, &pr.core, err, sizeof err);
 		int sig = cli_progress_end(&pr);
 		if (rc != 0) {
@@ -418,11 +420,18 @@ int cmd_tolerance(int argc, char **argv)
 	bool have_mc = a.trials > 0;
 	if (have_mc) {
 		struct cli_progress pr;
-		cli_progress_begin(&pr, "biasline tolerance: Monte Carlo");
+		cli_progress_begin(&pr, "biasline tolerance: Monte Carlo",
+		                   cli_progress_limit());
 		int rc = tol_monte_carlo_watched(&c, (size_t)a.trials, a.seed,
 		                                 (size_t)a.bins, win, nwin, &mc,
 		                                 &pr.core, err, sizeof err);
 		int sig = cli_progress_end(&pr);
+		if (rc != 0 && sig == 0 &&
+		    cli_progress_over(&pr, "tolerance", a.file, a.trials,
+		                      "Monte Carlo trials", "--trials")) {
+			session_fini(&se);
+			return EXIT_USAGE;
+		}
 		if (rc != 0) {
 			fprintf(stderr, "biasline tolerance: %s: %s\n", a.file, err);
 			session_fini(&se);

@@ -614,7 +614,8 @@ static void design_mark_nearest(struct design_result *out)
  */
 static void design_corners(const struct tol_case *c, long part,
                            const char *key, double v_nom, double *pmax,
-                           double *rmin, double *rmax)
+                           double *rmin, double *rmax,
+                           const struct progress *pr)
 {
 	const char *name = part >= 0 ? network_part(c->pb.net, (size_t)part)->name
 	                             : NULL;
@@ -627,7 +628,8 @@ static void design_corners(const struct tol_case *c, long part,
 	                                            : NULL;
 	for (size_t m = 0; m < ncorners; m++) {
 		struct problem q = c->pb;
-		bool ok = tol_case_corner(c, m, &q, scratch) == 0;
+		bool ok = !progress_stopped(pr) &&
+		          tol_case_corner(c, m, &q, scratch) == 0;
 		char why[8];
 		struct solve_result sr;
 		if (!ok || device_validate(&q.dev, why, sizeof why) != 0 ||
@@ -670,6 +672,15 @@ int design_row_worst(const struct tol_case *c, const struct ratings *r,
                      const struct design_request *rq,
                      struct design_worst *out)
 {
+	return design_row_worst_watched(c, r, rq, out, NULL);
+}
+
+/* The worst case of one row, watched. */
+int design_row_worst_watched(const struct tol_case *c, const struct ratings *r,
+                             const struct design_request *rq,
+                             struct design_worst *out,
+                             const struct progress *pr)
+{
 	memset(out, 0, sizeof *out);
 	out->i_min = out->i_max = out->v_min = out->v_max = NAN;
 	out->p_device_max = out->p_resistor_max = NAN;
@@ -686,7 +697,8 @@ int design_row_worst(const struct tol_case *c, const struct ratings *r,
 		return -1;
 	}
 	struct tol_worst w;
-	if (tol_worst_case(c, &w, out->message, sizeof out->message) != 0)
+	if (tol_worst_case_watched(c, &w, pr, out->message,
+	                           sizeof out->message) != 0)
 		return -1;
 	out->i_min = w.min[TOL_CURRENT].value;
 	out->i_max = w.max[TOL_CURRENT].value;
@@ -712,7 +724,11 @@ int design_row_worst(const struct tol_case *c, const struct ratings *r,
 	if (part >= 0 || key != NULL) {
 		double pmax;
 		design_corners(c, part, key, w.nominal[TOL_VOLTAGE], &pmax,
-		               &out->result_min, &out->result_max);
+		               &out->result_min, &out->result_max, pr);
+		if (progress_stopped(pr)) {
+			snprintf(out->message, sizeof out->message, "stopped");
+			return -1;
+		}
 		if (part >= 0)
 			out->p_resistor_max = pmax;
 	}

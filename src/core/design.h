@@ -200,6 +200,13 @@ int design_row_worst(const struct tol_case *c, const struct ratings *r,
                      const struct design_request *rq,
                      struct design_worst *out);
 
+/* design_row_worst watched by PR (progress.h; may be NULL): stopped, it
+ * returns -1 with OUT->message saying so. */
+int design_row_worst_watched(const struct tol_case *c, const struct ratings *r,
+                             const struct design_request *rq,
+                             struct design_worst *out,
+                             const struct progress *pr);
+
 /* The unit of a target of kind T: a current, a voltage or a power
  * (QTY_NUMBER for DESIGN_RESULT: see design_request_unit). */
 enum qty_kind design_target_unit(enum design_target t);

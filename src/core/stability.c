@@ -340,6 +340,13 @@ bool stability_runaway(const struct problem *pb, char *msg, size_t n)
 /* Whether the tolerance box holds a fold (see stability.h). */
 bool stability_box_fold(const struct tol_case *c, char *msg, size_t n)
 {
+	return stability_box_fold_watched(c, msg, n, NULL);
+}
+
+/* Whether the tolerance box holds a fold, watched. */
+bool stability_box_fold_watched(const struct tol_case *c, char *msg, size_t n,
+                                const struct progress *pr)
+{
 	if (c->nitems == 0 || c->nitems > TOL_MAX_CORNER_ITEMS)
 		return false;
 	struct solve_options o = c->opts;
@@ -352,7 +359,11 @@ bool stability_box_fold(const struct tol_case *c, char *msg, size_t n)
 	/* a network's parts are reduced once a corner, into one copy */
 	struct network *scratch = c->pb.net != NULL ? network_copy(c->pb.net)
 	                                            : NULL;
-	for (size_t m = 0; m < corners; m++) {
+	bool stopped = false;
+	for (size_t m = 0; m < corners && !stopped; m++) {
+		if ((stopped = progress_stopped(pr)))
+			break;
+		progress_item(pr, m, corners);
 		struct problem q = c->pb;
 		if (tol_case_corner(c, m, &q, scratch) != 0)
 			continue;
@@ -364,7 +375,7 @@ bool stability_box_fold(const struct tol_case *c, char *msg, size_t n)
 			hi = res.n;
 	}
 	network_destroy(scratch);
-	if (lo == hi)
+	if (stopped || lo == hi)
 		return false;
 	snprintf(msg, n, "the tolerance box holds a fold: the circuit has %zu "
 	         "operating point%s at some corners and %zu at others, so it may "

@@ -118,6 +118,11 @@ bool stability_runaway(const struct problem *pb, char *msg, size_t n);
  */
 bool stability_box_fold(const struct tol_case *c, char *msg, size_t n);
 
+/* stability_box_fold watched by PR (progress.h; may be NULL): a corner
+ * at a time; stopped, it returns false. */
+bool stability_box_fold_watched(const struct tol_case *c, char *msg, size_t n,
+                                const struct progress *pr);
+
 /* Where a swept circuit leaves a vanished stable branch for another. */
 struct stability_jump {
 	double value;            /* the parameter where the branch ends */

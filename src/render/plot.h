@@ -235,6 +235,15 @@ void sweep_view_run_spec(const struct problem *pb,
                          const struct sweep_view_spec *spec,
                          struct sweep_view *sv);
 
+/* sweep_view_run_spec watched by PR (core/progress.h; may be NULL): a
+ * stop leaves SV->ok false, SV->msg saying how far it got. */
+void sweep_view_run_watched(const struct problem *pb,
+                            const struct solve_options *o,
+                            const struct reactive_parts *rp,
+                            const struct sweep_view_spec *spec,
+                            struct sweep_view *sv,
+                            const struct progress *pr);
+
 /* The usual sweep (sweep_view_default, then sweep_view_run_spec). */
 void sweep_view_run(const struct problem *pb, const struct solve_options *o,
                     const struct reactive_parts *rp, bool norton,

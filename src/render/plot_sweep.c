@@ -59,6 +59,17 @@ void sweep_view_run_spec(const struct problem *pb,
                          const struct sweep_view_spec *spec,
                          struct sweep_view *sv)
 {
+	sweep_view_run_watched(pb, o, rp, spec, sv, NULL);
+}
+
+/* Sweep SPEC on PB with O into SV, watched by PR. */
+void sweep_view_run_watched(const struct problem *pb,
+                            const struct solve_options *o,
+                            const struct reactive_parts *rp,
+                            const struct sweep_view_spec *spec,
+                            struct sweep_view *sv,
+                            const struct progress *pr)
+{
 	sv->ok = false;
 	sv->spec = *spec;
 	sv->n = sv->nextra = 0;
@@ -77,7 +88,7 @@ void sweep_view_run_spec(const struct problem *pb,
 	sv->unit = paramref_unit(pb, &sp.param);
 	sv->now = paramref_get(pb, &sp.param);
 	struct sweep_result res;
-	if (sweep_run(pb, o, &sp, &res) != 0) {
+	if (sweep_run_watched(pb, o, &sp, &res, pr) != 0) {
 		snprintf(sv->msg, sizeof sv->msg, "no sweep of %s: %.300s", spec->key,
 		         res.message);
 		sweep_result_fini(&res);

@@ -105,6 +105,14 @@ int session_design_worst(const struct session *s, const struct problem *pb,
                          const struct design_request *rq,
                          struct design_result *res, char *err, size_t errlen);
 
+/* session_design_worst watched by PR (core/progress.h; may be NULL; the
+ * fraction runs over all rows): stopped, -1 with ERR saying so. */
+int session_design_worst_watched(const struct session *s,
+                                 const struct problem *pb,
+                                 const struct design_request *rq,
+                                 struct design_result *res, char *err,
+                                 size_t errlen, const struct progress *pr);
+
 /*
  * The ratings verdict at the point (V, I) of S's problem PB, with S's
  * source form, ratings and target (core/verdict.h).

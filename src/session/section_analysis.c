@@ -693,6 +693,30 @@ int session_design_worst(const struct session *s, const struct problem *pb,
                          const struct design_request *rq,
                          struct design_result *res, char *err, size_t errlen)
 {
+	return session_design_worst_watched(s, pb, rq, res, err, errlen, NULL);
+}
+
+/* Row K of N of a design's worst cases: its fraction within the whole. */
+struct session_rows_progress {
+	const struct progress *outer;
+	size_t k, n;
+};
+
+/* Report a row's fraction DONE as a fraction of all rows. */
+static void session_rows_report(void *ctx, double done)
+{
+	const struct session_rows_progress *p = ctx;
+	p->outer->report(p->outer->ctx, done < 0.0 ? -1.0
+	                 : ((double)p->k + done) / (double)p->n);
+}
+
+/* The worst case of each row, watched. */
+int session_design_worst_watched(const struct session *s,
+                                 const struct problem *pb,
+                                 const struct design_request *rq,
+                                 struct design_result *res, char *err,
+                                 size_t errlen, const struct progress *pr)
+{
 	if (s->analysis.ntol == 0) {
 		snprintf(err, errlen, "no tolerances: section (e.g. tolerances: "
 		         "{rs: 5%%, vs: 10%%})");
@@ -707,7 +731,17 @@ int session_design_worst(const struct session *s, const struct problem *pb,
 		/* The tolerances around the row's own value. */
 		if (session_tolerance_case(s, &q, &c, err, errlen) != 0)
 			return -1;
-		design_row_worst(&c, &s->analysis.ratings, rq, &r->worst);
+		struct session_rows_progress rp = { pr, k, res->nrows };
+		struct progress inner = { pr != NULL ? pr->stop : NULL,
+		                          pr != NULL && pr->report != NULL
+		                          ? session_rows_report : NULL, &rp };
+		design_row_worst_watched(&c, &s->analysis.ratings, rq, &r->worst,
+		                         &inner);
+		if (progress_stopped(pr)) {
+			snprintf(err, errlen, "stopped at row %zu of %zu", k + 1,
+			         res->nrows);
+			return -1;
+		}
 	}
 	return 0;
 }

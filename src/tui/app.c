@@ -42,6 +42,74 @@ void app_message(struct app *a, bool error, const char *fmt, ...)
 	a->status_error = error;
 }
 
+/* Seconds on the monotonic clock. */
+static double app_now(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
+}
+
+/* The core's report on long work: look at the keyboard, show how far. */
+static void app_work_report(void *ctx, double done)
+{
+	struct app_work *w = ctx;
+	if (done >= 0.0)
+		w->done = done;
+	double t = app_now();
+	if (t - w->polled < 1e-3 * APP_WORK_POLL_MS)
+		return;
+	w->polled = t;
+	/* Esc or Ctrl-C stops; anything else is dropped (a resize is drawn
+	 * when the work ends) */
+	for (int key; (key = term_read_key(&w->a->term, 0)) != TK_NONE;) {
+		if (key == TK_ESC || key == TK_INTERRUPT)
+			term_work_cancel();
+		if (key == TK_ERROR)
+			break;
+	}
+	if (t - w->start < 1e-3 * APP_WORK_SHOW_MS || t - w->drawn < 0.1)
+		return;
+	w->drawn = t;
+	w->shown = true;
+	char line[200], left[48] = "";
+	double rest = w->done > 0.0 ? (t - w->start) * (1.0 - w->done) / w->done
+	                            : NAN;
+	if (w->done >= 1.0)
+		snprintf(left, sizeof left, ", finishing");
+	else if (isfinite(rest))
+		snprintf(left, sizeof left, ", about %.0f s left", ceil(rest));
+	snprintf(line, sizeof line, "%s: %.0f %%%s (Esc stops)", w->what,
+	         floor(100.0 * w->done), left);
+	int rows, cols;
+	term_size(&w->a->term, &rows, &cols);
+	term_fill(&w->a->term, rows - 1, 0, cols, TS_NORMAL);
+	term_text(&w->a->term, rows - 1, 0, line, cols, TS_HEADER);
+	term_end(&w->a->term);
+}
+
+/* Start long work. */
+void app_work_begin(struct app *a, struct app_work *w, const char *what)
+{
+	memset(w, 0, sizeof *w);
+	w->a = a;
+	snprintf(w->what, sizeof w->what, "%s", what);
+	w->start = w->polled = app_now();
+	w->core.stop = term_work_begin();
+	w->core.report = app_work_report;
+	w->core.ctx = w;
+}
+
+/* End long work. */
+enum app_work_end app_work_end(struct app_work *w)
+{
+	bool stopped = *w->core.stop != 0;
+	term_work_end();
+	if (term_stop_signal() != 0)
+		return APP_WORK_SIGNALLED;
+	return stopped ? APP_WORK_CANCELLED : APP_WORK_DONE;
+}
+
 /* Fill A from the options. */
 int app_init(struct app *a, const struct tui_options *opt, char *err,
              size_t errlen)

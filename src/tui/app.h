@@ -15,6 +15,7 @@
 #include <stdbool.h>
 #include <stddef.h>
 
+#include "core/progress.h"
 #include "core/solve.h"
 #include "core/stability.h"
 #include "core/stepper.h"
@@ -285,6 +286,41 @@ bool app_changed_on_disk(const struct app *a, const char *path);
  */
 void app_ask_overwrite(struct app *a, const char *path, const char *typed,
                        bool own);
+
+/*
+ * Long work a pane runs inside one key (a Monte Carlo run, a worst case,
+ * a sweep): hand &W->core to the core's _watched call between
+ * app_work_begin and app_work_end.  The core reads the stop flag at every
+ * evaluation and tells the report, which looks at the keyboard at least
+ * every APP_WORK_POLL_MS (Esc or Ctrl-C stops the work; other keys are
+ * dropped) and, once the work has run APP_WORK_SHOW_MS, shows WHAT and
+ * the fraction done on the bottom line.  SIGTERM, SIGQUIT and SIGHUP stop
+ * it too; the loop then saves the recovery file and leaves as always.
+ */
+#define APP_WORK_POLL_MS 20
+#define APP_WORK_SHOW_MS 500
+
+/* How long work ended. */
+enum app_work_end {
+	APP_WORK_DONE,
+	APP_WORK_CANCELLED,   /* Esc or Ctrl-C */
+	APP_WORK_SIGNALLED,   /* a stop signal: the loop leaves next */
+};
+
+/* One piece of long work (on the caller's stack). */
+struct app_work {
+	struct progress core;
+	struct app *a;
+	char what[96];
+	double start, polled, drawn, done;  /* seconds, monotonic; fraction */
+	bool shown;
+};
+
+/* Start long work described by WHAT ("Monte Carlo, 10000 trials"). */
+void app_work_begin(struct app *a, struct app_work *w, const char *what);
+
+/* End it: how it ended. */
+enum app_work_end app_work_end(struct app_work *w);
 
 /* Step the path once; the status line says why when it cannot move. */
 void app_step(struct app *a);

@@ -275,7 +275,7 @@ static const struct key_binding key_table[] = {
 	{ { 0 }, "Up/Down", "(view) choose a row", DOC },
 	{ { 0 }, "Enter", "(view) apply the row", DOC },
 	{ { 0 }, "t s", "(design) target, unknown", DOC },
-	{ { TK_ESC }, "Esc", "(view) close it", RUN(key_escape) },
+	{ { TK_ESC }, "Esc", "close a view, stop work", RUN(key_escape) },
 	{ { 'z' }, "z", "frame: line/path/ranges", TO(pane_plot) },
 	{ { '>', '<' }, "> <", "zoom in/out", TO(pane_plot) },
 	{ { TK_LEFT, TK_RIGHT }, "Left Right", "pan to lower/higher V", TO(pane_plot) },

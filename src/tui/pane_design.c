@@ -157,9 +157,21 @@ static void pane_design_run(struct app *a, struct design_state *d)
 	if (a->s.analysis.ntol == 0)
 		snprintf(d->worst_msg, sizeof d->worst_msg, "no tolerances: %% on a "
 		         "value adds one, and each row then shows its worst case");
-	else if (session_design_worst(&a->s, &a->pb, &d->rq, &d->res, d->worst_msg,
-	                              sizeof d->worst_msg) == 0)
-		d->worst = true;
+	else {
+		struct app_work wk;
+		app_work_begin(a, &wk, "worst case of each row");
+		int rc = session_design_worst_watched(&a->s, &a->pb, &d->rq, &d->res,
+		                                      d->worst_msg,
+		                                      sizeof d->worst_msg, &wk.core);
+		if (app_work_end(&wk) != APP_WORK_DONE) {
+			for (size_t k = 0; k < d->res.nrows; k++)
+				d->res.rows[k].worst.done = false;
+			snprintf(d->worst_msg, sizeof d->worst_msg, "worst case stopped: "
+			         "D twice runs it again");
+		} else if (rc == 0) {
+			d->worst = true;
+		}
+	}
 }
 
 /* The verdict at the chosen row's point. */

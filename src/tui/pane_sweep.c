@@ -199,7 +199,14 @@ static void pane_sweep_refresh(struct app *a, struct sweep_state *v)
 		return;
 	}
 	struct sweep_view_spec spec = v->sv.spec;
-	sweep_view_run_spec(&a->pb, &a->s.solver, &a->s.reactive, &spec, &v->sv);
+	char what[96];
+	snprintf(what, sizeof what, "sweep of %.40s, %d points", spec.key,
+	         SWEEP_VIEW_POINTS);
+	struct app_work wk;
+	app_work_begin(a, &wk, what);
+	sweep_view_run_watched(&a->pb, &a->s.solver, &a->s.reactive, &spec,
+	                       &v->sv, &wk.core);
+	app_work_end(&wk);
 }
 
 /* Say what the sweep shows on the status line. */

@@ -68,7 +68,20 @@ static void pane_tol_open(struct app *a, struct tol_state *t)
 		         "case (m runs the Monte Carlo trials)", TOL_MAX_CORNER_ITEMS);
 		return;
 	}
-	if (tol_worst_case(&t->c, &t->w, err, sizeof err) != 0) {
+	struct app_work wk;
+	char what[64];
+	snprintf(what, sizeof what, "worst case, %zu corners",
+	         (size_t)1 << t->c.nitems);
+	app_work_begin(a, &wk, what);
+	int rc = tol_worst_case_watched(&t->c, &t->w, &wk.core, err, sizeof err);
+	enum app_work_end end = app_work_end(&wk);
+	if (end != APP_WORK_DONE) {
+		snprintf(t->msg, sizeof t->msg, "worst case %.300s: T twice runs "
+		         "it again", err);
+		app_message(a, false, "worst case %.200s", err);
+		return;
+	}
+	if (rc != 0) {
 		snprintf(t->msg, sizeof t->msg, "%s", err);
 	} else {
 		t->have_wc = true;
@@ -85,7 +98,16 @@ static void pane_tol_open(struct app *a, struct tol_state *t)
 		              &a->s.analysis.ratings, &t->vd);
 	}
 	/* Several points somewhere in the box: say so under the table. */
-	if (t->have_wc && stability_box_fold(&t->c, err, sizeof err))
+	if (!t->have_wc)
+		return;
+	snprintf(what, sizeof what, "folds over %zu corners",
+	         (size_t)1 << t->c.nitems);
+	app_work_begin(a, &wk, what);
+	bool fold = stability_box_fold_watched(&t->c, err, sizeof err, &wk.core);
+	if (app_work_end(&wk) != APP_WORK_DONE)
+		snprintf(t->msg, sizeof t->msg, "the search for folds in the "
+		         "tolerance box was stopped: T twice runs it again");
+	else if (fold)
 		snprintf(t->msg, sizeof t->msg, "%s", err);
 }
 
@@ -96,12 +118,22 @@ static void pane_tol_run(struct app *a, struct tol_state *t)
 		return;
 	struct tol_window win[2];
 	size_t nwin = session_target_windows(&a->s, win);
-	char err[600];
-	t->have_mc = tol_monte_carlo(&t->c, TOL_TRIALS, TOL_SEED,
-	                             TOL_BINS, win, nwin, &t->mc, err,
-	                             sizeof err) == 0;
-	if (!t->have_mc)
+	char err[600], what[64];
+	snprintf(what, sizeof what, "Monte Carlo, %d trials", TOL_TRIALS);
+	struct app_work wk;
+	app_work_begin(a, &wk, what);
+	t->have_mc = tol_monte_carlo_watched(&t->c, TOL_TRIALS, TOL_SEED,
+	                                     TOL_BINS, win, nwin, &t->mc,
+	                                     &wk.core, err, sizeof err) == 0;
+	enum app_work_end end = app_work_end(&wk);
+	if (end != APP_WORK_DONE) {
+		t->have_mc = false;
+		app_message(a, false, "Monte Carlo %s: m runs it again", err);
+	} else if (t->have_mc) {
+		app_message(a, false, "%zu Monte Carlo trials done", t->mc.trials);
+	} else {
 		snprintf(t->msg, sizeof t->msg, "%s", err);
+	}
 }
 
 /* Write TEXT wrapped to W cells from ROW, at most MAX lines; rows used. */
@@ -266,10 +298,7 @@ static unsigned pane_tol_key(struct app *a, void *self, int key)
 	if (key == TK_RESIZE || key == 12)
 		return 0;
 	if (key == 'm') {
-		app_message(a, false, "running %d Monte Carlo trials", TOL_TRIALS);
 		pane_tol_run(a, t);
-		if (t->have_mc)
-			app_message(a, false, "%zu Monte Carlo trials done", t->mc.trials);
 	} else if (key == TK_ESC || key == 'q' || key == 'T') {
 		t->open = false;
 	}

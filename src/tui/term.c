@@ -25,6 +25,9 @@
 static volatile sig_atomic_t term_stop_flag;
 /* Ctrl-C (SIGINT) was pressed and not yet read as TK_INTERRUPT. */
 static volatile sig_atomic_t term_interrupt_flag;
+/* Long work runs, and whether it was asked to stop. */
+static volatile sig_atomic_t term_working;
+static volatile sig_atomic_t term_work_flag;
 
 /* What a fatal-signal handler needs to give the terminal back. */
 static struct {
@@ -45,13 +48,17 @@ enum term_pair {
 static void term_on_stop(int sig)
 {
 	term_stop_flag = sig;
+	term_work_flag = 1;
 }
 
-/* Turn Ctrl-C into a key: the handler for SIGINT. */
+/* Turn Ctrl-C into a key, or stop the long work: the handler for SIGINT. */
 static void term_on_interrupt(int sig)
 {
 	(void)sig;
-	term_interrupt_flag = 1;
+	if (term_working)
+		term_work_flag = 1;
+	else
+		term_interrupt_flag = 1;
 }
 
 /* Give the terminal back and re-raise: the handler for fatal signals. */
@@ -232,6 +239,27 @@ int term_read_key(struct term_ctx *t, int timeout_ms)
 int term_stop_signal(void)
 {
 	return term_stop_flag;
+}
+
+/* Long work starts. */
+const volatile sig_atomic_t *term_work_begin(void)
+{
+	term_work_flag = term_stop_flag != 0;
+	term_working = 1;
+	return &term_work_flag;
+}
+
+/* Ask the long work to stop. */
+void term_work_cancel(void)
+{
+	term_work_flag = 1;
+}
+
+/* The long work is over. */
+void term_work_end(void)
+{
+	term_working = 0;
+	term_work_flag = 0;
 }
 
 /* Start a frame. */

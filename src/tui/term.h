@@ -7,13 +7,17 @@
  * Signals: term_open installs handlers.  SIGHUP, SIGTERM and SIGQUIT only
  * set a flag (term_stop_signal reads it); the loop saves and exits.  SIGINT
  * (Ctrl-C) only sets a flag too, and the next read returns it as the key
- * TK_INTERRUPT, so Ctrl-C acts like a key (the loop treats it as q).  Fatal
+ * TK_INTERRUPT, so Ctrl-C acts like a key (the loop treats it as q).
+ * While long work runs (term_work_begin .. term_work_end) every one of
+ * those signals also sets the work's stop flag, and Ctrl-C only that: it
+ * stops the work and is no key.  Fatal
  * signals (SIGSEGV, SIGBUS, SIGFPE, SIGILL, SIGABRT) write the terminal's
  * saved reset strings, restore its modes and re-raise.
  */
 #ifndef BIASLINE_TERM_H
 #define BIASLINE_TERM_H
 
+#include <signal.h>
 #include <stdbool.h>
 #include <stddef.h>
 #include <stdint.h>
@@ -72,6 +76,19 @@ int term_read_key(struct term_ctx *t, int timeout_ms);
 
 /* The signal (SIGHUP, SIGTERM, SIGQUIT) that asked the program to stop, or 0. */
 int term_stop_signal(void);
+
+/*
+ * Long work starts: the flag it must read at every step (core/progress.h),
+ * set by SIGHUP, SIGTERM, SIGQUIT, Ctrl-C and term_work_cancel until
+ * term_work_end.
+ */
+const volatile sig_atomic_t *term_work_begin(void);
+
+/* Ask the long work to stop (its cancel key). */
+void term_work_cancel(void);
+
+/* The long work is over: Ctrl-C is a key again. */
+void term_work_end(void);
 
 /* Start a frame: blank the next screen image. */
 void term_begin(struct term_ctx *t);

@@ -81,9 +81,47 @@ stop_check() {
 		fails=$((fails + 1))
 	fi
 }
+# (the limit in time set to a day, so that only the signal stops them)
+export BIASLINE_WORK_LIMIT=86400
 stop_check TERM 143 "$bl" tolerance --trials 10000000 "$tmp/therm.yaml"
 expect_text "$tmp/err" "stopped after"
 stop_check INT 130 "$bl" sweep --param beta --from 3000 --to 5000 --points 1000000 "$tmp/therm.yaml"
 expect_text "$tmp/err" "stopped after"
+stop_check QUIT 131 "$bl" tolerance --trials 10000000 "$tmp/therm.yaml"
+expect_text "$tmp/err" "stopped after"
+stop_check HUP 129 "$bl" sweep --param beta --from 3000 --to 5000 --points 1000000 "$tmp/therm.yaml"
+expect_text "$tmp/err" "stopped after"
+
+# The limit in time: work estimated past it is stopped after its first
+# second, saying how much would fit, with status 64 (a limit of 1 s here,
+# so that any run over a second is past it however fast the machine).
+export BIASLINE_WORK_LIMIT=1
+for cmd in "tolerance --trials 10000000" \
+           "sweep --param beta --from 3000 --to 5000 --points 1000000"; do
+	t0=$(date +%s%N)
+	# shellcheck disable=SC2086
+	expect_exit 64 "$bl" $cmd "$tmp/therm.yaml"
+	t1=$(date +%s%N)
+	expect_text "$tmp/err" "more than the 1 s a command may take"
+	expect_text "$tmp/err" "fit: --"
+	n=$((n + 1))
+	# not a speed test: only that it did not run the whole work
+	if [ $(( (t1 - t0) / 1000000 )) -lt 30000 ]; then
+		echo "ok $n - '$cmd' stopped at its limit, not run to the end"
+	else
+		echo "not ok $n - '$cmd' ran $(( (t1 - t0) / 1000000 )) ms"
+		fails=$((fails + 1))
+	fi
+done
+# It offers a count, and short work is never stopped.
+fit=$(sed -n 's/.*fit: --points \([0-9]*\)$/\1/p' "$tmp/err")
+expect_exit 0 "$bl" tolerance --trials 100 "$tmp/therm.yaml"
+unset BIASLINE_WORK_LIMIT
+n=$((n + 1))
+if [ -n "$fit" ] && [ "$fit" -ge 1 ]; then
+	echo "ok $n - the refusal offers a count ($fit)"
+else
+	echo "not ok $n - no count offered"; fails=$((fails + 1))
+fi
 
 tap_finish
