@@ -124,4 +124,63 @@ else
 	echo "not ok $n - no count offered"; fails=$((fails + 1))
 fi
 
+# No nan or inf without a meaning: an nmos stage fed by an ideal current
+# source has ID but no VDS (the source terminal's voltage is not set);
+# text says "not defined here", CSV leaves the fields empty (the man page:
+# an empty field means the quantity does not exist for that row).
+cat >"$tmp/fet-is.yaml" <<'YAML'
+format_version: 1
+source:
+  is: 2.3m
+device:
+  model: nmos
+  transconductance_parameter: 2.2e-3
+  threshold_voltage: 1.35 V
+  supply_voltage: 12 V
+  drain_resistance: 1.8k
+YAML
+for args in "solve" "solve --sensitivity --trace" \
+            "sweep --param is --from 0.5m --to 4m --points 9"; do
+	# shellcheck disable=SC2086
+	expect_exit 0 "$bl" $args "$tmp/fet-is.yaml"
+	n=$((n + 1))
+	if grep -q -w -i -E 'nan|inf|-nan|-inf' "$tmp/out" "$tmp/err"; then
+		echo "not ok $n - '$args' on an FET fed by an ideal current source shows nan or inf"
+		grep -n -w -i -E 'nan|inf' "$tmp/out" "$tmp/err"; fails=$((fails + 1))
+	else
+		echo "ok $n - '$args' on an FET fed by an ideal current source: no nan or inf"
+	fi
+done
+expect_exit 0 "$bl" solve "$tmp/fet-is.yaml"
+expect_text "$tmp/out" "VDS = not defined here"
+expect_text "$tmp/out" "region: saturation (assumed)"
+expect_exit 0 "$bl" solve -f csv "$tmp/fet-is.yaml"
+expect_strict_csv "$tmp/out" "solve csv of an FET on an ideal current source"
+"$CSV_STRICT" -c drain_source_voltage_V "$tmp/out" >"$tmp/col"
+expect_same_text() {
+	n=$((n + 1))
+	if [ "$(cat "$1")" = "$2" ]; then
+		echo "ok $n - $3"
+	else
+		echo "not ok $n - $3: got '$(cat "$1")'"; fails=$((fails + 1))
+	fi
+}
+expect_same_text "$tmp/col" "" "its drain_source_voltage_V field is empty"
+n=$((n + 1))
+if grep -q -i -E '(^|,)-?(nan|inf)(,|$)' "$tmp/out"; then
+	echo "not ok $n - the CSV has a nan or inf field"; fails=$((fails + 1))
+else
+	echo "ok $n - the CSV has no nan or inf field"
+fi
+
+# reduce refuses a bad option before it prints anything.
+printf 'format_version: 1\nsource:\n  network:\n    device_between: [a, ground]\n    parts:\n      - name: cell\n        voltage_source: 9 V\n        from: ground\n        to: top\n      - name: r1\n        resistor: 4.7k\n        from: top\n        to: a\ndevice:\n  model: diode\n  saturation_current: 2.2e-14\n  ideality: 1.04\n' >"$tmp/net.yaml"
+expect_exit 0 "$bl" reduce --nodes "$tmp/net.yaml"
+for bad in "--bogus" "--format xml" "--nodes --reference nowhere" \
+           "--reference a" "--nodes --format"; do
+	# shellcheck disable=SC2086
+	expect_exit 64 "$bl" reduce $bad "$tmp/net.yaml"
+	expect_empty "$tmp/out" "reduce $bad prints nothing before refusing"
+done
+
 tap_finish

@@ -18,7 +18,9 @@
  *     constants) is refused with the key.
  *
  * The references are brute force and bisection (common practice); the
- * circuits are invented.  BIASLINE_LONG_TESTS raises the counts to 1e5.
+ * circuits are invented.  The scan's test runs 1e5 circuits in a plain
+ * build and 4000 under AddressSanitizer (which runs it ten times slower);
+ * BIASLINE_GUARANTEE_CIRCUITS sets another count (under valgrind, say).
  */
 #include <float.h>
 #include <setjmp.h>
@@ -36,10 +38,26 @@
 #include "core/models/models.h"
 #include "core/solve.h"
 
-/* Circuits per test: a few thousand in the suite, 1e5 when asked. */
-static int guarantee_count(int suite)
+/* Whether this build runs under AddressSanitizer. */
+#if defined(__SANITIZE_ADDRESS__)
+#define GUARANTEE_ASAN 1
+#elif defined(__has_feature)
+#if __has_feature(address_sanitizer)
+#define GUARANTEE_ASAN 1
+#endif
+#endif
+#ifndef GUARANTEE_ASAN
+#define GUARANTEE_ASAN 0
+#endif
+
+/* Circuits of the scan's test: PLAIN in a plain build, ASAN under
+ * AddressSanitizer, or BIASLINE_GUARANTEE_CIRCUITS. */
+static int guarantee_count(int plain, int asan)
 {
-	return getenv("BIASLINE_LONG_TESTS") != NULL ? 100000 : suite;
+	const char *e = getenv("BIASLINE_GUARANTEE_CIRCUITS");
+	if (e != NULL && atoi(e) > 0)
+		return atoi(e);
+	return GUARANTEE_ASAN ? asan : plain;
 }
 
 /* A base parameter set of one model, and which of its values to vary. */
@@ -164,43 +182,64 @@ static bool in_list(const struct solve_result *res, double v, double i)
 }
 
 /*
- * Test 1: scan completeness.  For each random circuit, the methods that
- * iterate from a start (Newton and Brent where the curve is I(V),
- * projections and relaxation in both orders) are run from six (eleven
- * in the long run) starting voltages across the range; every point one
- * of them reports (it has passed verification) must be in the default
- * solve's list.
+ * The model of circuit K: each of the eight cheap models five times in
+ * 44, the transistors and FETs (whose every solve costs ten times more)
+ * once each.
+ */
+static size_t scan_base(int k)
+{
+	static const size_t cheap[] = { 0, 1, 2, 3, 4, 9, 10, 11 };
+	static const size_t dear[] = { 5, 6, 7, 8 };
+	int slot = k % 44;
+	return slot < 40 ? cheap[slot % 8] : dear[slot - 40];
+}
+
+/*
+ * Test 1: scan completeness.  For each of 1e5 random circuits (every
+ * model, every kind of source), Newton and Brent are run from a grid of
+ * nine starting voltages across the device's range (three for a
+ * monotone curve on an ideal current source, which crosses once), and
+ * on every eighth circuit projections and relaxation in both orders from
+ * five; every point one of them reports (it has passed verification)
+ * must be in the default solve's list.
  */
 static void test_scan_complete(void **state)
 {
 	(void)state;
 	struct check_rng rng = { 0x5ca9c0e1e7eu };
-	int n = guarantee_count(600);
-	/* starting voltages: six in the suite, eleven in the long run */
-	int ns = getenv("BIASLINE_LONG_TESTS") != NULL ? 10 : 5;
+	int n = guarantee_count(100000, 4000);
 	size_t nb = sizeof bases / sizeof bases[0];
 	unsigned long runs = 0, found = 0, missed = 0, circuits = 0;
+	unsigned long kinds[4] = { 0 }, per_model[sizeof bases / sizeof bases[0]];
+	memset(per_model, 0, sizeof per_model);
 	for (int k = 0; k < n; k++) {
-		const struct base *b = &bases[(size_t)k % nb];
+		const struct base *b = &bases[scan_base(k)];
 		struct problem pb = { .net = NULL };
 		struct curve_data cd = { 0 };
 		if (random_device(&rng, b, &pb.dev, &cd) != 0)
 			continue;
-		random_source(&rng, (int)(check_rng_next(&rng) % 4), &pb.dev, &pb.src);
+		int kind = (int)(check_rng_next(&rng) % 4);
+		random_source(&rng, kind, &pb.dev, &pb.src);
 		struct solve_options o;
 		solve_options_init(&o);
 		struct solve_result def;
 		solve_problem(&pb, &o, &def);
 		circuits++;
+		kinds[kind]++;
+		per_model[scan_base(k)]++;
 		double lo, hi;
 		device_range(&pb.dev, &lo, &hi);
 		static const enum solve_method methods[] = {
 			METHOD_NEWTON, METHOD_BRENT, METHOD_PROJECTION, METHOD_RELAXED,
 		};
-		for (size_t m = 0; m < 4; m++)
+		/* the stepped methods on every eighth circuit */
+		size_t nm = k % 8 == 0 ? 4 : 2;
+		for (size_t m = 0; m < nm; m++)
 			for (int ord = 0; ord < 2; ord++) {
 				if (m < 2 && ord == 1)
 					continue; /* the order does not matter to them */
+				int ns = m >= 2 ? 4
+				         : kind == 2 && pb.dev.type->monotone ? 2 : 8;
 				for (int s = 0; s <= ns; s++) {
 					struct solve_options mo;
 					solve_options_init(&mo);
@@ -231,8 +270,17 @@ static void test_scan_complete(void **state)
 		if (pb.dev.curve != NULL)
 			curve_data_fini(&cd);
 	}
-	print_message("# %lu circuits, %lu runs, %lu verified points, %lu missed "
-	              "by the default solve\n", circuits, runs, found, missed);
+	print_message("# %lu circuits (Thevenin %lu, ideal voltage %lu, ideal "
+	              "current %lu, Norton %lu), %lu runs, %lu verified points, "
+	              "%lu missed by the default solve\n", circuits, kinds[0],
+	              kinds[1], kinds[2], kinds[3], runs, found, missed);
+	/* every model and every kind of source had its share */
+	for (size_t b = 0; b < nb; b++)
+		if (per_model[b] < (unsigned long)n / 100)
+			fail_msg("model %s: only %lu circuits", bases[b].name,
+			         per_model[b]);
+	for (int kd = 0; kd < 4; kd++)
+		assert_true(kinds[kd] > circuits / 8);
 	assert_true(circuits > (unsigned long)n / 2);
 	assert_int_equal(missed, 0);
 }
@@ -274,7 +322,7 @@ static void test_tunnel_three(void **state)
 {
 	(void)state;
 	struct check_rng rng = { 0x7e2a3b4c5du };
-	int n = guarantee_count(1000), done = 0;
+	int n = 1000, done = 0;
 	for (int k = 0; k < n; k++) {
 		struct problem pb = { .net = NULL };
 		struct curve_data cd = { 0 };
@@ -335,7 +383,7 @@ static void test_verified_within_tolerance(void **state)
 {
 	(void)state;
 	struct check_rng rng = { 0x3e11f00du };
-	int n = guarantee_count(3000);
+	int n = 3000;
 	unsigned long reported = 0;
 	double worst = 0.0;
 	for (int k = 0; k < n; k++) {
