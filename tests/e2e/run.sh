@@ -1127,6 +1127,97 @@ sigquit)
 	wait_exit
 	echo "ok: SIGQUIT restored the terminal, wrote a valid recovery file, status 131"
 	;;
+longwork)
+	# Long work in a view shows its progress on the bottom line and stops
+	# on Esc or Ctrl-C, the view staying open and saying how far it got.
+	# A self-heated transistor's 10000 Monte Carlo trials take seconds.
+	cp "$samples/npn-emitter-resistor-stable.yaml" "$work/npn.yaml"
+	printf 'tolerances:\n  rs: 5%%\n  vs: 10%%\n' >>"$work/npn.yaml"
+	start 80 24 "$work/npn.yaml"
+	wait_for "Convergence"
+	keys T
+	wait_for "m run the Monte Carlo trials (10000)"
+	for stop in Escape C-c; do
+		keys m
+		progress() {
+			has_re 'Monte Carlo, 10000 trials: [0-9]+ %, about [0-9]+ s left \(Esc stops\)'
+		}
+		expect progress
+		keys "$stop"
+		stopped() {
+			has_re 'Monte Carlo stopped after [0-9]+ of 10000 trials: m runs it again' &&
+				has "Tolerance: 2 parameters varied"
+		}
+		expect stopped
+	done
+	# The view is still there and answers its keys; the program runs on.
+	keys Escape
+	wait_gone "Tolerance: 2 parameters varied"
+	tmx has-session 2>/dev/null || fail "the program ended"
+	echo "ok: progress shown at 80x24; Esc and Ctrl-C stop the trials, the view stays"
+	;;
+longsignal)
+	# SIGTERM, Ctrl-\ (SIGQUIT) and SIGHUP while the front end runs a long
+	# Monte Carlo run: the program exits within half a second of the
+	# signal with the signal's status, the terminal restored (echo and
+	# canonical mode on, the alternate screen left) and a valid recovery
+	# file holding the unsaved edit.  The time is measured from the
+	# signal to the process's exit; the bound asserted is 2 s, four times
+	# the requirement, because a loaded machine under a sanitizer can
+	# stall any process for a while: this is not a speed test (the
+	# program checks its stop flag at every evaluation, and a signal
+	# obeyed only when the trials end would take many seconds).
+	esc=$(printf '\033')
+	cp "$samples/npn-emitter-resistor-stable.yaml" "$work/npn.yaml"
+	printf 'tolerances:\n  rs: 5%%\n  vs: 10%%\n' >>"$work/npn.yaml"
+	for sig in TERM QUIT HUP; do
+		rm -f "$XDG_STATE_HOME"/biasline/*.yaml
+		out=$work/$sig.bytes
+		new_server -x 80 -y 24 \
+			"read _; $(printf '%q ' "$bin" "$work/npn.yaml") 2>/dev/null; echo \"status=\$?\"; stty -a | tr ' ;' '\n\n' | grep -x -e echo -e -echo -e icanon -e -icanon; echo 'end of the checks'; read _"
+		tmx pipe-pane -o "cat >> $(printf '%q' "$out")"
+		keys Enter
+		wait_for "Convergence"
+		keys Down e 30 Enter
+		wait_for "RS       30 ohm"
+		keys T
+		wait_for "m run the Monte Carlo trials (10000)"
+		keys m
+		expect has_re 'Monte Carlo, 10000 trials: [0-9]+ %'
+		pid=$(pgrep -P "$(pane_pid)" -x biasline || true)
+		[ -n "$pid" ] || fail "no biasline process"
+		t0=$(date +%s%N)
+		if [ "$sig" = QUIT ]; then
+			keys 'C-\'
+		else
+			kill -"$sig" "$pid"
+		fi
+		# gone, or a zombie the shell has not yet reaped
+		while ps -o stat= -p "$pid" 2>/dev/null | grep -qv '^Z'; do
+			sleep 0.005
+		done
+		t1=$(date +%s%N)
+		ms=$(( (t1 - t0) / 1000000 ))
+		echo "SIG$sig during the Monte Carlo run: the program exited $ms ms after the signal"
+		[ "$ms" -le 2000 ] || fail "SIG$sig: exited $ms ms after the signal"
+		# with HUP the shell's read ends too; the status line comes first
+		wait_for "end of the checks"
+		case $sig in TERM) want=143 ;; QUIT) want=131 ;; HUP) want=129 ;; esac
+		grep -qx "status=$want" <<<"$SHOT" || fail "the status after SIG$sig is not $want"
+		grep -qx echo <<<"$SHOT" || fail "echo is off after SIG$sig"
+		grep -qx icanon <<<"$SHOT" || fail "the terminal is left in cbreak mode after SIG$sig"
+		wait_file "$out" "$esc\[\?1049l" || fail "the alternate screen was not left after SIG$sig"
+		rec=$(ls "$XDG_STATE_HOME"/biasline/*.yaml 2>/dev/null | head -1)
+		[ -n "$rec" ] || fail "no recovery file after SIG$sig"
+		"$bin" check "$rec" >/dev/null || fail "the recovery file after SIG$sig is not a valid session"
+		grep -qE 'rs: *30$' "$rec" || { cat "$rec"; fail "the recovery file lacks rs = 30"; }
+		"$bin" solve "$rec" >/dev/null ||
+			fail "the recovery file after SIG$sig does not solve"
+		keys Enter
+		stop_server
+	done
+	echo "ok: SIGTERM, SIGQUIT and SIGHUP during a Monte Carlo run: quick exit, terminal restored, valid recovery file"
+	;;
 interrupt)
 	# Ctrl-C is q: with no changes it quits at once; with changes it asks;
 	# at the question it answers no, like Esc; in a view it closes the view.
