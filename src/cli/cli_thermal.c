@@ -16,7 +16,7 @@ static void cli_thermal_add(struct cli_thermal *t, const struct problem *pb,
                             const char *key)
 {
 	struct paramref r;
-	if (t->n >= CLI_THERMAL_MARGINS ||
+	if (t->n >= CLI_THERMAL_MARGINS || strlen(key) >= sizeof t->keys[0] ||
 	    paramref_find(pb, key, &r, NULL, 0) != 0)
 		return;
 	snprintf(t->keys[t->n], sizeof t->keys[t->n], "%s", key);

@@ -772,7 +772,7 @@ int design_solve(const struct problem *pb, const struct solve_options *o,
 		design_wrong_sign(out, rq->value, s->voc);
 		return -1;
 	}
-	double v, i, exact;
+	double v, i, exact = NAN; /* set on every path that goes on */
 	if (rq->target == DESIGN_RESULT) {
 		double y;
 		struct model_extra ex;

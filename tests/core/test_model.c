@@ -408,6 +408,7 @@ static void test_extra_keys(void **state)
 				  .form = SOURCE_NORTON },
 			};
 			struct model_extra first;
+			memset(&first, 0, sizeof first);
 			bool have = false;
 			for (size_t s = 0; s < 3; s++) {
 				for (int q = 0; q <= 4; q++) {
