@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "cli_analysis.h"
+#include "cli_progress.h"
 #include "commands.h"
 #include "csv.h"
 #include "core/design.h"
@@ -471,8 +472,14 @@ static int design_worst_rows(const char *file, const struct session *se,
                              struct design_result *res)
 {
 	char err[600];
-	if (session_design_worst(se, pb, rq, res, err, sizeof err) != 0) {
+	struct cli_progress pr;
+	cli_progress_begin(&pr, "biasline design: worst case", 0.0);
+	int rc = session_design_worst_watched(se, pb, rq, res, err, sizeof err,
+	                                      &pr.core);
+	int sig = cli_progress_end(&pr);
+	if (rc != 0) {
 		fprintf(stderr, "biasline design: %s: --worst-case: %s\n", file, err);
+		cli_progress_reraise(sig);
 		return EXIT_DATA;
 	}
 	return 0;

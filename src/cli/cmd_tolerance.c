@@ -155,6 +155,7 @@ static void tolerance_print_at(const struct tol_case *c,
 
 /* Print everything as text. */
 static void tolerance_print_text(const char *file, const struct tol_case *c,
+                                 const char *fold,
                                  const struct tol_worst *w,
                                  const struct tol_mc *mc,
                                  const struct tol_window *win, size_t nwin,
@@ -187,10 +188,8 @@ static void tolerance_print_text(const char *file, const struct tol_case *c,
 	printf("\n  worst case (%zu corners", w->corners);
 	if (w->failed)
 		printf(", %zu without an operating point", w->failed);
-	char fold[400];
-	bool folded = stability_box_fold(c, fold, sizeof fold);
 	printf(")\n");
-	if (folded)
+	if (fold != NULL)
 		printf("  %s\n", fold);
 	printf("  %-16s %-13s %-13s %s\n", "", "nominal", "minimum", "maximum");
 	for (int o = 0; o < TOL_NOUT; o++) {
@@ -385,7 +384,8 @@ int cmd_tolerance(int argc, char **argv)
 	struct tol_case c;
 	struct tol_worst w;
 	struct tol_mc mc;
-	char err[600];
+	char err[600], fold[400];
+	bool folded = false;
 	code = EXIT_OK_CODE;
 	if (se.analysis.ntol == 0) {
 		fprintf(stderr, "biasline tolerance: %s: no tolerances: section "
@@ -409,6 +409,20 @@ int cmd_tolerance(int argc, char **argv)
 			session_fini(&se);
 			cli_progress_reraise(sig);
 			return EXIT_NO_POINT;
+		}
+		/* Several points somewhere in the box (said in the text). */
+		if (!a.csv) {
+			cli_progress_begin(&pr, "biasline tolerance: folds", 0.0);
+			folded = stability_box_fold_watched(&c, fold, sizeof fold,
+			                                    &pr.core);
+			sig = cli_progress_end(&pr);
+			if (sig != 0) {
+				fprintf(stderr, "biasline tolerance: %s: stopped while "
+				        "looking for folds in the box\n", a.file);
+				session_fini(&se);
+				cli_progress_reraise(sig);
+				return EXIT_NO_POINT;
+			}
 		}
 	}
 	if (code != EXIT_OK_CODE) {
@@ -450,7 +464,8 @@ int cmd_tolerance(int argc, char **argv)
 			fprintf(stderr, "biasline tolerance: %s\n", msg);
 		}
 	} else {
-		tolerance_print_text(a.file, &c, wp, mp, win, nwin, &se);
+		tolerance_print_text(a.file, &c, folded ? fold : NULL, wp, mp, win,
+		                     nwin, &se);
 		cli_print_network_note(&se, "  ");
 		cli_print_caution(flags, "  ");
 	}
