@@ -243,6 +243,13 @@ struct curve_data;
  * CURVE owns it and keeps it alive while the device is used.  A model that
  * uses CURVE finds it from P (P always points at a device's p array); NULL
  * for every other model.
+ *
+ * CHECKED says that P, as it stands, passed device_validate: parameters
+ * are checked once, where they change (device_check, paramref_set), not
+ * in every solve.  The solvers take a checked device as it is and check
+ * any other one first (so a device built by hand is still refused with
+ * its key).  Whoever writes P or CURVE directly clears it, or writes
+ * through device_set_param, which does.
  */
 struct device {
 	const struct model_type *type;
@@ -259,6 +266,7 @@ struct device {
 	double k[MODEL_MAX_DERIVED];
 	model_values kp;
 	bool has_k;
+	bool checked;
 };
 
 /* The registry: all models, NULL-terminated. */
@@ -290,7 +298,8 @@ int model_param_check(const struct model_param *mp, double value,
 
 /*
  * Check every parameter of DEV (ranges, required keys, then the model's own
- * validator).  Returns 0, or -1 with a message naming the key in ERR.
+ * validator).  Returns 0, or -1 with a message naming the key in ERR (ERR
+ * may be NULL when ERRLEN is 0).
  */
 int device_validate(const struct device *dev, char *err, size_t errlen);
 
@@ -304,6 +313,37 @@ void device_prepare(struct device *dev);
 /* DEV's derived constants when they are those of its current values,
  * else NULL. */
 const double *device_constants(const struct device *dev);
+
+/*
+ * device_validate, and note the answer in DEV->checked: the call for
+ * whoever builds or changes a device that will be solved.
+ */
+int device_check(struct device *dev, char *err, size_t errlen);
+
+/*
+ * Whether DEV may be solved as it is: 0 when it is checked or valid now,
+ * else -1 with device_validate's message in ERR.  A checked device costs
+ * one test; a debug build validates it all the same and aborts when the
+ * flag lies (a write that forgot to clear it), so the tests catch one.
+ * DEVICE_RECHECK is the part past the flag.
+ */
+int device_recheck(const struct device *dev, char *err, size_t errlen);
+static inline int device_ready(const struct device *dev, char *err,
+                               size_t errlen)
+{
+#ifdef NDEBUG
+	if (dev->checked)
+		return 0;
+#endif
+	return device_recheck(dev, err, errlen);
+}
+
+/* Set parameter K of DEV to X; DEV must be checked again before a solve. */
+static inline void device_set_param(struct device *dev, size_t k, double x)
+{
+	dev->p[k] = x;
+	dev->checked = false;
+}
 
 /* Device current at V (NaN when the model has no current(V)). */
 double device_current(const struct device *dev, double v);

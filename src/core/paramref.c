@@ -365,7 +365,7 @@ static int paramref_set_value(struct problem *pb, const struct paramref *r,
 		s->voc = isinf(x) ? NAN : s->isc * x;
 		return 0;
 	case PARAMREF_DEVICE:
-		pb->dev.p[r->index] = x;
+		device_set_param(&pb->dev, (size_t)r->index, x);
 		return 0;
 	case PARAMREF_NETWORK:
 		break;
@@ -373,12 +373,15 @@ static int paramref_set_value(struct problem *pb, const struct paramref *r,
 	return -1;
 }
 
-/* Set R to X and let the device see the source it now has. */
+/* Set R to X, let the device see the source it now has, and check a
+ * changed device once here rather than in every solve. */
 int paramref_set(struct problem *pb, const struct paramref *r, double x)
 {
 	if (paramref_set_value(pb, r, x) != 0)
 		return -1;
 	problem_bind(pb);
+	if (r->kind == PARAMREF_DEVICE)
+		device_check(&pb->dev, NULL, 0);
 	return 0;
 }
 
@@ -417,8 +420,14 @@ size_t paramref_all(const struct problem *pb, struct paramref *out,
 int paramref_set_all(struct problem *pb, const struct paramref *r,
                      const double *x, size_t n, struct network *scratch)
 {
-	bool parts = false;
+	bool parts = false, device = false;
 	for (size_t k = 0; k < n; k++) {
+		if (r[k].kind == PARAMREF_DEVICE) {
+			/* checked once, after the last */
+			device_set_param(&pb->dev, (size_t)r[k].index, x[k]);
+			device = true;
+			continue;
+		}
 		if (r[k].kind != PARAMREF_NETWORK) {
 			if (paramref_set(pb, &r[k], x[k]) != 0)
 				return -1;
@@ -438,6 +447,10 @@ int paramref_set_all(struct problem *pb, const struct paramref *r,
 		if (slot == pb->net_nset)
 			pb->net_nset++;
 		parts = true;
+	}
+	if (device) {
+		problem_bind(pb);
+		device_check(&pb->dev, NULL, 0);
 	}
 	if (!parts)
 		return 0;

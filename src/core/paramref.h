@@ -89,7 +89,12 @@ int paramref_check(const struct problem *pb, const struct paramref *r,
 /* Whether X is inside MP's table range (no message; for loops). */
 bool paramref_in_range(const struct model_param *mp, double x);
 
-/* Set R to X in PB (after paramref_check); returns 0 or -1. */
+/*
+ * Set R to X in PB (after paramref_check); returns 0 or -1.  A device
+ * parameter is checked with the whole device here (device_check: a value
+ * that makes it invalid leaves it unchecked, and a solve then refuses it
+ * with the key), so the solves that follow need not check it again.
+ */
 int paramref_set(struct problem *pb, const struct paramref *r, double x);
 
 struct network;
@@ -97,10 +102,11 @@ struct network;
 /*
  * Set every R[k] to X[k] (after paramref_check), K < N: as paramref_set
  * each, but the parts of a network source are noted together and the
- * network reduced once for all of them.  SCRATCH, when not NULL, is a
- * copy of PB's network (network_copy) that the caller keeps for repeated
- * calls on problems copied from PB: it is overwritten with the values, so
- * no copy is made per call.  Returns 0, or -1 (PB may then be half set).
+ * network reduced once for all of them, and the device is checked once.
+ * SCRATCH, when not NULL, is a copy of PB's network (network_copy) that
+ * the caller keeps for repeated calls on problems copied from PB: it is
+ * overwritten with the values, so no copy is made per call.  Returns 0,
+ * or -1 (PB may then be half set).
  */
 int paramref_set_all(struct problem *pb, const struct paramref *r,
                      const double *x, size_t n, struct network *scratch);

@@ -19,7 +19,7 @@ static double sens_current_with(const struct problem *pb, int index, double x,
                                 double v)
 {
 	struct device d = pb->dev;
-	d.p[index] = x;
+	device_set_param(&d, (size_t)index, x);
 	return device_current(&d, v);
 }
 

@@ -249,7 +249,7 @@ int solve_fast(const struct problem *pb, double tol, struct op_point *pt)
 	memset(pt, 0, sizeof *pt);
 	pt->method = METHOD_NEWTON;
 	/* A self-heated part may have no balance or several: no fast path. */
-	if (thermal_active(&pb->dev))
+	if (device_ready(&pb->dev, NULL, 0) != 0 || thermal_active(&pb->dev))
 		return -1;
 	if (isinf(s->r)) {
 		/* Ideal current source: the device voltage at that current. */
@@ -495,40 +495,22 @@ static bool solve_try_shockley(const struct problem *pb,
 	return true;
 }
 
-/* Solve PB with O (see solve.h). */
-enum solve_status solve_problem(const struct problem *pb,
-                                const struct solve_options *o,
-                                struct solve_result *out)
+/* Refuse PB into OUT when its device may not be solved as it is. */
+static bool solve_refused(const struct problem *pb, struct solve_result *out)
 {
-	char err[200];
-	if (device_validate(&pb->dev, err, sizeof err) != 0) {
-		out->n = 0;
-		out->stop = STEP_CONTINUE;
-		snprintf(out->message, sizeof out->message, "%s", err);
-		return out->status = SOLVE_BAD_INPUT;
-	}
-	if (solve_try_shockley(pb, o, out))
-		return SOLVE_OK;
-	return solve_problem_valid(pb, o, out);
+	if (device_ready(&pb->dev, out->message, sizeof out->message) == 0)
+		return false;
+	out->n = 0;
+	out->stop = STEP_CONTINUE;
+	out->status = SOLVE_BAD_INPUT;
+	return true;
 }
 
-/* Solve PB, whose device has passed device_validate (see solve.h). */
-enum solve_status solve_problem_valid(const struct problem *pb,
-                                      const struct solve_options *o,
-                                      struct solve_result *out)
-{
-	if (solve_try_shockley(pb, o, out))
-		return SOLVE_OK;
-	struct bracket br[SOLVE_MAX_POINTS];
-	size_t nb;
-	return solve_problem_valid_brackets(pb, o, out, br, &nb);
-}
-
-/* solve_problem_valid that hands back the scan's brackets (see solve.h). */
-enum solve_status solve_problem_valid_brackets(const struct problem *pb,
-                                               const struct solve_options *o,
-                                               struct solve_result *out,
-                                               struct bracket *br, size_t *nb)
+/* Every point of PB, whose device may be solved as it is. */
+static enum solve_status solve_run(const struct problem *pb,
+                                   const struct solve_options *o,
+                                   struct solve_result *out,
+                                   struct bracket *br, size_t *nb)
 {
 	*nb = 0;
 	out->status = SOLVE_OK;
@@ -563,4 +545,31 @@ enum solve_status solve_problem_valid_brackets(const struct problem *pb,
 		}
 	}
 	return solve_scan(pb, o, out, br, nb);
+}
+
+/* Solve PB with O (see solve.h). */
+enum solve_status solve_problem(const struct problem *pb,
+                                const struct solve_options *o,
+                                struct solve_result *out)
+{
+	if (solve_refused(pb, out))
+		return out->status;
+	/* The hot path: one Shockley junction in closed form. */
+	if (solve_try_shockley(pb, o, out))
+		return SOLVE_OK;
+	struct bracket br[SOLVE_MAX_POINTS];
+	size_t nb;
+	return solve_run(pb, o, out, br, &nb);
+}
+
+/* solve_problem that hands back the scan's brackets (see solve.h). */
+enum solve_status solve_problem_brackets(const struct problem *pb,
+                                         const struct solve_options *o,
+                                         struct solve_result *out,
+                                         struct bracket *br, size_t *nb)
+{
+	*nb = 0;
+	if (solve_refused(pb, out))
+		return out->status;
+	return solve_run(pb, o, out, br, nb);
 }

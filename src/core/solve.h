@@ -57,26 +57,15 @@ enum solve_status solve_problem(const struct problem *pb,
                                 struct solve_result *out);
 
 /*
- * solve_problem without the parameter check, for a caller that has run
- * device_validate on PB's device once and solves it many times (a sweep,
- * a Monte Carlo run, a benchmark).  With a device that has not passed
- * device_validate the points may be meaningless: use solve_problem.
+ * solve_problem with METHOD_AUTO that also hands back the brackets of the
+ * every-root scan it ran (BR, room for SOLVE_MAX_POINTS; *NB of them, 0
+ * when the answer came without a scan), for a caller that looks further
+ * at the same problem (a sweep's continuation) without scanning again.
  */
-enum solve_status solve_problem_valid(const struct problem *pb,
-                                      const struct solve_options *o,
-                                      struct solve_result *out);
-
-/*
- * solve_problem_valid with METHOD_AUTO that also hands back the brackets
- * of the every-root scan it ran (BR, room for SOLVE_MAX_POINTS; *NB of
- * them, 0 when the answer came without a scan), for a caller that looks
- * further at the same problem (a sweep's continuation) without scanning
- * again.
- */
-enum solve_status solve_problem_valid_brackets(const struct problem *pb,
-                                               const struct solve_options *o,
-                                               struct solve_result *out,
-                                               struct bracket *br, size_t *nb);
+enum solve_status solve_problem_brackets(const struct problem *pb,
+                                         const struct solve_options *o,
+                                         struct solve_result *out,
+                                         struct bracket *br, size_t *nb);
 
 /*
  * The fast path for one operating point of a monotone device with a finite

@@ -180,7 +180,9 @@ static int stepper_start(struct stepper *s, const struct problem *pb,
 	if (s->env.o.max_steps == 0)
 		s->env.o.max_steps = 200;
 	s->status = STEP_CONTINUE;
-	if ((unsigned)o->method >= METHOD_COUNT) {
+	/* Nothing steps on parameters that were never checked valid. */
+	if ((unsigned)o->method >= METHOD_COUNT ||
+	    device_ready(&s->env.pb.dev, NULL, 0) != 0) {
 		s->status = STEP_UNDEFINED;
 		return -1;
 	}

@@ -163,16 +163,11 @@ static void sweep_solve(const struct problem *pb, const struct solve_options *o,
 	struct solve_options no = *o;
 	no.method = METHOD_AUTO;
 	no.start_v = NAN;
-	char err[200];
-	if (device_validate(&pb->dev, err, sizeof err) != 0) {
-		res->n = 0;
-		snprintf(res->message, sizeof res->message, "%s", err);
-		res->status = SOLVE_BAD_INPUT;
-		return;
-	}
 	struct bracket br[SOLVE_MAX_POINTS];
 	size_t nb;
-	solve_problem_valid_brackets(pb, &no, res, br, &nb);
+	/* Refused with the key when a value made the device invalid. */
+	if (solve_problem_brackets(pb, &no, res, br, &nb) == SOLVE_BAD_INPUT)
+		return;
 	const struct model_type *t = pb->dev.type;
 	if (t->monotone || thermal_active(&pb->dev) || t->current == NULL)
 		return;
@@ -191,7 +186,7 @@ static void sweep_solve(const struct problem *pb, const struct solve_options *o,
 			struct solve_result one;
 			no.method = METHOD_NEWTON;
 			no.start_v = prev[k].v;
-			if (solve_problem_valid(pb, &no, &one) != SOLVE_OK || one.n != 1)
+			if (solve_problem(pb, &no, &one) != SOLVE_OK || one.n != 1)
 				continue;
 			pt = one.pts[0];
 		}

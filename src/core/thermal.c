@@ -63,7 +63,7 @@ void thermal_normalise(struct device *dev)
 {
 	struct thermal_keys k;
 	if (thermal_keys_of(dev->type, &k) && dev->p[k.theta] > 0.0)
-		dev->p[k.temp] = dev->p[k.tamb];
+		device_set_param(dev, (size_t)k.temp, dev->p[k.tamb]);
 }
 
 /* PB at junction temperature TJ without self-heating. */
@@ -73,8 +73,8 @@ void thermal_problem_at(const struct problem *pb, double tj, struct problem *q)
 	*q = *pb;
 	if (!thermal_keys_of(pb->dev.type, &k))
 		return;
-	q->dev.p[k.theta] = 0.0;
-	q->dev.p[k.temp] = tj;
+	device_set_param(&q->dev, (size_t)k.theta, 0.0);
+	device_set_param(&q->dev, (size_t)k.temp, tj);
 }
 
 /* PB at its point's own junction temperature. */
@@ -110,7 +110,7 @@ double thermal_point_temperature(const struct problem *pb, double v, double i)
 	if (d.type->power == NULL)
 		return t;
 	for (int it = 0; it < THERMAL_TJ_ITERS && isfinite(t); it++) {
-		d.p[k.temp] = t;
+		device_set_param(&d, (size_t)k.temp, t);
 		double tn = p[k.tamb] + p[k.theta] *
 		            device_heat(&d, &pb->src, v, i);
 		double step = tn - t;
@@ -126,7 +126,7 @@ static int thermal_voltage_at(const struct problem *q, int itemp, double t,
                               double i, double *v)
 {
 	struct device d = q->dev;
-	d.p[itemp] = t;
+	device_set_param(&d, (size_t)itemp, t);
 	return device_voltage(&d, i, v) == 0 && isfinite(*v) ? 0 : -1;
 }
 
@@ -135,7 +135,7 @@ static double thermal_current_at(const struct problem *q, int itemp, double t,
                                  double v)
 {
 	struct device d = q->dev;
-	d.p[itemp] = t;
+	device_set_param(&d, (size_t)itemp, t);
 	return device_current(&d, v);
 }
 
@@ -205,7 +205,7 @@ static double thermal_heat_dt(const struct problem *q, int itemp, double tj,
 	double f[4];
 	const double at[4] = { tj + h, tj - h, tj + 0.5 * h, tj - 0.5 * h };
 	for (int k = 0; k < 4; k++) {
-		d.p[itemp] = at[k];
+		device_set_param(&d, (size_t)itemp, at[k]);
 		f[k] = device_dissipation(&d, &q->src, v, i);
 	}
 	double d1 = (f[0] - f[1]) / (2.0 * h), d2 = (f[2] - f[3]) / h;
@@ -378,7 +378,7 @@ enum thermal_status thermal_solve(const struct problem *pb,
 		         "the %s model does not heat itself", pb->dev.type->name);
 		return out->status = THERMAL_BAD_INPUT;
 	}
-	if (device_validate(&pb->dev, err, sizeof err) != 0) {
+	if (device_ready(&pb->dev, err, sizeof err) != 0) {
 		snprintf(out->message, sizeof out->message, "%s", err);
 		return out->status = THERMAL_BAD_INPUT;
 	}
@@ -856,17 +856,17 @@ static double thermal_diss_partial(const struct problem *q, int index,
 	struct device d = q->dev;
 	bool up = paramref_in_range(mp, p + h), down = paramref_in_range(mp, p - h);
 	if (up && down) {
-		d.p[index] = p + h;
+		device_set_param(&d, (size_t)index, p + h);
 		double a = device_dissipation(&d, &q->src, v, i);
-		d.p[index] = p - h;
+		device_set_param(&d, (size_t)index, p - h);
 		double b = device_dissipation(&d, &q->src, v, i);
 		return (a - b) / (2.0 * h);
 	}
 	double st = up ? h : -h;
 	double f0 = device_dissipation(&d, &q->src, v, i);
-	d.p[index] = p + st;
+	device_set_param(&d, (size_t)index, p + st);
 	double f1 = device_dissipation(&d, &q->src, v, i);
-	d.p[index] = p + 2.0 * st;
+	device_set_param(&d, (size_t)index, p + 2.0 * st);
 	double f2 = device_dissipation(&d, &q->src, v, i);
 	return (-3.0 * f0 + 4.0 * f1 - f2) / (2.0 * st);
 }

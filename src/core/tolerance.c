@@ -168,6 +168,9 @@ void tol_case_init(struct tol_case *c, const struct problem *pb,
 {
 	memset(c, 0, sizeof *c);
 	c->pb = *pb;
+	/* checked once here; each evaluation checks what it changes */
+	if (!c->pb.dev.checked)
+		device_check(&c->pb.dev, NULL, 0);
 	c->form = form;
 	c->opts = *o;
 	c->opts.method = METHOD_AUTO;
@@ -282,11 +285,10 @@ static int tol_run_point(struct tol_run *r, const double *x, double v_near,
 	if (paramref_set_all(q, r->refs, x, c->nitems, r->scratch) != 0)
 		return -1;
 	const struct model_type *t = q->dev.type;
-	if (t->validate != NULL) {
-		char err[8];
-		if (t->validate(q->dev.p, err, sizeof err) != 0)
-			return -1;
-	}
+	/* paramref_set_all checked the device: a trial it made invalid has
+	 * no point */
+	if (device_ready(&q->dev, NULL, 0) != 0)
+		return -1;
 	/* The fast unique solve for a monotone device, else every root. */
 	if (t->monotone && solve_fast(q, c->opts.tol, pt) == 0)
 		return 0;

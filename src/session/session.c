@@ -613,11 +613,12 @@ int session_problem(const struct session *s, struct problem *pb, char *err,
 		snprintf(err, errlen, "source.%s", why);
 		return -1;
 	}
-	if (device_validate(&s->device, why, sizeof why) != 0) {
+	pb->dev = s->device;
+	/* checked once here: the solves of this problem take it as it is */
+	if (device_check(&pb->dev, why, sizeof why) != 0) {
 		snprintf(err, errlen, "device.%s", why);
 		return -1;
 	}
-	pb->dev = s->device;
 	pb->net = s->network; /* borrowed: S outlives PB (problem.h) */
 	pb->net_nset = 0;
 	problem_bind(pb);

@@ -1,7 +1,8 @@
 /*
  * bench_solve.c - the solver against its honest limits, on random diode
- * circuits: the default solve (solve_problem) and its pre-validated and
- * fast entries; a fast Wright omega closed form written here, with no
+ * circuits: the default solve (solve_problem, on problems whose device
+ * was checked once when they were built, as session_problem and
+ * paramref_set do) and its fast entry; a fast Wright omega closed form written here, with no
  * validation, verification or r_d (the physical limit of this problem);
  * the Lambert W closed form with GSL's W0; GSL's Brent-Dekker with the
  * tight bracket our solver would use and with the bracket a user would
@@ -38,7 +39,6 @@
 /* The methods timed. */
 enum bench_method {
 	BENCH_DEFAULT,     /* solve_problem, METHOD_AUTO */
-	BENCH_VALID,       /* solve_problem_valid (validated once, outside) */
 	BENCH_FAST,        /* solve_fast */
 	BENCH_OMEGA,       /* the closed form below */
 	BENCH_LAMBERT,     /* closed form with gsl_sf_lambert_W0 */
@@ -48,7 +48,7 @@ enum bench_method {
 };
 
 static const char *const bench_names[BENCH_COUNT] = {
-	"solve_problem (default)", "solve_problem_valid", "solve_fast",
+	"solve_problem (default)", "solve_fast",
 	"omega closed form", "Lambert W0 closed form", "GSL brent, tight bracket",
 	"GSL brent, [0, VS]",
 };
@@ -249,8 +249,9 @@ static void bench_fill(struct check_rng *rng, struct bench_case *b, size_t n)
 		b[k].pb.dev.p[DIODE_N] = c.n;
 		b[k].pb.dev.p[DIODE_RS] = c.rsd;
 		b[k].pb.dev.p[DIODE_TEMP] = c.temp;
-		/* Validated once here, untimed, for solve_problem_valid. */
-		if (device_validate(&b[k].pb.dev, err, sizeof err) != 0)
+		/* Checked once where it is built (untimed), as session_problem
+		 * does: the solves take it as it is. */
+		if (device_check(&b[k].pb.dev, err, sizeof err) != 0)
 			abort();
 		b[k].is = c.is;
 		b[k].nvt = check_nvt(c.n, c.temp);
@@ -271,12 +272,6 @@ static double bench_run(enum bench_method m, const struct bench_case *b,
 		case BENCH_DEFAULT: {
 			struct solve_result res;
 			out[k] = solve_problem(&b[k].pb, &o, &res) == SOLVE_OK
-			             ? res.pts[0].i : NAN;
-			break;
-		}
-		case BENCH_VALID: {
-			struct solve_result res;
-			out[k] = solve_problem_valid(&b[k].pb, &o, &res) == SOLVE_OK
 			             ? res.pts[0].i : NAN;
 			break;
 		}

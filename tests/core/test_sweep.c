@@ -349,16 +349,10 @@ static void old_solve(const struct problem *pb, const struct solve_options *o,
 	struct solve_options no = *o;
 	no.method = METHOD_AUTO;
 	no.start_v = NAN;
-	char err[200];
-	if (device_validate(&pb->dev, err, sizeof err) != 0) {
-		res->n = 0;
-		res->status = SOLVE_BAD_INPUT;
-		return;
-	}
 	struct bracket br[SOLVE_MAX_POINTS];
 	size_t nb;
-	solve_problem_valid_brackets(pb, &no, res, br, &nb);
-	if (pb->dev.type->monotone)
+	if (solve_problem_brackets(pb, &no, res, br, &nb) == SOLVE_BAD_INPUT ||
+	    pb->dev.type->monotone)
 		return;
 	for (size_t k = 0; k < nprev && res->n < SOLVE_MAX_POINTS; k++) {
 		struct solve_result one;
