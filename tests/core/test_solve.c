@@ -22,6 +22,7 @@
 
 #include "core/diagnose.h"
 #include "core/models/models.h"
+#include "core/paramref.h"
 #include "core/solve.h"
 
 /* Number of random diode circuits (test 1) and power-law circuits. */
@@ -510,6 +511,80 @@ static void test_bad_input(void **state)
 	}
 }
 
+/*
+ * Validation once: a device is checked where its parameters change, and
+ * the flag follows every change.  A value that passes its own range but
+ * leaves the device invalid as a whole (a self-heated diode without the
+ * temperature its Is was stated at: the model's own rule) is refused by
+ * the next solve with that key, whichever way it was set; setting the
+ * parameter back makes the device checked again and the solve answers
+ * exactly as for a device never checked.
+ */
+static void test_checked_once(void **state)
+{
+	(void)state;
+	struct problem pb;
+	struct source_spec sp;
+	char err[200];
+	source_spec_thevenin(&sp, 7.43, 2.61e3);
+	assert_int_equal(source_from_spec(&sp, &pb.src, err, sizeof err), 0);
+	pb.net = NULL;
+	device_init(&pb.dev, &model_diode);
+	pb.dev.p[DIODE_IS] = 2.93e-15;
+	pb.dev.p[DIODE_N] = 1.37;
+	pb.dev.p[DIODE_RS] = 0.83;
+	struct problem raw = pb;
+	assert_false(pb.dev.checked);
+	assert_int_equal(device_check(&pb.dev, err, sizeof err), 0);
+	assert_true(pb.dev.checked);
+
+	struct paramref theta, is;
+	assert_int_equal(paramref_find(&pb, "thermal_resistance", &theta, err,
+	                               sizeof err), 0);
+	assert_int_equal(paramref_find(&pb, "saturation_current", &is, err,
+	                               sizeof err), 0);
+	/* 240 K/W is inside the key's own range. */
+	assert_int_equal(paramref_check(&pb, &theta, 240.0, NULL, 0), 0);
+	struct solve_options o;
+	solve_options_init(&o);
+	struct solve_result res;
+	for (int way = 0; way < 3; way++) {
+		struct problem q = pb;
+		if (way == 0) {
+			assert_int_equal(paramref_set(&q, &theta, 240.0), 0);
+		} else if (way == 1) {
+			const struct paramref r[2] = { is, theta };
+			const double x[2] = { 3.1e-15, 240.0 };
+			assert_int_equal(paramref_set_all(&q, r, x, 2, NULL), 0);
+		} else {
+			device_set_param(&q.dev, (size_t)theta.index, 240.0);
+		}
+		assert_false(q.dev.checked);
+		for (int m = 0; m < METHOD_COUNT; m++) {
+			o.method = (enum solve_method)m;
+			assert_int_equal(solve_problem(&q, &o, &res), SOLVE_BAD_INPUT);
+			assert_int_equal(res.n, 0);
+			if (strstr(res.message, "reference_temperature") == NULL)
+				fail_msg("way %d, %s: message does not name the key: %s", way,
+				         solve_method_name(o.method), res.message);
+		}
+		struct op_point pt;
+		assert_int_equal(solve_fast(&q, 1e-12, &pt), -1);
+		/* Back to valid: checked again, the same answer bit for bit. */
+		assert_int_equal(paramref_set(&q, &theta, 0.0), 0);
+		if (way == 1)
+			assert_int_equal(paramref_set(&q, &is, 2.93e-15), 0);
+		assert_true(q.dev.checked);
+		struct solve_result r1, r2;
+		o.method = METHOD_AUTO;
+		assert_int_equal(solve_problem(&q, &o, &r1), SOLVE_OK);
+		assert_int_equal(solve_problem(&raw, &o, &r2), SOLVE_OK);
+		assert_int_equal(r1.n, 1);
+		assert_int_equal(r2.n, 1);
+		assert_true(r1.pts[0].v == r2.pts[0].v && r1.pts[0].i == r2.pts[0].i);
+	}
+}
+
 /* A random valid problem of any model and source form. */
 static void random_problem(struct check_rng *r, struct problem *pb)
 {
@@ -626,6 +701,7 @@ int main(void)
 		cmocka_unit_test(test_power_law_gsl),
 		cmocka_unit_test(test_every_root_scan),
 		cmocka_unit_test(test_bad_input),
+		cmocka_unit_test(test_checked_once),
 		cmocka_unit_test(test_never_unverified),
 	};
 	gsl_set_error_handler_off();
