@@ -73,6 +73,7 @@ void device_init(struct device *dev, const struct model_type *type)
 	dev->type = type;
 	dev->curve = NULL;
 	dev->checked = false;
+	dev->junction = false;
 	for (size_t k = 0; k < MODEL_MAX_PARAMS; k++)
 		dev->p[k] = k < type->nparams ? type->params[k].def : 0.0;
 	dev->has_k = false;
@@ -187,11 +188,22 @@ int device_validate(const struct device *dev, char *err, size_t errlen)
 	return 0;
 }
 
-/* Validate DEV and note the answer. */
+/* Whether DEV is one Shockley junction that does not heat itself, with
+ * its constants into *SK. */
+static bool device_junction_of(const struct device *dev,
+                               struct model_shockley *sk)
+{
+	const struct model_type *t = dev->type;
+	return t->shockley != NULL && !thermal_active(dev) &&
+	       t->shockley(dev->p, sk) == 0;
+}
+
+/* Validate DEV and note the answer, and its junction constants. */
 int device_check(struct device *dev, char *err, size_t errlen)
 {
 	int rc = device_validate(dev, err, errlen);
 	dev->checked = rc == 0;
+	dev->junction = dev->checked && device_junction_of(dev, &dev->sk);
 	return rc;
 }
 
@@ -204,6 +216,14 @@ int device_recheck(const struct device *dev, char *err, size_t errlen)
 	 * would otherwise solve them silently. */
 	assert(device_validate(dev, NULL, 0) == 0 &&
 	       "a device marked checked is not valid: a write forgot to clear it");
+#ifndef NDEBUG
+	struct model_shockley sk;
+	bool junction = device_junction_of(dev, &sk);
+	assert(junction == dev->junction &&
+	       (!junction || (sk.is == dev->sk.is && sk.nvt == dev->sk.nvt &&
+	                      sk.rs == dev->sk.rs)) &&
+	       "a checked device's junction constants are stale");
+#endif
 	return 0;
 }
 

@@ -250,6 +250,12 @@ struct curve_data;
  * any other one first (so a device built by hand is still refused with
  * its key).  Whoever writes P or CURVE directly clears it, or writes
  * through device_set_param, which does.
+ *
+ * JUNCTION and SK are noted with CHECKED and mean something only while it
+ * holds: JUNCTION says the device is one Shockley junction that does not
+ * heat itself (model_type.shockley answers, thermal_resistance is 0),
+ * with its constants in SK, so that a solve goes straight to the closed
+ * form without deriving Is(T) and n Vt again.
  */
 struct device {
 	const struct model_type *type;
@@ -267,6 +273,8 @@ struct device {
 	model_values kp;
 	bool has_k;
 	bool checked;
+	bool junction;
+	struct model_shockley sk;
 };
 
 /* The registry: all models, NULL-terminated. */
@@ -315,8 +323,9 @@ void device_prepare(struct device *dev);
 const double *device_constants(const struct device *dev);
 
 /*
- * device_validate, and note the answer in DEV->checked: the call for
- * whoever builds or changes a device that will be solved.
+ * device_validate, and note the answer in DEV->checked (and what a solve
+ * needs of a valid device: DEV->junction, DEV->sk): the call for whoever
+ * builds or changes a device that will be solved.
  */
 int device_check(struct device *dev, char *err, size_t errlen);
 
@@ -324,7 +333,8 @@ int device_check(struct device *dev, char *err, size_t errlen);
  * Whether DEV may be solved as it is: 0 when it is checked or valid now,
  * else -1 with device_validate's message in ERR.  A checked device costs
  * one test; a debug build validates it all the same and aborts when the
- * flag lies (a write that forgot to clear it), so the tests catch one.
+ * flag lies (a write that forgot to clear it) or the noted junction
+ * constants are not what the parameters give, so the tests catch one.
  * DEVICE_RECHECK is the part past the flag.
  */
 int device_recheck(const struct device *dev, char *err, size_t errlen);

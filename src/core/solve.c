@@ -209,11 +209,11 @@ bool solve_verify(const struct problem *pb, double v, double i, double tol)
 }
 
 /*
- * A Shockley junction SK behind PB's source: the closed form (or its
- * Newton fallback) into *PT.  The closed form checks itself with one
- * correction on the junction's own equation, whose size bounds the
- * distance to the intersection; a Newton answer is verified here.
- * Returns 0, or -1.
+ * A Shockley junction SK behind PB's source, PB's device not heating
+ * itself: the closed form (or its Newton fallback) into *PT.  The closed
+ * form checks itself with one correction on the junction's own equation,
+ * whose size bounds the distance to the intersection; a Newton answer is
+ * verified here.  Returns 0, or -1.
  */
 static int solve_shockley(const struct problem *pb,
                           const struct model_shockley *sk, double tol,
@@ -224,10 +224,13 @@ static int solve_shockley(const struct problem *pb,
 		junction_solve_shockley(sk->is, sk->nvt, s->voc, s->r + sk->rs, tol);
 	if (!jr.ok)
 		return -1;
+	const struct model_type *t = pb->dev.type;
 	pt->i = jr.ij;
 	pt->v = jr.vj + sk->rs * jr.ij;
-	/* the heat: a transistor's own IC VCE + IB VBE (model.h) */
-	pt->power = device_dissipation(&pb->dev, &pb->src, pt->v, pt->i);
+	/* device_heat's power, the device not heating itself (a model's own
+	 * heat, model.h, else V I) */
+	pt->power = t->power != NULL ? t->power(pb->dev.p, s, pt->v, pt->i)
+	                             : pt->v * pt->i;
 	pt->rd = 1.0 / jr.gj + sk->rs; /* no exponential: gj came with it */
 	pt->residual = fabs(pt->v + s->r * pt->i - s->voc);
 	pt->steps = jr.iters;
@@ -236,6 +239,23 @@ static int solve_shockley(const struct problem *pb,
 	if (jr.path == JUNCTION_NEWTON)
 		return solve_verify(pb, pt->v, pt->i, tol) ? 0 : -1;
 	return 0;
+}
+
+/*
+ * Whether PB's device is one Shockley junction that does not heat
+ * itself, with its constants into *SK: noted when the device was checked
+ * (model.h), else derived now.
+ */
+static bool solve_junction_of(const struct problem *pb,
+                              struct model_shockley *sk)
+{
+	const struct device *d = &pb->dev;
+	if (d->checked) {
+		*sk = d->sk;
+		return d->junction;
+	}
+	return d->type->shockley != NULL && !thermal_active(d) &&
+	       d->type->shockley(d->p, sk) == 0;
 }
 
 /*
@@ -260,7 +280,7 @@ int solve_fast(const struct problem *pb, double tol, struct op_point *pt)
 		return -1;
 	} else {
 		struct model_shockley sk;
-		if (t->shockley != NULL && t->shockley(pb->dev.p, &sk) == 0)
+		if (solve_junction_of(pb, &sk))
 			return solve_shockley(pb, &sk, tol, pt);
 		double rser = t->series_resistance ? t->series_resistance(pb->dev.p) : 0.0;
 		struct junction_result jr = junction_solve(t, pb->dev.p, s->voc,
@@ -472,27 +492,34 @@ static enum solve_status solve_method(const struct problem *pb,
 	return out->status;
 }
 
+/* What solve_try_shockley did. */
+enum solve_shockley_try {
+	SOLVE_TRY_NONE,     /* not a Shockley junction behind a finite r */
+	SOLVE_TRY_FAILED,   /* one, but neither the closed form nor its
+	                       fallback could vouch for a point */
+	SOLVE_TRY_OK,       /* answered into OUT */
+};
+
 /*
  * The hot path of the default solve: one Shockley junction behind a
- * finite resistance, in closed form, into OUT.  True when it answered.
+ * finite resistance, in closed form, into OUT.
  */
-static bool solve_try_shockley(const struct problem *pb,
-                               const struct solve_options *o,
-                               struct solve_result *out)
+static enum solve_shockley_try solve_try_shockley(const struct problem *pb,
+                                                  const struct solve_options *o,
+                                                  struct solve_result *out)
 {
-	const struct model_type *t = pb->dev.type;
 	struct model_shockley sk;
 	/* a self-heated part goes through the heat balance (thermal.h) */
-	if (o->method != METHOD_AUTO || t->shockley == NULL ||
-	    !isfinite(pb->src.r) || thermal_active(&pb->dev) ||
-	    t->shockley(pb->dev.p, &sk) != 0 ||
-	    solve_shockley(pb, &sk, o->tol, &out->pts[0]) != 0)
-		return false;
+	if (o->method != METHOD_AUTO || !isfinite(pb->src.r) ||
+	    !solve_junction_of(pb, &sk))
+		return SOLVE_TRY_NONE;
+	if (solve_shockley(pb, &sk, o->tol, &out->pts[0]) != 0)
+		return SOLVE_TRY_FAILED;
 	out->status = SOLVE_OK;
 	out->n = 1;
 	out->message[0] = '\0';
 	out->stop = STEP_CONVERGED;
-	return true;
+	return SOLVE_TRY_OK;
 }
 
 /* Refuse PB into OUT when its device may not be solved as it is. */
@@ -513,6 +540,10 @@ static enum solve_status solve_run(const struct problem *pb,
                                    struct bracket *br, size_t *nb)
 {
 	*nb = 0;
+	/* The hot path first: one Shockley junction in closed form. */
+	enum solve_shockley_try tried = solve_try_shockley(pb, o, out);
+	if (tried == SOLVE_TRY_OK)
+		return SOLVE_OK;
 	out->status = SOLVE_OK;
 	out->n = 0;
 	out->message[0] = '\0';
@@ -523,13 +554,12 @@ static enum solve_status solve_run(const struct problem *pb,
 	if (o->method != METHOD_AUTO)
 		return solve_method(pb, o, out);
 	const struct model_type *t = pb->dev.type;
-	if (solve_try_shockley(pb, o, out))
-		return SOLVE_OK;
 	struct op_point pt;
 	/* A monotone device has one point; so does any V(I) curve fed by an
-	 * ideal current source (the point is V(isc)). */
+	 * ideal current source (the point is V(isc)).  solve_fast would only
+	 * repeat a Shockley junction's failed attempt. */
 	bool unique = t->monotone || (isinf(pb->src.r) && t->voltage != NULL);
-	if (unique && solve_fast(pb, o->tol, &pt) == 0) {
+	if (unique && tried == SOLVE_TRY_NONE && solve_fast(pb, o->tol, &pt) == 0) {
 		out->pts[out->n++] = pt;
 		out->stop = STEP_CONVERGED;
 		return out->status = SOLVE_OK;
@@ -554,9 +584,6 @@ enum solve_status solve_problem(const struct problem *pb,
 {
 	if (solve_refused(pb, out))
 		return out->status;
-	/* The hot path: one Shockley junction in closed form. */
-	if (solve_try_shockley(pb, o, out))
-		return SOLVE_OK;
 	struct bracket br[SOLVE_MAX_POINTS];
 	size_t nb;
 	return solve_run(pb, o, out, br, &nb);
