@@ -40,6 +40,8 @@
 #include <float.h>
 #include <math.h>
 #include <stdbool.h>
+#include <stdint.h>
+#include <string.h>
 
 #include "kernel.h"
 
@@ -335,65 +337,170 @@ static struct junction_result junction_newton(struct junction_ctx *c,
 /* The closed form                                                         */
 
 /*
+ * ln x for the closed form's starting value only, where a few parts in
+ * 1e10 are plenty (the correction that follows settles the rest, and
+ * says when it did not): the table-driven scheme of Tang ("Table-driven
+ * implementation of the logarithm function in IEEE floating-point
+ * arithmetic", ACM TOMS 16(4), 1990) cut down.  x = 2^e m, m in [1, 2);
+ * the top five bits of m pick c near m, whose 1/c (rounded) and -ln(1/c)
+ * (to 40 digits, then rounded) the table holds; t = m/c - 1 is within
+ * 1/64, and ln(1 + t) to t^4 is off by less than t^5 / 5 < 2e-10.  X
+ * must be a positive normal number.
+ */
+static const double junction_log_table[32][2] = {
+	{ 0.9846153846153847, 0.015504186535965199 },
+	{ 0.9552238805970149, 0.04580953603129422 },
+	{ 0.927536231884058, 0.07522342123758752 },
+	{ 0.9014084507042254, 0.10379679368164355 },
+	{ 0.8767123287671232, 0.13157635778871932 },
+	{ 0.8533333333333334, 0.15860503017663852 },
+	{ 0.8311688311688312, 0.18492233849401193 },
+	{ 0.810126582278481, 0.21056476910734964 },
+	{ 0.7901234567901234, 0.23556607131276697 },
+	{ 0.7710843373493976, 0.259957524436926 },
+	{ 0.7529411764705882, 0.2837681731306446 },
+	{ 0.735632183908046, 0.3070250352949119 },
+	{ 0.7191011235955056, 0.32975328637246804 },
+	{ 0.7032967032967034, 0.3519764231571781 },
+	{ 0.6881720430107527, 0.373716409793584 },
+	{ 0.6736842105263158, 0.394993808240869 },
+	{ 0.6597938144329897, 0.415827895143711 },
+	{ 0.6464646464646465, 0.43623676677491796 },
+	{ 0.6336633663366337, 0.4562374334815876 },
+	{ 0.6213592233009708, 0.475845904869964 },
+	{ 0.6095238095238096, 0.4950772667978514 },
+	{ 0.5981308411214953, 0.5139457511022344 },
+	{ 0.5871559633027523, 0.5324647988694717 },
+	{ 0.5765765765765766, 0.5506471179526623 },
+	{ 0.5663716814159292, 0.5685047353526688 },
+	{ 0.5565217391304348, 0.5860490450035782 },
+	{ 0.5470085470085471, 0.6032908514380841 },
+	{ 0.5378151260504201, 0.6202404097518576 },
+	{ 0.5289256198347108, 0.6369074622370692 },
+	{ 0.5203252032520326, 0.6533012720127456 },
+	{ 0.512, 0.6694306539426292 },
+	{ 0.5039370078740157, 0.6853040030989195 },
+};
+
+static double junction_log_start(double x)
+{
+	uint64_t bits;
+	memcpy(&bits, &x, sizeof bits);
+	int e = (int)(bits >> 52) - 1023;
+	const double *c = junction_log_table[(bits >> 47) & 31u];
+	bits = (bits & 0x000fffffffffffffu) | 0x3ff0000000000000u;
+	double m;
+	memcpy(&m, &bits, sizeof m);
+	double t = m * c[0] - 1.0, t2 = t * t;
+	/* t - t^2/2 + t^3/3 - t^4/4 in two halves (a short chain) */
+	double p = (t - 0.5 * t2) + t2 * t * (1.0 / 3.0 - 0.25 * t);
+	return ((double)e * 0.6931471805599453 + c[1]) + p;
+}
+
+/*
  * omega(x) for x > 2.5 from its asymptotic expansion through 1 / x^4
  * (Corless et al., Adv. Comput. Math. 5, 1996, eq. 4.19, with ln z = x):
- * off by less than 2e-5 at x = 10, 5e-8 from x = 60 and 1e-13 from
- * x = 1000 (compared with a 40-digit Lambert W).
+ * off by less than 2e-5 at x = 10, 5e-8 from x = 60, 6e-9 from x = 100
+ * and 1e-13 from x = 1000 (compared with a 30-digit Lambert W), plus the
+ * 2e-10 of its starting logarithm.
  */
 static double junction_omega_asymptotic(double x)
 {
-	double l = log(x), ix = 1.0 / x, ix3 = ix * ix * ix;
-	/* The terms' coefficients in l, then summed in pairs (short chains). */
-	double c2 = l * (l - 2.0) * 0.5;
-	double c3 = l * (6.0 + l * (-9.0 + 2.0 * l)) * (1.0 / 6.0);
-	double c4 = l * (-12.0 + l * (36.0 + l * (-22.0 + 3.0 * l))) * (1.0 / 12.0);
-	return (x - l) + ((l + c2 * ix) * ix + (c3 + c4 * ix) * ix3);
+	double l = junction_log_start(x), l2 = l * l, ix = 1.0 / x;
+	/* The terms' coefficients in l, each in two halves, and the sum in
+	 * powers of 1/x likewise: short chains, as this is the hot path. */
+	double c2 = 0.5 * l2 - l;
+	double c3 = (l - 1.5 * l2) + l2 * l * (1.0 / 3.0);
+	double c4 = (3.0 * l2 - l) + l2 * l * (-11.0 / 6.0 + 0.25 * l);
+	return (x - l) + ix * ((l + c2 * ix) + ix * ix * (c3 + c4 * ix));
 }
 
 /* Below this u, e^u is 0 in a double (and exp() would take its slow
  * underflow path to say so). */
 #define JUNCTION_EXP_UNDERFLOW -746.0
 
+/* e^-600 rounded to a double (computed to 40 digits), for e^u below the
+ * bottom of the double range taken in two factors. */
+#define JUNCTION_EXP_M600 2.6503965530043108e-261
+
 /*
- * The closed form for IS, NVT (see the top of the file); res.ok = 0 when
- * it cannot vouch for its answer (the caller then runs Newton).
+ * Deep reverse bias (a <= 1, b0 + a < -40): w = a e^u is below e^-40, so
+ * u = b0 + a - w is b0 + a to within rounding, and one fixed-point step
+ * u = g(u0) = b0 + a - a e^u0 from u0 = b0 + a finishes it: g contracts by
+ * a e^xi <= w0 = a e^u0 between the root and u0 (the root lies below u0,
+ * where F is w0 > 0), and |u0 - u*| <= w0, so |u - u*| <= w0^2: a bound
+ * with no division and at most one exponential, taken in two factors
+ * where e^u0 is below the normal range so that Ij and its conductance
+ * keep their digits down to where they underflow.
  */
-static struct junction_result junction_omega(double is, double nvt, double voc,
-                                             double r, double tol)
+static struct junction_result junction_reverse(double is, double nvt,
+                                               double inv_nvt, double a,
+                                               double b0, double tol)
 {
+	struct junction_result res = { .path = JUNCTION_OMEGA, .iters = 1 };
+	double u0 = b0 + a;
+	double es, scale; /* e^u0 = es * scale */
+	if (u0 > -600.0) {
+		es = exp(u0);
+		scale = 1.0;
+	} else {
+		es = u0 > JUNCTION_EXP_UNDERFLOW - 600.0 ? exp(u0 + 600.0) : 0.0;
+		scale = JUNCTION_EXP_M600;
+	}
+	double w0 = a * es * scale;
+	double u = u0 - w0;
+	/* e^u = e^u0 e^-w0, and w0 < e^-40 is below the rounding of 1. */
+	res.vj = nvt * u;
+	res.ij = is * (es * scale - 1.0);
+	res.gj = (is * inv_nvt * scale) * es;
+	res.dvj = nvt * (w0 * w0 + 2.0 * DBL_EPSILON * fabs(u));
+	double rel = tol > 4.0 * DBL_EPSILON ? tol : 4.0 * DBL_EPSILON;
+	res.ok = res.dvj <= rel * fabs(res.vj);
+	return res;
+}
+
+/*
+ * The closed form for IS, NVT (see the top of the file), with 1 / NVT and
+ * a = IS R / NVT > 0 given; res.ok = 0 when it cannot vouch for its
+ * answer (the caller then runs Newton).
+ */
+static struct junction_result junction_omega(double is, double nvt,
+                                             double inv_nvt, double a,
+                                             double voc, double r, double tol)
+{
+	double b0 = voc * inv_nvt;
+	if (a <= 1.0 && b0 + a < -40.0)
+		return junction_reverse(is, nvt, inv_nvt, a, b0, tol);
 	struct junction_result res = { .vj = NAN, .ij = NAN, .gj = NAN,
 	                               .dvj = NAN, .path = JUNCTION_OMEGA };
-	double inv_nvt = 1.0 / nvt, nvt_r = nvt / r;
-	double a = is * r * inv_nvt, b0 = voc * inv_nvt;
-	double u;
-	/* Halley's step where the start is rough, Newton's where it is good
-	 * to 5e-8 (the expansion from x = 60, or deep reverse). */
-	bool halley = true;
-	if (a <= 1.0 && b0 + a < -40.0) {
-		/* Deep reverse: w = a e^u < e^-40 is below the rounding of u,
-		 * so u = b0 + a already; the correction below confirms it. */
-		u = b0 + a;
-		halley = false;
-	} else {
-		/* The start: omega of x = ln a + b0 + a. */
-		double x = log(a) + (b0 + a);
-		double w;
-		if (x > 2.5) {
-			w = junction_omega_asymptotic(x);
-			halley = x < 60.0;
-		} else {
-			w = junction_wright_omega(x);
-		}
-		u = b0 - (w - a);
-	}
+	/* Off the critical path: the line's current needs it at the end. */
+	double nvt_r = nvt / r;
+	/* The start: omega of x = ln a + b0 + a. */
+	double x = junction_log_start(a) + (b0 + a);
+	double w;
+	if (x > 2.5)
+		w = junction_omega_asymptotic(x);
+	else
+		w = junction_wright_omega(x);
+	double u = b0 - (w - a);
 	/*
 	 * Corrections on F(u) = u + a expm1(u) - b0, F' = 1 + a e^u, F'' =
-	 * a e^u: Newton's, after which the error is about du^2 / 2, or
-	 * Halley's, about du^3 / 12 (Traub, Iterative Methods for the
-	 * Solution of Equations, 1964, sec. 5.2): once that is below the
-	 * rounding of u, u is as good as a double can hold.  One correction
-	 * normally does it, and it is the check: one exponential.
+	 * a e^u; one normally does it, and it is the check: one exponential.
+	 *
+	 * Where the start is good to 6e-9 (x >= 100) the first is Newton's
+	 * with the slope taken from the start, F' = 1 + w, whose reciprocal
+	 * is ready before the exponential (no division after it).  At the
+	 * root u* = b0 + a - w*, so e0 = u - u* = w* - w, and Taylor's
+	 * theorem gives the error after the step exactly: e1 = -e0^2 (1 +
+	 * a e^xi / 2) / (1 + w), a e^xi within e0 of w, so |e1| <= e0^2
+	 * (1 + e0), and e0 is the step to first order: |e1| < 2 du^2.
+	 * Elsewhere, and for any second correction, Halley's, whose error is
+	 * about du^3 / 12 (Traub, Iterative Methods for the Solution of
+	 * Equations, 1964, sec. 5.2).  Once the error left is below the
+	 * rounding of u, u is as good as a double can hold.
 	 */
+	bool start_slope = x >= 100.0;
+	double islope = 1.0 / (1.0 + w);
 	double e = NAN, ex = NAN, du = NAN, left = NAN;
 	bool settled = false;
 	for (unsigned k = 1; k <= 4 && !settled; k++) {
@@ -409,35 +516,34 @@ static struct junction_result junction_omega(double is, double nvt, double voc,
 		}
 		double ae = a * ex;
 		double f = (u - b0) + a * e, fp = 1.0 + ae;
-		if (halley) {
+		if (start_slope) {
+			du = f * islope;
+			left = 2.0 * du * du;
+		} else {
 			/* (f / f') / (1 - f f'' / (2 f'^2)), one division. */
 			du = f * fp / (fp * fp - 0.5 * f * ae);
 			left = fabs(du * du * du);
-		} else {
-			du = f / fp;
-			left = du * du;
 		}
 		u -= du;
 		res.iters = k;
 		if (!isfinite(u) || !isfinite(ae))
 			return res; /* e^u overflows: let Newton decide */
 		settled = left <= DBL_EPSILON * fabs(u);
-		halley = true; /* a second correction was not expected */
+		start_slope = false; /* a second correction was not expected */
 	}
 	if (!settled)
 		return res;
-	/* e^u and expm1(u) at the corrected u, to second order in du. */
-	double shrink = du * (1.0 - 0.5 * du);
-	double exc = ex - ex * shrink;
 	/*
 	 * The current from the side whose error is smaller: the line's grows
 	 * with |b0| / |b0 - u|, the device's with 1 + |u| e^u / |expm1(u)|
-	 * (compared multiplied out; both computed, one kept).
+	 * (compared multiplied out).  e^u and expm1(u) at the corrected u
+	 * come to second order in du.
 	 */
 	double au = fabs(u), ae_ = fabs(e);
-	double i_line = (b0 - u) * nvt_r, i_dev = is * (e - ex * shrink);
 	bool line = (fabs(b0) + au) * ae_ < (ae_ + au * ex) * fabs(b0 - u);
-	res.ij = line ? i_line : i_dev;
+	double shrink = du * (1.0 - 0.5 * du);
+	double exc = ex - ex * shrink;
+	res.ij = line ? (b0 - u) * nvt_r : is * (e - ex * shrink);
 	res.vj = nvt * u;
 	/* Is e^u / nVt; e^u near the bottom of the range has lost bits. */
 	res.gj = exc > 1e-290 || exc == 0.0 ? is * exc * inv_nvt
@@ -467,8 +573,11 @@ struct junction_result junction_solve_shockley(double is, double nvt,
                                                double voc, double r,
                                                double tol)
 {
-	if (r != 0.0 && voc != 0.0 && is * r / nvt > DBL_MIN) {
-		struct junction_result res = junction_omega(is, nvt, voc, r, tol);
+	double inv_nvt = 1.0 / nvt, a = is * r * inv_nvt;
+	bool omega = r != 0.0 && voc != 0.0 && a > DBL_MIN;
+	if (omega) {
+		struct junction_result res =
+			junction_omega(is, nvt, inv_nvt, a, voc, r, tol);
 		if (res.ok)
 			return res;
 	}
@@ -476,7 +585,7 @@ struct junction_result junction_solve_shockley(double is, double nvt,
 	 * would pay for clearing it. */
 	struct junction_ctx c = { .t = NULL, .is = is, .nvt = nvt, .voc = voc,
 	                          .r = r };
-	if (r == 0.0 || voc == 0.0 || !(is * r / nvt > DBL_MIN))
+	if (!omega)
 		return junction_direct(&c);
 	return junction_newton(&c, tol);
 }

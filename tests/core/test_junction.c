@@ -183,6 +183,12 @@ static const struct path_case path_cases[] = {
 	{ "omega, forward", 3.71e-14, 0.02861, 17.3, 4.7e3, JUNCTION_OMEGA },
 	{ "omega, reverse", 2.3e-9, 0.04417, -611.0, 93.1, JUNCTION_OMEGA },
 	{ "omega, near 0", 1.9e-7, 0.05123, 3.7e-9, 7.3e5, JUNCTION_OMEGA },
+	/* deep reverse (w below e^-40): e^u in the normal range, and below
+	 * it with a conductance that still is (n about 9e-5) */
+	{ "omega, deep reverse", 4.1e-12, 0.03371, -9.3, 3.3e3, JUNCTION_OMEGA },
+	{ "omega, reverse, e^u subnormal", 0.23, 2.3e-6, -1.656e-3, 4.7e-6,
+	  JUNCTION_OMEGA },
+	{ "omega, x near 100", 2.9e-9, 0.03917, 3.961, 1.37e3, JUNCTION_OMEGA },
 	{ "r = 0", 4.4e-13, 0.03163, 0.6137, 0.0, JUNCTION_DIRECT },
 	{ "voc = 0", 4.4e-13, 0.03163, 0.0, 217.0, JUNCTION_DIRECT },
 	{ "r Is / nVt underflows", 1.3e-300, 0.02569, 11.7, 3.1e-10,
@@ -214,8 +220,26 @@ static void test_every_path(void **state)
 		if (!(e <= bound))
 			fail_msg("%s: I %.17g exact %.17Lg (rel %.3g)", c->why, jr.ij,
 			         iref, e);
-		print_message("# %-30s path %d, %u steps, rel error %.3g\n", c->why,
-		              (int)jr.path, jr.iters, e);
+		/*
+		 * The closed form's conductance Is e^(vj/nVt) / nVt, against the
+		 * exact junction voltage (from the side without cancellation;
+		 * ln folded in, as e^u may be below the normal range where the
+		 * conductance is not): 1e-12, room for a long double no wider
+		 * than a double.
+		 */
+		double eg = 0.0;
+		if (c->path == JUNCTION_OMEGA) {
+			long double vj = iref > 0.0L ? c->nvt * log1pl(iref / c->is)
+			                             : c->voc - c->r * iref;
+			long double gref = expl(logl((long double)c->is / c->nvt) +
+			                        vj / c->nvt);
+			eg = check_rel(jr.gj, gref, 1e-320);
+			if (!(eg <= 1e-12))
+				fail_msg("%s: gj %.17g exact %.17Lg (rel %.3g)", c->why, jr.gj,
+				         gref, eg);
+		}
+		print_message("# %-30s path %d, %u steps, rel error %.3g, gj %.3g\n",
+		              c->why, (int)jr.path, jr.iters, e, eg);
 	}
 }
 
