@@ -38,7 +38,11 @@ void kernel_newton_set(struct kernel_newton *s, double lo, double flo,
 	s->limit_ctx = NULL;
 }
 
-/* One evaluation and one move. */
+/*
+ * One evaluation and one move: Newton's step, bisection when it would
+ * leave the kept bracket (rtsafe: Press et al., Numerical Recipes, 3rd
+ * ed., 2007, sec. 9.4).
+ */
 enum kernel_status kernel_newton_iterate(struct kernel_newton *s,
                                          const struct kernel_fn *fn)
 {
@@ -199,7 +203,9 @@ double kernel_brent_upper(const struct kernel_brent *s)
 /* ---------------------------------------------------------------------- */
 /* Golden section                                                          */
 
-/* Start a golden-section search on [A, B]. */
+/* Start a golden-section search on [A, B] (Kiefer, Proc. AMS 4(3),
+ * 1953: the interior points at the golden ratio, so that each iteration
+ * reuses one of them). */
 void kernel_golden_set(struct kernel_golden *s, const struct kernel_fn *fn,
                        double a, double b)
 {
@@ -327,7 +333,8 @@ struct kernel_result kernel_brent_solve(const struct kernel_fn *fn, double lo,
 	return r;
 }
 
-/* Bisection (see kernel.h). */
+/* Bisection on values (Burden & Faires, Numerical Analysis, 9th ed.,
+ * 2010, sec. 2.1), see kernel.h. */
 struct kernel_result kernel_bisect_solve(const struct kernel_fn *fn, double lo,
                                          double flo, double hi, bool log,
                                          double rel)
@@ -361,6 +368,37 @@ struct kernel_result kernel_bisect_solve(const struct kernel_fn *fn, double lo,
 	r.x = 0.5 * (lo + hi);
 	r.fx = flo;
 	return r;
+}
+
+/* Bisection on the sign alone (Burden & Faires 2010, sec. 2.1: the
+ * method needs only the sign of F at the middle), see kernel.h. */
+int kernel_narrow(const struct kernel_fn *fn, double *lo, double *flo,
+                  double *hi, double *fhi, double width)
+{
+	int k;
+	for (k = 0; k < KERNEL_MAX_ITER; k++) {
+		if (isfinite(*flo) && isfinite(*fhi) && !(*hi - *lo > width))
+			return k;
+		double m = 0.5 * (*lo + *hi);
+		if (!(m > fmin(*lo, *hi) && m < fmax(*lo, *hi)))
+			return -1;
+		double fm = fn->eval(fn->ctx, m, NULL);
+		if (isnan(fm))
+			return -1;
+		if (fm == 0.0) {
+			*lo = *hi = m;
+			*flo = *fhi = 0.0;
+			return k + 1;
+		}
+		if ((fm < 0.0) == (*flo < 0.0)) {
+			*lo = m;
+			*flo = fm;
+		} else {
+			*hi = m;
+			*fhi = fm;
+		}
+	}
+	return k;
 }
 
 /* Golden section to REL (see kernel.h). */
@@ -471,7 +509,11 @@ static void kernel_scan_dip(struct kernel_scan *s)
 		kernel_scan_emit(s, xm, d.sign * fm, xm, d.sign * fm, true);
 }
 
-/* Take the next sample. */
+/*
+ * Take the next sample: a sign change between neighbours holds a zero
+ * (Bolzano's theorem, F continuous), and a dip of |F| between two is
+ * refined by golden section (kernel_scan_dip).
+ */
 void kernel_scan_push(struct kernel_scan *s, double x, double f)
 {
 	if (s->seen == 0) {
@@ -489,7 +531,8 @@ void kernel_scan_push(struct kernel_scan *s, double x, double f)
 				kernel_scan_emit(s, s->x[1], 0.0, s->x[1], 0.0, false);
 		} else if (kernel_opposite(f1, f2)) {
 			kernel_scan_emit(s, s->x[1], f1, x, f2, false);
-		} else if (s->seen >= 2 && fabs(f1) < fabs(f0) && fabs(f1) < fabs(f2) &&
+		} else if (s->tangent >= 0.0 && s->seen >= 2 &&
+		           fabs(f1) < fabs(f0) && fabs(f1) < fabs(f2) &&
 		           (f0 > 0.0) == (f1 > 0.0) && (f2 > 0.0) == (f1 > 0.0)) {
 			kernel_scan_dip(s);
 		}

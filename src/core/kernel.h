@@ -3,13 +3,19 @@
  * of a function of one real variable.  Every solver in src/core calls
  * these; there is one copy of each method and one set of caps.
  *
- *   safeguarded Newton-Raphson in a kept sign-change bracket
+ *   safeguarded Newton-Raphson in a kept sign-change bracket (Newton's
+ *       step, bisection whenever it would leave the bracket: the scheme
+ *       of rtsafe, Press, Teukolsky, Vetterling & Flannery, Numerical
+ *       Recipes, 3rd ed., Cambridge 2007, sec. 9.4)
  *   Brent-Dekker root finding (Brent, Algorithms for Minimization Without
  *       Derivatives, Prentice-Hall 1973, ch. 4)
+ *   bisection, on values or on the sign alone (Burden & Faires,
+ *       Numerical Analysis, 9th ed., Brooks/Cole 2010, sec. 2.1)
  *   golden-section minimisation (Kiefer, Proc. AMS 4(3), 1953)
- *   the sampling scan: sign changes between samples, and dips of |F|
- *       between samples refined by golden section (a crossing pair or a
- *       tangent that the samples stepped over)
+ *   the sampling scan: sign changes between samples (Bolzano's theorem:
+ *       a continuous function that changes sign has a zero between), and
+ *       dips of |F| between samples refined by golden section (a
+ *       crossing pair or a tangent that the samples stepped over)
  *
  * Shape (GSL's roots/): each method keeps its state in a plain struct,
  * started by _set and advanced by _iterate, which evaluates the function
@@ -178,6 +184,18 @@ struct kernel_result kernel_bisect_solve(const struct kernel_fn *fn, double lo,
                                          double flo, double hi, bool log,
                                          double rel);
 
+/*
+ * Bisection on the sign of a sign-change bracket [*LO, *HI] of F (F(*LO)
+ * = *FLO, F(*HI) = *FHI; either may be infinite, as where an exponential
+ * overflows) until both ends are finite and it is no wider than WIDTH
+ * (INFINITY: finite ends are enough), or F is 0 at a middle (both ends
+ * move there, both values 0), or KERNEL_MAX_ITER.  Returns the halvings
+ * taken, or -1 when F is NaN at a middle or no double lies between the
+ * ends (the bracket is then as far as it got).
+ */
+int kernel_narrow(const struct kernel_fn *fn, double *lo, double *flo,
+                  double *hi, double *fhi, double width);
+
 /* Golden section on [A, B] until the interval is within REL (+ABS). */
 struct kernel_result kernel_golden_solve(const struct kernel_fn *fn, double a,
                                          double b, double rel, double abs);
@@ -196,7 +214,9 @@ struct kernel_bracket {
  * smaller |F| than both neighbours and no sign change) refines the
  * dip between the neighbours by golden section: a point past zero by more
  * than TANGENT times SCALE(x) splits it into two crossings, and a minimum
- * of |F| within that allowance of zero is a tangent point.
+ * of |F| within that allowance of zero is a tangent point.  A TANGENT
+ * below 0 asks for sign changes and zeros only (no dip is refined: for a
+ * function each value of which is a costly solve of its own).
  * Non-finite samples break the chain.  Brackets come out in increasing x,
  * at most MAX of them.
  */

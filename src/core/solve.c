@@ -380,20 +380,10 @@ static int solve_refine_junction(const struct problem_junction *j,
 	double lo = b->lo, hi = b->hi;
 	double flo = solve_junction_eval((void *)j, lo, NULL);
 	double fhi = solve_junction_eval((void *)j, hi, NULL);
-	unsigned steps = 0;
-	while (!(isfinite(flo) && isfinite(fhi)) && steps < KERNEL_MAX_ITER) {
-		double m = 0.5 * (lo + hi), fm = solve_junction_eval((void *)j, m, NULL);
-		steps++;
-		if (isnan(fm) || !(m > lo && m < hi))
-			return -1;
-		if ((fm < 0.0) == (flo < 0.0)) {
-			lo = m;
-			flo = fm;
-		} else {
-			hi = m;
-			fhi = fm;
-		}
-	}
+	int halved = kernel_narrow(&fn, &lo, &flo, &hi, &fhi, INFINITY);
+	if (halved < 0 || !isfinite(flo) || !isfinite(fhi))
+		return -1;
+	unsigned steps = (unsigned)halved;
 	double x;
 	if (flo == 0.0) {
 		x = lo;

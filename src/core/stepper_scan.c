@@ -203,37 +203,6 @@ static bool scan_emit(struct kernel_bracket *out, size_t *n, size_t max,
 }
 
 /*
- * Narrow a sign-change bracket [*A, *B] of FN (F(*A) = *FA, F(*B) = *FB)
- * by halving on the sign until both ends are finite and it is no wider
- * than WIDTH, as tight as a sampled scan's, so that a stepper started on
- * it (which may need finite ends, and creeps down an exponential wall)
- * gets a good one.
- */
-static void scan_narrow(const struct kernel_fn *fn, double *a, double *fa,
-                        double *b, double *fb, double width)
-{
-	for (int k = 0; k < 200; k++) {
-		if (isfinite(*fa) && isfinite(*fb) && *b - *a <= width)
-			return;
-		double m = 0.5 * (*a + *b), fm = fn->eval(fn->ctx, m, NULL);
-		if (isnan(fm) || !(m > *a && m < *b))
-			return;
-		if (fm == 0.0) {
-			*a = *b = m;
-			*fa = *fb = 0.0;
-			return;
-		}
-		if ((fm < 0.0) == (*fa < 0.0)) {
-			*a = m;
-			*fa = fm;
-		} else {
-			*b = m;
-			*fb = fm;
-		}
-	}
-}
-
-/*
  * The exact scan for a model that names its inflections: between them
  * the conductance is monotone, so the residual's slope F' = 1 + r g (or
  * g) is monotone on each piece and vanishes at most once there; split
@@ -288,7 +257,12 @@ static size_t scan_pieces(const struct problem_junction *j, double lo,
 			if (fs == 0.0 && !scan_emit(out, &n, max, s, 0.0, s, 0.0, false))
 				return n;
 			if ((fs < 0.0 && ft > 0.0) || (fs > 0.0 && ft < 0.0)) {
-				scan_narrow(fn, &s, &fs, &t, &ft, width);
+				/* Halved on the sign until its ends are finite and it
+				 * is as tight as a sampled scan's, so that a stepper
+				 * started on it (which may need finite ends, and creeps
+				 * down an exponential wall) gets a good one; a NaN in
+				 * the middle leaves it as far as it got. */
+				(void)kernel_narrow(fn, &s, &fs, &t, &ft, width);
 				if (!scan_emit(out, &n, max, s, fs, t, ft, false))
 					return n;
 			}
@@ -351,7 +325,8 @@ static size_t scan_param(const struct problem *pb, double *xs,
 	double fa = fn.eval(fn.ctx, a, NULL), fb = fn.eval(fn.ctx, b, NULL);
 	if (n < max && ((fa < 0.0 && fb > 0.0) || (fa > 0.0 && fb < 0.0))) {
 		double lo = a, hi = b;
-		scan_narrow(&fn, &lo, &fa, &hi, &fb, (b - a) / SCAN_PARAM_SAMPLES);
+		(void)kernel_narrow(&fn, &lo, &fa, &hi, &fb,
+		                   (b - a) / SCAN_PARAM_SAMPLES);
 		kb[n++] = (struct kernel_bracket){ lo, hi, fa, fb, false };
 	} else if (n < max && fb == 0.0) {
 		kb[n++] = (struct kernel_bracket){ b, b, 0.0, 0.0, false };

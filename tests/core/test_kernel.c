@@ -259,6 +259,66 @@ static void test_bisect(void **state)
 	assert_true(r.hi - r.lo <= 1e-9 * r.hi && r.hi - r.lo > 1e-11 * r.hi);
 }
 
+/* exp(x) - 10 with the exponential's overflow: infinite from x = 710. */
+static double f_wall(void *ctx, double x, double *step)
+{
+	(void)ctx;
+	if (step != NULL)
+		*step = NAN;
+	return exp(x) - 10.0;
+}
+
+/* NaN above 2.9, else x - 2.25. */
+static double f_hole(void *ctx, double x, double *step)
+{
+	(void)ctx;
+	if (step != NULL)
+		*step = NAN;
+	return x > 2.9 ? NAN : x - 2.25;
+}
+
+/*
+ * Bisection on the sign pulls an end whose value overflows in until both
+ * are finite (Burden & Faires 2010, sec. 2.1: only signs are used, so
+ * the root ln 10 stays inside), then to a width; a middle where F is
+ * exactly 0 ends it there; a NaN in the middle is refused.
+ */
+static void test_narrow(void **state)
+{
+	(void)state;
+	struct kernel_fn w = { f_wall, NULL }, s = { f_sign, NULL },
+	                 h = { f_hole, NULL };
+	double lo = -3.7, hi = 1000.0, flo = f_wall(NULL, lo, NULL);
+	double fhi = f_wall(NULL, hi, NULL);
+	assert_true(isinf(fhi));
+	int k = kernel_narrow(&w, &lo, &flo, &hi, &fhi, INFINITY);
+	assert_true(k >= 1 && isfinite(flo) && isfinite(fhi));
+	assert_true(lo < log(10.0) && log(10.0) < hi && flo < 0.0 && fhi > 0.0);
+	assert_true(hi - lo > 1.0); /* finite ends were all it asked */
+	k = kernel_narrow(&w, &lo, &flo, &hi, &fhi, 1e-3);
+	assert_true(k >= 1 && hi - lo <= 1e-3);
+	assert_true(lo < log(10.0) && log(10.0) < hi);
+	/* six halvings take [-1.5, 2.5] to 1/16; a NaN at the middle of
+	 * [1.7, 4.5] stops it; F is exactly 0 at the middle of [2, 2.5] */
+	lo = -1.5;
+	hi = 2.5;
+	flo = -1.0;
+	fhi = 1.0;
+	assert_int_equal(kernel_narrow(&s, &lo, &flo, &hi, &fhi, 0.1), 6);
+	assert_true(lo < 0.3183098861837907 && 0.3183098861837907 <= hi);
+	lo = 1.7;
+	hi = 4.5;
+	flo = -0.55;
+	fhi = INFINITY;
+	assert_int_equal(kernel_narrow(&h, &lo, &flo, &hi, &fhi, INFINITY), -1);
+	lo = 2.0;
+	hi = 2.5;
+	flo = -0.25;
+	fhi = 0.25;
+	assert_int_equal(kernel_narrow(&h, &lo, &flo, &hi, &fhi, 0.3), 1);
+	assert_true(lo == 2.25 && hi == 2.25 && flo == 0.0 && fhi == 0.0);
+}
+
 /* (x - 0.7371)^2 + 1.3 and cos(x). */
 static double f_parab(void *ctx, double x, double *step)
 {
@@ -326,6 +386,24 @@ static double unit_scale(void *ctx, double x)
 	return 1.0;
 }
 
+/* A function of x alone, and a wrapper that counts its calls. */
+struct counted {
+	double (*f)(double x);
+	unsigned calls;
+};
+static double counted_eval(void *ctx, double x, double *step)
+{
+	struct counted *c = ctx;
+	c->calls++;
+	if (step != NULL)
+		*step = NAN;
+	return c->f(x);
+}
+static double f_dip_plain(double x)
+{
+	return f_dip(NULL, x, NULL);
+}
+
 /* Run the scan over N even samples of FN on [A, B]. */
 static size_t scan_run(const struct kernel_fn *fn, double a, double b, int n,
                        struct kernel_bracket *out, size_t max)
@@ -371,6 +449,24 @@ static void test_scan(void **state)
 	assert_true(fabs(br[0].lo - 0.4261) <= 3e-8);
 	n = scan_run(&fs, 0.1, 3.1, 300, br, 4);
 	assert_int_equal(n, 4);
+	/* Sign changes only (TANGENT < 0): the dip and the touch between
+	 * samples are left alone, the sign changes all found, with no
+	 * evaluation beyond the samples. */
+	struct kernel_scan sc;
+	struct counted cd = { f_dip_plain, 0 };
+	struct kernel_fn fc = { counted_eval, &cd };
+	kernel_scan_init(&sc, &fc, NULL, -1.0, br, 16);
+	for (int k = 0; k <= 7; k++)
+		kernel_scan_push(&sc, k / 7.0, fc.eval(fc.ctx, k / 7.0, NULL));
+	kernel_scan_end(&sc);
+	assert_int_equal(sc.n, 0);
+	assert_int_equal(cd.calls, 8);
+	kernel_scan_init(&sc, &fs, NULL, -1.0, br, 16);
+	for (int k = 0; k <= 300; k++)
+		kernel_scan_push(&sc, 0.1 + 3.0 * k / 300,
+		                 fs.eval(fs.ctx, 0.1 + 3.0 * k / 300, NULL));
+	kernel_scan_end(&sc);
+	assert_int_equal(sc.n, 7);
 }
 
 /* The tests are pure: GSL's semantics of the interval test. */
@@ -393,6 +489,7 @@ int main(void)
 		cmocka_unit_test(test_brent_against_gsl),
 		cmocka_unit_test(test_newton_bracket_and_limit),
 		cmocka_unit_test(test_bisect),
+		cmocka_unit_test(test_narrow),
 		cmocka_unit_test(test_golden),
 		cmocka_unit_test(test_scan),
 		cmocka_unit_test(test_tests),
