@@ -21,11 +21,13 @@
  * The caller gives P(T) as a function.  A junction (thermal.h) makes each
  * value an electrical solve at T; a thermistor (models/thermistor.c) finds
  * its body temperature at each current with heat_refine, its P being
- * I^2 R(T) and its thermal resistance 1/delta.  The scan finds every balance in an interval like the
- * electrical every-root scan: sign changes of H on a grid plus the
- * extrema of H between grid points that reach zero (a cool and a hot
- * balance close together).  Each is refined by safeguarded Newton-Raphson
- * on H inside its bracket, bisecting when a step leaves it.
+ * I^2 R(T) and its thermal resistance 1/delta.  The scan finds every
+ * balance in an interval with the kernel's sampling scan, as the
+ * electrical every-root scan does: sign changes of H on a grid plus the
+ * dips of |H| between grid points that reach zero (a cool and a hot
+ * balance close together).  Each is refined by the kernel's safeguarded
+ * Newton-Raphson on H inside its bracket, bisecting when a step leaves it
+ * (kernel.h).
  *
  * Temperatures are in degrees Celsius; tolerances are relative to the
  * absolute temperature T + 273.15 K.
