@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "heat.h"
+#include "kernel.h"
 
 /* Temperature step of the drift dV/dT|I (Richardson: h and h/2), K. */
 #define THERMAL_DT_STEP 0.1
@@ -23,8 +24,6 @@
 #define THERMAL_GAIN_SAMPLES 32
 /* Grid steps of the margin continuation. */
 #define THERMAL_MARGIN_STEPS 240
-/* Steps of a root solve for a parameter value on the branch. */
-#define THERMAL_ROOT_ITERS 100
 
 /* The keys of TYPE (see thermal.h). */
 bool thermal_keys_of(const struct model_type *type, struct thermal_keys *k)
@@ -511,11 +510,26 @@ static int thermal_branch_f(const struct thermal_branch *b, double t, double x,
 	return isfinite(*f) ? 0 : -1;
 }
 
+/* F(X) at the temperature T for the kernel: NaN where it fails. */
+struct thermal_value_fn {
+	const struct thermal_branch *b;
+	double t;
+};
+
+static double thermal_value_eval(void *ctx, double x, double *step)
+{
+	const struct thermal_value_fn *vf = ctx;
+	double f;
+	if (step != NULL)
+		*step = NAN;
+	return thermal_branch_f(vf->b, vf->t, x, &f) == 0 ? f : NAN;
+}
+
 /*
  * The value X of the branch's parameter that makes T a balance, from the
  * guess X0: closed forms for the thermal resistance and the ambient, else
- * a secant search that widens a bracket and then keeps it (Illinois
- * false position).  Returns 0, or -1.
+ * a secant search that widens a bracket and then keeps it, and the
+ * kernel's Brent-Dekker inside it.  Returns 0, or -1.
  */
 static int thermal_branch_value(const struct thermal_branch *b, double t,
                                 double x0, double *x)
@@ -587,34 +601,16 @@ static int thermal_branch_value(const struct thermal_branch *b, double t,
 	}
 	if (!bracket)
 		return -1;
-	/* Illinois false position in [xa, xb]. */
-	int side = 0;
-	for (int it = 0; it < THERMAL_ROOT_ITERS; it++) {
-		double xc = (xa * fb - xb * fa) / (fb - fa);
-		if (!(xc > fmin(xa, xb) && xc < fmax(xa, xb)))
-			xc = 0.5 * (xa + xb);
-		double fc;
-		if (thermal_branch_f(b, t, xc, &fc) != 0)
-			return -1;
-		if (fc == 0.0 || fabs(xb - xa) <= 1e-14 * fmax(fabs(xc), 1e-300)) {
-			*x = xc;
-			return 0;
-		}
-		if ((fc < 0.0) == (fb < 0.0)) {
-			xb = xc;
-			fb = fc;
-			if (side == -1)
-				fa *= 0.5;
-			side = -1;
-		} else {
-			xa = xc;
-			fa = fc;
-			if (side == 1)
-				fb *= 0.5;
-			side = 1;
-		}
-	}
-	*x = fabs(fa) < fabs(fb) ? xa : xb;
+	/* Brent-Dekker in [xa, xb] (kernel.h). */
+	struct thermal_value_fn vf = { b, t };
+	struct kernel_fn fn = { thermal_value_eval, &vf };
+	double lo = fmin(xa, xb), hi = fmax(xa, xb);
+	struct kernel_result r =
+		kernel_brent_solve(&fn, lo, lo == xa ? fa : fb, hi, lo == xa ? fb : fa,
+		                   1e-14, 0.0);
+	if (!r.ok || !isfinite(r.x))
+		return -1;
+	*x = r.x;
 	return 0;
 }
 
@@ -639,9 +635,39 @@ static int thermal_branch_gain(const struct thermal_branch *b, double t,
 }
 
 /*
+ * A function of T along the branch for the kernel: G - 1 (FOLD) or the
+ * branch value X(T) times SIGN (the golden-section search's).  Each value
+ * starts from the last X found; NaN where it fails, noted in FAILED.
+ */
+struct thermal_along {
+	const struct thermal_branch *b;
+	bool fold;
+	double sign;
+	double guess;   /* X at the last T evaluated */
+	bool failed;
+};
+
+static double thermal_along_eval(void *ctx, double t, double *step)
+{
+	struct thermal_along *al = ctx;
+	double x, f;
+	if (step != NULL)
+		*step = NAN;
+	int rc = al->fold ? thermal_branch_gain(al->b, t, al->guess, &x, &f)
+	                  : thermal_branch_value(al->b, t, al->guess, &x);
+	if (rc != 0) {
+		al->failed = true;
+		return NAN;
+	}
+	al->guess = x;
+	return al->fold ? f : al->sign * x;
+}
+
+/*
  * The fold in [A, C], where X(T) turns back: the zero of G - 1 along the
- * branch (dX/dT has the sign of 1 - G), by Illinois false position.
- * Returns 0 with *T and *X, or -1 when G - 1 does not change sign there.
+ * branch (dX/dT has the sign of 1 - G), by the kernel's Brent-Dekker to
+ * 1e-13 of the absolute temperature.  Returns 0 with *T and *X, or -1
+ * when G - 1 does not change sign there (or cannot be had).
  */
 static int thermal_branch_fold(const struct thermal_branch *b, double a,
                                double c, double guess, double *t, double *x)
@@ -651,73 +677,40 @@ static int thermal_branch_fold(const struct thermal_branch *b, double a,
 	    thermal_branch_gain(b, c, guess, &xc, &fc) != 0 ||
 	    (fa < 0.0) == (fc < 0.0))
 		return -1;
-	int side = 0;
-	for (int it = 0; it < THERMAL_ROOT_ITERS; it++) {
-		double tm = (a * fc - c * fa) / (fc - fa);
-		if (!(tm > a && tm < c))
-			tm = 0.5 * (a + c);
-		double xm, fm;
-		if (thermal_branch_gain(b, tm, 0.5 * (xa + xc), &xm, &fm) != 0)
-			return -1;
-		*t = tm;
-		*x = xm;
-		if (fm == 0.0 || c - a <= 1e-13 * fmax(fabs(tm - HEAT_ZERO_C), 1.0) ||
-		    fabs(fm) <= 1e-13)
-			return 0;
-		if ((fm < 0.0) == (fc < 0.0)) {
-			c = tm;
-			fc = fm;
-			xc = xm;
-			if (side == -1)
-				fa *= 0.5;
-			side = -1;
-		} else {
-			a = tm;
-			fa = fm;
-			xa = xm;
-			if (side == 1)
-				fc *= 0.5;
-			side = 1;
-		}
-	}
+	struct thermal_along al = { b, true, 1.0, 0.5 * (xa + xc), false };
+	struct kernel_fn fn = { thermal_along_eval, &al };
+	struct kernel_result r = kernel_brent_solve(
+		&fn, a, fa, c, fc, 0.0, 1e-13 * fmax(fabs(a - HEAT_ZERO_C), 1.0));
+	double g1;
+	if (al.failed || !isfinite(r.x) ||
+	    thermal_branch_gain(b, r.x, al.guess, x, &g1) != 0)
+		return -1;
+	*t = r.x;
 	return 0;
 }
 
 /*
- * The extremum of X(T) on the branch in [A, C] by golden section: a
- * maximum when MAX is true.  *T and *X get it; 0 or -1.
+ * The extremum of X(T) on the branch in [A, C] by the kernel's golden
+ * section, to 1e-10 of the absolute temperature: a maximum when MAX is
+ * true.  *T and *X get it; 0 or -1.
  */
 static int thermal_branch_extremum(const struct thermal_branch *b, double a,
                                    double c, double guess, bool max,
                                    double *t, double *x)
 {
-	const double r = 0.5 * (sqrt(5.0) - 1.0);
-	double s = max ? -1.0 : 1.0;
-	double t1 = c - r * (c - a), t2 = a + r * (c - a), x1, x2;
-	if (thermal_branch_value(b, t1, guess, &x1) != 0 ||
-	    thermal_branch_value(b, t2, x1, &x2) != 0)
+	struct thermal_along al = { b, false, max ? -1.0 : 1.0, guess, false };
+	struct kernel_fn fn = { thermal_along_eval, &al };
+	struct kernel_golden g;
+	kernel_golden_set(&g, &fn, a, c);
+	for (int k = 0; k < KERNEL_MAX_ITER && !al.failed && g.x1 < g.x2 &&
+	                g.b - g.a > 1e-10 * fmax(fabs(g.a - HEAT_ZERO_C), 1.0);
+	     k++)
+		kernel_golden_iterate(&g, &fn);
+	if (al.failed)
 		return -1;
-	for (int k = 0; k < 80 && c - a > 1e-10 * fmax(fabs(a - HEAT_ZERO_C), 1.0);
-	     k++) {
-		if (s * x1 < s * x2) {
-			c = t2;
-			t2 = t1;
-			x2 = x1;
-			t1 = c - r * (c - a);
-			if (thermal_branch_value(b, t1, x2, &x1) != 0)
-				return -1;
-		} else {
-			a = t1;
-			t1 = t2;
-			x1 = x2;
-			t2 = a + r * (c - a);
-			if (thermal_branch_value(b, t2, x1, &x2) != 0)
-				return -1;
-		}
-	}
-	bool first = s * x1 < s * x2;
-	*t = first ? t1 : t2;
-	*x = first ? x1 : x2;
+	double fmin_;
+	*t = kernel_golden_best(&g, &fmin_);
+	*x = al.sign * fmin_;
 	return 0;
 }
 
