@@ -318,6 +318,48 @@ static double design_part_eval(void *ctx, double x, double *step)
 	return design_part_gap(c->pb, c->rq, x, c->v, c->i);
 }
 
+/* The most samples of a design grid. */
+#define DESIGN_GRID_MAX 481
+
+/*
+ * The bracket of a zero of FN nearest the present value, from the
+ * kernel's scan of NGRID samples (at most DESIGN_GRID_MAX): from 1e-6 to
+ * 1e6 times BASE on a logarithmic grid (LOGSCALE), else from BASE - SPAN
+ * to BASE + SPAN; sign changes and zeros only, each value being a solve.
+ * Nearest by the distance of the bracket's middle (geometric on the
+ * logarithmic grid) from BASE.  Returns 0 with [*LO, *HI] and F(*LO), or
+ * -1 when F changes sign nowhere on the grid.
+ */
+static int design_grid_bracket(const struct kernel_fn *fn, int ngrid,
+                               bool logscale, double base, double span,
+                               double *lo, double *flo, double *hi)
+{
+	struct kernel_bracket br[DESIGN_GRID_MAX];
+	struct kernel_scan sc;
+	if (ngrid > DESIGN_GRID_MAX)
+		ngrid = DESIGN_GRID_MAX;
+	kernel_scan_init(&sc, fn, NULL, -1.0, br, DESIGN_GRID_MAX);
+	for (int k = 0; k < ngrid; k++) {
+		double x = logscale
+		               ? base * pow(10.0, -6.0 + 12.0 * k / (ngrid - 1))
+		               : base - span + 2.0 * span * k / (ngrid - 1);
+		kernel_scan_push(&sc, x, fn->eval(fn->ctx, x, NULL));
+	}
+	kernel_scan_end(&sc);
+	double best = INFINITY;
+	for (size_t k = 0; k < sc.n; k++) {
+		double d = logscale ? fabs(log(sqrt(br[k].lo * br[k].hi) / base))
+		                    : fabs(0.5 * (br[k].lo + br[k].hi) - base);
+		if (d < best) {
+			best = d;
+			*lo = br[k].lo;
+			*hi = br[k].hi;
+			*flo = br[k].flo;
+		}
+	}
+	return best < INFINITY ? 0 : -1;
+}
+
 /*
  * The part value that puts the load line through (V, I).  A source's value
  * enters the reduced source linearly (superposition), so two evaluations
@@ -344,31 +386,15 @@ static int design_part_value(const struct problem *pb,
 		*out = x;
 		return 0;
 	}
-	enum { NGRID = 481 };
-	double best = INFINITY, lo = NAN, hi = NAN;
-	double xp = NAN, fp = NAN;
-	for (int k = 0; k < NGRID; k++) {
-		double x = x0 * pow(10.0, -6.0 + 12.0 * k / (NGRID - 1));
-		double f = design_part_gap(pb, rq, x, v, i);
-		if (isfinite(f) && isfinite(fp) && (f == 0.0 || (f < 0.0) != (fp < 0.0))) {
-			double d = fabs(log(sqrt(x * xp) / x0));
-			if (d < best) {
-				best = d;
-				lo = xp;
-				hi = x;
-			}
-		}
-		xp = x;
-		fp = f;
-	}
-	if (isnan(lo)) {
+	struct design_part_ctx pc = { pb, rq, v, i };
+	struct kernel_fn fn = { design_part_eval, &pc };
+	double lo, hi, flo;
+	if (design_grid_bracket(&fn, DESIGN_GRID_MAX, true, x0, 0.0, &lo, &flo,
+	                        &hi) != 0) {
 		snprintf(err, errlen, "no value of this resistor from 1e-6 to 1e6 "
 		         "times its present value puts the device at the target");
 		return -1;
 	}
-	struct design_part_ctx pc = { pb, rq, v, i };
-	struct kernel_fn fn = { design_part_eval, &pc };
-	double flo = design_part_gap(pb, rq, lo, v, i);
 	struct kernel_result r = kernel_bisect_solve(&fn, lo, flo, hi, true, 1e-15);
 	*out = r.x;
 	return 0;
@@ -499,33 +525,15 @@ static int design_general(const struct problem *pb,
                           const struct design_request *rq, double *exact,
                           struct design_result *out)
 {
-	enum { NGRID = 241 };
 	double x0 = design_present(pb, rq);
 	bool logscale = design_unknown_unit(pb, rq) == QTY_RESISTANCE;
 	double base = logscale ? (x0 > 0.0 && isfinite(x0) ? x0 : 1e3) : x0;
 	double span = 10.0 * (fabs(x0) + 1.0);
-	double v, i, best = INFINITY, lo = NAN, hi = NAN, flo = NAN;
-	double xp = NAN, fp = NAN;
-	for (int k = 0; k < NGRID; k++) {
-		double x = logscale
-		               ? base * pow(10.0, -6.0 + 12.0 * k / (NGRID - 1))
-		               : base - span + 2.0 * span * k / (NGRID - 1);
-		double f = design_achieved(pb, o, rq, x, NAN, &v, &i) - rq->value;
-		if (isfinite(f) && isfinite(fp) &&
-		    (f == 0.0 || (f < 0.0) != (fp < 0.0))) {
-			double d = logscale ? fabs(log(sqrt(x * xp) / base))
-			                    : fabs(0.5 * (x + xp) - x0);
-			if (d < best) {
-				best = d;
-				lo = xp;
-				hi = x;
-				flo = fp;
-			}
-		}
-		xp = x;
-		fp = f;
-	}
-	if (isnan(lo)) {
+	double v, i, lo, hi, flo;
+	struct design_general_ctx gc = { pb, o, rq };
+	struct kernel_fn fn = { design_general_eval, &gc };
+	if (design_grid_bracket(&fn, 241, logscale, base, span, &lo, &flo, &hi) !=
+	    0) {
 		snprintf(out->message, sizeof out->message,
 		         "no value of %s from %s puts the %s at %.6g: the target is "
 		         "out of this stage's reach",
@@ -537,8 +545,6 @@ static int design_general(const struct problem *pb,
 		         design_request_name(rq), rq->value);
 		return -1;
 	}
-	struct design_general_ctx gc = { pb, o, rq };
-	struct kernel_fn fn = { design_general_eval, &gc };
 	struct kernel_result r = kernel_bisect_solve(&fn, lo, flo, hi, logscale, 0.0);
 	lo = r.lo;
 	hi = r.hi;
