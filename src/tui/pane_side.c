@@ -112,6 +112,16 @@ static char *pane_side_eng(char *buf, size_t n, double value, int sig)
 	return buf;
 }
 
+/* An error ratio for a table cell: "+0.383" below 10 in size, else in
+ * engineering notation; "-" where it is not defined. */
+static void pane_side_ratio(char *buf, size_t n, double ratio)
+{
+	if (isfinite(ratio) && fabs(ratio) < 10.0)
+		snprintf(buf, n, "%+.3f", ratio);
+	else
+		pane_side_eng(buf, n, ratio, 3);
+}
+
 /* Write a section header TITLE at ROW, COL, W wide. */
 static void pane_header(struct app *a, int row, int col, int w, const char *title)
 {
@@ -792,16 +802,8 @@ static void pane_thermal_table(struct app *a, int row, int col, int w, int max)
 		char t[48], p[48], step[48], ratio[48];
 		snprintf(t, sizeof t, "%.5g", r->tj);
 		pane_side_eng(p, sizeof p, r->p, 4);
-		if (isnan(r->step))
-			snprintf(step, sizeof step, "-");
-		else
-			pane_side_eng(step, sizeof step, r->step, 3);
-		if (!isfinite(r->ratio))
-			snprintf(ratio, sizeof ratio, "-");
-		else if (fabs(r->ratio) < 10.0)
-			snprintf(ratio, sizeof ratio, "%+.3f", r->ratio);
-		else
-			pane_side_eng(ratio, sizeof ratio, r->ratio, 3);
+		pane_side_eng(step, sizeof step, r->step, 3);
+		pane_side_ratio(ratio, sizeof ratio, r->ratio);
 		if (wide)
 			snprintf(line, sizeof line, "%3u %8s %8s %7s %6s", r->k, t, p,
 			         step, ratio);
@@ -844,17 +846,9 @@ static void pane_conv_table(struct app *a, int row, int col, int w, int max)
 		pane_side_eng(v, sizeof v, r->v, 4);
 		pane_side_eng(i, sizeof i, r->i, 4);
 		pane_side_eng(res, sizeof res, r->residual, 3);
-		/* Row 0 is the start point: it has no step yet. */
-		if (!isfinite(r->step))
-			snprintf(step, sizeof step, "-");
-		else
-			pane_side_eng(step, sizeof step, r->step, 3);
-		if (!isfinite(r->ratio))
-			snprintf(ratio, sizeof ratio, "-");
-		else if (fabs(r->ratio) < 10.0)
-			snprintf(ratio, sizeof ratio, "%+.3f", r->ratio);
-		else
-			pane_side_eng(ratio, sizeof ratio, r->ratio, 3);
+		/* Row 0 is the start point: it has no step yet ("-"). */
+		pane_side_eng(step, sizeof step, r->step, 3);
+		pane_side_ratio(ratio, sizeof ratio, r->ratio);
 		if (wide)
 			snprintf(line, sizeof line, "%3u %7s %7s %7s %7s %6s", r->k, v, i,
 			         res, step, ratio);
